@@ -1,0 +1,110 @@
+#!/usr/bin/env bash
+# Shared set-up steps for npm start, npm test and npm run dev. Each step is idempotent.
+ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
+DATA_DIR="${HEARTH_DATA_DIR:-$ROOT/.data}"
+PG_PORT="${HEARTH_PG_PORT:-54329}"
+PG_BIN="${HEARTH_PG_BIN:-/usr/lib/postgresql/15/bin}"
+export HEARTH_DATA_DIR="$DATA_DIR"
+
+log() { printf '\033[38;5;173m[hearth]\033[0m %s\n' "$*"; }
+
+is_root() { [ "$(id -u)" = "0" ]; }
+
+# Installs node_modules when missing or older than the lock file.
+ensure_node_modules() {
+  if [ ! -d "$ROOT/node_modules/.bin" ] || [ ! -f "$ROOT/node_modules/.package-lock.json" ] \
+     || [ "$ROOT/package-lock.json" -nt "$ROOT/node_modules/.package-lock.json" ]; then
+    log "installing dependencies (npm ci)"
+    (cd "$ROOT" && npm ci --no-audit --no-fund)
+  fi
+}
+
+apt_install() {
+  if ! is_root; then
+    log "missing $* and not running as root: install it with apt-get install -y $*"
+    return 1
+  fi
+  log "installing $* with apt-get"
+  if ! DEBIAN_FRONTEND=noninteractive apt-get install -y -qq "$@" >/dev/null 2>&1; then
+    apt-get update -qq >/dev/null 2>&1 || true
+    DEBIAN_FRONTEND=noninteractive apt-get install -y -qq "$@" >/dev/null
+  fi
+}
+
+ensure_postgres_binaries() {
+  if [ ! -x "$PG_BIN/initdb" ]; then
+    apt_install postgresql
+  fi
+  if ! id postgres >/dev/null 2>&1; then
+    if is_root; then useradd --system --no-create-home --shell /usr/sbin/nologin postgres; fi
+  fi
+}
+
+ensure_chromium() {
+  if [ -z "${HEARTH_CHROMIUM:-}" ] && [ ! -x /usr/bin/chromium ]; then
+    apt_install chromium
+  fi
+}
+
+# Runs a PostgreSQL command as the unprivileged server user when we are root.
+pg_as() {
+  if is_root; then runuser -u postgres -- "$@"; else "$@"; fi
+}
+
+# Starts the project's own cluster: data in $DATA_DIR/pg, socket beside it, 127.0.0.1:$PG_PORT.
+ensure_postgres() {
+  if [ -n "${DATABASE_URL:-}" ] && [ -z "${HEARTH_OWN_PG:-}" ]; then
+    log "using DATABASE_URL from the environment"
+    return 0
+  fi
+  ensure_postgres_binaries
+  local pgdata="$DATA_DIR/pg/data" sock="$DATA_DIR/pg/run"
+  mkdir -p "$pgdata" "$sock"
+  if is_root; then chown -R postgres "$DATA_DIR/pg"; chmod 700 "$pgdata"; fi
+  if [ ! -f "$pgdata/PG_VERSION" ]; then
+    log "creating the database cluster in $pgdata"
+    pg_as "$PG_BIN/initdb" -D "$pgdata" -U postgres --auth=trust --encoding=UTF8 --locale=C.UTF-8 >/dev/null
+    cat >> "$pgdata/postgresql.conf" <<CONF
+listen_addresses = '127.0.0.1'
+port = $PG_PORT
+unix_socket_directories = '$sock'
+max_connections = 200
+shared_buffers = 128MB
+CONF
+  fi
+  if ! "$PG_BIN/pg_isready" -q -h 127.0.0.1 -p "$PG_PORT" -U postgres -d postgres; then
+    if [ -f "$pgdata/postmaster.pid" ]; then
+      local pid; pid=$(head -1 "$pgdata/postmaster.pid")
+      if ! ps -p "$pid" -o comm= 2>/dev/null | grep -q postgres; then
+        log "removing a stale postmaster.pid"
+        rm -f "$pgdata/postmaster.pid"
+      fi
+    fi
+    local extra=""
+    [ "${HEARTH_PG_FAST:-}" = "1" ] && extra="-o -c fsync=off -o -c synchronous_commit=off"
+    pg_as "$PG_BIN/pg_ctl" -D "$pgdata" -l "$DATA_DIR/pg/server.log" -w -t 60 $extra start >/dev/null
+  fi
+  export DATABASE_URL="postgres://postgres@127.0.0.1:$PG_PORT/${HEARTH_DB_NAME:-hearth}"
+}
+
+stop_postgres() {
+  local pgdata="$DATA_DIR/pg/data"
+  if [ -f "$pgdata/postmaster.pid" ]; then
+    pg_as "$PG_BIN/pg_ctl" -D "$pgdata" -m fast -w stop >/dev/null && log "PostgreSQL stopped"
+  else
+    log "PostgreSQL is not running"
+  fi
+}
+
+# SESSION_SECRET from the environment, else one generated once into the data directory.
+ensure_session_secret() {
+  if [ -z "${SESSION_SECRET:-}" ]; then
+    local f="$DATA_DIR/session-secret"
+    if [ ! -s "$f" ]; then
+      mkdir -p "$DATA_DIR"
+      (umask 077; node -e "process.stdout.write(require('crypto').randomBytes(48).toString('base64url'))" > "$f")
+    fi
+    SESSION_SECRET="$(cat "$f")"
+    export SESSION_SECRET
+  fi
+}
