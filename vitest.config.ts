@@ -1,7 +1,7 @@
 import { defineConfig } from "vitest/config";
 import path from "node:path";
 
-const alias = { "@": path.resolve(__dirname) };
+const alias = { "@": path.resolve(import.meta.dirname) };
 
 // Pure tests run in parallel; tests that touch the shared test database or the browser run
 // one file at a time so that timing-sensitive checks do not compete for the two cores.

@@ -406,6 +406,15 @@ export interface WashStations {
   version: Generated<number>;
 }
 
+export interface WorkerHeartbeats {
+  beat_at: Generated<Timestamp>;
+  host: string;
+  last_job_at: Timestamp | null;
+  pid: number;
+  started_at: Generated<Timestamp>;
+  worker_id: string;
+}
+
 export interface DB {
   auth_tokens: AuthTokens;
   builds: Builds;
@@ -432,4 +441,5 @@ export interface DB {
   users: Users;
   wash_batches: WashBatches;
   wash_stations: WashStations;
+  worker_heartbeats: WorkerHeartbeats;
 }

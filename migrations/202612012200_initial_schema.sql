@@ -446,3 +446,13 @@ create table notification_outbox (
   unique (kind, subject_key, recipient_email)
 );
 create index notification_outbox_pending_idx on notification_outbox (created_at) where status = 'pending';
+
+-- Worker processes write here; /api/health reads the age of the newest beat.
+create table worker_heartbeats (
+  worker_id text primary key,
+  host text not null,
+  pid integer not null,
+  started_at timestamptz not null default now(),
+  beat_at timestamptz not null default now(),
+  last_job_at timestamptz -- when the queue-driven heartbeat job last ran
+);

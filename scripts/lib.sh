@@ -108,3 +108,31 @@ ensure_session_secret() {
     export SESSION_SECRET
   fi
 }
+
+# Creates the database named in DATABASE_URL's path when it is missing (own cluster only).
+ensure_database() {
+  local name="$1"
+  [ -n "${HEARTH_EXTERNAL_DB:-}" ] && return 0
+  if ! "$PG_BIN/psql" -h 127.0.0.1 -p "$PG_PORT" -U postgres -d postgres -tAc "select 1 from pg_database where datname = '$name'" | grep -q 1; then
+    "$PG_BIN/createdb" -h 127.0.0.1 -p "$PG_PORT" -U postgres "$name"
+  fi
+}
+
+recreate_database() {
+  local name="$1"
+  "$PG_BIN/psql" -q -h 127.0.0.1 -p "$PG_PORT" -U postgres -d postgres -c "drop database if exists \"$name\" with (force)" >/dev/null
+  "$PG_BIN/createdb" -h 127.0.0.1 -p "$PG_PORT" -U postgres "$name"
+}
+
+# Ports and addresses of the app and its local fakes. BASE moves them all (tests use another).
+stack_env() {
+  local base="${1:-0}"
+  export PORT="${PORT:-$((3000 + base))}"
+  export SMTP_PORT="${SMTP_PORT:-$((2525 + base))}"
+  export MAIL_CAPTURE_PORT="${MAIL_CAPTURE_PORT:-$((2526 + base))}"
+  export S3_PORT="${S3_PORT:-$((4569 + base))}"
+  export APP_URL="${APP_URL:-http://127.0.0.1:$PORT}"
+  export MAIL_CAPTURE_URL="${MAIL_CAPTURE_URL:-http://127.0.0.1:$MAIL_CAPTURE_PORT}"
+  export S3_ENDPOINT="${S3_ENDPOINT:-http://127.0.0.1:$S3_PORT}"
+  export SMTP_HOST="${SMTP_HOST:-127.0.0.1}"
+}

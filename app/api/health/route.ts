@@ -1,0 +1,59 @@
+import { NextResponse } from "next/server";
+import { getDb } from "@/db/client";
+import { currentMigration } from "@/db/migrate";
+import { countLiveWorkers, findNewestHeartbeat, pingDatabase } from "@/db/queries/health";
+import { checkSmtp } from "@/lib/mail/transport";
+import { checkBucket } from "@/lib/storage/s3";
+
+export const dynamic = "force-dynamic";
+
+type Check = { ok: boolean; [key: string]: unknown };
+
+// A worker beats every 15 s; three missed beats means it is gone.
+const WORKER_STALE_SECONDS = 45;
+
+async function timed<T>(fn: () => Promise<T>): Promise<{ ok: true; ms: number; value: T } | { ok: false; ms: number; error: string }> {
+  const started = performance.now();
+  try {
+    const value = await fn();
+    return { ok: true, ms: Math.round(performance.now() - started), value };
+  } catch (err) {
+    return { ok: false, ms: Math.round(performance.now() - started), error: err instanceof Error ? err.message : String(err) };
+  }
+}
+
+// GET /api/health – reachability of the database, the worker and the mail and file stores (public)
+export async function GET() {
+  const db = getDb();
+  const [database, migration, worker, smtp, s3] = await Promise.all([
+    timed(() => pingDatabase(db)),
+    timed(() => currentMigration(db)),
+    timed(async () => ({ newest: await findNewestHeartbeat(db), live: await countLiveWorkers(db, WORKER_STALE_SECONDS) })),
+    timed(checkSmtp),
+    timed(checkBucket),
+  ]);
+
+  const checks: Record<string, Check> = {
+    database: database.ok ? { ok: true, latency_ms: Math.round(database.value * 100) / 100 } : { ok: false, error: database.error },
+    migrations: migration.ok
+      ? { ok: migration.value.pending === 0, applied: migration.value.applied, pending: migration.value.pending }
+      : { ok: false, error: migration.error },
+    worker: worker.ok
+      ? (() => {
+          const beat = worker.value.newest?.beat_at;
+          const age = beat ? Math.round((Date.now() - beat.getTime()) / 1000) : null;
+          const jobAt = worker.value.newest?.last_job_at;
+          return {
+            ok: age !== null && age <= WORKER_STALE_SECONDS,
+            heartbeat_age_s: age,
+            heartbeat_job_age_s: jobAt ? Math.round((Date.now() - jobAt.getTime()) / 1000) : null,
+            live_workers: worker.value.live,
+          };
+        })()
+      : { ok: false, error: worker.error },
+    smtp: smtp.ok ? { ok: true, ms: smtp.ms } : { ok: false, error: smtp.error },
+    storage: s3.ok ? { ok: true, ms: s3.ms } : { ok: false, error: s3.error },
+  };
+  const ok = Object.values(checks).every((c) => c.ok);
+  return NextResponse.json({ ok, checked_at: new Date().toISOString(), checks }, { status: ok ? 200 : 503, headers: { "cache-control": "no-store" } });
+}

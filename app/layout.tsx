@@ -1,0 +1,20 @@
+import type { Metadata } from "next";
+import localFont from "next/font/local";
+import "./globals.css";
+
+const manrope = localFont({ src: "./fonts/manrope.woff2", variable: "--font-manrope", weight: "200 800", display: "swap" });
+const fraunces = localFont({ src: "./fonts/fraunces.woff2", variable: "--font-fraunces", weight: "100 900", display: "swap" });
+const jetbrains = localFont({ src: "./fonts/jetbrains-mono.woff2", variable: "--font-jetbrains", weight: "100 800", display: "swap" });
+
+export const metadata: Metadata = {
+  title: { default: "Hearth", template: "%s · Hearth" },
+  description: "Plans print, wash, sinter and finishing for a bound-metal additive-manufacturing shop.",
+};
+
+export default function RootLayout({ children }: { children: React.ReactNode }) {
+  return (
+    <html lang="en" className={`${manrope.variable} ${fraunces.variable} ${jetbrains.variable}`}>
+      <body>{children}</body>
+    </html>
+  );
+}

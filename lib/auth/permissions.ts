@@ -1,0 +1,74 @@
+// The single source of who may do what. Route handlers, server actions, pages and the
+// navigation all ask this module; nothing else decides.
+
+export const ROLES = ["admin", "manager", "technician", "furnace_operator", "machinist"] as const;
+export type Role = (typeof ROLES)[number];
+
+export const ROLE_LABELS: Record<Role, string> = {
+  admin: "Admin",
+  manager: "Manager",
+  technician: "Technician",
+  furnace_operator: "Furnace operator",
+  machinist: "Machinist",
+};
+
+const everyone: readonly Role[] = ROLES;
+
+/** Actions a person can take. Reading shop data is open to every signed-in role. */
+export const PERMISSIONS = {
+  "shop:read": everyone,
+  "orders:write": ["admin", "manager", "technician"],
+  "orders:prioritize": ["admin", "manager"],
+  "parts:write": ["admin", "technician"],
+  "geometry:upload": ["admin", "technician"],
+  "builds:write": ["admin", "technician"],
+  "builds:schedule": ["admin", "technician"],
+  "plan:propose": ["admin", "manager", "technician"],
+  "plan:apply": ["admin", "technician"],
+  "wash:write": ["admin", "technician", "furnace_operator"],
+  "wash:record": ["admin", "technician", "furnace_operator"],
+  "furnace:write": ["admin", "furnace_operator"],
+  "furnace:operate": ["admin", "furnace_operator"],
+  "finishing:write": ["admin", "machinist"],
+  "inspections:write": ["admin", "machinist"],
+  "capacity:read": ["admin", "manager"],
+  "calibration:apply": ["admin"],
+  "setup:write": ["admin"],
+  "users:admin": ["admin"],
+  "mail:read": ["admin"],
+  "jobs:read": ["admin"],
+  "self:write": everyone,
+} as const satisfies Record<string, readonly Role[]>;
+
+export type Permission = keyof typeof PERMISSIONS;
+
+export function can(role: Role | null | undefined, permission: Permission): boolean {
+  if (!role) return false;
+  return (PERMISSIONS[permission] as readonly Role[]).includes(role);
+}
+
+export type NavItem = { href: string; label: string; permission: Permission; hint: string };
+
+/** The pages of the product, in the order the work flows. */
+export const NAV: NavItem[] = [
+  { href: "/floor", label: "Floor", permission: "shop:read", hint: "Printers, wash stations and furnaces on one timeline" },
+  { href: "/parts", label: "Orders & parts", permission: "shop:read", hint: "Orders, parts, units and geometry" },
+  { href: "/batches", label: "Batches", permission: "shop:read", hint: "Fill wash batches and furnace runs" },
+  { href: "/finishing", label: "Finishing", permission: "shop:read", hint: "Arriving and ready parts, inspection" },
+  { href: "/capacity", label: "Capacity", permission: "capacity:read", hint: "Utilization, work in progress, late orders" },
+  { href: "/setup", label: "Set-up", permission: "setup:write", hint: "Users, equipment, materials, profiles" },
+  { href: "/mail", label: "Mail", permission: "mail:read", hint: "Messages captured by the local mail server" },
+];
+
+/** Pages each role sees first after signing in. */
+export const HOME: Record<Role, string> = {
+  admin: "/setup",
+  manager: "/capacity",
+  technician: "/floor",
+  furnace_operator: "/batches",
+  machinist: "/finishing",
+};
+
+export function navFor(role: Role): NavItem[] {
+  return NAV.filter((item) => can(role, item.permission));
+}

@@ -1,0 +1,57 @@
+import os from "node:os";
+import PgBoss from "pg-boss";
+import { sql } from "kysely";
+import { getDb, closeDb } from "@/db/client";
+import { getEnv } from "@/lib/env";
+import { ALL_QUEUES, QUEUES } from "@/lib/jobs/queues";
+
+const workerId = `${os.hostname()}:${process.pid}:${Date.now().toString(36)}`;
+const BEAT_MS = 15_000;
+
+async function beat(jobRan = false) {
+  const db = getDb();
+  await db
+    .insertInto("worker_heartbeats")
+    .values({ worker_id: workerId, host: os.hostname(), pid: process.pid, last_job_at: jobRan ? new Date() : null })
+    .onConflict((oc) =>
+      oc.column("worker_id").doUpdateSet({ beat_at: sql`now()`, ...(jobRan ? { last_job_at: sql`now()` } : {}) }),
+    )
+    .execute();
+}
+
+async function main() {
+  const boss = new PgBoss({ connectionString: getEnv().DATABASE_URL, max: 5 });
+  boss.on("error", (err) => console.error("[worker] pg-boss error", err.message));
+  await boss.start();
+  for (const name of ALL_QUEUES) await boss.createQueue(name);
+
+  await boss.work(QUEUES.heartbeat, async () => {
+    await beat(true);
+  });
+  // Cron in pg-boss is minute-grained; the heartbeat job proves the queue is being worked.
+  await boss.schedule(QUEUES.heartbeat, "* * * * *", {}, { singletonKey: "heartbeat" });
+  await boss.send(QUEUES.heartbeat, {});
+
+  await beat();
+  const timer = setInterval(() => beat().catch((err) => console.error("[worker] heartbeat failed", err.message)), BEAT_MS);
+  console.log(`[worker] ${workerId} ready; queues: ${ALL_QUEUES.join(", ")}`);
+
+  let stopping = false;
+  const stop = async (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    console.log(`[worker] ${signal}: finishing current jobs`);
+    clearInterval(timer);
+    await boss.stop({ graceful: true, timeout: 20_000 });
+    await getDb().deleteFrom("worker_heartbeats").where("worker_id", "=", workerId).execute().catch(() => {});
+    await closeDb();
+    process.exit(0);
+  };
+  process.on("SIGTERM", () => void stop("SIGTERM"));
+  process.on("SIGINT", () => void stop("SIGINT"));
+}
+
+main().catch((err) => {
+  console.error("[worker] failed to start:", err);
+  process.exit(1);
+});
