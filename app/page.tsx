@@ -1,5 +1,8 @@
 import { redirect } from "next/navigation";
+import { HOME } from "@/lib/auth/permissions";
+import { requirePageUser } from "@/lib/auth/session";
 
-export default function Home() {
-  redirect("/floor");
+export default async function Home() {
+  const user = await requirePageUser();
+  redirect(HOME[user.role]);
 }

@@ -29,7 +29,8 @@ export const migrationsFolder = path.resolve(process.cwd(), "migrations");
 
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function migrateToLatest(db: Kysely<any>, folder = migrationsFolder): Promise<MigrationResultSet> {
-  const migrator = new Migrator({ db, provider: new SqlFileMigrationProvider(folder) });
+  // Unordered: branches land migrations with earlier timestamps after later ones have run.
+  const migrator = new Migrator({ db, provider: new SqlFileMigrationProvider(folder), allowUnorderedMigrations: true });
   const result = await migrator.migrateToLatest();
   if (result.error) throw result.error;
   return result;
@@ -38,7 +39,7 @@ export async function migrateToLatest(db: Kysely<any>, folder = migrationsFolder
 /** Name of the newest applied migration, or null on an empty database. */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function currentMigration(db: Kysely<any>): Promise<{ applied: string | null; pending: number }> {
-  const migrator = new Migrator({ db, provider: new SqlFileMigrationProvider(migrationsFolder) });
+  const migrator = new Migrator({ db, provider: new SqlFileMigrationProvider(migrationsFolder), allowUnorderedMigrations: true });
   const all = await migrator.getMigrations();
   const applied = all.filter((m) => m.executedAt);
   return { applied: applied.at(-1)?.name ?? null, pending: all.length - applied.length };

@@ -372,6 +372,7 @@ export interface Users {
   name: string;
   password_hash: string | null;
   role: UserRole;
+  sessions_valid_after: Generated<Timestamp>;
   unit_pref: Generated<UnitSystem>;
   updated_at: Generated<Timestamp>;
   version: Generated<number>;

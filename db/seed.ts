@@ -1,6 +1,7 @@
 import type { Database } from "@/db/client";
 import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/permissions";
+import { DEMO_PASSWORD, DEMO_USERS } from "./seed-users";
 
 /**
  * The demo shop: an invented contract shop, "Kestrel Sinterworks", with its own equipment,
@@ -9,15 +10,7 @@ import type { Role } from "@/lib/auth/permissions";
  * relations (German's shrinkage relation, Crank's t ∝ h² wash law) with typical inputs.
  */
 
-export const DEMO_PASSWORD = "hearth-demo";
-
-export const DEMO_USERS: { email: string; name: string; role: Role }[] = [
-  { email: "admin@demo.hearth.test", name: "Ines Okafor", role: "admin" },
-  { email: "manager@demo.hearth.test", name: "Tomasz Brandt", role: "manager" },
-  { email: "technician@demo.hearth.test", name: "Priya Raman", role: "technician" },
-  { email: "furnace@demo.hearth.test", name: "Joel Lindqvist", role: "furnace_operator" },
-  { email: "machinist@demo.hearth.test", name: "Marta Quiroga", role: "machinist" },
-];
+export { DEMO_PASSWORD, DEMO_USERS };
 
 // Mulberry32: a small seeded generator so the demo shop is the same on every machine.
 function rng(seed: number) {

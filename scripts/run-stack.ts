@@ -1,21 +1,14 @@
 // The last step of `npm start`: runs the fakes, the app and the worker until Ctrl-C.
+import { DEMO_PASSWORD, DEMO_USERS } from "../db/seed-users";
+import { ROLE_LABELS } from "../lib/auth/permissions";
 import { startStack, stopProcs } from "./stack";
-
-const DEMO_PASSWORD = "hearth-demo";
-const DEMO = [
-  ["admin", "admin@demo.hearth.test"],
-  ["manager", "manager@demo.hearth.test"],
-  ["technician", "technician@demo.hearth.test"],
-  ["furnace operator", "furnace@demo.hearth.test"],
-  ["machinist", "machinist@demo.hearth.test"],
-];
 
 async function main() {
   const port = Number(process.env.PORT ?? 3000);
   const procs = await startStack({ port, env: process.env });
   const url = `http://127.0.0.1:${port}`;
   console.log(`\n  Hearth is running at ${url}\n\n  Demo sign-ins (password "${DEMO_PASSWORD}"):`);
-  for (const [role, email] of DEMO) console.log(`    ${role.padEnd(17)} ${email}`);
+  for (const u of DEMO_USERS) console.log(`    ${ROLE_LABELS[u.role].padEnd(17)} ${u.email}`);
   console.log(`\n  Health: ${url}/api/health   Stop: Ctrl-C\n`);
 
   let stopping = false;

@@ -22,9 +22,15 @@ describe("the app shell in a browser", () => {
     expect(body.checks.storage.ok).toBe(true);
   });
 
-  it("shows the product name and navigation", async () => {
+  it("sends a signed-out visitor to sign in, then shows the product name and navigation", async () => {
     const page = await browser.newPage();
-    await page.goto(`${appUrl()}/`);
+    await page.goto(`${appUrl()}/parts`);
+    expect(new URL(page.url()).pathname).toBe("/sign-in");
+    await page.getByLabel("E-mail").fill("technician@demo.hearth.test");
+    await page.getByLabel("Password").fill("hearth-demo");
+    await page.getByRole("button", { name: "Sign in" }).click();
+    await page.waitForURL(/\/parts$/);
+    expect(await page.getByTestId("user-name").textContent()).toBe("Priya Raman");
     await expect(page.getByText("Hearth", { exact: true }).first().isVisible()).resolves.toBe(true);
     const nav = page.getByRole("navigation", { name: "Main" });
     expect(await nav.isVisible()).toBe(true);

@@ -1,0 +1,36 @@
+import { connection } from "next/server";
+import { DEMO_USERS, DEMO_PASSWORD } from "@/db/seed-users";
+import { ROLE_LABELS } from "@/lib/auth/permissions";
+import { SignInForm } from "./sign-in-form";
+
+export const metadata = { title: "Sign in" };
+
+function safeNext(next: string | undefined) {
+  // Only paths on this site: never an absolute or protocol-relative address.
+  return next && next.startsWith("/") && !next.startsWith("//") ? next : "";
+}
+
+export default async function SignInPage({ searchParams }: { searchParams: Promise<{ next?: string }> }) {
+  await connection();
+  const { next } = await searchParams;
+  const showDemo = process.env.HEARTH_DEMO !== "0";
+  return (
+    <>
+      <h1 className="font-display text-xl font-semibold">Sign in</h1>
+      <p className="mt-1 text-sm text-soot-500">Plan the print floor, the wash and the furnaces.</p>
+      <SignInForm next={safeNext(next)} />
+      {showDemo ? (
+        <div className="mt-6 border-t border-soot-100 pt-4 text-xs text-soot-500" data-testid="demo-sign-ins">
+          <div className="mb-1.5 font-semibold text-soot-700">Demo shop sign-ins (password “{DEMO_PASSWORD}”)</div>
+          <ul className="space-y-0.5 font-mono">
+            {DEMO_USERS.map((u) => (
+              <li key={u.email}>
+                {u.email} <span className="font-sans text-soot-400">· {ROLE_LABELS[u.role]}</span>
+              </li>
+            ))}
+          </ul>
+        </div>
+      ) : null}
+    </>
+  );
+}

@@ -1,0 +1,15 @@
+// Session cookie settings shared by lib/auth/session.ts and proxy.ts (no next/* imports here).
+
+export type SessionData = {
+  userId?: string;
+  issuedAt?: number; // ms; the absolute lifetime counts from here
+  seenAt?: number; // ms; the idle lifetime slides from here
+};
+
+export const SESSION_COOKIE = "hearth_session";
+/** Idle lifetime: the cookie and its seal expire this long after the last renewal. */
+export const SESSION_IDLE_SECONDS = 8 * 60 * 60;
+/** Absolute lifetime: sign in again after this, however active. */
+export const SESSION_MAX_SECONDS = 7 * 24 * 60 * 60;
+/** Renew at most this often, so a busy page does not rewrite its cookie on every request. */
+export const SESSION_RENEW_SECONDS = 5 * 60;

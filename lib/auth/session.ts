@@ -1,0 +1,84 @@
+import { cache } from "react";
+import { cookies, headers } from "next/headers";
+import { redirect } from "next/navigation";
+import { getIronSession, type SessionOptions } from "iron-session";
+import { getDb } from "@/db/client";
+import { findActiveUserById, type CurrentUser } from "@/db/queries/users";
+import { AppError } from "@/lib/errors";
+import { can, type Permission } from "@/lib/auth/permissions";
+
+export type { CurrentUser };
+
+import { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, type SessionData } from "./session-config";
+
+export { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS, type SessionData } from "./session-config";
+
+export function sessionOptions(secure: boolean): SessionOptions {
+  const password = process.env.SESSION_SECRET;
+  if (!password || password.length < 32) throw new Error("SESSION_SECRET must be set to at least 32 characters");
+  return {
+    password,
+    cookieName: SESSION_COOKIE,
+    ttl: SESSION_IDLE_SECONDS,
+    cookieOptions: { httpOnly: true, sameSite: "lax", secure, path: "/" },
+  };
+}
+
+/** Secure cookies whenever the request reached us over https (directly or via a proxy). */
+export async function requestIsHttps(): Promise<boolean> {
+  const h = await headers();
+  const proto = h.get("x-forwarded-proto") ?? "";
+  if (proto) return proto.split(",")[0].trim() === "https";
+  return (process.env.APP_URL ?? "").startsWith("https://");
+}
+
+export async function getSession() {
+  return getIronSession<SessionData>(await cookies(), sessionOptions(await requestIsHttps()));
+}
+
+export function sessionIsLive(data: SessionData, validAfter: Date | null, now = Date.now()): boolean {
+  if (!data.userId || !data.issuedAt || !data.seenAt) return false;
+  if (now - data.issuedAt > SESSION_MAX_SECONDS * 1000) return false;
+  if (now - data.seenAt > SESSION_IDLE_SECONDS * 1000) return false;
+  if (validAfter && data.issuedAt < validAfter.getTime()) return false;
+  return true;
+}
+
+/**
+ * The signed-in user, re-read from the database on every request so that a role change or a
+ * deactivation takes effect at once. A tampered, expired or revoked cookie means signed out.
+ */
+export const getCurrentUser = cache(async (): Promise<CurrentUser | null> => {
+  let data: SessionData;
+  try {
+    data = { ...(await getSession()) };
+  } catch {
+    return null;
+  }
+  if (!data.userId) return null;
+  const user = await findActiveUserById(getDb(), data.userId);
+  if (!user || !sessionIsLive(data, user.sessions_valid_after)) return null;
+  return user;
+});
+
+/** For route handlers and server actions: 401 when signed out, 403 without the permission. */
+export async function requireUser(permission?: Permission): Promise<CurrentUser> {
+  const user = await getCurrentUser();
+  if (!user) throw new AppError("unauthenticated", "Sign in to continue.");
+  if (permission && !can(user.role, permission)) {
+    throw new AppError("forbidden", `Your role (${user.role.replace("_", " ")}) may not do this: it needs "${permission}".`);
+  }
+  return user;
+}
+
+/** For pages: sends a signed-out visitor to sign in and back; a role without access gets a 403 page. */
+export async function requirePageUser(permission?: Permission): Promise<CurrentUser> {
+  const user = await getCurrentUser();
+  if (!user) {
+    const h = await headers();
+    const back = h.get("x-hearth-path") ?? "/";
+    redirect(`/sign-in?next=${encodeURIComponent(back)}`);
+  }
+  if (permission && !can(user.role, permission)) redirect(`/forbidden?need=${encodeURIComponent(permission)}`);
+  return user;
+}

@@ -1,0 +1,20 @@
+import type { Transaction } from "kysely";
+import type { DB } from "@/db/schema";
+import { getSender, inTrx } from "./boss";
+import { QUEUES, type AdvanceJob } from "./queues";
+
+/**
+ * Asks the worker to advance a booking at its scheduled end. Sent inside the booking's own
+ * transaction, so a rolled-back move sends nothing. The job carries the booking's version: a
+ * booking moved or cancelled since then has another version, and the worker ignores the old job.
+ */
+export async function scheduleAdvance(trx: Transaction<DB>, job: AdvanceJob): Promise<void> {
+  const boss = await getSender();
+  await boss.send(QUEUES.advance, job, {
+    startAfter: new Date(job.due_at),
+    singletonKey: `${job.entity}:${job.id}:${job.version}`,
+    retryLimit: 5,
+    retryBackoff: true,
+    db: inTrx(trx),
+  });
+}

@@ -1,0 +1,45 @@
+import { NextResponse, type NextRequest } from "next/server";
+import { getIronSession } from "iron-session";
+import { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS, type SessionData } from "@/lib/auth/session-config";
+
+function isHttps(req: NextRequest) {
+  const proto = req.headers.get("x-forwarded-proto");
+  return proto ? proto.split(",")[0].trim() === "https" : req.nextUrl.protocol === "https:";
+}
+
+/**
+ * Optimistic only: tells pages where the visitor was (for the way back after sign-in) and slides
+ * the session's idle lifetime. Every page and handler still checks the user itself.
+ */
+export async function proxy(req: NextRequest) {
+  const path = req.nextUrl.pathname + req.nextUrl.search;
+  const forwarded = new Headers(req.headers);
+  forwarded.set("x-hearth-path", path);
+  const res = NextResponse.next({ request: { headers: forwarded } });
+
+  const secret = process.env.SESSION_SECRET;
+  if (!secret || secret.length < 32 || !req.cookies.has(SESSION_COOKIE)) return res;
+  try {
+    const session = await getIronSession<SessionData>(req, res, {
+      password: secret,
+      cookieName: SESSION_COOKIE,
+      ttl: SESSION_IDLE_SECONDS,
+      cookieOptions: { httpOnly: true, sameSite: "lax", secure: isHttps(req), path: "/" },
+    });
+    const now = Date.now();
+    if (session.userId && session.issuedAt && session.seenAt) {
+      const fresh = now - session.seenAt < SESSION_IDLE_SECONDS * 1000 && now - session.issuedAt < SESSION_MAX_SECONDS * 1000;
+      if (fresh && now - session.seenAt > SESSION_RENEW_SECONDS * 1000) {
+        session.seenAt = now;
+        await session.save();
+      }
+    }
+  } catch {
+    // a tampered cookie is simply not renewed; the page treats it as signed out
+  }
+  return res;
+}
+
+export const config = {
+  matcher: ["/((?!_next/static|_next/image|favicon.ico|fonts/).*)"],
+};
