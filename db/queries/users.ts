@@ -7,7 +7,7 @@ export type CurrentUser = {
   name: string;
   role: Role;
   unit_pref: "mm" | "in";
-  sessions_valid_after: Date | null;
+  sessions_valid_after: Date | number | null; // -infinity arrives as a number
 };
 
 export async function findActiveUserById(db: Database, id: string): Promise<CurrentUser | undefined> {

@@ -36,11 +36,13 @@ export async function getSession() {
   return getIronSession<SessionData>(await cookies(), sessionOptions(await requestIsHttps()));
 }
 
-export function sessionIsLive(data: SessionData, validAfter: Date | null, now = Date.now()): boolean {
+// pg returns the column's default '-infinity' as the number -Infinity, not a Date.
+export function sessionIsLive(data: SessionData, validAfter: Date | number | null, now = Date.now()): boolean {
   if (!data.userId || !data.issuedAt || !data.seenAt) return false;
   if (now - data.issuedAt > SESSION_MAX_SECONDS * 1000) return false;
   if (now - data.seenAt > SESSION_IDLE_SECONDS * 1000) return false;
-  if (validAfter && data.issuedAt < validAfter.getTime()) return false;
+  const after = validAfter instanceof Date ? validAfter.getTime() : (validAfter ?? -Infinity);
+  if (data.issuedAt < after) return false;
   return true;
 }
 
