@@ -33,6 +33,8 @@ export type Numeric = ColumnType<string, number | string, number | string>;
 
 export type OutboxStatus = "failed" | "pending" | "sent";
 
+export type PlanProposalStatus = "applied" | "open" | "refused";
+
 export type ResourceKind = "furnace" | "printer" | "wash_station";
 
 export type ScrapReason = "crack" | "other" | "out_of_tolerance" | "print_failure" | "slump" | "warp";
@@ -65,6 +67,7 @@ export interface Builds {
   est_minutes: Numeric | null;
   failed: Generated<boolean>;
   failure_reason: string | null;
+  finished_at: Timestamp | null;
   id: Generated<string>;
   material_id: string;
   material_lot: Generated<string>;
@@ -72,6 +75,7 @@ export interface Builds {
   plate_layout: Json | null;
   printer_id: string | null;
   scale_snapshot: Json | null;
+  started_at: Timestamp | null;
   starts_at: Timestamp | null;
   state: Generated<BookingState>;
   updated_at: Generated<Timestamp>;
@@ -268,6 +272,20 @@ export interface Parts {
   volume_mm3: Numeric | null;
 }
 
+export interface PlanProposals {
+  created_at: Generated<Timestamp>;
+  created_by: string | null;
+  decided_at: Timestamp | null;
+  decided_by: string | null;
+  id: Generated<string>;
+  items: Json;
+  metrics: Json;
+  planned_from: Timestamp;
+  refusal: string | null;
+  status: Generated<PlanProposalStatus>;
+  unplaced: Generated<Json>;
+}
+
 export interface PrinterMaterials {
   material_id: string;
   printer_id: string;
@@ -431,6 +449,7 @@ export interface DB {
   notification_outbox: NotificationOutbox;
   orders: Orders;
   parts: Parts;
+  plan_proposals: PlanProposals;
   printer_materials: PrinterMaterials;
   printers: Printers;
   shop_settings: ShopSettings;
