@@ -51,6 +51,7 @@ export type UserRole = "admin" | "furnace_operator" | "machinist" | "manager" | 
 
 export interface AuthTokens {
   created_at: Generated<Timestamp>;
+  created_by: string | null;
   expires_at: Timestamp;
   id: Generated<string>;
   kind: TokenKind;
@@ -386,6 +387,7 @@ export interface Users {
   created_at: Generated<Timestamp>;
   email: string;
   id: Generated<string>;
+  last_sign_in_at: Timestamp | null;
   muted_mail: Generated<string[]>;
   name: string;
   password_hash: string | null;
