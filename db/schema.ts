@@ -15,6 +15,8 @@ export type Generated<T> = T extends ColumnType<infer S, infer I, infer U>
   ? ColumnType<S, I | undefined, U>
   : ColumnType<T, T | undefined, T>;
 
+export type GreenSizeSource = "measured" | "planned";
+
 export type Int8 = ColumnType<string, bigint | number | string, bigint | number | string>;
 
 export type Json = JsonValue;
@@ -28,6 +30,8 @@ export type JsonObject = {
 export type JsonPrimitive = boolean | number | string | null;
 
 export type JsonValue = JsonArray | JsonObject | JsonPrimitive;
+
+export type LengthAxis = "x" | "y" | "z";
 
 export type Numeric = ColumnType<string, number | string, number | string>;
 
@@ -159,6 +163,14 @@ export interface InspectionFiles {
 
 export interface Inspections {
   created_at: Generated<Timestamp>;
+  entered_units: Generated<UnitSystem>;
+  excluded_by: string | null;
+  excluded_from_calibration: Generated<boolean>;
+  exclusion_reason: string | null;
+  finished_x_mm: Numeric | null;
+  finished_y_mm: Numeric | null;
+  finished_z_mm: Numeric | null;
+  green_source: Generated<GreenSizeSource>;
   green_x_mm: Numeric | null;
   green_y_mm: Numeric | null;
   green_z_mm: Numeric | null;
@@ -168,10 +180,12 @@ export interface Inspections {
   passed: boolean;
   ra_um: Numeric | null;
   reason: string | null;
+  runout_axis: LengthAxis | null;
   runout_mm: Numeric | null;
   sintered_x_mm: Numeric | null;
   sintered_y_mm: Numeric | null;
   sintered_z_mm: Numeric | null;
+  stock_check: Json | null;
   unit_id: string;
 }
 
@@ -384,6 +398,7 @@ export interface Units {
 export interface Users {
   active: Generated<boolean>;
   calendar_token: string | null;
+  calendar_token_created_at: Timestamp | null;
   created_at: Generated<Timestamp>;
   email: string;
   id: Generated<string>;
