@@ -5,6 +5,8 @@
 
 import type { ColumnType } from "kysely";
 
+export type BatchProposalStatus = "applied" | "open" | "refused";
+
 export type BookingState = "cancelled" | "complete" | "draft" | "running" | "scheduled";
 
 export type FileKind = "attachment" | "geometry";
@@ -62,6 +64,21 @@ export interface AuthTokens {
   token_hash: string;
   used_at: Timestamp | null;
   user_id: string;
+}
+
+export interface BatchProposals {
+  created_at: Generated<Timestamp>;
+  created_by: string | null;
+  decided_at: Timestamp | null;
+  decided_by: string | null;
+  furnace: Generated<Json>;
+  id: Generated<string>;
+  metrics: Json;
+  planned_from: Timestamp;
+  refusal: string | null;
+  status: Generated<BatchProposalStatus>;
+  unplaced: Generated<Json>;
+  wash: Generated<Json>;
 }
 
 export interface Builds {
@@ -134,10 +151,12 @@ export interface FurnaceRuns {
   loaded_at: Timestamp | null;
   notes: Generated<string>;
   profile_id: string;
+  started_by: string | null;
   starts_at: Timestamp | null;
   state: Generated<BookingState>;
   tray_layout: Json | null;
   unloaded_at: Timestamp | null;
+  unloaded_by: string | null;
   updated_at: Generated<Timestamp>;
   version: Generated<number>;
 }
@@ -419,8 +438,10 @@ export interface WashBatches {
   created_by: string | null;
   ends_at: Timestamp | null;
   est_minutes: Numeric | null;
+  finished_at: Timestamp | null;
   id: Generated<string>;
   notes: Generated<string>;
+  started_at: Timestamp | null;
   starts_at: Timestamp | null;
   state: Generated<BookingState>;
   updated_at: Generated<Timestamp>;
@@ -453,6 +474,7 @@ export interface WorkerHeartbeats {
 
 export interface DB {
   auth_tokens: AuthTokens;
+  batch_proposals: BatchProposals;
   builds: Builds;
   events: Events;
   files: Files;
