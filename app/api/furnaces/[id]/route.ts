@@ -1,0 +1,6 @@
+import { updateFurnace } from "@/db/queries/equipment";
+import { versionedPatchHandler } from "@/lib/http/resource";
+import { updateFurnaceSchema } from "@/lib/setup/schemas";
+
+// PATCH /api/furnaces/[id] – change a furnace (admin)
+export const PATCH = versionedPatchHandler({ one: "furnace", write: "setup:write", schema: updateFurnaceSchema, update: updateFurnace });

@@ -1,0 +1,43 @@
+import { NextResponse } from "next/server";
+import { z } from "zod";
+import { getDb } from "@/db/client";
+import { insertMaintenanceWindow, listMaintenanceWindows } from "@/db/queries/equipment";
+import { requireUser } from "@/lib/auth/session";
+import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { maintenanceWindowSchema } from "@/lib/setup/schemas";
+
+const windowQuery = z
+  .object({
+    from: z.coerce.date({ error: "from must be a date" }).default(() => new Date(Date.now() - 7 * 86_400_000)),
+    to: z.coerce.date({ error: "to must be a date" }).default(() => new Date(Date.now() + 60 * 86_400_000)),
+  })
+  .refine((q) => q.from < q.to, { message: "from must be before to", path: ["to"] });
+
+// GET /api/maintenance-windows?from&to – maintenance windows overlapping a time window (every role)
+export async function GET(req: Request) {
+  try {
+    await requireUser("shop:read");
+    const q = windowQuery.parse(Object.fromEntries(new URL(req.url).searchParams));
+    return NextResponse.json({ maintenance_windows: await listMaintenanceWindows(getDb(), q.from, q.to) });
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}
+
+// POST /api/maintenance-windows – block a printer, wash station or furnace for maintenance (admin)
+export async function POST(req: Request) {
+  try {
+    await requireUser("setup:write");
+    const input = maintenanceWindowSchema.parse(await readJson(req));
+    try {
+      return NextResponse.json({ maintenance_window: await insertMaintenanceWindow(getDb(), input) }, { status: 201 });
+    } catch (err) {
+      if ((err as { code?: string }).code === "23503") {
+        return NextResponse.json({ error: { code: "invalid", message: "That equipment does not exist.", fieldErrors: { resource_id: ["That equipment does not exist."] } } }, { status: 422 });
+      }
+      throw err;
+    }
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}

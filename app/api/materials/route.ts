@@ -1,0 +1,7 @@
+import { insertMaterial, listMaterials } from "@/db/queries/materials";
+import { collectionHandlers } from "@/lib/http/resource";
+import { materialSchema } from "@/lib/setup/schemas";
+
+// GET /api/materials – materials with their shrinkage, densities and wash constants (every role)
+// POST /api/materials – add a material (admin)
+export const { GET, POST } = collectionHandlers({ many: "materials", one: "material", read: "shop:read", write: "setup:write", schema: materialSchema, list: listMaterials, create: insertMaterial });
