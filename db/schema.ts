@@ -250,6 +250,7 @@ export interface NotificationOutbox {
   id: Generated<string>;
   kind: string;
   last_error: string | null;
+  next_attempt_at: Generated<Timestamp>;
   recipient_email: string;
   recipient_id: string | null;
   sent_at: Timestamp | null;
@@ -472,6 +473,17 @@ export interface WorkerHeartbeats {
   worker_id: string;
 }
 
+export interface WorkerSweeps {
+  advanced: Generated<number>;
+  error: string | null;
+  finished_at: Timestamp | null;
+  id: Generated<Int8>;
+  mail_sent: Generated<number>;
+  rescaled: Generated<number>;
+  started_at: Generated<Timestamp>;
+  worker_id: string;
+}
+
 export interface DB {
   auth_tokens: AuthTokens;
   batch_proposals: BatchProposals;
@@ -501,4 +513,5 @@ export interface DB {
   wash_batches: WashBatches;
   wash_stations: WashStations;
   worker_heartbeats: WorkerHeartbeats;
+  worker_sweeps: WorkerSweeps;
 }
