@@ -5,6 +5,8 @@ import { z } from "zod";
 export const QUEUES = {
   heartbeat: "heartbeat",
   advance: "advance-booking",
+  sendMail: "send-mail",
+  scaleUp: "recompute-scale-up",
 } as const;
 
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
@@ -19,5 +21,16 @@ export const advanceJobSchema = z.object({
   due_at: z.string().datetime(),
 });
 export type AdvanceJob = z.infer<typeof advanceJobSchema>;
+
+/** One notification_outbox row to send (the row carries its own retry schedule). */
+export const sendMailJobSchema = z.object({ outbox_id: z.string().uuid() });
+export type SendMailJob = z.infer<typeof sendMailJobSchema>;
+
+/** A part, or every part of a material, needs its green size recomputed. */
+export const scaleUpJobSchema = z.union([
+  z.object({ part_id: z.string().uuid() }),
+  z.object({ material_id: z.string().uuid() }),
+]);
+export type ScaleUpJob = z.infer<typeof scaleUpJobSchema>;
 
 export const ALL_QUEUES: QueueName[] = Object.values(QUEUES);
