@@ -85,18 +85,15 @@ function looksLikeText(bytes: Uint8Array, from: number, length: number): boolean
 
 /**
  * Binary or ASCII? A binary header may itself begin with "solid" (several exporters write
- * that), so the size rule 84 + 50·n decides first; only when the content after the header
- * is also plain text is a size match overruled in favour of ASCII.
+ * that), so the size rule 84 + 50·n decides first. An ASCII file cannot pass that rule by
+ * accident: four text bytes read as a count are at least 0x09090909, i.e. gigabytes.
  */
 export function detectStlFormat(bytes: Uint8Array): "binary" | "ascii" {
   if (bytes.length === 0) throw new StlError("empty", "the file is empty");
   const solid = startsWithSolid(bytes);
   if (bytes.length >= BINARY_PREAMBLE_BYTES) {
     const count = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength).getUint32(BINARY_HEADER_BYTES, true);
-    if (binaryStlSize(count) === bytes.length) {
-      if (solid && count > 0 && looksLikeText(bytes, 0, 4096)) return "ascii";
-      return "binary";
-    }
+    if (binaryStlSize(count) === bytes.length) return "binary";
   }
   if (solid && looksLikeText(bytes, 0, 4096)) return "ascii";
   if (looksLikeText(bytes, 0, Math.min(bytes.length, 4096)) && !solid) {
