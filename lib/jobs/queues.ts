@@ -7,6 +7,7 @@ export const QUEUES = {
   advance: "advance-booking",
   sendMail: "send-mail",
   scaleUp: "recompute-scale-up",
+  geometry: "analyse-geometry",
 } as const;
 
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
@@ -32,5 +33,9 @@ export const scaleUpJobSchema = z.union([
   z.object({ material_id: z.string().uuid() }),
 ]);
 export type ScaleUpJob = z.infer<typeof scaleUpJobSchema>;
+
+/** An uploaded geometry file to measure (volume, bounding box, closed check). */
+export const geometryJobSchema = z.object({ file_id: z.string().uuid() });
+export type GeometryJob = z.infer<typeof geometryJobSchema>;
 
 export const ALL_QUEUES: QueueName[] = Object.values(QUEUES);
