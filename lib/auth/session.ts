@@ -6,6 +6,7 @@ import { getDb } from "@/db/client";
 import { findActiveUserById, type CurrentUser } from "@/db/queries/users";
 import { AppError } from "@/lib/errors";
 import { can, type Permission } from "@/lib/auth/permissions";
+import { clientAddress } from "@/lib/auth/throttle";
 
 export type { CurrentUser };
 
@@ -34,6 +35,26 @@ export async function requestIsHttps(): Promise<boolean> {
 
 export async function getSession() {
   return getIronSession<SessionData>(await cookies(), sessionOptions(await requestIsHttps()));
+}
+
+/** Starts a fresh session for the user (sign-in), or re-issues it after a password change. */
+export async function startSession(userId: string, now = Date.now()) {
+  const session = await getSession();
+  session.userId = userId;
+  session.issuedAt = now;
+  session.seenAt = now;
+  await session.save();
+}
+
+export async function endSession() {
+  const session = await getSession();
+  session.destroy();
+}
+
+/** The client's address for throttling and the audit trail (first X-Forwarded-For hop). */
+export async function requestAddress(): Promise<string> {
+  const h = await headers();
+  return clientAddress(h.get("x-forwarded-for"), h.get("x-real-ip"));
 }
 
 // pg returns the column's default '-infinity' as the number -Infinity, not a Date.

@@ -1,0 +1,61 @@
+import { sql } from "kysely";
+import type { Database } from "@/db/client";
+import { getEnv } from "@/lib/env";
+import { getMailTransport } from "./transport";
+
+export type SendOutcome =
+  | { status: "sent"; message_id: string | null }
+  | { status: "skipped"; reason: "not_found" | "not_pending" | "locked" }
+  | { status: "failed"; error: string; attempts: number };
+
+/** After this many failed attempts a row is marked failed and left for a person to look at. */
+export const MAX_SEND_ATTEMPTS = 8;
+
+/**
+ * Sends one notification_outbox row through the SMTP transport and records the outcome on the
+ * row. Safe to call twice and from several processes at once: the row is locked (SKIP LOCKED) for
+ * the duration of the send and only a pending row is sent, so a message goes out at most once per
+ * successful call. A failure is recorded (attempts, last_error) and returned, not thrown; callers
+ * that want a retry (the worker) throw on `failed` themselves.
+ */
+export async function sendOutboxRow(db: Database, id: string): Promise<SendOutcome> {
+  return db.transaction().execute(async (trx) => {
+    const row = await trx
+      .selectFrom("notification_outbox")
+      .select(["id", "status", "recipient_email", "subject", "text_body", "html_body", "attempts", "kind", "subject_key"])
+      .where("id", "=", id)
+      .forUpdate()
+      .skipLocked()
+      .executeTakeFirst();
+    if (!row) {
+      const exists = await trx.selectFrom("notification_outbox").select("id").where("id", "=", id).executeTakeFirst();
+      return { status: "skipped", reason: exists ? "locked" : "not_found" } as const;
+    }
+    if (row.status !== "pending") return { status: "skipped", reason: "not_pending" } as const;
+    try {
+      const info = await getMailTransport().sendMail({
+        from: getEnv().MAIL_FROM,
+        to: row.recipient_email,
+        subject: row.subject,
+        text: row.text_body,
+        html: row.html_body,
+        headers: { "X-Hearth-Kind": row.kind, "X-Hearth-Subject": row.subject_key },
+      });
+      await trx
+        .updateTable("notification_outbox")
+        .set({ status: "sent", sent_at: sql`now()`, attempts: sql`attempts + 1`, last_error: null })
+        .where("id", "=", id)
+        .execute();
+      return { status: "sent", message_id: info.messageId ?? null } as const;
+    } catch (err) {
+      const error = (err instanceof Error ? err.message : String(err)).slice(0, 500);
+      const attempts = row.attempts + 1;
+      await trx
+        .updateTable("notification_outbox")
+        .set({ attempts, last_error: error, status: attempts >= MAX_SEND_ATTEMPTS ? "failed" : "pending" })
+        .where("id", "=", id)
+        .execute();
+      return { status: "failed", error, attempts } as const;
+    }
+  });
+}
