@@ -19,8 +19,6 @@ export type Generated<T> = T extends ColumnType<infer S, infer I, infer U>
 
 export type GreenSizeSource = "measured" | "planned";
 
-export type Int8 = ColumnType<string, bigint | number | string, bigint | number | string>;
-
 export type Json = JsonValue;
 
 export type JsonArray = JsonValue[];
@@ -35,7 +33,7 @@ export type JsonValue = JsonArray | JsonObject | JsonPrimitive;
 
 export type LengthAxis = "x" | "y" | "z";
 
-export type Numeric = ColumnType<string, number | string, number | string>;
+export type Numeric = ColumnType<number, number | string, number | string>;
 
 export type OutboxStatus = "failed" | "pending" | "sent";
 
@@ -111,7 +109,7 @@ export interface Events {
   entity: string;
   entity_id: string | null;
   from_state: string | null;
-  id: Generated<Int8>;
+  id: Generated<number>;
   kind: string;
   reason: string | null;
   to_state: string | null;
@@ -128,7 +126,7 @@ export interface Files {
   kind: FileKind;
   object_key: string;
   sha256: string;
-  size_bytes: Int8;
+  size_bytes: number;
   status: Generated<FileStatus>;
   updated_at: Generated<Timestamp>;
   uploaded_by: string | null;
@@ -358,7 +356,7 @@ export interface ShopSettings {
 export interface SignInAttempts {
   created_at: Generated<Timestamp>;
   email: string;
-  id: Generated<Int8>;
+  id: Generated<number>;
   ip: string;
   succeeded: boolean;
 }
@@ -477,7 +475,7 @@ export interface WorkerSweeps {
   advanced: Generated<number>;
   error: string | null;
   finished_at: Timestamp | null;
-  id: Generated<Int8>;
+  id: Generated<number>;
   mail_sent: Generated<number>;
   rescaled: Generated<number>;
   started_at: Generated<Timestamp>;
