@@ -1,0 +1,172 @@
+// Depth-first search for a tray filled without waste. Any exact tiling of a rectangle can be
+// built by always covering the lowest, leftmost point of the skyline (the upper edge of what is
+// already placed): the piece that covers that point has its corner there and rests on the
+// lowest segment. So the search only branches on which piece goes there, which keeps it small
+// enough to run under a node budget before the greedy rules. It matters for trays whose pieces
+// were cut from full trays, where greedy placement leaves a sliver that costs a whole run.
+//
+// Every comparison allows `tol`, so a placement may cross a neighbour or the tray line by at most
+// `tol` (the callers pass the fit tolerance).
+
+export interface TilePiece<T> {
+  /** Exact size of the piece as listed (the search may turn it). */
+  w: number;
+  h: number;
+  mass: number;
+  ref: T;
+}
+
+export interface TilePlacement<T> {
+  ref: T;
+  x: number;
+  y: number;
+  /** Size as placed. */
+  w: number;
+  h: number;
+  rotated: boolean;
+}
+
+interface Segment {
+  x: number;
+  w: number;
+  y: number;
+}
+
+interface Group<T> {
+  a: number;
+  b: number;
+  pieces: TilePiece<T>[];
+  /** Pieces of this group still free, taken from the end of `pieces`. */
+  left: number;
+}
+
+export interface TileSearchOptions {
+  tol: number;
+  /** Mass still allowed on the run. */
+  massLeft: number;
+  nodeBudget: number;
+}
+
+export interface TileSearchResult<T> {
+  placements: TilePlacement<T>[] | null;
+  nodes: number;
+}
+
+/** Covers the W×D tray completely with pieces from `pieces`, or reports that it found no way. */
+export function fillTrayExactly<T>(
+  W: number,
+  D: number,
+  pieces: readonly TilePiece<T>[],
+  opts: TileSearchOptions,
+): TileSearchResult<T> {
+  const { tol } = opts;
+  let totalArea = 0;
+  const groups: Group<T>[] = [];
+  const byKey = new Map<string, Group<T>>();
+  for (const p of pieces) {
+    const lo = Math.min(p.w, p.h);
+    const hi = Math.max(p.w, p.h);
+    if (!((lo <= W + tol && hi <= D + tol) || (hi <= W + tol && lo <= D + tol))) continue;
+    totalArea += p.w * p.h;
+    const key = `${lo.toFixed(3)}x${hi.toFixed(3)}`;
+    let g = byKey.get(key);
+    if (!g) {
+      g = { a: lo, b: hi, pieces: [], left: 0 };
+      byKey.set(key, g);
+      groups.push(g);
+    }
+    g.pieces.push(p);
+    g.left++;
+  }
+  if (totalArea < W * D * (1 - 1e-6)) return { placements: null, nodes: 0 };
+  // Large pieces first: they are the hard ones to place later.
+  groups.sort((p, q) => q.a * q.b - p.a * p.b);
+  for (const g of groups) g.pieces.sort((p, q) => q.mass - p.mass);
+
+  let nodes = 0;
+  let massLeft = opts.massLeft;
+  const placed: TilePlacement<T>[] = [];
+
+  const minSideLeft = (): number => {
+    let m = Infinity;
+    for (const g of groups) if (g.left > 0 && g.a < m) m = g.a;
+    return m;
+  };
+
+  const dfs = (sky: Segment[]): boolean => {
+    if (++nodes > opts.nodeBudget) return false;
+    let i = -1;
+    for (let k = 0; k < sky.length; k++) {
+      if (sky[k].y < D - tol && (i < 0 || sky[k].y < sky[i].y - 1e-9)) i = k;
+    }
+    if (i < 0) return true;
+    const seg = sky[i];
+    const leftY = i > 0 ? sky[i - 1].y : Infinity;
+    const rightY = i < sky.length - 1 ? sky[i + 1].y : Infinity;
+    const minSide = minSideLeft();
+    if (minSide === Infinity || seg.w < minSide - tol) return false;
+    const cands: { g: Group<T>; w: number; h: number; score: number }[] = [];
+    for (const g of groups) {
+      if (g.left === 0) continue;
+      const p = g.pieces[g.left - 1];
+      if (p.mass > massLeft * (1 + 1e-12)) continue;
+      for (let o = 0; o < 2; o++) {
+        if (o === 1 && Math.abs(g.a - g.b) <= 1e-9) break;
+        const w = o === 0 ? g.a : g.b;
+        const h = o === 0 ? g.b : g.a;
+        if (w > seg.w + tol || seg.y + h > D + tol) continue;
+        const rest = seg.w - w;
+        if (rest > tol && rest < minSide - tol) continue;
+        const above = D - (seg.y + h);
+        if (above > tol && above < minSide - tol) continue;
+        const top = seg.y + h;
+        const closes = rest <= tol ? 2 : 0;
+        const aligns = Math.abs(top - leftY) <= tol || Math.abs(top - rightY) <= tol || above <= tol ? 1 : 0;
+        cands.push({ g, w, h, score: closes + aligns });
+      }
+    }
+    cands.sort((p, q) => q.score - p.score || q.w * q.h - p.w * p.h);
+    for (const c of cands) {
+      const p = c.g.pieces[c.g.left - 1];
+      c.g.left--;
+      massLeft -= p.mass;
+      placed.push({ ref: p.ref, x: seg.x, y: seg.y, w: c.w, h: c.h, rotated: Math.abs(c.w - p.w) > 1e-9 });
+      if (dfs(advance(sky, i, c.w, c.h, D, tol))) return true;
+      placed.pop();
+      massLeft += p.mass;
+      c.g.left++;
+      if (nodes > opts.nodeBudget) return false;
+    }
+    return false;
+  };
+
+  const ok = dfs([{ x: 0, w: W, y: 0 }]);
+  return { placements: ok ? placed : null, nodes };
+}
+
+/** Skyline after a w×h piece goes on the left end of segment i; near-equal levels merge upwards. */
+function advance(sky: Segment[], i: number, w: number, h: number, D: number, tol: number): Segment[] {
+  const seg = sky[i];
+  const out: Segment[] = sky.slice(0, i);
+  let top = seg.y + h;
+  if (D - top <= tol) top = Math.max(top, D);
+  const rest = seg.w - w;
+  if (rest <= tol) {
+    out.push({ x: seg.x, w: seg.w, y: top });
+  } else {
+    out.push({ x: seg.x, w, y: top });
+    out.push({ x: seg.x + w, w: rest, y: seg.y });
+  }
+  for (let k = i + 1; k < sky.length; k++) out.push({ ...sky[k] });
+  const merged: Segment[] = [];
+  for (const s of out) {
+    const last = merged[merged.length - 1];
+    if (last && Math.abs(last.y - s.y) <= tol) {
+      last.w = s.x + s.w - last.x;
+      last.y = Math.max(last.y, s.y);
+    } else {
+      merged.push({ ...s });
+    }
+  }
+  return merged;
+}

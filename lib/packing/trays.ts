@@ -1,0 +1,173 @@
+// Tray packing for furnace runs: units of one sinter profile onto the trays of one furnace,
+// flat, turned 90° about Z where that helps, clearance kept (see tray-model.ts), height and load
+// limits respected; fewest runs first, then urgent units in the earliest runs.
+
+import { ComputationError } from "@/lib/errors";
+import { MaxRectsBin, GEOMETRY_EPS } from "./rectangles";
+import { RunState, packSet, solveProfile } from "./run-solver";
+import {
+  buildTrayModel,
+  fitsTray,
+  furnaceModel,
+  grownSize,
+  parseDue,
+  validateClearance,
+  validateFurnace,
+  validateUnit,
+  type FurnaceModel,
+  type ItemModel,
+} from "./tray-model";
+import type { PackFurnace, PackUnit, TrayPackInput, TrayPackResult, TrayRun } from "./types";
+
+export { FIT_TOLERANCE_MM } from "./tray-model";
+export type * from "./types";
+
+export interface PackTraysOptions {
+  /** Perturbed restarts per profile after the fixed heuristics; more is slower and rarely better. */
+  restarts?: number;
+}
+
+function toTrayRun(run: RunState, profile: string, clearance: number): TrayRun {
+  const f = run.f.furnace;
+  const trays = Array.from({ length: f.tray_count }, (_, index) => ({
+    index,
+    placements: [] as TrayRun["trays"][number]["placements"],
+  }));
+  let footprintArea = 0;
+  let tallest = 0;
+  for (const p of run.placed) {
+    const [fw, fd] = p.item.unit.footprint_mm;
+    const w = p.rotated ? fd : fw;
+    const d = p.rotated ? fw : fd;
+    trays[p.tray].placements.push({ unit: p.item.unit.id, x: p.x + clearance, y: p.y + clearance, w, d, rotated: p.rotated });
+    footprintArea += fw * fd;
+    tallest = Math.max(tallest, p.item.height);
+  }
+  for (const t of trays) t.placements.sort((a, b) => a.y - b.y || a.x - b.x);
+  return {
+    furnace: f.id,
+    profile,
+    trays,
+    mass_g: run.mass,
+    tallest_mm: tallest,
+    area_used_fraction: footprintArea / (f.tray_count * f.tray_mm[0] * f.tray_mm[1]),
+  };
+}
+
+export function packTrays(input: TrayPackInput, options: PackTraysOptions = {}): TrayPackResult {
+  const model = buildTrayModel(input);
+  const restarts = options.restarts ?? 4;
+  const all: { run: TrayRun; firstDue: number; minRank: number }[] = [];
+  for (const pm of model.profiles) {
+    const runs = solveProfile(pm, { restarts });
+    for (const r of runs) {
+      all.push({
+        run: toTrayRun(r, pm.profile, model.clearance),
+        firstDue: Math.min(...r.placed.map((p) => p.item.due)),
+        minRank: Math.min(...r.placed.map((p) => p.item.dueRank)),
+      });
+    }
+  }
+  // Interleave profiles by their most urgent unit; within a profile the solver's order stands.
+  all.sort((a, b) => a.firstDue - b.firstDue || (a.run.profile < b.run.profile ? -1 : a.run.profile > b.run.profile ? 1 : a.minRank - b.minRank));
+  return { runs: all.map((x) => x.run), unplaced: model.unplaced, lowerBound: model.lowerBound };
+}
+
+export type CanAddResult =
+  | { ok: true; run: TrayRun; repacked: boolean }
+  | { ok: false; code: "profile" | "height" | "load" | "room"; reason: string };
+
+export interface CanAddContext {
+  furnace: PackFurnace;
+  clearance_mm: number;
+  /** The units already in the run (for their footprints, heights and masses). */
+  units: readonly PackUnit[];
+}
+
+function itemFor(u: PackUnit, f: FurnaceModel, clearance: number, local: number): ItemModel {
+  const [pw, ph] = grownSize(u, clearance);
+  return {
+    idx: local,
+    local,
+    unit: u,
+    pw,
+    ph,
+    area: pw * ph,
+    mass: u.mass_g,
+    height: u.height_mm,
+    due: parseDue(u.due, u.id),
+    dueRank: local,
+    eligible: [f.idx],
+    eligibleMask: new Set([f.idx]),
+    size: pw * ph,
+  };
+}
+
+/**
+ * Whether `unit` can join `run` (for the batching board). Keeps the current layout and looks for
+ * room beside it first; failing that, re-packs the whole run. Returns the new layout when it fits.
+ */
+export function canAddToRun(run: TrayRun, unit: PackUnit, ctx: CanAddContext): CanAddResult {
+  validateClearance(ctx.clearance_mm);
+  validateFurnace(ctx.furnace);
+  validateUnit(unit);
+  const f = furnaceModel(ctx.furnace, 0, ctx.clearance_mm);
+  const c = ctx.clearance_mm;
+  if (run.furnace !== ctx.furnace.id) {
+    throw new ComputationError(`run is on furnace ${run.furnace}, context gives ${ctx.furnace.id}`, "furnace");
+  }
+  if (unit.profile !== run.profile) {
+    return { ok: false, code: "profile", reason: `unit needs profile ${unit.profile}; this run is ${run.profile}` };
+  }
+  if (!ctx.furnace.profiles.includes(unit.profile)) {
+    return { ok: false, code: "profile", reason: `furnace ${ctx.furnace.id} does not run profile ${unit.profile}` };
+  }
+  if (unit.height_mm > f.height + GEOMETRY_EPS) {
+    return { ok: false, code: "height", reason: `${unit.height_mm} mm tall; the furnace allows ${f.height} mm` };
+  }
+  const byId = new Map(ctx.units.map((u) => [u.id, u]));
+  const placedUnits: PackUnit[] = [];
+  for (const t of run.trays) for (const p of t.placements) {
+    const u = byId.get(p.unit);
+    if (!u) throw new ComputationError(`unit ${p.unit} of the run is missing from the context`, "units");
+    placedUnits.push(u);
+  }
+  const mass = placedUnits.reduce((s, u) => s + u.mass_g, 0);
+  if (mass + unit.mass_g > f.load * (1 + 1e-12)) {
+    return {
+      ok: false,
+      code: "load",
+      reason: `run would weigh ${(mass + unit.mass_g).toFixed(0)} g; the furnace allows ${f.load} g`,
+    };
+  }
+  const item = itemFor(unit, f, c, placedUnits.length);
+  if (!fitsTray(item.pw, item.ph, f)) {
+    return { ok: false, code: "room", reason: "footprint with clearance is larger than a tray" };
+  }
+  const items = placedUnits.map((u, i) => itemFor(u, f, c, i));
+  const minSide = Math.min(item.pw, item.ph, ...items.map((it) => Math.min(it.pw, it.ph)));
+
+  // Rebuild the free space around the present layout.
+  const state = new RunState(
+    f,
+    minSide,
+    Array.from({ length: f.trays }, () => new MaxRectsBin(f.W, f.D, minSide)),
+  );
+  let k = 0;
+  for (const t of run.trays) {
+    for (const p of t.placements) {
+      const it = items[k++];
+      const w = p.rotated ? it.ph : it.pw;
+      const h = p.rotated ? it.pw : it.ph;
+      state.bins[t.index].place({ x: p.x - c, y: p.y - c, w, h });
+      state.record(it, t.index, p.x - c, p.y - c, w, h, p.rotated);
+    }
+  }
+  for (const rule of ["short-side", "contact", "bottom-left", "area"] as const) {
+    const trial = state.clone();
+    if (trial.tryAdd(item, rule, "best")) return { ok: true, run: toTrayRun(trial, run.profile, c), repacked: false };
+  }
+  const repacked = packSet(f, minSide, [...items, item]);
+  if (repacked) return { ok: true, run: toTrayRun(repacked, run.profile, c), repacked: true };
+  return { ok: false, code: "room", reason: "no room on the trays, even after re-packing the run" };
+}
