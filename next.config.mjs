@@ -5,5 +5,7 @@ const nextConfig = {
   serverExternalPackages: ["pg", "pg-boss", "@node-rs/argon2", "nodemailer", "@aws-sdk/client-s3"],
   poweredByHeader: false,
   typedRoutes: false,
+  // `npm test` type-checks the whole project with tsc before it builds; the build skips it.
+  typescript: { ignoreBuildErrors: true },
 };
 export default nextConfig;

@@ -21,6 +21,10 @@ export NODE_ENV=production
 rm -rf "$HEARTH_DATA_DIR/mail" "$HEARTH_DATA_DIR/s3"
 mkdir -p "$HEARTH_DATA_DIR" "$HEARTH_TEST_OUTPUT"
 
+if [ -z "${HEARTH_SKIP_TYPECHECK:-}" ]; then
+  log "type-checking (tsc --noEmit)"
+  node_modules/.bin/tsc --noEmit -p .
+fi
 log "migrating and seeding $HEARTH_DB_NAME"
 node_modules/.bin/tsx db/migrate-cli.ts
 node_modules/.bin/tsx db/seed-cli.ts

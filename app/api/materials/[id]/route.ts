@@ -1,6 +1,19 @@
+import { NextResponse } from "next/server";
+import { z } from "zod";
+import { getDb } from "@/db/client";
 import { updateMaterial } from "@/db/queries/materials";
-import { versionedPatchHandler } from "@/lib/http/resource";
+import { requireUser } from "@/lib/auth/session";
+import { readJson, toErrorResponse } from "@/lib/http/errors";
 import { updateMaterialSchema } from "@/lib/setup/schemas";
 
 // PATCH /api/materials/[id] – change a material; builds already printed keep their factors (admin)
-export const PATCH = versionedPatchHandler({ one: "material", write: "setup:write", schema: updateMaterialSchema, update: updateMaterial });
+export async function PATCH(req: Request, ctx: { params: Promise<{ id: string }> }) {
+  try {
+    const user = await requireUser("setup:write");
+    const id = z.string().uuid("Not a material id").parse((await ctx.params).id);
+    const { version, ...input } = updateMaterialSchema.parse(await readJson(req));
+    return NextResponse.json({ material: await updateMaterial(getDb(), id, version, input, user.id) });
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}
