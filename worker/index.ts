@@ -4,6 +4,7 @@ import { sql } from "kysely";
 import { getDb, closeDb } from "@/db/client";
 import { getEnv } from "@/lib/env";
 import { ALL_QUEUES, QUEUES } from "@/lib/jobs/queues";
+import { handleGeometry } from "./handlers/geometry";
 
 const workerId = `${os.hostname()}:${process.pid}:${Date.now().toString(36)}`;
 const BEAT_MS = 15_000;
@@ -25,6 +26,7 @@ async function main() {
   await boss.start();
   for (const name of ALL_QUEUES) await boss.createQueue(name);
 
+  await boss.work(QUEUES.geometry, { includeMetadata: true, batchSize: 1 }, handleGeometry);
   await boss.work(QUEUES.heartbeat, async () => {
     await beat(true);
   });
