@@ -1,0 +1,46 @@
+import { z } from "zod";
+
+const version = z.number({ error: "the row's version is required" }).int().positive();
+const instant = z.iso.datetime({ offset: true, error: "an ISO 8601 time with its offset, e.g. 2026-12-01T08:00:00Z" });
+
+export const createBuildSchema = z.object({
+  unit_ids: z.array(z.string().uuid("not a unit id"), { error: "choose the units to print" }).min(1, "choose at least one unit").max(200, "at most 200 units on one plate"),
+  material_lot: z.string().trim().max(60).default(""),
+  notes: z.string().trim().max(2000).default(""),
+});
+export type CreateBuild = z.output<typeof createBuildSchema>;
+
+export const updateBuildSchema = z.object({
+  version,
+  material_lot: z.string().trim().max(60).optional(),
+  notes: z.string().trim().max(2000).optional(),
+  /** Replaces the build's units; only while the build is a draft or scheduled. */
+  unit_ids: createBuildSchema.shape.unit_ids.optional(),
+});
+export type UpdateBuild = z.output<typeof updateBuildSchema>;
+
+export const buildActionSchema = z.discriminatedUnion("action", [
+  z.object({ action: z.literal("start"), version }),
+  z.object({ action: z.literal("complete"), version }),
+  z.object({ action: z.literal("fail"), version, reason: z.string({ error: "say what went wrong" }).trim().min(3, "say what went wrong").max(500) }),
+  z.object({ action: z.literal("cancel"), version }),
+], { error: "action must be start, complete, fail or cancel" });
+export type BuildAction = z.output<typeof buildActionSchema>;
+
+/**
+ * Put a build on a printer at a start time, or (printer_id null) take it off the floor. The
+ * end follows from the printer's estimate, so it is never sent.
+ */
+export const scheduleBuildSchema = z
+  .object({
+    version,
+    printer_id: z.string().uuid("not a printer id").nullable(),
+    starts_at: instant.optional(),
+  })
+  .superRefine((v, ctx) => {
+    if (v.printer_id && !v.starts_at) ctx.addIssue({ code: "custom", path: ["starts_at"], message: "a start time is required" });
+  });
+export type ScheduleBuild = z.output<typeof scheduleBuildSchema>;
+
+export const BUILD_STATES = ["draft", "scheduled", "running", "complete", "cancelled"] as const;
+export type BuildState = (typeof BUILD_STATES)[number];
