@@ -1,3 +1,4 @@
+import Link from "next/link";
 import { AppShell } from "@/components/shell/app-shell";
 import { SignOutButton } from "@/components/shell/sign-out-button";
 import { ROLE_LABELS, navFor } from "@/lib/auth/permissions";
@@ -11,10 +12,12 @@ export default async function SignedInLayout({ children }: { children: React.Rea
       user={user}
       userSlot={
         <div className="flex items-end justify-between gap-2">
-          <div className="min-w-0">
-            <div className="truncate font-semibold text-soot-50" data-testid="user-name">{user.name}</div>
-            <div className="text-xs text-clay-300" data-testid="user-role">{ROLE_LABELS[user.role]}</div>
-          </div>
+          <Link href="/settings" className="group min-w-0" title="My settings: name, password, units, e-mail">
+            <div className="truncate font-semibold text-soot-50 group-hover:underline" data-testid="user-name">{user.name}</div>
+            <div className="text-xs text-clay-300">
+              <span data-testid="user-role">{ROLE_LABELS[user.role]}</span> · <span className="text-soot-300 group-hover:text-soot-100">My settings</span>
+            </div>
+          </Link>
           <SignOutButton />
         </div>
       }
