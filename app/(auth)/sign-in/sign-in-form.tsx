@@ -2,9 +2,9 @@
 
 import { useState } from "react";
 
-export type SignInFormProps = { next: string };
+export type SignInFormProps = { next: string; email?: string };
 
-export function SignInForm({ next }: SignInFormProps) {
+export function SignInForm({ next, email = "" }: SignInFormProps) {
   const [error, setError] = useState<string | null>(null);
   const [fieldErrors, setFieldErrors] = useState<Record<string, string[]>>({});
   const [busy, setBusy] = useState(false);
@@ -40,7 +40,7 @@ export function SignInForm({ next }: SignInFormProps) {
     <form onSubmit={onSubmit} className="mt-5 space-y-4" noValidate>
       <label className="block text-sm font-medium text-soot-700">
         E-mail
-        <input name="email" type="email" autoComplete="username" required className={input} aria-invalid={!!fieldErrors.email} />
+        <input name="email" type="email" autoComplete="username" defaultValue={email} required className={input} aria-invalid={!!fieldErrors.email} />
         {fieldErrors.email ? <span className="mt-1 block text-xs text-oxide-700">{fieldErrors.email[0]}</span> : null}
       </label>
       <label className="block text-sm font-medium text-soot-700">

@@ -1,0 +1,27 @@
+import Link from "next/link";
+import { PageHeader } from "@/components/ui/page-header";
+import { UsersAdmin } from "@/components/users/users-admin";
+import { requirePageUser } from "@/lib/auth/session";
+import { changeRole, createUser, sendLink, setActive } from "./actions";
+
+export const metadata = { title: "Users" };
+
+export default async function UsersPage() {
+  const user = await requirePageUser("users:admin");
+  return (
+    <>
+      <PageHeader
+        title="Users"
+        lead="Who may sign in, and with which role. New people get an e-mailed invitation to choose their password."
+        actions={
+          <Link href="/setup" className="text-sm font-semibold text-clay-700 hover:underline">
+            ← Set-up
+          </Link>
+        }
+      />
+      <div className="px-8 py-6">
+        <UsersAdmin currentUserId={user.id} actions={{ createUser, changeRole, setActive, sendLink }} />
+      </div>
+    </>
+  );
+}
