@@ -8,6 +8,15 @@ const name = z.string().trim().min(1, "Give it a name").max(80, "At most 80 char
 const ids = z.array(z.string().uuid()).max(50);
 export const versionSchema = z.coerce.number().int().positive();
 
+/**
+ * The PATCH form of a create schema: every field optional and no defaults, so a field the
+ * client leaves out stays as it is (zod keeps a default inside `.partial()`).
+ */
+function patchOf<T extends z.ZodObject>(schema: T): z.ZodType<Partial<z.infer<T>> & { version: number }> {
+  const shape = Object.fromEntries(Object.entries(schema.shape).map(([k, v]) => [k, v instanceof z.ZodDefault ? v.unwrap() : v]));
+  return z.object(shape).partial().extend({ version: versionSchema }) as unknown as z.ZodType<Partial<z.infer<T>> & { version: number }>;
+}
+
 export const printerSchema = z.object({
   name,
   model_note: z.string().trim().max(200).default(""),
@@ -20,7 +29,7 @@ export const printerSchema = z.object({
   active: z.boolean().default(true),
   material_ids: ids.default([]),
 });
-export const updatePrinterSchema = printerSchema.partial().extend({ version: versionSchema });
+export const updatePrinterSchema = patchOf(printerSchema);
 
 export const washStationSchema = z.object({
   name,
@@ -32,7 +41,7 @@ export const washStationSchema = z.object({
   max_load_g: positive("Maximum load"),
   active: z.boolean().default(true),
 });
-export const updateWashStationSchema = washStationSchema.partial().extend({ version: versionSchema });
+export const updateWashStationSchema = patchOf(washStationSchema);
 
 export const furnaceSchema = z.object({
   name,
@@ -45,7 +54,7 @@ export const furnaceSchema = z.object({
   active: z.boolean().default(true),
   profile_ids: ids.default([]),
 });
-export const updateFurnaceSchema = furnaceSchema.partial().extend({ version: versionSchema });
+export const updateFurnaceSchema = patchOf(furnaceSchema);
 
 export const materialSchema = z
   .object({
@@ -65,7 +74,7 @@ export const materialSchema = z
     default_profile_id: z.string().uuid().nullable().default(null),
     active: z.boolean().default(true),
   });
-export const updateMaterialSchema = materialSchema.partial().extend({ version: versionSchema });
+export const updateMaterialSchema = patchOf(materialSchema);
 
 export const maintenanceWindowSchema = z
   .object({

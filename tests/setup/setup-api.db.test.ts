@@ -1,4 +1,5 @@
 import { beforeAll, describe, expect, it } from "vitest";
+import { testDb } from "../helpers/db";
 import { DEMO, api, signIn } from "../helpers/session";
 
 describe("set-up API: equipment, materials, maintenance, settings", () => {
@@ -79,5 +80,30 @@ describe("set-up API: equipment, materials, maintenance, settings", () => {
     expect(bad.body.error.fieldErrors["staffed_hours.0.end"]).toBeDefined();
     const stale = await api("/api/shop-settings", { method: "PUT", cookie: admin, body: { ...settings, version: settings.version + 5 } });
     expect(stale.status).toBe(409);
+  });
+});
+
+describe("a material's shrinkage change", () => {
+  it("is logged as an event and leaves the other fields as they were", async () => {
+    const admin = await signIn(DEMO.admin);
+    const tag = `M${Date.now().toString(36)}`.slice(0, 12);
+    const created = await api("/api/materials", {
+      method: "POST",
+      cookie: admin,
+      body: { code: tag, name: "Test alloy", alloy_family: "test", shrink_xy: 0.15, shrink_z: 0.17, green_density_g_cm3: 5, sintered_density_g_cm3: 7.6, theoretical_density_g_cm3: 7.8, solids_loading: 0.6, binder_density_g_cm3: 0.95, wash_k_min_per_mm2: 30, wash_min_minutes: 60, min_mass_loss: 0.03 },
+    });
+    expect(created.status).toBe(201);
+    const m = created.body.material;
+    const changed = await api(`/api/materials/${m.id}`, { method: "PATCH", cookie: admin, body: { version: m.version, shrink_xy: 0.155 } });
+    expect(changed.status).toBe(200);
+    expect(changed.body.material.shrink_xy).toBe(0.155);
+    expect(changed.body.material.min_mass_loss).toBe(0.03);
+    const { db, close } = testDb();
+    try {
+      const events = await db.selectFrom("events").select(["kind", "data"]).where("entity", "=", "material").where("entity_id", "=", m.id).execute();
+      expect(events.map((e) => e.kind)).toEqual(["shrinkage_change"]);
+    } finally {
+      await close();
+    }
   });
 });
