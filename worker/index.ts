@@ -5,6 +5,7 @@ import { getDb, closeDb } from "@/db/client";
 import { getEnv } from "@/lib/env";
 import { ALL_QUEUES, QUEUES } from "@/lib/jobs/queues";
 import { handleGeometry } from "./handlers/geometry";
+import { startWorkerJobs } from "./jobs";
 
 const workerId = `${os.hostname()}:${process.pid}:${Date.now().toString(36)}`;
 const BEAT_MS = 15_000;
@@ -21,7 +22,8 @@ async function beat(jobRan = false) {
 }
 
 async function main() {
-  const boss = new PgBoss({ connectionString: getEnv().DATABASE_URL, max: 5 });
+  // Failed jobs stay in pgboss.job for a week so that /setup/jobs can show them.
+  const boss = new PgBoss({ connectionString: getEnv().DATABASE_URL, max: 5, archiveFailedAfterSeconds: 7 * 24 * 3600 });
   boss.on("error", (err) => console.error("[worker] pg-boss error", err.message));
   await boss.start();
   for (const name of ALL_QUEUES) await boss.createQueue(name);
@@ -34,6 +36,8 @@ async function main() {
   await boss.schedule(QUEUES.heartbeat, "* * * * *", {}, { singletonKey: "heartbeat" });
   await boss.send(QUEUES.heartbeat, {});
 
+  const stopJobs = await startWorkerJobs(boss, workerId);
+
   await beat();
   const timer = setInterval(() => beat().catch((err) => console.error("[worker] heartbeat failed", err.message)), BEAT_MS);
   console.log(`[worker] ${workerId} ready; queues: ${ALL_QUEUES.join(", ")}`);
@@ -44,6 +48,7 @@ async function main() {
     stopping = true;
     console.log(`[worker] ${signal}: finishing current jobs`);
     clearInterval(timer);
+    await stopJobs();
     await boss.stop({ graceful: true, timeout: 20_000 });
     await getDb().deleteFrom("worker_heartbeats").where("worker_id", "=", workerId).execute().catch(() => {});
     await closeDb();

@@ -1,0 +1,65 @@
+import type PgBoss from "pg-boss";
+import { getDb } from "@/db/client";
+import { QUEUES } from "@/lib/jobs/queues";
+import { workerConfig } from "./config";
+import { advanceHandler } from "./handlers/advance";
+import { scaleUpHandler } from "./handlers/scale-up";
+import { drainOutbox, sendMailHandler } from "./handlers/send-mail";
+import { runSweep } from "./sweep";
+
+/** Runs `fn` every `seconds`, never two at once; resolves the returned stop() when the last run ends. */
+function every(seconds: number, name: string, fn: () => Promise<void>) {
+  let running: Promise<void> | null = null;
+  let stopped = false;
+  const tick = () => {
+    if (stopped || running) return;
+    running = fn()
+      .catch((err) => console.error(`[worker] ${name} failed:`, err instanceof Error ? err.message : err))
+      .finally(() => {
+        running = null;
+      });
+  };
+  const timer = setInterval(tick, seconds * 1000);
+  tick();
+  return async () => {
+    stopped = true;
+    clearInterval(timer);
+    await running;
+  };
+}
+
+/**
+ * The worker's own queues and timers: advancing bookings, sending mail, recomputing scale-ups,
+ * the sweep and the outbox pass. Returns a stop function for a graceful shutdown.
+ */
+export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<() => Promise<void>> {
+  const cfg = workerConfig();
+  const db = getDb();
+  const queueOptions = { retryBackoff: true, expireInSeconds: cfg.expireSeconds };
+  await boss.updateQueue(QUEUES.advance, { name: QUEUES.advance, ...queueOptions, retryLimit: 10, retryDelay: 5 });
+  await boss.updateQueue(QUEUES.sendMail, { name: QUEUES.sendMail, ...queueOptions, retryLimit: 3, retryDelay: 10 });
+  await boss.updateQueue(QUEUES.scaleUp, { name: QUEUES.scaleUp, ...queueOptions, retryLimit: 5, retryDelay: 10 });
+
+  const work = { batchSize: cfg.batchSize, pollingIntervalSeconds: cfg.pollSeconds };
+  for (let i = 0; i < cfg.concurrency; i++) {
+    await boss.work(QUEUES.advance, work, advanceHandler(db, boss, { quiet: cfg.quiet }));
+    await boss.work(QUEUES.sendMail, work, sendMailHandler(db));
+  }
+  await boss.work(QUEUES.scaleUp, { batchSize: 5, pollingIntervalSeconds: cfg.pollSeconds }, scaleUpHandler(db));
+
+  const stopSweep = every(cfg.sweepSeconds, "sweep", async () => {
+    const r = await runSweep(db, boss, workerId, { limit: cfg.sweepLimit });
+    if (!cfg.quiet && (r.advanced || r.rescaled || r.mail_sent || r.errors.length)) {
+      console.log(`[worker] sweep: ${r.advanced} advanced, ${r.rescaled} rescaled, ${r.mail_sent} mail sent in ${r.ms} ms${r.errors.length ? `; errors: ${r.errors.join("; ")}` : ""}`);
+    }
+  });
+  const stopPump = every(cfg.mailPumpSeconds, "outbox", async () => {
+    await drainOutbox(db, 200);
+  });
+  console.log(
+    `[worker] sweep every ${cfg.sweepSeconds} s, outbox every ${cfg.mailPumpSeconds} s, polling ${cfg.pollSeconds} s, batch ${cfg.batchSize} × ${cfg.concurrency}`,
+  );
+  return async () => {
+    await Promise.all([stopSweep(), stopPump()]);
+  };
+}
