@@ -1,6 +1,7 @@
 import { sql } from "kysely";
 import type { Database } from "@/db/client";
 import { getEnv } from "@/lib/env";
+import { backoffFromEnv, isPermanentSmtpFailure, retryDelaySeconds } from "./backoff";
 import { getMailTransport } from "./transport";
 
 export type SendOutcome =
@@ -8,8 +9,19 @@ export type SendOutcome =
   | { status: "skipped"; reason: "not_found" | "not_pending" | "locked" }
   | { status: "failed"; error: string; attempts: number };
 
-/** After this many failed attempts a row is marked failed and left for a person to look at. */
+/**
+ * After this many attempts that the relay answered with a permanent rejection of the message
+ * or its recipient, a row is marked failed and left for a person to look at. A relay that is
+ * down or refusing connections never fails a row: it stays pending and is retried with a
+ * growing wait (next_attempt_at, lib/mail/backoff.ts) until the relay is back.
+ */
 export const MAX_SEND_ATTEMPTS = 8;
+
+/** One Message-ID per outbox row, so a resend after a crash is recognisably the same message. */
+export function outboxMessageId(id: string, from = getEnv().MAIL_FROM): string {
+  const domain = /@([^>\s]+)/.exec(from)?.[1] ?? "hearth.invalid";
+  return `<${id}@${domain}>`;
+}
 
 /**
  * Sends one notification_outbox row through the SMTP transport and records the outcome on the
@@ -36,6 +48,7 @@ export async function sendOutboxRow(db: Database, id: string): Promise<SendOutco
       const info = await getMailTransport().sendMail({
         from: getEnv().MAIL_FROM,
         to: row.recipient_email,
+        messageId: outboxMessageId(row.id),
         subject: row.subject,
         text: row.text_body,
         html: row.html_body,
@@ -50,9 +63,16 @@ export async function sendOutboxRow(db: Database, id: string): Promise<SendOutco
     } catch (err) {
       const error = (err instanceof Error ? err.message : String(err)).slice(0, 500);
       const attempts = row.attempts + 1;
+      const permanent = isPermanentSmtpFailure(err);
+      const wait = retryDelaySeconds(attempts, backoffFromEnv());
       await trx
         .updateTable("notification_outbox")
-        .set({ attempts, last_error: error, status: attempts >= MAX_SEND_ATTEMPTS ? "failed" : "pending" })
+        .set({
+          attempts,
+          last_error: error,
+          status: permanent && attempts >= MAX_SEND_ATTEMPTS ? "failed" : "pending",
+          next_attempt_at: sql`now() + make_interval(secs => ${wait})`,
+        })
         .where("id", "=", id)
         .execute();
       return { status: "failed", error, attempts } as const;
