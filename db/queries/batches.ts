@@ -1,6 +1,7 @@
 import { sql, type Transaction } from "kysely";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
+import { AppError } from "@/lib/errors";
 import { profileLabel } from "@/lib/batches/rules";
 import { staffingOf, type Staffing } from "@/lib/batches/staffed";
 import type {
@@ -19,6 +20,7 @@ import { furnaceCycle, type SinterProfile } from "@/lib/process/furnace-profile"
 import { projectUnit, type StepState } from "@/lib/process/projection";
 import { washMinutes } from "@/lib/process/wash";
 import type { TrayRun } from "@/lib/packing/types";
+import { suggestBatches, type Busy, type SuggestResult } from "@/lib/batches/suggest";
 
 export type Db = Database | Transaction<DB>;
 
@@ -405,5 +407,116 @@ export async function insertEvents(
   await db
     .insertInto("events")
     .values(rows.map((r) => ({ ...r, from_state: r.from_state ?? null, to_state: r.to_state ?? null, reason: r.reason ?? null, data: r.data === undefined ? null : JSON.stringify(r.data) })))
+    .execute();
+}
+
+// Proposals ------------------------------------------------------------------------------------
+
+async function busyIntervals(db: Db, now: Date): Promise<Busy[]> {
+  const [runs, washes, blocks] = await Promise.all([
+    db.selectFrom("furnace_runs").select(["furnace_id as resource_id", "starts_at", "ends_at"]).where("state", "in", ["scheduled", "running"]).where("ends_at", ">", now).execute(),
+    db.selectFrom("wash_batches").select(["wash_station_id as resource_id", "starts_at", "ends_at"]).where("state", "in", ["scheduled", "running"]).where("ends_at", ">", now).execute(),
+    db
+      .selectFrom("maintenance_windows")
+      .select([sql<string>`coalesce(furnace_id, wash_station_id, printer_id)`.as("resource_id"), "starts_at", "ends_at"])
+      .where("resource", "in", ["furnace", "wash_station"])
+      .where("ends_at", ">", now)
+      .execute(),
+  ]);
+  return [...runs, ...washes, ...blocks]
+    .filter((b) => b.resource_id && b.starts_at && b.ends_at)
+    .map((b) => ({ resource_id: b.resource_id!, start: new Date(b.starts_at!).getTime(), end: new Date(b.ends_at!).getTime() }));
+}
+
+export type Proposal = SuggestResult & {
+  id: string;
+  planned_from: string;
+  /** What is open on the board now, for the diff. */
+  current: { wash_batches: number; furnace_runs: number };
+  server_ms: number;
+};
+
+/**
+ * Computes and stores a proposal for the units waiting now. The route and the benchmark both
+ * call this, so the benchmark times exactly what a person waits for.
+ */
+export async function proposeBatches(db: Database, opts: { wash: boolean; furnace: boolean; horizon_hours: number }, actorId: string | null, now = new Date()): Promise<Proposal> {
+  const t0 = performance.now();
+  const ctx = await loadShopContext(db, now);
+  const horizon = new Date(now.getTime() + opts.horizon_hours * 3_600_000);
+  const [washUnits, furnaceUnits, busy, open] = await Promise.all([
+    opts.wash ? listBoardUnits(db, ctx, { kind: "waiting_wash" }) : Promise.resolve([]),
+    opts.furnace ? listBoardUnits(db, ctx, { kind: "waiting_furnace", horizon }) : Promise.resolve([]),
+    busyIntervals(db, now),
+    Promise.all([
+      db.selectFrom("wash_batches").select((eb) => eb.fn.countAll<number>().as("n")).where("state", "in", ["draft", "scheduled"]).executeTakeFirstOrThrow(),
+      db.selectFrom("furnace_runs").select((eb) => eb.fn.countAll<number>().as("n")).where("state", "in", ["draft", "scheduled"]).executeTakeFirstOrThrow(),
+    ]),
+  ]);
+  const result = suggestBatches({
+    now,
+    staffing: ctx.staffing,
+    clearance_mm: ctx.clearance_mm,
+    drying_minutes: ctx.drying_minutes,
+    finishing_lead_minutes: ctx.finishing_lead_minutes,
+    furnaces: ctx.furnaces,
+    stations: ctx.stations,
+    profiles: ctx.profiles,
+    wash_units: washUnits,
+    furnace_units: furnaceUnits,
+    busy,
+    wash: opts.wash,
+    furnace: opts.furnace,
+  });
+  const row = await db
+    .insertInto("batch_proposals")
+    .values({
+      created_by: actorId,
+      planned_from: now,
+      wash: JSON.stringify(result.wash),
+      furnace: JSON.stringify(result.furnace),
+      unplaced: JSON.stringify(result.unplaced),
+      metrics: JSON.stringify({ ...result.metrics, server_ms: Math.round(performance.now() - t0) }),
+    })
+    .returning("id")
+    .executeTakeFirstOrThrow();
+  return {
+    ...result,
+    id: row.id,
+    planned_from: now.toISOString(),
+    current: { wash_batches: Number(open[0].n), furnace_runs: Number(open[1].n) },
+    server_ms: Math.round(performance.now() - t0),
+  };
+}
+
+/** One transaction with the shop's rules loaded inside it, for every booking change. */
+export async function withBatchTransaction<T>(db: Database, fn: (trx: Transaction<DB>, ctx: ShopContext) => Promise<T>): Promise<T> {
+  return db.transaction().execute(async (trx) => fn(trx, await loadShopContext(trx)));
+}
+
+/** A path id that is not a uuid names nothing: 404, never a database error. */
+export function pathId(id: string, what: string): string {
+  if (!/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(id)) throw new AppError("not_found", `That ${what} does not exist.`);
+  return id;
+}
+
+/** Bookings of wash stations and furnaces that touch a window, for the floor's lanes. */
+export async function listLaneBookings(db: Db, kind: "wash" | "furnace", from: Date, to: Date) {
+  if (kind === "wash") {
+    return db
+      .selectFrom("wash_batches as w")
+      .select(["w.id", "w.code", "w.state", "w.version", "w.wash_station_id as resource_id", "w.starts_at", "w.ends_at", "w.est_minutes as minutes", sql<number>`(select count(*) from units u where u.wash_batch_id = w.id)`.as("unit_count")])
+      .where("w.state", "in", ["scheduled", "running", "complete"])
+      .where(sql<boolean>`tstzrange(w.starts_at, w.ends_at) && tstzrange(${from}::timestamptz, ${to}::timestamptz)`)
+      .orderBy("w.starts_at")
+      .execute();
+  }
+  return db
+    .selectFrom("furnace_runs as r")
+    .innerJoin("sinter_profiles as p", "p.id", "r.profile_id")
+    .select(["r.id", "r.code", "r.state", "r.version", "r.furnace_id as resource_id", "r.starts_at", "r.ends_at", "r.cycle_minutes as minutes", "p.code as profile_code", "p.revision as profile_revision", sql<number>`(select count(*) from units u where u.furnace_run_id = r.id)`.as("unit_count")])
+    .where("r.state", "in", ["scheduled", "running", "complete"])
+    .where(sql<boolean>`tstzrange(r.starts_at, r.ends_at) && tstzrange(${from}::timestamptz, ${to}::timestamptz)`)
+    .orderBy("r.starts_at")
     .execute();
 }

@@ -1,0 +1,24 @@
+import { NextResponse } from "next/server";
+import { getDb } from "@/db/client";
+import { pathId, withBatchTransaction } from "@/db/queries/batches";
+import { removeUnitFromWash } from "@/db/queries/wash-batches";
+import { requireUser } from "@/lib/auth/session";
+import { removeUnitSchema } from "@/lib/batches/schemas";
+import { readJson, toErrorResponse } from "@/lib/http/errors";
+
+// DELETE /api/wash-batches/[id]/units/[unitId] – take a unit out of a draft or scheduled wash batch; body or ?version= (technician, furnace operator, admin)
+export async function DELETE(req: Request, { params }: { params: Promise<{ id: string; unitId: string }> }) {
+  try {
+    const user = await requireUser("wash:write");
+    const p = await params;
+    const id = pathId(p.id, "wash batch");
+    const unitId = pathId(p.unitId, "unit");
+    const url = new URL(req.url);
+    const body = (await readJson(req)) as Record<string, unknown>;
+    const input = removeUnitSchema.parse({ version: url.searchParams.get("version") ?? undefined, unit_version: url.searchParams.get("unit_version") ?? undefined, ...body });
+    const batch = await withBatchTransaction(getDb(), (trx, ctx) => removeUnitFromWash(trx, ctx, { batchId: id, version: input.version, unitId, unitVersion: input.unit_version }, user.id));
+    return NextResponse.json(batch);
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}

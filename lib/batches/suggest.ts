@@ -1,0 +1,244 @@
+// "Suggest batches": wash batches for the green units and furnace runs for the brown and
+// soon-brown ones, with start times on the lanes. A proposal only; nothing is booked until a
+// person accepts it.
+//
+// Furnace runs go through the tray packer (fewest runs, one sinter profile per run, urgent
+// units in the earliest runs) and its lower bound, then each run takes the earliest staffed
+// start on its furnace after its units are ready that collides with no booking or maintenance.
+// Wash batches group units of similar wash time (a batch lasts as long as its slowest unit, so
+// mixing a 6 mm wall with 2 mm walls makes the thin parts wait): units go longest wash first into
+// the first batch that takes them (first-fit decreasing), and batches are booked most urgent first.
+
+import { packTrays } from "@/lib/packing/trays";
+import type { TrayRun } from "@/lib/packing/types";
+import { furnaceCycle } from "@/lib/process/furnace-profile";
+import { checkWashAdd, packFurnace, packUnit, profileLabel, washMinutesOf } from "./rules";
+import { nextStaffed, type Staffing } from "./staffed";
+import type { BoardFurnace, BoardProfile, BoardStation, BoardUnit } from "./types";
+
+const MIN = 60_000;
+
+export interface Busy {
+  resource_id: string;
+  start: number;
+  end: number;
+}
+
+export interface SuggestInput {
+  now: Date;
+  staffing: Staffing;
+  clearance_mm: number;
+  drying_minutes: number;
+  finishing_lead_minutes: number;
+  furnaces: readonly BoardFurnace[];
+  stations: readonly BoardStation[];
+  profiles: readonly BoardProfile[];
+  wash_units: readonly BoardUnit[];
+  furnace_units: readonly BoardUnit[];
+  /** Bookings and maintenance already on the lanes. */
+  busy: readonly Busy[];
+  wash: boolean;
+  furnace: boolean;
+  /** Packer restarts per profile (more is slower and rarely better). */
+  restarts?: number;
+}
+
+export interface ProposedRun {
+  key: string;
+  furnace_id: string;
+  profile_id: string;
+  starts_at: string;
+  ends_at: string;
+  cycle_minutes: number;
+  tray_layout: TrayRun;
+  units: { id: string; version: number; serial: string }[];
+  mass_g: number;
+  area_used_fraction: number;
+  /** Latest projected finish (after finishing lead) minus due, minutes; negative = early. */
+  max_lateness_min: number;
+}
+
+export interface ProposedWash {
+  key: string;
+  wash_station_id: string;
+  starts_at: string;
+  ends_at: string;
+  est_minutes: number;
+  units: { id: string; version: number; serial: string }[];
+  mass_g: number;
+}
+
+export interface Unplaced {
+  unit_id: string;
+  serial: string;
+  kind: "wash" | "furnace";
+  reason: string;
+}
+
+export interface SuggestMetrics {
+  furnace_units: number;
+  furnace_runs: number;
+  /** The packer's lower bound on the run count (summed over profiles). */
+  lower_bound: number;
+  /** Runs over lower bound; 1 when nothing was to be packed. */
+  ratio: number;
+  wash_units: number;
+  wash_batches: number;
+  max_lateness_min: number | null;
+  late_units: number;
+  pack_ms: number;
+}
+
+export interface SuggestResult {
+  wash: ProposedWash[];
+  furnace: ProposedRun[];
+  unplaced: Unplaced[];
+  metrics: SuggestMetrics;
+}
+
+/** Earliest start ≥ t on the resource, inside staffed hours, clear of every busy interval. */
+export function earliestSlot(resource: string, t: number, minutes: number, busy: readonly Busy[], staffing: Staffing): number {
+  const mine = busy.filter((b) => b.resource_id === resource).sort((a, b) => a.start - b.start);
+  let start = t;
+  for (let guard = 0; guard < 10_000; guard++) {
+    start = nextStaffed(new Date(start), staffing).getTime();
+    const end = start + minutes * MIN;
+    const clash = mine.find((b) => b.start < end && start < b.end);
+    if (!clash) return start;
+    start = clash.end;
+  }
+  throw new Error(`no free slot found on ${resource}`);
+}
+
+function suggestFurnace(input: SuggestInput, unplaced: Unplaced[], busy: Busy[]) {
+  const t0 = performance.now();
+  const byLabel = new Map(input.profiles.map((p) => [profileLabel(p), p]));
+  const furnaceByName = new Map(input.furnaces.map((f) => [f.name, f]));
+  const units = new Map(input.furnace_units.map((u) => [u.id, u]));
+  const packUnits = [];
+  for (const u of input.furnace_units) {
+    const profile = input.profiles.find((p) => p.id === u.profile_id);
+    if (!profile) {
+      unplaced.push({ unit_id: u.id, serial: u.serial, kind: "furnace", reason: `${u.material_code} has no default sinter profile` });
+      continue;
+    }
+    packUnits.push(packUnit(u, profile, input.profiles));
+  }
+  const packed = packTrays(
+    { clearance_mm: input.clearance_mm, furnaces: input.furnaces.map((f) => packFurnace(f, input.profiles)), units: packUnits },
+    { restarts: input.restarts },
+  );
+  const packMs = performance.now() - t0;
+  for (const u of packed.unplaced) {
+    const unit = units.get(u.unit)!;
+    unplaced.push({ unit_id: u.unit, serial: unit.serial, kind: "furnace", reason: u.reason });
+  }
+  const now = input.now.getTime();
+  const runs: ProposedRun[] = [];
+  packed.runs.forEach((run, i) => {
+    const furnace = furnaceByName.get(run.furnace)!;
+    const profile = byLabel.get(run.profile)!;
+    const cycle = Math.ceil(furnaceCycle(
+      {
+        startTempC: profile.start_temp_c,
+        segments: profile.segments.map((s) => ({ rateCPerMin: s.rate_c_per_min, setpointC: s.setpoint_c, holdMin: s.hold_min })),
+        coolRateCPerMin: profile.cool_rate_c_per_min,
+        coolToC: profile.cool_to_c,
+      },
+      { maxCoolRateCPerMin: furnace.max_cool_rate_c_per_min },
+    ).totalMinutes);
+    const ids = run.trays.flatMap((t) => t.placements.map((p) => p.unit));
+    const members = ids.map((id) => units.get(id)!);
+    const ready = Math.max(now, ...members.map((u) => (u.ready_at ? Date.parse(u.ready_at) : now)));
+    const start = earliestSlot(furnace.id, ready, cycle, busy, input.staffing);
+    const end = start + cycle * MIN;
+    busy.push({ resource_id: furnace.id, start, end });
+    const out = nextStaffed(new Date(end), input.staffing).getTime() + input.finishing_lead_minutes * MIN;
+    const lateness = Math.max(...members.map((u) => (out - Date.parse(u.due_at)) / MIN));
+    runs.push({
+      key: `run-${i + 1}`,
+      furnace_id: furnace.id,
+      profile_id: profile.id,
+      starts_at: new Date(start).toISOString(),
+      ends_at: new Date(end).toISOString(),
+      cycle_minutes: cycle,
+      tray_layout: run,
+      units: members.map((u) => ({ id: u.id, version: u.version, serial: u.serial })),
+      mass_g: run.mass_g,
+      area_used_fraction: run.area_used_fraction,
+      max_lateness_min: Math.round(lateness),
+    });
+  });
+  return { runs, lowerBound: packed.lowerBound.largest, packMs, placedUnits: packUnits.length - packed.unplaced.length };
+}
+
+function suggestWash(input: SuggestInput, unplaced: Unplaced[], busy: Busy[]) {
+  type Open = { station: BoardStation; units: BoardUnit[] };
+  const open: Open[] = [];
+  const assigned = new Map<string, number>(input.stations.map((s) => [s.id, 0]));
+  const sorted = [...input.wash_units].sort((a, b) => b.wash_minutes - a.wash_minutes || a.slack_minutes - b.slack_minutes);
+  for (const u of sorted) {
+    const home = open.find((b) => checkWashAdd({ state: "draft", code: "new" }, b.units, u, b.station).ok);
+    if (home) {
+      home.units.push(u);
+      continue;
+    }
+    const fitting = input.stations.filter((s) => checkWashAdd({ state: "draft", code: "new" }, [], u, s).ok);
+    if (!fitting.length) {
+      const reasons = input.stations.map((s) => checkWashAdd({ state: "draft", code: "new" }, [], u, s)).flatMap((r) => (r.ok ? [] : [r.reason]));
+      unplaced.push({ unit_id: u.id, serial: u.serial, kind: "wash", reason: reasons[0] ?? "no wash station is in use" });
+      continue;
+    }
+    // The station with the least wash time already handed out gets the new batch.
+    const station = fitting.reduce((best, s) => (assigned.get(s.id)! < assigned.get(best.id)! ? s : best));
+    assigned.set(station.id, assigned.get(station.id)! + u.wash_minutes);
+    open.push({ station, units: [u] });
+  }
+  const now = input.now.getTime();
+  const byUrgency = open
+    .map((b) => ({ ...b, minutes: Math.ceil(washMinutesOf(b.units)!), urgency: Math.min(...b.units.map((u) => u.slack_minutes)) }))
+    .sort((a, b) => a.urgency - b.urgency);
+  return byUrgency.map((b, i): ProposedWash => {
+    const start = earliestSlot(b.station.id, now, b.minutes, busy, input.staffing);
+    const end = start + b.minutes * MIN;
+    busy.push({ resource_id: b.station.id, start, end });
+    return {
+      key: `wash-${i + 1}`,
+      wash_station_id: b.station.id,
+      starts_at: new Date(start).toISOString(),
+      ends_at: new Date(end).toISOString(),
+      est_minutes: b.minutes,
+      units: b.units.map((u) => ({ id: u.id, version: u.version, serial: u.serial })),
+      mass_g: b.units.reduce((s, u) => s + u.mass_g, 0),
+    };
+  });
+}
+
+export function suggestBatches(input: SuggestInput): SuggestResult {
+  const unplaced: Unplaced[] = [];
+  const busy: Busy[] = [...input.busy];
+  const wash = input.wash ? suggestWash(input, unplaced, busy) : [];
+  const f = input.furnace ? suggestFurnace(input, unplaced, busy) : { runs: [], lowerBound: 0, packMs: 0, placedUnits: 0 };
+  const lateness = f.runs.map((r) => r.max_lateness_min);
+  const due = new Map(input.furnace_units.map((u) => [u.id, Date.parse(u.due_at)]));
+  const late = f.runs.reduce((n, r) => {
+    const out = nextStaffed(new Date(r.ends_at), input.staffing).getTime() + input.finishing_lead_minutes * MIN;
+    return n + r.units.filter((u) => out > due.get(u.id)!).length;
+  }, 0);
+  return {
+    wash,
+    furnace: f.runs,
+    unplaced,
+    metrics: {
+      furnace_units: f.placedUnits,
+      furnace_runs: f.runs.length,
+      lower_bound: f.lowerBound,
+      ratio: f.lowerBound > 0 ? f.runs.length / f.lowerBound : 1,
+      wash_units: wash.reduce((s, b) => s + b.units.length, 0),
+      wash_batches: wash.length,
+      max_lateness_min: lateness.length ? Math.max(...lateness) : null,
+      late_units: late,
+      pack_ms: Math.round(f.packMs),
+    },
+  };
+}
