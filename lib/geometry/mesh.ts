@@ -83,11 +83,11 @@ export function measureTriangles(positions: Float32Array): MeshMeasures {
     volume6 += ux * (vy * wz - vz * wy) + uy * (vz * wx - vx * wz) + uz * (vx * wy - vy * wx);
   }
   if (!Number.isFinite(area2) || !Number.isFinite(volume6)) {
-    throw new ComputationError(
-      `triangle ${firstNonFiniteTriangle(p) + 1} has a coordinate that is not a finite number`,
-      "positions",
-      { code: "non_finite" },
-    );
+    const bad = firstNonFiniteTriangle(p);
+    throw new ComputationError(`triangle ${bad + 1} has a coordinate that is not a finite number`, "positions", {
+      code: "non_finite",
+      triangle: bad,
+    });
   }
   return measuresFrom(triangleCount, minX, minY, minZ, maxX, maxY, maxZ, area2, volume6);
 }
@@ -141,27 +141,31 @@ export type WeldedMesh = {
  * Joins vertices whose coordinates are bit-for-bit equal (−0 counted as +0), through an
  * open-addressing table keyed on the float bits. No tolerance: a writer that repeats a shared
  * corner with different rounding leaves a crack, and that is what the closed check must see.
+ * The table starts small (a closed mesh has about one vertex per six corners) and doubles
+ * when half full, so it stays cache-sized for the common case.
  */
 export function weldVertices(positions: Float32Array): WeldedMesh {
   checkSoup(positions);
   const bits = new Uint32Array(positions.buffer, positions.byteOffset, positions.length);
   const corners = positions.length / 3;
-  const capacity = nextPow2(Math.ceil(corners / 0.7));
-  const mask = capacity - 1;
-  const table = new Int32Array(capacity).fill(-1);
+  let capacity = nextPow2(Math.ceil(corners / 3));
+  let mask = capacity - 1;
+  let table = new Int32Array(capacity).fill(-1);
   const unique = new Uint32Array(positions.length);
   const indices = new Uint32Array(corners);
   let count = 0;
+  const hash = (x: number, y: number, z: number) => {
+    let h = Math.imul(x, 0x9e3779b1) ^ Math.imul(y ^ (y >>> 16), 0x85ebca77) ^ Math.imul(z ^ (z >>> 13), 0xc2b2ae3d);
+    h ^= h >>> 15;
+    h = Math.imul(h, 0x2c1b3c6d);
+    return h ^ (h >>> 12);
+  };
   for (let v = 0; v < corners; v++) {
     let x = bits[3 * v], y = bits[3 * v + 1], z = bits[3 * v + 2];
     if (x === 0x80000000) x = 0;
     if (y === 0x80000000) y = 0;
     if (z === 0x80000000) z = 0;
-    let h = Math.imul(x, 0x9e3779b1) ^ Math.imul(y ^ (y >>> 16), 0x85ebca77) ^ Math.imul(z ^ (z >>> 13), 0xc2b2ae3d);
-    h ^= h >>> 15;
-    h = Math.imul(h, 0x2c1b3c6d);
-    h ^= h >>> 12;
-    let slot = h & mask;
+    let slot = hash(x, y, z) & mask;
     for (;;) {
       const id = table[slot];
       if (id < 0) {
@@ -170,6 +174,16 @@ export function weldVertices(positions: Float32Array): WeldedMesh {
         unique[3 * count + 1] = y;
         unique[3 * count + 2] = z;
         indices[v] = count++;
+        if (2 * count > capacity) {
+          capacity *= 2;
+          mask = capacity - 1;
+          table = new Int32Array(capacity).fill(-1);
+          for (let id2 = 0; id2 < count; id2++) {
+            let s2 = hash(unique[3 * id2], unique[3 * id2 + 1], unique[3 * id2 + 2]) & mask;
+            while (table[s2] >= 0) s2 = (s2 + 1) & mask;
+            table[s2] = id2;
+          }
+        }
         break;
       }
       if (unique[3 * id] === x && unique[3 * id + 1] === y && unique[3 * id + 2] === z) {
@@ -202,77 +216,88 @@ export type ClosedMeshReport = {
   reason: string;
 };
 
-const EMPTY_KEY = 0xffffffff;
-
 /**
- * Closed-and-consistently-oriented check. Vertices are welded by exact equality, then each
- * triangle's three directed edges are counted per undirected edge in one open-addressing
- * table (key = the two vertex ids, low id first; a nibble each for the two directions).
+ * Closed-and-consistently-oriented check. Vertices are welded by exact equality; then every
+ * directed edge is filed under its lower vertex id (a CSR layout: count, prefix-sum, fill),
+ * with the other id and the direction in one word. Sorting each vertex's short list puts the
+ * uses of one undirected edge side by side. Vertex ids follow the file order, so the lists
+ * touched by neighbouring triangles sit near each other in memory: no hash table, few misses.
  */
 export function checkClosedMesh(positions: Float32Array): ClosedMeshReport {
   const { vertices, indices } = weldVertices(positions);
   const triangleCount = indices.length / 3;
-  const capacity = nextPow2(Math.ceil((3 * triangleCount) / 0.7));
-  const mask = capacity - 1;
-  const keys = new Uint32Array(2 * capacity).fill(EMPTY_KEY);
-  const uses = new Uint8Array(capacity); // low nibble: low→high uses, high nibble: high→low uses
+  const vertexCount = vertices.length / 3;
+  if (vertexCount >= 0x80000000) throw new ComputationError("too many vertices for the closed check", "positions");
+  const start = new Uint32Array(vertexCount + 1);
   let degenerateTriangles = 0;
-  let edgeCount = 0;
-
-  const addEdge = (from: number, to: number) => {
-    let lo = from, hi = to, shift = 0;
-    if (from > to) {
-      lo = to;
-      hi = from;
-      shift = 4;
-    }
-    let h = Math.imul(lo, 0x9e3779b1) ^ Math.imul(hi ^ (hi >>> 15), 0x85ebca77);
-    h ^= h >>> 16;
-    h = Math.imul(h, 0x7feb352d);
-    h ^= h >>> 15;
-    let slot = h & mask;
-    for (;;) {
-      const k = keys[2 * slot];
-      if (k === EMPTY_KEY) {
-        keys[2 * slot] = lo;
-        keys[2 * slot + 1] = hi;
-        uses[slot] = 1 << shift;
-        edgeCount++;
-        return;
-      }
-      if (k === lo && keys[2 * slot + 1] === hi) {
-        const count = (uses[slot] >>> shift) & 0xf;
-        if (count < 15) uses[slot] += 1 << shift;
-        return;
-      }
-      slot = (slot + 1) & mask;
-    }
-  };
-
   for (let t = 0; t < triangleCount; t++) {
     const a = indices[3 * t], b = indices[3 * t + 1], c = indices[3 * t + 2];
     if (a === b || b === c || c === a) {
       degenerateTriangles++;
       continue;
     }
-    addEdge(a, b);
-    addEdge(b, c);
-    addEdge(c, a);
+    start[a < b ? a : b]++;
+    start[b < c ? b : c]++;
+    start[c < a ? c : a]++;
+  }
+  let sum = 0;
+  for (let v = 0; v <= vertexCount; v++) {
+    const n = start[v];
+    start[v] = sum;
+    sum += n;
+  }
+  const fill = start.slice(0, vertexCount);
+  // Entry: (higher id << 1) | 1 when the edge runs from the higher id to the lower.
+  const entries = new Uint32Array(sum);
+  const file = (from: number, to: number) => {
+    if (from < to) entries[fill[from]++] = to * 2;
+    else entries[fill[to]++] = from * 2 + 1;
+  };
+  for (let t = 0; t < triangleCount; t++) {
+    const a = indices[3 * t], b = indices[3 * t + 1], c = indices[3 * t + 2];
+    if (a === b || b === c || c === a) continue;
+    file(a, b);
+    file(b, c);
+    file(c, a);
   }
 
   let boundaryEdges = 0;
   let misorientedEdges = 0;
   let nonManifoldEdges = 0;
-  for (let slot = 0; slot < capacity; slot++) {
-    if (keys[2 * slot] === EMPTY_KEY) continue;
-    const u = uses[slot];
-    if (u === 0x11) continue;
-    const forward = u & 0xf;
-    const backward = u >>> 4;
-    const total = forward + backward;
-    if (total === 1) boundaryEdges++;
-    else if (total === 2) misorientedEdges++;
-    else nonManifoldEdges++;
+  let edgeCount = 0;
+  for (let v = 0; v < vertexCount; v++) {
+    const lo = start[v];
+    const hi = start[v + 1];
+    // Insertion sort for the usual handful of edges; a fan around a pole can have thousands.
+    if (hi - lo > 32) {
+      entries.subarray(lo, hi).sort();
+    } else {
+      for (let i = lo + 1; i < hi; i++) {
+        const e = entries[i];
+        let j = i - 1;
+        while (j >= lo && entries[j] > e) {
+          entries[j + 1] = entries[j];
+          j--;
+        }
+        entries[j + 1] = e;
+      }
+    }
+    for (let i = lo; i < hi; ) {
+      const other = entries[i] >>> 1;
+      let forward = 0;
+      let backward = 0;
+      while (i < hi && entries[i] >>> 1 === other) {
+        if (entries[i] & 1) backward++;
+        else forward++;
+        i++;
+      }
+      edgeCount++;
+      const total = forward + backward;
+      if (forward === 1 && backward === 1) continue;
+      if (total === 1) boundaryEdges++;
+      else if (total === 2) misorientedEdges++;
+      else nonManifoldEdges++;
+    }
   }
 
   const faces = triangleCount - degenerateTriangles;
@@ -285,13 +310,13 @@ export function checkClosedMesh(positions: Float32Array): ClosedMeshReport {
   return {
     closed,
     triangleCount,
-    vertexCount: vertices.length / 3,
+    vertexCount,
     edgeCount,
     boundaryEdges,
     misorientedEdges,
     nonManifoldEdges,
     degenerateTriangles,
-    eulerCharacteristic: vertices.length / 3 - edgeCount + faces,
+    eulerCharacteristic: vertexCount - edgeCount + faces,
     reason: closed ? "closed and consistently oriented" : problems.join("; "),
   };
 }

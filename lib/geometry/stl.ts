@@ -37,6 +37,12 @@ export const DEFAULT_MAX_STL_BYTES = 100 * 1024 * 1024;
 
 export const stlParseOptionsSchema = z.object({
   maxBytes: z.number().int().positive().default(DEFAULT_MAX_STL_BYTES),
+  /**
+   * Binary only: write the vertices over the input's own memory instead of a new array, so a
+   * large upload is not held twice. The input bytes are then no longer an STL file (also when
+   * parsing fails part-way); use it only for a buffer that is thrown away after parsing.
+   */
+  reuseInput: z.boolean().default(false),
 });
 export type StlParseOptions = z.input<typeof stlParseOptionsSchema>;
 
@@ -104,17 +110,17 @@ export function detectStlFormat(bytes: Uint8Array): "binary" | "ascii" {
 
 export function parseStl(data: Uint8Array | ArrayBuffer, options: StlParseOptions = {}): ParsedStl {
   const bytes = asBytes(data);
-  const { maxBytes } = stlParseOptionsSchema.parse(options);
+  const { maxBytes, reuseInput } = stlParseOptionsSchema.parse(options);
   if (bytes.length > maxBytes) {
     throw new StlError("too_large", `the file is ${bytes.length} bytes; the limit is ${maxBytes} bytes`, {
       bytes: bytes.length,
       maxBytes,
     });
   }
-  return detectStlFormat(bytes) === "binary" ? parseBinaryStl(bytes) : parseAsciiStl(bytes);
+  return detectStlFormat(bytes) === "binary" ? parseBinaryStl(bytes, { reuseInput }) : parseAsciiStl(bytes);
 }
 
-export function parseBinaryStl(bytes: Uint8Array): ParsedStl {
+export function parseBinaryStl(bytes: Uint8Array, options: { reuseInput?: boolean } = {}): ParsedStl {
   if (bytes.length === 0) throw new StlError("empty", "the file is empty");
   if (bytes.length < BINARY_PREAMBLE_BYTES) {
     throw new StlError(
@@ -143,10 +149,19 @@ export function parseBinaryStl(bytes: Uint8Array): ParsedStl {
   }
   if (count === 0) throw new StlError("empty", "the file holds no triangles");
 
+  // Read before the loop: with reuseInput the header is the first thing overwritten.
+  let label = "";
+  for (let i = 0; i < BINARY_HEADER_BYTES && bytes[i] !== 0; i++) label += String.fromCharCode(bytes[i]);
+
   // One pass: copy the vertices out (the facet records are not 4-byte aligned, so a DataView
   // reads them) and accumulate the measures as measureTriangles does, so a million-facet file
   // is not walked twice. tests/lib/stl.test.ts checks that both give the same numbers.
-  const p = new Float32Array(count * 9);
+  // In place, facet t is read (bytes 96 + 50t on) before its floats are written (36t on), and
+  // every later read lies beyond every earlier write.
+  const p =
+    options.reuseInput && bytes.byteOffset % 4 === 0
+      ? new Float32Array(bytes.buffer, bytes.byteOffset, count * 9)
+      : new Float32Array(count * 9);
   const first = BINARY_PREAMBLE_BYTES + 12; // skip each facet's normal
   const ox = view.getFloat32(first, true);
   const oy = view.getFloat32(first + 4, true);
@@ -174,7 +189,8 @@ export function parseBinaryStl(bytes: Uint8Array): ParsedStl {
     area2 += Math.sqrt(nx * nx + ny * ny + nz * nz);
     volume6 += ux * (vy * wz - vz * wy) + uy * (vz * wx - vx * wz) + uz * (vx * wy - vy * wx);
   }
-  // A NaN or infinite coordinate always reaches the area sum (0·∞ and NaN·x are NaN), so the
+  // A NaN or infinite coordinate always reaches the area sum (0·∞ and NaN·x are NaN), and
+  // finite float32 values cannot overflow it (products of four stay below 1e155), so the
   // per-value test runs only when a sum has gone bad, to name the first bad triangle.
   if (!Number.isFinite(area2) || !Number.isFinite(volume6)) {
     const bad = firstNonFiniteTriangle(p);
@@ -183,8 +199,6 @@ export function parseBinaryStl(bytes: Uint8Array): ParsedStl {
     });
   }
   const measures = measuresFrom(count, minX, minY, minZ, maxX, maxY, maxZ, area2, volume6);
-  let label = "";
-  for (let i = 0; i < BINARY_HEADER_BYTES && bytes[i] !== 0; i++) label += String.fromCharCode(bytes[i]);
   return { format: "binary", triangleCount: count, positions: p, label: label.trim(), measures };
 }
 

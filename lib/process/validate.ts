@@ -17,34 +17,6 @@ export function parseInput<S extends z.ZodType>(schema: S, input: unknown, what:
   );
 }
 
-/** A finite number or a ComputationError naming the field (for hot paths that skip zod). */
-export function requireFinite(value: number, field: string): number {
-  if (typeof value !== "number" || !Number.isFinite(value)) {
-    throw new ComputationError(`${field} must be a finite number (got ${String(value)})`, field);
-  }
-  return value;
-}
-
-export function requirePositive(value: number, field: string): number {
-  requireFinite(value, field);
-  if (value <= 0) throw new ComputationError(`${field} must be greater than 0 (got ${value})`, field);
-  return value;
-}
-
-export function requireNonNegative(value: number, field: string): number {
-  requireFinite(value, field);
-  if (value < 0) throw new ComputationError(`${field} must not be negative (got ${value})`, field);
-  return value;
-}
-
-/** Guards results: a computation that would return NaN or ±Infinity throws instead. */
-export function finiteResult(value: number, what: string): number {
-  if (!Number.isFinite(value)) {
-    throw new ComputationError(`${what} is not a finite number; check the inputs`, undefined, { value });
-  }
-  return value;
-}
-
 export function requireValidDate(value: Date, field: string): Date {
   if (!(value instanceof Date) || Number.isNaN(value.getTime())) {
     throw new ComputationError(`${field} must be a valid date`, field);

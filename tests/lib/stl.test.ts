@@ -134,6 +134,26 @@ describe("one-pass binary measures", () => {
     expect(parsed.measures).toEqual(measureTriangles(soup));
   });
 
+  it("reuseInput writes the vertices over the input and gives the same result", () => {
+    const soup = uvSphereMesh(7, 31, 15); // an odd number of facets exercises the 2-byte offsets
+    const bytes = writeBinaryStl(soup);
+    const copy = parseStl(bytes);
+    const inPlace = parseStl(bytes, { reuseInput: true });
+    expect(inPlace.positions.buffer).toBe(bytes.buffer);
+    expect(inPlace.positions).toEqual(soup);
+    expect(inPlace.measures).toEqual(copy.measures);
+    expect(inPlace.label).toBe("Hearth binary STL");
+    // An unaligned view falls back to a fresh array and leaves the input alone.
+    const big = new Uint8Array(bytes.length + 1);
+    const again = writeBinaryStl(soup);
+    big.set(again, 1);
+    const view = big.subarray(1);
+    const fallback = parseStl(view, { reuseInput: true });
+    expect(fallback.positions.buffer).not.toBe(big.buffer);
+    expect(Array.from(view.subarray(0, 84))).toEqual(Array.from(again.subarray(0, 84)));
+    expect(fallback.measures).toEqual(copy.measures);
+  });
+
   it("state the unit assumption", () => {
     const m = parseStl(writeBinaryStl(boxMesh(1, 1, 1))).measures;
     expect(m.unit).toBe("mm");
