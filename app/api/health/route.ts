@@ -2,6 +2,8 @@ import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { currentMigration } from "@/db/migrate";
 import { countLiveWorkers, findNewestHeartbeat, pingDatabase } from "@/db/queries/health";
+import { findLastSweep, listQueueStats } from "@/db/queries/jobs";
+import { summarizeOutbox } from "@/db/queries/outbox";
 import { checkSmtp } from "@/lib/mail/transport";
 import { checkBucket } from "@/lib/storage/s3";
 
@@ -11,6 +13,8 @@ type Check = { ok: boolean; [key: string]: unknown };
 
 // A worker beats every 15 s; three missed beats means it is gone.
 const WORKER_STALE_SECONDS = 45;
+// The sweep runs every minute; five minutes without one means no worker is sweeping.
+const SWEEP_STALE_SECONDS = 300;
 
 async function timed<T>(fn: () => Promise<T>): Promise<{ ok: true; ms: number; value: T } | { ok: false; ms: number; error: string }> {
   const started = performance.now();
@@ -25,12 +29,13 @@ async function timed<T>(fn: () => Promise<T>): Promise<{ ok: true; ms: number; v
 // GET /api/health – reachability of the database, the worker and the mail and file stores (public)
 export async function GET() {
   const db = getDb();
-  const [database, migration, worker, smtp, s3] = await Promise.all([
+  const [database, migration, worker, smtp, s3, jobs] = await Promise.all([
     timed(() => pingDatabase(db)),
     timed(() => currentMigration(db)),
     timed(async () => ({ newest: await findNewestHeartbeat(db), live: await countLiveWorkers(db, WORKER_STALE_SECONDS) })),
     timed(checkSmtp),
     timed(checkBucket),
+    timed(async () => ({ queues: await listQueueStats(db), sweep: await findLastSweep(db), outbox: await summarizeOutbox(db) })),
   ]);
 
   const checks: Record<string, Check> = {
@@ -53,6 +58,22 @@ export async function GET() {
       : { ok: false, error: worker.error },
     smtp: smtp.ok ? { ok: true, ms: smtp.ms } : { ok: false, error: smtp.error },
     storage: s3.ok ? { ok: true, ms: s3.ms } : { ok: false, error: s3.error },
+    jobs: jobs.ok
+      ? (() => {
+          const { queues, sweep, outbox } = jobs.value;
+          const sweepAge = sweep?.finished_at ? Math.round((Date.now() - sweep.finished_at.getTime()) / 1000) : null;
+          const waiting = queues.map((q) => q.oldest_waiting_s).filter((s): s is number => s !== null);
+          return {
+            ok: sweepAge === null || sweepAge <= SWEEP_STALE_SECONDS,
+            queues: Object.fromEntries(queues.map((q) => [q.queue, { waiting: q.waiting, scheduled: q.scheduled, active: q.active, failed: q.failed }])),
+            oldest_waiting_s: waiting.length ? Math.max(...waiting) : null,
+            last_sweep: sweep
+              ? { at: sweep.finished_at, age_s: sweepAge, worker_id: sweep.worker_id, advanced: sweep.advanced, mail_sent: sweep.mail_sent, had_errors: sweep.error !== null }
+              : null,
+            outbox: { pending: outbox.pending, failed: outbox.failed, oldest_pending_at: outbox.oldest_pending_at },
+          };
+        })()
+      : { ok: false, error: jobs.error },
   };
   const ok = Object.values(checks).every((c) => c.ok);
   return NextResponse.json({ ok, checked_at: new Date().toISOString(), checks }, { status: ok ? 200 : 503, headers: { "cache-control": "no-store" } });
