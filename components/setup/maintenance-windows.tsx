@@ -5,11 +5,11 @@ import { useState } from "react";
 
 type Window = { id: string; resource: string; resource_name: string; starts_at: string; ends_at: string; reason: string };
 type Resource = { kind: "printer" | "wash_station" | "furnace"; id: string; name: string };
-export type MaintenanceWindowsProps = { windows: Window[]; resources: Resource[] };
+export type MaintenanceWindowsProps = { windows: Window[]; resources: Resource[]; timeZone: string };
 
-const fmt = (iso: string) => new Date(iso).toLocaleString(undefined, { dateStyle: "medium", timeStyle: "short" });
 
-export function MaintenanceWindows({ windows, resources }: MaintenanceWindowsProps) {
+export function MaintenanceWindows({ windows, resources, timeZone }: MaintenanceWindowsProps) {
+  const fmt = (iso: string) => new Date(iso).toLocaleString("en-US", { dateStyle: "medium", timeStyle: "short", timeZone });
   const router = useRouter();
   const [resourceId, setResourceId] = useState(resources[0]?.id ?? "");
   const [start, setStart] = useState("");
@@ -48,7 +48,7 @@ export function MaintenanceWindows({ windows, resources }: MaintenanceWindowsPro
   return (
     <section className="rounded-card bg-white p-5 shadow-card" aria-label="Maintenance windows">
       <h2 className="font-display text-lg font-semibold">Maintenance windows</h2>
-      <p className="mb-3 text-sm text-soot-500">The planner and the floor keep these times free.</p>
+      <p className="mb-3 text-sm text-soot-500">The planner and the floor keep these times free. Times in the shop&apos;s zone ({timeZone}); the form takes this browser&apos;s local time.</p>
       <form onSubmit={add} className="mb-4 grid grid-cols-2 gap-3 md:grid-cols-5" noValidate>
         <label className="text-xs font-medium text-soot-600">
           Equipment

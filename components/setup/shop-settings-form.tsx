@@ -65,7 +65,7 @@ export function ShopSettingsForm({ settings }: ShopSettingsFormProps) {
       </section>
       <section className="rounded-card bg-white p-5 shadow-card" aria-label="Staffed hours">
         <h2 className="font-display text-lg font-semibold">Staffed hours</h2>
-        <p className="mb-3 text-sm text-soot-500">Builds are started, washes loaded and furnaces loaded or unloaded only inside these shifts; printing and sintering run unattended.</p>
+        <p className="mb-3 text-sm text-soot-500">Builds are started, washes loaded and furnaces loaded or unloaded only inside these shifts; printing and sintering run unattended. A shift that ends before it starts runs past midnight.</p>
         <div className="space-y-2">
           {v.staffed_hours.map((s, i) => (
             <div key={i} className="flex items-center gap-3 text-sm">
@@ -82,7 +82,7 @@ export function ShopSettingsForm({ settings }: ShopSettingsFormProps) {
               <button type="button" className="text-oxide-700 hover:underline" onClick={() => set("staffed_hours", v.staffed_hours.filter((_, j) => j !== i))}>
                 Remove
               </button>
-              {errors[`staffed_hours.${i}.end`] ? <span className="text-oxide-700">{errors[`staffed_hours.${i}.end`][0]}</span> : null}
+              {errors[`staffed_hours.${i}`] ? <span className="text-oxide-700">{errors[`staffed_hours.${i}`][0]}</span> : null}
             </div>
           ))}
         </div>

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { shiftSchema, timeZoneSchema } from "@/lib/process/time-zone";
 
 // Schemas for the admin's set-up of the shop, shared by the API and the forms.
 
@@ -86,21 +87,9 @@ export const maintenanceWindowSchema = z
   })
   .refine((w) => w.starts_at < w.ends_at, { message: "The window must end after it starts", path: ["ends_at"] });
 
-const clock = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$|^24:00$/, "Use HH:MM");
-export const shiftSchema = z
-  .object({ day: z.coerce.number().int().min(0).max(6), start: clock, end: clock })
-  .refine((s) => s.start < s.end, { message: "A shift must end after it starts", path: ["end"] });
-
 export const shopSettingsSchema = z.object({
   shop_name: name,
-  time_zone: z.string().refine((tz) => {
-    try {
-      new Intl.DateTimeFormat("en-US", { timeZone: tz });
-      return true;
-    } catch {
-      return false;
-    }
-  }, "Not a time zone name (for example Europe/Berlin)"),
+  time_zone: timeZoneSchema,
   staffed_hours: z.array(shiftSchema).max(50),
   drying_minutes: z.coerce.number().int().min(0).max(7 * 24 * 60),
   finishing_lead_minutes: z.coerce.number().int().min(0).max(60 * 24 * 60),

@@ -1,6 +1,7 @@
 import { getDb } from "@/db/client";
 import { listFurnaces, listMaintenanceWindows, listPrinters, listWashStations } from "@/db/queries/equipment";
 import { listMaterials, listProfileChoices } from "@/db/queries/materials";
+import { getShopSettings } from "@/db/queries/settings";
 import { PageHeader } from "@/components/ui/page-header";
 import { EquipmentTables } from "@/components/setup/equipment-tables";
 import { MaintenanceWindows } from "@/components/setup/maintenance-windows";
@@ -12,9 +13,10 @@ export default async function EquipmentPage() {
   await requirePageUser("setup:write");
   const db = getDb();
   const now = Date.now();
-  const [printers, washStations, furnaces, materials, profiles, windows] = await Promise.all([
+  const [printers, washStations, furnaces, materials, profiles, windows, settings] = await Promise.all([
     listPrinters(db), listWashStations(db), listFurnaces(db), listMaterials(db), listProfileChoices(db),
     listMaintenanceWindows(db, new Date(now - 7 * 86_400_000), new Date(now + 120 * 86_400_000)),
+    getShopSettings(db),
   ]);
   const resources = [
     ...printers.map((p) => ({ kind: "printer" as const, id: p.id, name: p.name })),
@@ -26,7 +28,7 @@ export default async function EquipmentPage() {
       <PageHeader title="Equipment" lead="Printers, wash stations and furnaces: sizes, rates and limits the planner relies on, and their maintenance windows." />
       <div className="space-y-6 px-8 py-6">
         <EquipmentTables printers={printers} washStations={washStations} furnaces={furnaces} materials={materials} profiles={profiles} />
-        <MaintenanceWindows windows={windows.map((w) => ({ ...w, starts_at: w.starts_at.toISOString(), ends_at: w.ends_at.toISOString() }))} resources={resources} />
+        <MaintenanceWindows windows={windows.map((w) => ({ ...w, starts_at: w.starts_at.toISOString(), ends_at: w.ends_at.toISOString() }))} resources={resources} timeZone={settings.time_zone} />
       </div>
     </>
   );
