@@ -61,54 +61,135 @@ function join(a: Block, b: Block, stack: boolean): Block {
 
 /**
  * Joins blocks with a common side (|Δ| ≤ matchTol) while the result still fits the W×D tray.
+ * Each new block looks for a partner among all blocks present, so the work stays near-linear.
  * Returns the blocks, largest first.
  */
-export function buildBlocks(items: readonly ItemModel[], W: number, D: number, grow: number, matchTol: number, fitTol: number): Block[] {
-  let blocks = items.map((it) => singleBlock(it, grow));
+export function buildBlocks(
+  items: readonly ItemModel[],
+  W: number,
+  D: number,
+  grow: number,
+  matchTol: number,
+  fitTol: number,
+): Block[] {
   const near = (x: number, y: number) => Math.abs(x - y) <= matchTol;
   const fits = (a: number, b: number) => (a <= W + fitTol && b <= D + fitTol) || (a <= D + fitTol && b <= W + fitTol);
   const bucket = Math.max(matchTol * 4, 1e-6);
-  for (;;) {
-    const index = new Map<number, number[]>();
-    blocks.forEach((b, i) => {
-      for (const s of b.w === b.h ? [b.w] : [b.w, b.h]) {
-        const k = Math.round(s / bucket);
-        const list = index.get(k) ?? [];
-        list.push(i);
-        index.set(k, list);
-      }
-    });
-    let best: { i: number; j: number; si: "w" | "h"; sj: "w" | "h"; completes: boolean } | null = null;
-    for (let i = 0; i < blocks.length && !(best && best.completes); i++) {
-      const a = blocks[i];
-      for (const si of ["w", "h"] as const) {
-        const s = a[si];
-        const other = si === "w" ? a.h : a.w;
-        const k = Math.round(s / bucket);
-        for (const kk of [k - 1, k, k + 1]) {
-          for (const j of index.get(kk) ?? []) {
-            if (j <= i) continue;
-            const b = blocks[j];
-            for (const sj of ["w", "h"] as const) {
-              if (!near(b[sj], s)) continue;
-              const sum = other + (sj === "w" ? b.h : b.w);
-              if (!fits(sum, Math.max(s, b[sj]))) continue;
-              const fullSide = near(s, W) || near(s, D);
-              const completes = (near(s, W) && near(sum, D)) || (near(s, D) && near(sum, W));
-              if (fullSide && !completes) continue;
-              if (!best || (completes && !best.completes)) best = { i, j, si, sj, completes };
-            }
+  const blocks = new Map<number, Block>();
+  const index = new Map<number, Set<number>>();
+  let nextId = 0;
+  const sides = (b: Block) => (Math.abs(b.w - b.h) <= 1e-12 ? [b.w] : [b.w, b.h]);
+  const add = (b: Block): number => {
+    const id = nextId++;
+    blocks.set(id, b);
+    for (const s of sides(b)) {
+      const k = Math.round(s / bucket);
+      let set = index.get(k);
+      if (!set) index.set(k, (set = new Set()));
+      set.add(id);
+    }
+    return id;
+  };
+  const remove = (id: number) => {
+    const b = blocks.get(id)!;
+    for (const s of sides(b)) index.get(Math.round(s / bucket))?.delete(id);
+    blocks.delete(id);
+  };
+  const queue: number[] = [];
+  for (const it of items) queue.push(add(singleBlock(it, grow)));
+  while (queue.length > 0) {
+    const id = queue.pop()!;
+    const a = blocks.get(id);
+    if (!a) continue;
+    let best = null as { j: number; si: "w" | "h"; sj: "w" | "h"; completes: boolean } | null;
+    for (const si of ["w", "h"] as const) {
+      const s = a[si];
+      const other = si === "w" ? a.h : a.w;
+      const k = Math.round(s / bucket);
+      for (const kk of [k - 1, k, k + 1]) {
+        for (const j of index.get(kk) ?? []) {
+          if (j === id) continue;
+          const b = blocks.get(j)!;
+          for (const sj of ["w", "h"] as const) {
+            if (!near(b[sj], s)) continue;
+            const sum = other + (sj === "w" ? b.h : b.w);
+            if (!fits(sum, Math.max(s, b[sj]))) continue;
+            const fullSide = near(s, W) || near(s, D);
+            const completes = (near(s, W) && near(sum, D)) || (near(s, D) && near(sum, W));
+            if (fullSide && !completes) continue;
+            if (!best || (completes && !best.completes)) best = { j, si, sj, completes };
           }
         }
+        if (best?.completes) break;
       }
     }
-    if (!best) break;
+    if (!best) continue;
     // Orient both so that the shared side is the height, then put them side by side.
-    const a = best.si === "h" ? blocks[best.i] : turnBlock(blocks[best.i]);
-    const b = best.sj === "h" ? blocks[best.j] : turnBlock(blocks[best.j]);
-    const joined = join(a, b, false);
-    blocks = blocks.filter((_, k) => k !== best!.i && k !== best!.j);
-    blocks.push(joined);
+    const left = best.si === "h" ? a : turnBlock(a);
+    const b = blocks.get(best.j)!;
+    const right = best.sj === "h" ? b : turnBlock(b);
+    remove(id);
+    remove(best.j);
+    queue.push(add(join(left, right, false)));
   }
-  return blocks.sort((p, q) => q.w * q.h - p.w * p.h);
+  const out = completeStrips([...blocks.values()], W, D, matchTol);
+  return out.sort((p, q) => q.w * q.h - p.w * p.h);
+}
+
+/**
+ * Strips spanning a full tray side (a tray cut three or more times the same way leaves several)
+ * are only worth joining when they make up a whole tray: find small sets of them whose widths sum
+ * to the other tray side, smallest sets first (fewer chances of a chance match).
+ */
+function completeStrips(blocks: Block[], W: number, D: number, matchTol: number): Block[] {
+  const near = (x: number, y: number, k = 1) => Math.abs(x - y) <= matchTol * k;
+  let rest = blocks;
+  for (const [span, target] of [
+    [D, W],
+    [W, D],
+  ] as const) {
+    // Strips oriented with the spanning side as height; the width is what must add up.
+    const strips: Block[] = [];
+    const others: Block[] = [];
+    for (const b of rest) {
+      const full = (near(b.w, W) && near(b.h, D)) || (near(b.w, D) && near(b.h, W));
+      if (!full && near(b.h, span)) strips.push(b);
+      else if (!full && near(b.w, span)) strips.push(turnBlock(b));
+      else others.push(b);
+    }
+    strips.sort((p, q) => q.w - p.w);
+    const alive = strips.map(() => true);
+    const pickSubset = (k: number): number[] | null => {
+      const chosen: number[] = [];
+      const dfs = (start: number, sum: number): boolean => {
+        if (chosen.length === k) return near(sum, target, k);
+        for (let i = start; i < strips.length; i++) {
+          if (!alive[i]) continue;
+          const s = sum + strips[i].w;
+          if (s > target + matchTol * k) continue;
+          // Widths are sorted down: if even this one cannot reach the target with the slots left, stop.
+          if (s + strips[i].w * (k - chosen.length - 1) < target - matchTol * k) return false;
+          chosen.push(i);
+          if (dfs(i + 1, s)) return true;
+          chosen.pop();
+        }
+        return false;
+      };
+      return dfs(0, 0) ? [...chosen] : null;
+    };
+    const joined: Block[] = [];
+    for (let k = 2; k <= 5; k++) {
+      for (let set = pickSubset(k); set; set = pickSubset(k)) {
+        let b = strips[set[0]];
+        alive[set[0]] = false;
+        for (const i of set.slice(1)) {
+          b = join(b, strips[i], false);
+          alive[i] = false;
+        }
+        joined.push(b);
+      }
+    }
+    rest = [...others, ...joined, ...strips.filter((_, i) => alive[i])];
+  }
+  return rest;
 }

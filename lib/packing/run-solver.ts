@@ -90,9 +90,9 @@ export class RunState {
   }
 }
 
-export type OrderKey = "area" | "long-side" | "perimeter" | "size" | "short-side" | "mass" | "due";
+export type OrderKey = "area" | "long-side" | "perimeter" | "size" | "sum" | "short-side" | "mass" | "due";
 
-const ORDER_KEYS: readonly OrderKey[] = ["area", "long-side", "perimeter", "size", "short-side", "mass", "due"];
+const ORDER_KEYS: readonly OrderKey[] = ["area", "long-side", "perimeter", "size", "sum", "short-side", "mass", "due"];
 
 function keyOf(it: ItemModel, key: OrderKey): [number, number] {
   switch (key) {
@@ -104,6 +104,8 @@ function keyOf(it: ItemModel, key: OrderKey): [number, number] {
       return [it.pw + it.ph, it.area];
     case "size":
       return [it.size, it.area];
+    case "sum":
+      return [it.sizeSum, it.area];
     case "short-side":
       return [Math.min(it.pw, it.ph), Math.max(it.pw, it.ph)];
     case "mass":
@@ -150,12 +152,15 @@ export function perturbedOrder(items: readonly ItemModel[], seed: number, spread
 
 export type ConstructConfig =
   | { kind: "pass"; order: ItemModel[]; rule: PlacementRule; trays: TrayChoice }
+  | { kind: "dot"; rule: PlacementRule }
   | { kind: "tray"; attempts: { order: ItemModel[]; rule: PlacementRule }[]; exact?: ExactSearch };
 
 /** Shared across a profile's constructions: the exact search is dropped once it has failed. */
 export interface ExactSearch {
   enabled: boolean;
-  nodeBudget: number;
+  workBudget: number;
+  /** Blocks of the units still free, kept between trays of one construction. */
+  blocks?: Block[];
 }
 
 function passFill(run: RunState, order: readonly ItemModel[], used: Uint8Array, rule: PlacementRule, trays: TrayChoice): RunState {
@@ -170,9 +175,9 @@ function passFill(run: RunState, order: readonly ItemModel[], used: Uint8Array, 
  * A waste-free filling of one tray from `free`, first from building blocks, then from the single
  * pieces; placements in packing coordinates with tolerance-shrunk sizes, or null.
  */
-function exactTray(f: FurnaceModel, free: readonly ItemModel[], massLeft: number, nodeBudget: number): PlacedItem[] | null {
+function exactTray(f: FurnaceModel, free: readonly ItemModel[], massLeft: number, exact: ExactSearch): PlacedItem[] | null {
   const tol = FIT_TOLERANCE_MM;
-  const opts = { tol, massLeft, nodeBudget };
+  const opts = { tol, massLeft, workBudget: exact.workBudget };
   const attempt = (blocks: Block[]) =>
     fillTrayExactly(
       f.W,
@@ -181,7 +186,12 @@ function exactTray(f: FurnaceModel, free: readonly ItemModel[], massLeft: number
       opts,
     ).placements;
   const singles = free.map((it) => singleBlock(it, tol));
-  const blocks = buildBlocks(free, f.W, f.D, tol, 0.003, tol);
+  // Blocks built once per construction; a block that lost a unit to a tray is dropped.
+  const freeSet = new Set(free);
+  exact.blocks ??= buildBlocks(free, f.W, f.D, tol, 0.003, tol);
+  const blocks = exact.blocks.filter((b) => b.parts.every((p) => freeSet.has(p.item)));
+  const inBlocks = new Set(blocks.flatMap((b) => b.parts.map((p) => p.item)));
+  for (const it of free) if (!inBlocks.has(it)) blocks.push(singleBlock(it, tol));
   const tiling = (blocks.length < singles.length ? attempt(blocks) : null) ?? attempt(singles);
   if (!tiling) return null;
   const out: PlacedItem[] = [];
@@ -216,7 +226,7 @@ function trayBestOfFill(
       const free = attempts[0].order.filter(
         (it) => !used[it.local] && !run.members.has(it) && it.eligibleMask.has(f.idx),
       );
-      const tiling = exactTray(f, free, f.load - run.mass, exact.nodeBudget);
+      const tiling = exactTray(f, free, f.load - run.mass, exact);
       if (tiling) {
         const bin = new MaxRectsBin(f.W, f.D, minSide);
         for (const p of tiling) {
@@ -259,8 +269,40 @@ function trayBestOfFill(
   return run;
 }
 
+/**
+ * Vector-packing greedy: keeps adding the unit whose (area, mass) shares best match what the run
+ * has left (largest dot product), after the "DotProduct" rule of Panigrahy, Talwar, Uyeda and
+ * Wieder, "Heuristics for Vector Bin Packing" (Microsoft Research, 2011) [from memory].
+ */
+function dotProductFill(f: FurnaceModel, pm: ProfileModel, used: Uint8Array, rule: PlacementRule): RunState {
+  const run = new RunState(f, pm.minSide);
+  let cands = pm.items.filter((it) => !used[it.local] && it.eligibleMask.has(f.idx));
+  for (;;) {
+    const ra = 1 - run.area / f.runArea;
+    const rm = 1 - run.mass / f.load;
+    const scored = cands
+      .filter((it) => run.massFits(it) && it.area <= f.runArea - run.area + GEOMETRY_EPS)
+      .map((it) => ({ it, s: (it.area / f.runArea) * ra + (it.mass / f.load) * rm }))
+      .sort((x, y) => y.s - x.s || x.it.dueRank - y.it.dueRank);
+    let placed: ItemModel | null = null;
+    const failed = new Set<ItemModel>();
+    for (const { it } of scored) {
+      if (run.tryAdd(it, rule, "first")) {
+        placed = it;
+        break;
+      }
+      failed.add(it);
+    }
+    if (!placed) break;
+    // Free space only shrinks, so a unit that did not fit will not fit later in this run.
+    cands = scored.map((x) => x.it).filter((it) => it !== placed && !failed.has(it));
+  }
+  return run;
+}
+
 function fillRun(f: FurnaceModel, pm: ProfileModel, used: Uint8Array, cfg: ConstructConfig): RunState {
   if (cfg.kind === "pass") return passFill(new RunState(f, pm.minSide), cfg.order, used, cfg.rule, cfg.trays);
+  if (cfg.kind === "dot") return dotProductFill(f, pm, used, cfg.rule);
   return trayBestOfFill(f, pm.minSide, used, cfg.attempts, cfg.exact);
 }
 
@@ -334,8 +376,29 @@ export function packSet(
   return null;
 }
 
+/** Where `it` would go in `run` without changing it, or null. */
+function findSpot(run: RunState, it: ItemModel): { tray: number; fit: NonNullable<ReturnType<MaxRectsBin["find"]>> } | null {
+  if (!it.eligibleMask.has(run.f.idx) || !run.massFits(it)) return null;
+  if (it.area > run.f.runArea - run.area + GEOMETRY_EPS) return null;
+  for (const rule of ["short-side", "contact", "bottom-left"] as const) {
+    for (let t = 0; t < run.bins.length; t++) {
+      if (it.area > run.bins[t].freeArea + GEOMETRY_EPS) continue;
+      const fit = run.bins[t].find(it.pw, it.ph, rule, true);
+      if (fit) return { tray: t, fit };
+    }
+  }
+  return null;
+}
+
 /** Moves every unit of `weak` into the other runs, or returns null if one does not find room. */
 function redistribute(pm: ProfileModel, weak: RunState, others: RunState[]): RunState[] | null {
+  let freeMass = 0;
+  let freeArea = 0;
+  for (const q of others) {
+    freeMass += q.f.load - q.mass;
+    freeArea += q.f.runArea - q.area;
+  }
+  if (weak.mass > freeMass * (1 + 1e-12) || weak.area > freeArea + GEOMETRY_EPS) return null;
   const modified = new Map<RunState, RunState>();
   const cur = (q: RunState) => modified.get(q) ?? q;
   const items = sortItems(
@@ -344,25 +407,26 @@ function redistribute(pm: ProfileModel, weak: RunState, others: RunState[]): Run
   );
   for (const it of items) {
     const targets = others
-      .filter((q) => it.eligibleMask.has(q.f.idx) && cur(q).massFits(it))
-      .sort((a, b) => b.f.runArea - cur(b).area - (a.f.runArea - cur(a).area));
+      .filter((q) => {
+        const c = cur(q);
+        return it.eligibleMask.has(q.f.idx) && c.massFits(it) && c.area + it.area <= q.f.runArea + GEOMETRY_EPS;
+      })
+      .sort((x, y) => y.f.runArea - cur(y).area - (x.f.runArea - cur(x).area));
     let ok = false;
     for (const q of targets) {
-      const c = cur(q).clone();
-      for (const rule of ["short-side", "contact", "area", "bottom-left"] as const) {
-        if (c.tryAdd(it, rule, "best")) {
-          modified.set(q, c);
-          ok = true;
-          break;
-        }
+      const spot = findSpot(cur(q), it);
+      if (spot) {
+        const c = cur(q).clone();
+        c.bins[spot.tray].place(spot.fit);
+        c.record(it, spot.tray, spot.fit.x, spot.fit.y, spot.fit.w, spot.fit.h, spot.fit.rotated);
+        modified.set(q, c);
+        ok = true;
+        break;
       }
-      if (ok) break;
     }
     if (!ok) {
-      for (const q of targets.slice(0, 3)) {
-        const c = cur(q);
-        if (c.area + it.area > q.f.runArea + GEOMETRY_EPS) continue;
-        const repacked = packSet(q.f, pm.minSide, [...c.placed.map((p) => p.item), it]);
+      for (const q of targets.slice(0, 2)) {
+        const repacked = packSet(q.f, pm.minSide, [...cur(q).placed.map((p) => p.item), it], "quick");
         if (repacked) {
           modified.set(q, repacked);
           ok = true;
@@ -472,17 +536,25 @@ export function dueScore(runs: RunState[], n: number): number {
 export interface SolveOptions {
   /** Extra perturbed restarts after the fixed configurations (0 = none). */
   restarts: number;
-  /** Node budget of the exact tray search per tray (0 = off). */
-  exactNodeBudget?: number;
+  /** Work budget of the exact tray search per tray (0 = off). */
+  exactWorkBudget?: number;
 }
 
+/**
+ * Cheap constructions first; stop as soon as one meets the lower bound. The due-date-first
+ * construction always runs, since it decides the order among equal run counts.
+ */
 export function solveProfile(pm: ProfileModel, options: SolveOptions): RunState[] {
   const orders = computeOrders(pm.items);
   const n = pm.items.length;
+  const exactBudget = options.exactWorkBudget ?? 150_000;
   const configs: ConstructConfig[] = [
+    { kind: "pass", order: orders.size, rule: "short-side", trays: "first" },
+    { kind: "dot", rule: "short-side" },
+    { kind: "pass", order: orders.sum, rule: "contact", trays: "first" },
     {
       kind: "tray",
-      exact: { enabled: true, nodeBudget: options.exactNodeBudget ?? 4000 },
+      exact: exactBudget > 0 ? { enabled: true, workBudget: exactBudget } : undefined,
       attempts: [
         { order: orders.area, rule: "short-side" },
         { order: orders.area, rule: "contact" },
@@ -490,14 +562,11 @@ export function solveProfile(pm: ProfileModel, options: SolveOptions): RunState[
         { order: orders["long-side"], rule: "bottom-left" },
         { order: orders.perimeter, rule: "area" },
         { order: orders.size, rule: "short-side" },
-        { order: orders["short-side"], rule: "contact" },
       ],
     },
-    { kind: "pass", order: orders.size, rule: "short-side", trays: "first" },
     { kind: "pass", order: orders.area, rule: "contact", trays: "first" },
     { kind: "pass", order: orders["long-side"], rule: "short-side", trays: "best" },
     { kind: "pass", order: orders.mass, rule: "short-side", trays: "first" },
-    { kind: "pass", order: orders.size, rule: "area", trays: "best" },
   ];
   for (let k = 0; k < options.restarts; k++) {
     const order = perturbedOrder(pm.items, 0x9e3779b9 ^ (k * 7919), 0.3);
@@ -513,10 +582,13 @@ export function solveProfile(pm: ProfileModel, options: SolveOptions): RunState[
       bestScore = score;
     }
   };
-  for (const cfg of configs) {
-    consider(eliminateRuns(pm, construct(pm, cfg)));
-    if (best !== null && (best as RunState[]).length <= pm.bound.largest) break;
-  }
+  const atBound = () => best !== null && (best as RunState[]).length <= pm.bound.largest;
   consider(eliminateRuns(pm, constructDueFirst(pm, orders)));
+  for (const cfg of configs) {
+    if (atBound()) break;
+    const runs = construct(pm, cfg);
+    // Emptying a run is the expensive step: only try it where it could beat the best so far.
+    consider(best !== null && runs.length - 1 >= (best as RunState[]).length ? runs : eliminateRuns(pm, runs));
+  }
   return best as unknown as RunState[];
 }

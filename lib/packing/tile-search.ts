@@ -44,12 +44,14 @@ export interface TileSearchOptions {
   tol: number;
   /** Mass still allowed on the run. */
   massLeft: number;
-  nodeBudget: number;
+  /** Piece-group evaluations allowed (a node costs one per piece size still in play). */
+  workBudget: number;
 }
 
 export interface TileSearchResult<T> {
   placements: TilePlacement<T>[] | null;
   nodes: number;
+  work: number;
 }
 
 /** Covers the W×D tray completely with pieces from `pieces`, or reports that it found no way. */
@@ -78,12 +80,13 @@ export function fillTrayExactly<T>(
     g.pieces.push(p);
     g.left++;
   }
-  if (totalArea < W * D * (1 - 1e-6)) return { placements: null, nodes: 0 };
+  if (totalArea < W * D * (1 - 1e-6)) return { placements: null, nodes: 0, work: 0 };
   // Large pieces first: they are the hard ones to place later.
   groups.sort((p, q) => q.a * q.b - p.a * p.b);
   for (const g of groups) g.pieces.sort((p, q) => q.mass - p.mass);
 
   let nodes = 0;
+  let work = 0;
   let massLeft = opts.massLeft;
   const placed: TilePlacement<T>[] = [];
 
@@ -94,7 +97,9 @@ export function fillTrayExactly<T>(
   };
 
   const dfs = (sky: Segment[]): boolean => {
-    if (++nodes > opts.nodeBudget) return false;
+    nodes++;
+    work += groups.length;
+    if (work > opts.workBudget) return false;
     let i = -1;
     for (let k = 0; k < sky.length; k++) {
       if (sky[k].y < D - tol && (i < 0 || sky[k].y < sky[i].y - 1e-9)) i = k;
@@ -135,13 +140,13 @@ export function fillTrayExactly<T>(
       placed.pop();
       massLeft += p.mass;
       c.g.left++;
-      if (nodes > opts.nodeBudget) return false;
+      if (work > opts.workBudget) return false;
     }
     return false;
   };
 
   const ok = dfs([{ x: 0, w: W, y: 0 }]);
-  return { placements: ok ? placed : null, nodes };
+  return { placements: ok ? placed : null, nodes, work };
 }
 
 /** Skyline after a w×h piece goes on the left end of segment i; near-equal levels merge upwards. */

@@ -53,6 +53,8 @@ export interface ItemModel {
   eligibleMask: Set<number>;
   /** max(area / best run area, mass / best load) within its profile. */
   size: number;
+  /** area / best run area + mass / best load. */
+  sizeSum: number;
 }
 
 export interface ProfileModel {
@@ -242,6 +244,7 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
       eligible,
       eligibleMask: new Set(eligible),
       size: 0,
+      sizeSum: 0,
     };
     const list = byProfile.get(u.profile) ?? [];
     item.local = list.length;
@@ -260,7 +263,10 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
     const maxTrays = Math.max(...pf.map((f) => f.trays));
     const sorted = [...items].sort((a, b) => a.due - b.due || (a.unit.id < b.unit.id ? -1 : 1));
     sorted.forEach((it, r) => (it.dueRank = r));
-    for (const it of items) it.size = Math.max(it.area / maxRunArea, it.mass / maxLoad);
+    for (const it of items) {
+      it.size = Math.max(it.area / maxRunArea, it.mass / maxLoad);
+      it.sizeSum = it.area / maxRunArea + it.mass / maxLoad;
+    }
     const minSide = Math.min(...items.map((it) => Math.min(it.pw, it.ph)));
 
     // Every bound relaxes each run to the best furnace the profile may use, so it stays valid

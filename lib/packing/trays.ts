@@ -100,6 +100,7 @@ function itemFor(u: PackUnit, f: FurnaceModel, clearance: number, local: number)
     eligible: [f.idx],
     eligibleMask: new Set([f.idx]),
     size: pw * ph,
+    sizeSum: pw * ph,
   };
 }
 
