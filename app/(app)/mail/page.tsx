@@ -1,13 +1,20 @@
 import { PageHeader } from "@/components/ui/page-header";
-import { NotLanded } from "@/components/ui/not-landed";
+import { requirePageUser } from "@/lib/auth/session";
+import { MailViewer } from "./mail-viewer";
 
 export const metadata = { title: "Mail" };
 
-export default function Page() {
+export default async function MailPage() {
+  await requirePageUser("mail:read");
   return (
     <>
-      <PageHeader title="Mail" lead="Messages captured by the local mail server." />
-      <NotLanded what="The mail viewer" />
+      <PageHeader
+        title="Mail"
+        lead="Every message Hearth has sent through the local capture server, newest first, and the outbox behind them: a message waits there, pending, while the mail relay is down."
+      />
+      <div className="px-8 py-6">
+        <MailViewer />
+      </div>
     </>
   );
 }

@@ -17,6 +17,7 @@ const SECTIONS: Section[] = [
   { title: "Materials", href: "/setup/materials", lead: "Feedstocks: shrinkage, densities, wash rate and default sinter profile." },
   { title: "Sinter profiles", href: null, lead: "Ramp, hold and cool-down segments, atmosphere and compatible materials." },
   { title: "Shop settings", href: "/setup/settings", lead: "Shop name, time zone, staffed hours and planning margins." },
+  { title: "Background jobs", href: "/setup/jobs", lead: "The worker's queues, failed jobs and its last sweep for bookings whose end went by." },
 ];
 
 export default async function SetupPage() {
