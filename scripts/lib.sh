@@ -80,9 +80,10 @@ CONF
         rm -f "$pgdata/postmaster.pid"
       fi
     fi
-    local extra=""
-    [ "${HEARTH_PG_FAST:-}" = "1" ] && extra="-o -c fsync=off -o -c synchronous_commit=off"
-    pg_as "$PG_BIN/pg_ctl" -D "$pgdata" -l "$DATA_DIR/pg/server.log" -w -t 60 $extra start >/dev/null
+    local opts=()
+    # fsync off only for a cluster that holds nothing but test data
+    [ "${HEARTH_PG_FAST:-}" = "1" ] && opts=(-o "-c fsync=off -c synchronous_commit=off")
+    pg_as "$PG_BIN/pg_ctl" -D "$pgdata" -l "$DATA_DIR/pg/server.log" -w -t 60 "${opts[@]}" start >/dev/null
   fi
   export DATABASE_URL="postgres://postgres@127.0.0.1:$PG_PORT/${HEARTH_DB_NAME:-hearth}"
 }
