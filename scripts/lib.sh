@@ -4,6 +4,7 @@ ROOT="$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)"
 DATA_DIR="${HEARTH_DATA_DIR:-$ROOT/.data}"
 PG_PORT="${HEARTH_PG_PORT:-54329}"
 PG_BIN="${HEARTH_PG_BIN:-/usr/lib/postgresql/15/bin}"
+PG_DIR="${HEARTH_PG_DIR:-$DATA_DIR/pg}"
 export HEARTH_DATA_DIR="$DATA_DIR"
 
 log() { printf '\033[38;5;173m[hearth]\033[0m %s\n' "$*"; }
@@ -58,9 +59,12 @@ ensure_postgres() {
     return 0
   fi
   ensure_postgres_binaries
-  local pgdata="$DATA_DIR/pg/data" sock="$DATA_DIR/pg/run"
+  local pgdata="$PG_DIR/data" sock="$PG_DIR/run"
   mkdir -p "$pgdata" "$sock"
-  if is_root; then chown -R postgres "$DATA_DIR/pg"; chmod 700 "$pgdata"; fi
+  # several test runs may start at once: one of them creates and starts the cluster
+  exec 9>"$PG_DIR.lock"
+  flock 9
+  if is_root; then chown -R postgres "$PG_DIR"; chmod 700 "$pgdata"; fi
   if [ ! -f "$pgdata/PG_VERSION" ]; then
     log "creating the database cluster in $pgdata"
     pg_as "$PG_BIN/initdb" -D "$pgdata" -U postgres --auth=trust --encoding=UTF8 --locale=C.UTF-8 >/dev/null
@@ -83,17 +87,18 @@ CONF
     local opts=()
     # fsync off only for a cluster that holds nothing but test data
     [ "${HEARTH_PG_FAST:-}" = "1" ] && opts=(-o "-c fsync=off -c synchronous_commit=off")
-    pg_as "$PG_BIN/pg_ctl" -D "$pgdata" -l "$DATA_DIR/pg/server.log" -w -t 60 "${opts[@]}" start >/dev/null
+    pg_as "$PG_BIN/pg_ctl" -D "$pgdata" -l "$PG_DIR/server.log" -w -t 60 "${opts[@]}" start >/dev/null
   fi
+  flock -u 9
   export DATABASE_URL="postgres://postgres@127.0.0.1:$PG_PORT/${HEARTH_DB_NAME:-hearth}"
 }
 
 stop_postgres() {
-  local pgdata="$DATA_DIR/pg/data"
+  local pgdata="$PG_DIR/data"
   if [ -f "$pgdata/postmaster.pid" ]; then
-    pg_as "$PG_BIN/pg_ctl" -D "$pgdata" -m fast -w stop >/dev/null && log "PostgreSQL stopped"
+    pg_as "$PG_BIN/pg_ctl" -D "$pgdata" -m fast -w stop >/dev/null && log "PostgreSQL stopped ($PG_DIR)"
   else
-    log "PostgreSQL is not running"
+    log "PostgreSQL is not running ($PG_DIR)"
   fi
 }
 

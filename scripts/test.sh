@@ -8,7 +8,10 @@ cd "$ROOT"
 slot="${HEARTH_TEST_SLOT:-0}"
 ensure_node_modules
 ensure_chromium
-HEARTH_PG_FAST=1 ensure_postgres
+# The tests get a cluster of their own, so that fsync=off never touches the shop's data.
+PG_DIR="${HEARTH_TEST_PG_DIR:-$DATA_DIR/pg-test}"
+PG_PORT="${HEARTH_TEST_PG_PORT:-$((PG_PORT + 1))}"
+HEARTH_PG_FAST=1 HEARTH_OWN_PG=1 ensure_postgres
 export HEARTH_DB_NAME="hearth_test${slot/#0/}"
 export DATABASE_URL="postgres://postgres@127.0.0.1:$PG_PORT/$HEARTH_DB_NAME"
 recreate_database "$HEARTH_DB_NAME"
