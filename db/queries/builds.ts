@@ -5,7 +5,9 @@ import { AppError } from "@/lib/errors";
 import { judgePrinter, judgePrinters, type PrinterSpec, type PrinterVerdict } from "@/lib/builds/estimate";
 import type { BuildAction, CreateBuild, ScheduleBuild, UpdateBuild } from "@/lib/builds/schemas";
 import { scheduleAdvance } from "@/lib/jobs/advance";
-import { getShopPlanning, listPrinterSpecs, unitSpecsForBuilds } from "./floor";
+import { planPrinters } from "@/lib/floor/plan";
+import { nextStaffedTime } from "@/lib/process/time-zone";
+import { getShopPlanning, listPrinterSpecs, listUnscheduledBuilds, printerBlockedFrom, unitSpecsForBuilds } from "./floor";
 
 type Trx = Transaction<DB>;
 const n = (v: unknown) => (v === null || v === undefined ? null : Number(v));
@@ -369,4 +371,136 @@ export async function verdictsForBuilds(db: Database, builds: { id: string; mate
     out.set(b.id, { unit_count: units.length, verdicts: judgePrinters(units, b.material_id, printers, shop.plate_clearance_mm) });
   }
   return { verdicts: out, printers, shop };
+}
+
+// Printer-plan proposals ------------------------------------------------------------------------
+
+export type PlanProposalItem = {
+  build_id: string;
+  build_version: number;
+  code: string;
+  material_code: string;
+  printer_id: string;
+  printer_name: string;
+  starts_at: string;
+  ends_at: string;
+  due_at: string | null;
+  lateness_min: number;
+};
+
+/** Runs the planner over the draft builds and keeps the proposal so it can be applied as shown. */
+export async function proposePrinterPlan(db: Database, opts: { build_ids?: string[]; from?: string }, actorId: string) {
+  const now = opts.from ? new Date(opts.from) : new Date();
+  // Plans start on the next whole five minutes: a slot that begins 14:03:27 reads badly on a traveler.
+  now.setUTCSeconds(0, 0);
+  now.setUTCMinutes(Math.ceil(now.getUTCMinutes() / 5) * 5);
+  const drafts = await listUnscheduledBuilds(db, opts.build_ids);
+  const { verdicts, printers, shop } = await verdictsForBuilds(db, drafts);
+  const blocked = await printerBlockedFrom(db, now);
+  const staffed = shop.staffed_hours.length
+    ? (t: number) => {
+        try {
+          return nextStaffedTime(new Date(t), shop.staffed_hours, shop.time_zone).getTime();
+        } catch {
+          return t;
+        }
+      }
+    : undefined;
+  const t0 = performance.now();
+  const result = planPrinters({
+    now: now.getTime(),
+    nextStart: staffed,
+    printers: printers.map((p) => ({ id: p.id, blocked: blocked.get(p.id) ?? [] })),
+    builds: drafts.map((b) => ({
+      id: b.id,
+      due: b.due_at ? new Date(b.due_at).getTime() : null,
+      minutes: Object.fromEntries((verdicts.get(b.id)?.verdicts ?? []).filter((v) => v.ok && v.est_minutes).map((v) => [v.printer_id, v.est_minutes!])),
+    })),
+  });
+  const planMs = performance.now() - t0;
+  const byId = new Map(drafts.map((b) => [b.id, b]));
+  const printerName = new Map(printers.map((p) => [p.id, p.name]));
+  const items: PlanProposalItem[] = result.items.map((i) => {
+    const b = byId.get(i.build_id)!;
+    return {
+      build_id: b.id, build_version: b.version, code: b.code, material_code: b.material_code,
+      printer_id: i.printer_id, printer_name: printerName.get(i.printer_id) ?? "?",
+      starts_at: new Date(i.start).toISOString(), ends_at: new Date(i.end).toISOString(),
+      due_at: b.due_at ? new Date(b.due_at).toISOString() : null, lateness_min: Math.round(i.lateness_min),
+    };
+  });
+  const unplaced = result.unplaced.map((u) => {
+    const b = byId.get(u.build_id)!;
+    const reasons = (verdicts.get(u.build_id)?.verdicts ?? []).filter((v) => !v.ok).map((v) => v.reason);
+    return { build_id: u.build_id, code: b.code, build_version: b.version, reason: u.reason, printer_reasons: reasons };
+  });
+  const metrics = { ...result.metrics, plan_ms: Math.round(planMs * 10) / 10 };
+  const row = await db
+    .insertInto("plan_proposals")
+    .values({ created_by: actorId, planned_from: now, items: JSON.stringify(items), unplaced: JSON.stringify(unplaced), metrics: JSON.stringify(metrics) })
+    .returning(["id", "created_at", "status", "planned_from"])
+    .executeTakeFirstOrThrow();
+  return { proposal: { ...row, items, unplaced, metrics } };
+}
+
+export async function getPlanProposal(db: Database, id: string) {
+  const row = await db.selectFrom("plan_proposals").selectAll().where("id", "=", id).executeTakeFirst();
+  if (!row) throw new AppError("not_found", "That plan proposal does not exist.");
+  return row;
+}
+
+/**
+ * Applies every booking of a proposal in the caller's transaction, or none: a build that
+ * changed since the proposal, a booking made meanwhile or a new maintenance window makes the
+ * whole proposal stale (409), and the person proposes again.
+ */
+export async function applyPlanProposal(trx: Trx, id: string, actorId: string) {
+  const proposal = await trx.selectFrom("plan_proposals").selectAll().where("id", "=", id).forUpdate().executeTakeFirst();
+  if (!proposal) throw new AppError("not_found", "That plan proposal does not exist.");
+  if (proposal.status !== "open") throw new AppError("conflict", `This proposal was already ${proposal.status}.`);
+  const items = proposal.items as unknown as PlanProposalItem[];
+  if (!items.length) throw new AppError("invalid", "The proposal books nothing.");
+  const locked = await trx
+    .selectFrom("builds")
+    .select(["id", "code", "version", "state"])
+    .where("id", "in", items.map((i) => i.build_id))
+    .orderBy("id")
+    .forUpdate()
+    .execute();
+  for (const item of items) {
+    const b = locked.find((l) => l.id === item.build_id);
+    if (!b || b.version !== item.build_version || b.state !== "draft") {
+      throw new AppError("conflict", `The proposal is stale: ${item.code} changed after it was proposed. Propose again.`, undefined, { reason: "stale", build: item.code });
+    }
+  }
+  const [printers, shop] = await Promise.all([listPrinterSpecs(trx), getShopPlanning(trx)]);
+  for (const item of [...items].sort((a, b) => a.printer_id.localeCompare(b.printer_id) || a.starts_at.localeCompare(b.starts_at))) {
+    try {
+      const { build } = await scheduleBuild(trx, item.build_id, { version: item.build_version, printer_id: item.printer_id, starts_at: item.starts_at }, actorId, { printers, clearanceMm: shop.plate_clearance_mm });
+      if (build.ends_at && new Date(build.ends_at).toISOString() !== item.ends_at) {
+        throw new AppError("conflict", `The proposal is stale: ${item.code}'s print time changed after it was proposed. Propose again.`);
+      }
+    } catch (err) {
+      if (err instanceof AppError && err.status === 409 && !err.message.startsWith("The proposal is stale")) {
+        throw new AppError("conflict", `The proposal is stale: ${err.message} Propose again.`, undefined, err.details);
+      }
+      throw err;
+    }
+  }
+  return trx
+    .updateTable("plan_proposals")
+    .set({ status: "applied", decided_by: actorId, decided_at: new Date() })
+    .where("id", "=", id)
+    .returningAll()
+    .executeTakeFirstOrThrow();
+}
+
+export async function refusePlanProposal(db: Database, id: string, actorId: string | null, refusal: string) {
+  return db
+    .updateTable("plan_proposals")
+    .set({ status: "refused", decided_by: actorId, decided_at: new Date(), refusal })
+    .where("id", "=", id)
+    .where("status", "=", "open")
+    .returningAll()
+    .executeTakeFirst();
 }

@@ -79,7 +79,7 @@ export async function loadPrinterLanes(db: Database, w: FloorWindow): Promise<La
       .selectFrom("builds as b")
       .innerJoin("materials as m", "m.id", "b.material_id")
       .select([
-        "b.id", "b.code", "b.printer_id", "b.starts_at", "b.ends_at", "b.state", "b.version", "b.failed", "m.code as material_code",
+        "b.id", "b.code", "b.printer_id", "b.starts_at", "b.ends_at", "b.state", "b.version", "b.failed", "b.material_id", "m.code as material_code",
         sql<number>`(select count(*) from units u where u.build_id = b.id)`.as("unit_count"),
       ])
       .where("b.printer_id", "is not", null)
@@ -112,6 +112,7 @@ export async function loadPrinterLanes(db: Database, w: FloorWindow): Promise<La
       // a build on the plate or finished stays where it printed
       editable: b.state === "scheduled",
       material_code: b.material_code,
+      material_id: b.material_id,
       failed: b.failed,
       unit_count: Number(b.unit_count),
     })),

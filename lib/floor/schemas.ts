@@ -49,6 +49,7 @@ export type FloorEvent = {
   version: number;
   editable: boolean;
   material_code?: string;
+  material_id?: string;
   failed?: boolean;
   unit_count?: number;
 };

@@ -1,13 +1,22 @@
+import { FloorBoard } from "@/components/floor/floor-board";
+import { QueryProvider } from "@/components/floor/query-provider";
 import { PageHeader } from "@/components/ui/page-header";
-import { NotLanded } from "@/components/ui/not-landed";
+import { can } from "@/lib/auth/permissions";
+import { requirePageUser } from "@/lib/auth/session";
 
 export const metadata = { title: "Floor" };
 
-export default function Page() {
+export default async function FloorPage() {
+  const user = await requirePageUser("shop:read");
   return (
     <>
-      <PageHeader title="Floor" lead="Printers, wash stations and furnaces as lanes; drag builds to schedule them." />
-      <NotLanded what="The scheduling timeline" />
+      <PageHeader
+        title="Floor"
+        lead="Printers, wash stations and furnaces on one timeline. Drag an unscheduled build onto a printer, or move a booked one; wash and furnace lanes are shown for reference. Times are in your browser's time zone."
+      />
+      <QueryProvider>
+        <FloorBoard canSchedule={can(user.role, "builds:schedule")} canPropose={can(user.role, "plan:propose")} canApply={can(user.role, "plan:apply")} />
+      </QueryProvider>
     </>
   );
 }

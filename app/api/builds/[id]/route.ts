@@ -1,0 +1,30 @@
+import { NextResponse } from "next/server";
+import { getDb } from "@/db/client";
+import { getBuildDetail, updateBuild } from "@/db/queries/builds";
+import { requireUser } from "@/lib/auth/session";
+import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { updateBuildSchema } from "@/lib/builds/schemas";
+import { readId, type IdContext } from "../_helpers";
+
+// GET /api/builds/[id] – the build, its units, plate layout, each printer's verdict and history (every role)
+export async function GET(_req: Request, ctx: IdContext) {
+  try {
+    await requireUser("shop:read");
+    return NextResponse.json(await getBuildDetail(getDb(), await readId(ctx, "Build")));
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}
+
+// PATCH /api/builds/[id] – material lot, notes, or (for a draft) its units, with the version (technician, admin)
+export async function PATCH(req: Request, ctx: IdContext) {
+  try {
+    const user = await requireUser("builds:write");
+    const id = await readId(ctx, "Build");
+    const input = updateBuildSchema.parse(await readJson(req));
+    const build = await getDb().transaction().execute((trx) => updateBuild(trx, id, input, user.id));
+    return NextResponse.json({ build });
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}

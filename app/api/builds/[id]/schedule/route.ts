@@ -1,0 +1,25 @@
+import { NextResponse } from "next/server";
+import { getDb } from "@/db/client";
+import { scheduleBuild } from "@/db/queries/builds";
+import { requireUser } from "@/lib/auth/session";
+import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { scheduleBuildSchema } from "@/lib/builds/schemas";
+import { readId, type IdContext } from "../../_helpers";
+
+// PATCH /api/builds/[id]/schedule – move a build onto a printer at a start time, or off the floor (printer_id null), with its version; 409 on a stale version or an overlap, 422 on an incompatible printer (technician, admin)
+export async function PATCH(req: Request, ctx: IdContext) {
+  try {
+    const user = await requireUser("builds:schedule");
+    const id = await readId(ctx, "Build");
+    const input = scheduleBuildSchema.parse(await readJson(req));
+    const { build } = await getDb().transaction().execute((trx) => scheduleBuild(trx, id, input, user.id));
+    return NextResponse.json({
+      build: {
+        id: build.id, code: build.code, state: build.state, version: build.version, printer_id: build.printer_id,
+        starts_at: build.starts_at, ends_at: build.ends_at, est_minutes: build.est_minutes === null ? null : Number(build.est_minutes),
+      },
+    });
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}

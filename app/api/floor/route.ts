@@ -1,0 +1,18 @@
+import { NextResponse } from "next/server";
+import { getDb } from "@/db/client";
+import { loadFloor } from "@/db/queries/floor";
+import { requireUser } from "@/lib/auth/session";
+import { toErrorResponse } from "@/lib/http/errors";
+import { floorWindowSchema } from "@/lib/floor/schemas";
+import { searchParams } from "@/app/api/builds/_helpers";
+
+// GET /api/floor?from&to – lanes (printers, wash stations, furnaces), bookings and maintenance in the visible window (every role)
+export async function GET(req: Request) {
+  try {
+    await requireUser("shop:read");
+    const w = floorWindowSchema.parse(searchParams(req));
+    return NextResponse.json(await loadFloor(getDb(), w), { headers: { "cache-control": "no-store" } });
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}

@@ -1,0 +1,31 @@
+import { NextResponse } from "next/server";
+import { getDb } from "@/db/client";
+import { getOrderOrThrow, updateOrder } from "@/db/queries/orders";
+import { can } from "@/lib/auth/permissions";
+import { requireUser } from "@/lib/auth/session";
+import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { updateOrderSchema } from "@/lib/parts/schemas";
+import { readId, type IdContext } from "@/app/api/builds/_helpers";
+
+// GET /api/orders/[id] – one order (every role)
+export async function GET(_req: Request, ctx: IdContext) {
+  try {
+    await requireUser("shop:read");
+    return NextResponse.json({ order: await getOrderOrThrow(getDb(), await readId(ctx, "Order")) });
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}
+
+// PATCH /api/orders/[id] – edit an order with its version; priority only by a manager or admin (technician, manager, admin)
+export async function PATCH(req: Request, ctx: IdContext) {
+  try {
+    const user = await requireUser("orders:write");
+    const id = await readId(ctx, "Order");
+    const input = updateOrderSchema.parse(await readJson(req));
+    const order = await updateOrder(getDb(), id, input, { canPrioritize: can(user.role, "orders:prioritize") });
+    return NextResponse.json({ order });
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}

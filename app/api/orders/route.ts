@@ -1,0 +1,29 @@
+import { NextResponse } from "next/server";
+import { getDb } from "@/db/client";
+import { insertOrder, listOrders } from "@/db/queries/orders";
+import { requireUser } from "@/lib/auth/session";
+import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { createOrderSchema, listOrdersSchema } from "@/lib/parts/schemas";
+import { searchParams } from "@/app/api/builds/_helpers";
+
+// GET /api/orders – orders with part and unit counts and projected completion; sort, search, pages (every role)
+export async function GET(req: Request) {
+  try {
+    await requireUser("shop:read");
+    const q = listOrdersSchema.parse(searchParams(req));
+    return NextResponse.json(await listOrders(getDb(), q));
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}
+
+// POST /api/orders – create an order (technician, manager, admin)
+export async function POST(req: Request) {
+  try {
+    await requireUser("orders:write");
+    const input = createOrderSchema.parse(await readJson(req));
+    return NextResponse.json({ order: await insertOrder(getDb(), input) }, { status: 201 });
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}

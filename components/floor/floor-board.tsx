@@ -1,0 +1,441 @@
+"use client";
+
+import FullCalendar from "@fullcalendar/react";
+import interactionPlugin, { Draggable, type EventReceiveArg } from "@fullcalendar/interaction";
+import resourceTimelinePlugin from "@fullcalendar/resource-timeline";
+import type { DateSpanApi, DatesSetArg, EventApi, EventContentArg, EventDropArg, EventInput } from "@fullcalendar/core";
+import { keepPreviousData, useQuery, useQueryClient } from "@tanstack/react-query";
+import Link from "next/link";
+import { useCallback, useEffect, useMemo, useRef, useState } from "react";
+import type { FloorData, FloorEvent, FloorResource, UnscheduledBuild } from "@/lib/floor/schemas";
+import { ApiError, apiJson } from "./api";
+import { PlanPanel, type Proposal } from "./plan-panel";
+import { ScheduleForm } from "./schedule-form";
+import { formatSlot, minutesLabel } from "./format";
+
+export type FloorBoardProps = { canSchedule: boolean; canPropose: boolean; canApply: boolean };
+
+type Message = { tone: "success" | "danger" | "info"; text: string } | null;
+type Slot = { printer_id: string | null; starts_at: string | null };
+export type LastMove = { build_id: string; code: string; version: number; before: Slot; after: Slot };
+type ScheduleResponse = { build: { id: string; code: string; state: string; version: number; printer_id: string | null; starts_at: string | null; ends_at: string | null } };
+type BuildVerdicts = { verdicts: { printer_id: string; printer_name: string; ok: boolean; reason: string | null }[]; build: { material_id: string } };
+
+const COLORS: Record<string, { bg: string; border: string; text: string }> = {
+  scheduled: { bg: "#f5e3d6", border: "#c46535", text: "#5a2c21" },
+  running: { bg: "#ff8a3d", border: "#d0520a", text: "#1b1916" },
+  complete: { bg: "#e9e6e1", border: "#8d8273", text: "#403a33" },
+  failed: { bg: "#f8dcd8", border: "#c0392b", text: "#8e2a20" },
+  wash_batch: { bg: "#e2e8ef", border: "#4a6076", text: "#2b2723" },
+  furnace_run: { bg: "#f6ecd0", border: "#9c7a1f", text: "#2b2723" },
+  proposed: { bg: "#dcefe9", border: "#2f8a72", text: "#1e5c4c" },
+};
+
+const STATE_WORDS: Record<FloorEvent["kind"], Record<string, string>> = {
+  build: { scheduled: "booked", running: "printing", complete: "done" },
+  wash_batch: { scheduled: "booked", running: "washing", complete: "done" },
+  furnace_run: { scheduled: "booked", running: "firing", complete: "done" },
+};
+
+function toEvent(e: FloorEvent): EventInput {
+  const c = e.failed ? COLORS.failed : e.kind === "build" ? (COLORS[e.state] ?? COLORS.scheduled) : COLORS[e.kind];
+  return {
+    id: e.id,
+    resourceId: e.resource_id,
+    title: e.title,
+    start: e.start,
+    end: e.end,
+    editable: e.editable,
+    durationEditable: false,
+    backgroundColor: c.bg,
+    borderColor: c.border,
+    textColor: c.text,
+    classNames: [`hearth-${e.kind}`, `hearth-state-${e.state}`],
+    extendedProps: { ...e, build_id: e.kind === "build" ? e.id : undefined },
+  };
+}
+
+export function FloorBoard({ canSchedule, canPropose, canApply }: FloorBoardProps) {
+  const qc = useQueryClient();
+  const [range, setRange] = useState<{ from: string; to: string } | null>(null);
+  const [message, setMessage] = useState<Message>(null);
+  const [lastMove, setLastMove] = useState<LastMove | null>(null);
+  const [proposal, setProposal] = useState<Proposal | null>(null);
+  const [busy, setBusy] = useState(false);
+  const dragging = useRef(false);
+  const hintRef = useRef<HTMLDivElement>(null);
+  const listRef = useRef<HTMLUListElement>(null);
+  const calendarRef = useRef<FullCalendar>(null);
+
+  const floorKey = useMemo(() => ["floor", range?.from, range?.to] as const, [range]);
+  const floor = useQuery({
+    queryKey: floorKey,
+    queryFn: ({ signal }) => apiJson<FloorData>(`/api/floor?from=${encodeURIComponent(range!.from)}&to=${encodeURIComponent(range!.to)}`, { signal }),
+    enabled: range !== null,
+    placeholderData: keepPreviousData,
+    // Someone else's change shows up within seconds; never while a drag is in the air.
+    refetchInterval: () => (dragging.current ? false : 10_000),
+  });
+  const unscheduled = useQuery({
+    queryKey: ["unscheduled"],
+    queryFn: ({ signal }) => apiJson<{ builds: UnscheduledBuild[] }>("/api/floor/unscheduled", { signal }),
+    refetchInterval: () => (dragging.current ? false : 15_000),
+  });
+  const drafts = useMemo(() => unscheduled.data?.builds ?? [], [unscheduled.data]);
+  const draftsRef = useRef(drafts);
+  useEffect(() => {
+    draftsRef.current = drafts;
+  }, [drafts]);
+
+  const resources = useMemo(() => floor.data?.resources ?? [], [floor.data]);
+  const resourceById = useMemo(() => new Map(resources.map((r) => [r.id, r])), [resources]);
+  const printerName = useCallback((id: string | null) => (id ? (resourceById.get(id)?.title ?? "a printer") : "nothing"), [resourceById]);
+
+  const events = useMemo<EventInput[]>(() => {
+    const list: EventInput[] = (floor.data?.events ?? []).map(toEvent);
+    for (const b of floor.data?.blocks ?? []) {
+      list.push({ id: `mw-${b.id}`, resourceId: b.resource_id, start: b.start, end: b.end, display: "background", backgroundColor: "#8d8273", classNames: ["hearth-maintenance"], title: `Maintenance: ${b.reason || "no reason given"}` });
+    }
+    if (proposal) {
+      for (const item of proposal.items) {
+        list.push({ id: `plan-${item.build_id}`, resourceId: item.printer_id, start: item.starts_at, end: item.ends_at, editable: false, title: `${item.code} (proposed)`, backgroundColor: COLORS.proposed.bg, borderColor: COLORS.proposed.border, textColor: COLORS.proposed.text, classNames: ["hearth-proposed"] });
+      }
+    }
+    return list;
+  }, [floor.data, proposal]);
+
+  const hint = useCallback((text: string | null) => {
+    const el = hintRef.current;
+    if (!el) return;
+    el.textContent = text ?? "";
+    el.dataset.active = text ? "true" : "false";
+  }, []);
+
+  /** Books, moves or unbooks one build; the floor and the list refetch afterwards either way. */
+  const move = useCallback(
+    async (b: { build_id: string; code: string; version: number }, to: Slot, before: Slot | null, opts: { undo?: boolean } = {}): Promise<boolean> => {
+      setBusy(true);
+      try {
+        const res = await apiJson<ScheduleResponse>(`/api/builds/${b.build_id}/schedule`, {
+          method: "PATCH",
+          body: to.printer_id ? { version: b.version, printer_id: to.printer_id, starts_at: to.starts_at } : { version: b.version, printer_id: null },
+        });
+        const nb = res.build;
+        qc.setQueryData<FloorData>(floorKey, (old) => {
+          if (!old) return old;
+          const rest = old.events.filter((e) => e.id !== nb.id);
+          if (!nb.printer_id || !nb.starts_at || !nb.ends_at) return { ...old, events: rest };
+          const prev = old.events.find((e) => e.id === nb.id);
+          const draft = draftsRef.current.find((d) => d.id === nb.id);
+          return {
+            ...old,
+            events: [
+              ...rest,
+              {
+                id: nb.id, kind: "build", resource_id: nb.printer_id, title: prev?.title ?? `${nb.code} · ${draft?.material_code ?? ""}`,
+                start: new Date(nb.starts_at).toISOString(), end: new Date(nb.ends_at).toISOString(), state: nb.state, version: nb.version, editable: true,
+                material_code: prev?.material_code ?? draft?.material_code, material_id: prev?.material_id ?? draft?.material_id, unit_count: prev?.unit_count ?? draft?.unit_count,
+              },
+            ],
+          };
+        });
+        if (!opts.undo && before) setLastMove({ build_id: nb.id, code: nb.code, version: nb.version, before, after: to });
+        else setLastMove(null);
+        setMessage({
+          tone: "success",
+          text: nb.printer_id
+            ? `${opts.undo ? "Undone: " : ""}${nb.code} is booked on ${printerName(nb.printer_id)}, ${formatSlot(nb.starts_at!, nb.ends_at!)}.`
+            : `${opts.undo ? "Undone: " : ""}${nb.code} is off the floor and waits in the unscheduled list.`,
+        });
+        return true;
+      } catch (err) {
+        const e = err instanceof ApiError ? err : new ApiError(0, String(err));
+        const why = e.status === 409 ? "Refused (conflict)" : e.status === 422 ? "Refused" : "Not saved";
+        setMessage({ tone: "danger", text: `${why}: ${e.message}` });
+        return false;
+      } finally {
+        setBusy(false);
+        await Promise.all([qc.invalidateQueries({ queryKey: ["floor"] }), qc.invalidateQueries({ queryKey: ["unscheduled"] })]);
+      }
+    },
+    [qc, floorKey, printerName],
+  );
+
+  // The unscheduled list becomes a source of drags onto the timeline.
+  useEffect(() => {
+    if (!canSchedule || !listRef.current) return;
+    const d = new Draggable(listRef.current, {
+      itemSelector: "[data-build-id]",
+      eventData: (el) => {
+        const b = draftsRef.current.find((x) => x.id === (el as HTMLElement).dataset.buildId);
+        const ok = (b?.printers ?? []).filter((p) => p.ok && p.est_minutes);
+        const minutes = ok.length ? Math.min(...ok.map((p) => p.est_minutes!)) : 60;
+        return {
+          title: b ? `${b.code} · ${b.material_code}` : "build",
+          duration: { minutes },
+          create: true,
+          extendedProps: { build_id: b?.id, code: b?.code, version: b?.version, material_id: b?.material_id, printers: b?.printers, external: true },
+        };
+      },
+    });
+    return () => d.destroy();
+  }, [canSchedule]);
+
+  const eventAllow = useCallback(
+    (span: DateSpanApi, moving: EventApi | null) => {
+      const resource = (span as DateSpanApi & { resource?: { id: string; title: string; extendedProps: Record<string, unknown> } }).resource;
+      if (!moving || !resource) return false;
+      const r = resource.extendedProps as unknown as FloorResource;
+      const code = (moving.extendedProps.code as string | undefined) ?? moving.title.split(" ")[0];
+      if (r.kind !== "printer") {
+        hint(`${resource.title} is a ${r.kind === "furnace" ? "furnace" : "wash station"} lane: builds go on printers.`);
+        return false;
+      }
+      const buildId = moving.extendedProps.build_id as string | undefined;
+      const verdicts =
+        (moving.extendedProps.printers as UnscheduledBuild["printers"] | undefined) ??
+        qc.getQueryData<BuildVerdicts>(["build", buildId])?.verdicts;
+      const v = verdicts?.find((x) => x.printer_id === resource.id);
+      if (v && !v.ok) {
+        hint(`${resource.title} cannot take ${code}: ${v.reason}.`);
+        return false;
+      }
+      const materialId = moving.extendedProps.material_id as string | undefined;
+      if (!v && materialId && r.material_ids && !r.material_ids.includes(materialId)) {
+        hint(`${resource.title} cannot take ${code}: it is not set up for this material.`);
+        return false;
+      }
+      hint(`Drop ${code} on ${resource.title}…`);
+      return true;
+    },
+    [hint, qc],
+  );
+
+  const onEventDrop = useCallback(
+    async (info: EventDropArg) => {
+      dragging.current = false;
+      hint(null);
+      const e = info.event;
+      const props = e.extendedProps as FloorEvent;
+      const oldResource = info.oldEvent.getResources()[0]?.id ?? props.resource_id;
+      const newResource = info.newResource?.id ?? oldResource;
+      const ok = await move(
+        { build_id: e.id, code: props.title.split(" ")[0], version: props.version },
+        { printer_id: newResource, starts_at: e.start!.toISOString() },
+        { printer_id: oldResource, starts_at: info.oldEvent.start!.toISOString() },
+      );
+      if (!ok) info.revert();
+    },
+    [hint, move],
+  );
+
+  const onEventReceive = useCallback(
+    async (info: EventReceiveArg) => {
+      dragging.current = false;
+      hint(null);
+      const e = info.event;
+      const p = e.extendedProps as { build_id: string; code: string; version: number };
+      const resource = e.getResources()[0];
+      const ok = await move({ build_id: p.build_id, code: p.code, version: p.version }, { printer_id: resource?.id ?? null, starts_at: e.start!.toISOString() }, { printer_id: null, starts_at: null });
+      // The real booking arrives with the refetch; the dragged copy only stood in for it.
+      if (ok) e.remove();
+      else info.revert();
+    },
+    [hint, move],
+  );
+
+  const undo = useCallback(async () => {
+    if (!lastMove) return;
+    await move({ build_id: lastMove.build_id, code: lastMove.code, version: lastMove.version }, lastMove.before, null, { undo: true });
+  }, [lastMove, move]);
+
+  const renderEvent = useCallback((arg: EventContentArg) => {
+    const p = arg.event.extendedProps as Partial<FloorEvent>;
+    if (arg.event.display === "background") {
+      return <div className="truncate px-1 pt-0.5 text-2xs italic text-soot-800" data-testid="maintenance-block">{arg.event.title}</div>;
+    }
+    const state = p.failed ? "failed" : p.state && p.kind ? (STATE_WORDS[p.kind][p.state] ?? p.state) : arg.event.classNames.includes("hearth-proposed") ? "proposed" : "";
+    return (
+      <div className="flex min-w-0 items-baseline gap-1 overflow-hidden px-1 text-2xs leading-4" data-testid="floor-event" data-event-id={arg.event.id}>
+        <span className="truncate font-semibold">{arg.event.title}</span>
+        {state ? <span className="shrink-0 uppercase tracking-wide opacity-75">{state}</span> : null}
+        {p.unit_count ? <span className="shrink-0 opacity-75">{p.unit_count} u</span> : null}
+      </div>
+    );
+  }, []);
+
+  const onDatesSet = useCallback((arg: DatesSetArg) => {
+    setRange((r) => {
+      const next = { from: arg.start.toISOString(), to: arg.end.toISOString() };
+      return r && r.from === next.from && r.to === next.to ? r : next;
+    });
+  }, []);
+
+  const scheduledInWindow = useMemo(() => (floor.data?.events ?? []).filter((e) => e.kind === "build" && e.editable), [floor.data]);
+  const printers = useMemo(() => resources.filter((r) => r.kind === "printer"), [resources]);
+  const ready = floor.isSuccess && !floor.isPlaceholderData;
+
+  return (
+    <div className="flex flex-col gap-4 px-6 py-5 xl:flex-row" data-testid="floor-board" data-ready={ready ? "true" : "false"} data-event-count={floor.data?.events.length ?? 0}>
+      <section className="min-w-0 flex-1 rounded-card border border-soot-200 bg-white p-3 shadow-card" aria-label="Floor timeline">
+        <div
+          className="hearth-floor"
+          style={{
+            "--fc-border-color": "#e9e6e1", "--fc-today-bg-color": "rgba(242,106,18,0.06)", "--fc-now-indicator-color": "#d0520a", "--fc-neutral-bg-color": "#f6f5f3",
+            "--fc-button-bg-color": "#403a33", "--fc-button-border-color": "#403a33", "--fc-button-hover-bg-color": "#2b2723", "--fc-button-hover-border-color": "#2b2723",
+            "--fc-button-active-bg-color": "#a84f2a", "--fc-button-active-border-color": "#a84f2a", "--fc-bg-event-opacity": "0.35",
+          } as React.CSSProperties}
+        >
+          <FullCalendar
+            ref={calendarRef}
+            plugins={[resourceTimelinePlugin, interactionPlugin]}
+            schedulerLicenseKey="GPL-My-Project-Is-Open-Source"
+            initialView="resourceTimelineWeek"
+            timeZone="local"
+            height="auto"
+            nowIndicator
+            scrollTime="00:00:00"
+            headerToolbar={{ left: "prev,today,next", center: "title", right: "resourceTimelineDay,resourceTimelineWeek" }}
+            buttonText={{ today: "Now", resourceTimelineDay: "Day", resourceTimelineWeek: "Week" }}
+            views={{
+              resourceTimelineDay: { slotDuration: { hours: 1 }, slotLabelFormat: { hour: "2-digit", minute: "2-digit", hour12: false } },
+              resourceTimelineWeek: { slotDuration: { hours: 6 }, slotLabelFormat: [{ weekday: "short", day: "numeric", month: "short" }, { hour: "2-digit", hour12: false }] },
+            }}
+            resourceAreaWidth="150px"
+            slotMinWidth={22}
+            resourceAreaHeaderContent="Lane"
+            resourceGroupField="group"
+            resourceOrder="kindOrder,title"
+            resources={resources.map((r) => ({ ...r, kindOrder: r.kind === "printer" ? 0 : r.kind === "wash_station" ? 1 : 2 }))}
+            resourceLabelContent={(arg) => {
+              const r = arg.resource.extendedProps as unknown as FloorResource;
+              return (
+                <div className="leading-tight">
+                  <div className="font-semibold text-soot-800">{arg.resource.title}</div>
+                  <div className="text-2xs text-soot-500">
+                    {r.kind === "printer" ? `${r.build_x_mm} × ${r.build_y_mm} × ${r.build_z_mm} mm` : "read-only here"}
+                  </div>
+                </div>
+              );
+            }}
+            events={events}
+            eventContent={renderEvent}
+            editable={canSchedule}
+            eventDurationEditable={false}
+            eventResourceEditable={canSchedule}
+            droppable={canSchedule}
+            snapDuration={{ minutes: 15 }}
+            eventAllow={eventAllow}
+            eventDragStart={() => {
+              dragging.current = true;
+            }}
+            eventDragStop={() => {
+              dragging.current = false;
+              hint(null);
+            }}
+            eventMouseEnter={(arg) => {
+              const id = arg.event.extendedProps.build_id as string | undefined;
+              if (id && arg.event.startEditable) {
+                void qc.prefetchQuery({ queryKey: ["build", id], queryFn: () => apiJson<BuildVerdicts>(`/api/builds/${id}`), staleTime: 30_000 });
+              }
+            }}
+            eventDrop={onEventDrop}
+            eventReceive={onEventReceive}
+            eventClick={(arg) => {
+              const id = arg.event.extendedProps.build_id as string | undefined;
+              if (id) window.location.assign(`/builds/${id}`);
+            }}
+            datesSet={onDatesSet}
+          />
+        </div>
+        <div ref={hintRef} aria-live="polite" data-testid="drag-hint" className="mt-2 min-h-5 text-sm text-soot-600 data-[active=true]:font-medium data-[active=true]:text-clay-700" />
+        <Legend />
+        {floor.isError ? <p role="alert" className="mt-2 text-sm text-oxide-700">The floor could not be loaded: {(floor.error as Error).message}</p> : null}
+      </section>
+
+      <aside className="flex w-full shrink-0 flex-col gap-4 xl:w-80" aria-label="Scheduling">
+        {message ? (
+          <div role={message.tone === "danger" ? "alert" : "status"} data-testid="floor-message" data-tone={message.tone}
+            className={`rounded-card border px-3 py-2 text-sm ${message.tone === "danger" ? "border-oxide-500/40 bg-oxide-100 text-oxide-700" : message.tone === "success" ? "border-verdigris-400/40 bg-verdigris-100 text-verdigris-700" : "border-slate2-400/40 bg-slate2-100 text-slate2-600"}`}>
+            {message.text}
+          </div>
+        ) : null}
+        {canSchedule && lastMove ? (
+          <button type="button" onClick={undo} disabled={busy} className="rounded-md border border-soot-300 bg-white px-3 py-2 text-sm font-semibold text-soot-800 hover:bg-soot-100 disabled:opacity-60">
+            Undo last move ({lastMove.code})
+          </button>
+        ) : null}
+
+        <section className="rounded-card border border-soot-200 bg-white p-3 shadow-card" aria-labelledby="unscheduled-heading">
+          <h2 id="unscheduled-heading" className="font-display text-base font-semibold text-soot-900">Unscheduled builds</h2>
+          <p className="mb-2 text-xs text-soot-500">{canSchedule ? "Drag one onto a printer lane, or use the form below." : "Your role can look but not book."}</p>
+          {unscheduled.isLoading ? <p className="text-sm text-soot-500">Loading…</p> : null}
+          {!unscheduled.isLoading && drafts.length === 0 ? <p className="text-sm text-soot-500">Every build is on the floor.</p> : null}
+          <ul ref={listRef} className="flex max-h-96 flex-col gap-1.5 overflow-y-auto" data-testid="unscheduled-list">
+            {drafts.map((b) => {
+              const ok = b.printers.filter((p) => p.ok);
+              return (
+                <li key={b.id} data-build-id={b.id} data-testid={`unscheduled-${b.code}`}
+                  className={`rounded-md border border-clay-300 bg-clay-50 px-2.5 py-1.5 text-sm ${canSchedule && ok.length ? "cursor-grab" : "opacity-70"}`}
+                  title={ok.length ? "Drag onto a printer" : "No printer can take this build"}>
+                  <div className="flex items-baseline justify-between gap-2">
+                    <Link href={`/builds/${b.id}`} className="font-semibold text-clay-800 hover:underline">{b.code}</Link>
+                    <span className="text-xs text-soot-600">{b.material_code} · {b.unit_count} unit{b.unit_count === 1 ? "" : "s"}</span>
+                  </div>
+                  <div className="text-2xs text-soot-500">
+                    {b.due_at ? `due ${new Date(b.due_at).toLocaleDateString(undefined, { day: "numeric", month: "short" })}` : "no due date"} ·{" "}
+                    {ok.length ? `${ok.length} printer${ok.length === 1 ? "" : "s"}, ${minutesLabel(Math.min(...ok.map((p) => p.est_minutes ?? Infinity)))} or more` : "no printer can take it"}
+                  </div>
+                </li>
+              );
+            })}
+          </ul>
+        </section>
+
+        {canSchedule ? (
+          <ScheduleForm
+            drafts={drafts}
+            scheduled={scheduledInWindow}
+            printers={printers}
+            busy={busy}
+            onSubmit={(b, to, before) => move(b, to, before)}
+          />
+        ) : null}
+
+        {canPropose ? (
+          <PlanPanel
+            proposal={proposal}
+            setProposal={setProposal}
+            canApply={canApply}
+            onApplied={async (text) => {
+              setMessage({ tone: "success", text });
+              setLastMove(null);
+              await Promise.all([qc.invalidateQueries({ queryKey: ["floor"] }), qc.invalidateQueries({ queryKey: ["unscheduled"] })]);
+            }}
+            onError={(text) => setMessage({ tone: "danger", text })}
+          />
+        ) : null}
+      </aside>
+    </div>
+  );
+}
+
+function Legend() {
+  const items: Array<[string, string]> = [
+    ["booked", "scheduled"], ["printing", "running"], ["done", "complete"], ["failed", "failed"], ["wash batch", "wash_batch"], ["furnace run", "furnace_run"], ["proposed", "proposed"],
+  ];
+  return (
+    <ul className="mt-2 flex flex-wrap gap-3 text-2xs text-soot-600" aria-label="Legend">
+      {items.map(([label, key]) => (
+        <li key={key} className="flex items-center gap-1">
+          <span className="inline-block h-3 w-5 rounded-sm border" style={{ backgroundColor: COLORS[key].bg, borderColor: COLORS[key].border }} />
+          {label}
+        </li>
+      ))}
+      <li className="flex items-center gap-1">
+        <span className="inline-block h-3 w-5 rounded-sm bg-soot-400/40" />
+        maintenance (blocked)
+      </li>
+    </ul>
+  );
+}
