@@ -1,0 +1,54 @@
+import { createHash, randomUUID } from "node:crypto";
+import { NextResponse } from "next/server";
+import { DeleteObjectCommand, PutObjectCommand } from "@aws-sdk/client-s3";
+import { getDb } from "@/db/client";
+import { findInspection, insertInspectionFile } from "@/db/queries/inspections";
+import { requireUser } from "@/lib/auth/session";
+import { getEnv } from "@/lib/env";
+import { AppError } from "@/lib/errors";
+import { checkAttachment, safeFilename } from "@/lib/finishing/attachments";
+import { ATTACHMENT_MAX_BYTES } from "@/lib/finishing/schemas";
+import { toErrorResponse } from "@/lib/http/errors";
+import { getS3 } from "@/lib/storage/s3";
+
+// POST /api/inspections/[id]/files – attach a photo (JPEG, PNG, WebP) or a PDF report, multipart field "file" (machinist, admin)
+export async function POST(req: Request, { params }: { params: Promise<{ id: string }> }) {
+  try {
+    const user = await requireUser("inspections:write");
+    const { id } = await params;
+    const db = getDb();
+    const inspection = await findInspection(db, id);
+    if (!inspection) throw new AppError("not_found", "Inspection not found.");
+    // Refuse an oversized body before reading it; the multipart envelope adds a little.
+    const declared = Number(req.headers.get("content-length") ?? 0);
+    if (declared > ATTACHMENT_MAX_BYTES + 64 * 1024) {
+      throw new AppError("payload_too_large", `Attachments are limited to ${ATTACHMENT_MAX_BYTES / 1024 / 1024} MB.`, { file: ["too large"] });
+    }
+    let form: FormData;
+    try {
+      form = await req.formData();
+    } catch {
+      throw new AppError("bad_request", "Send the file as multipart/form-data in a field named \"file\".");
+    }
+    const file = form.get("file");
+    if (!(file instanceof File)) throw new AppError("invalid", "Choose a file to attach.", { file: ["no file in the field \"file\""] });
+    const bytes = new Uint8Array(await file.arrayBuffer());
+    const contentType = checkAttachment(bytes, file.type, file.name || "the file");
+    const filename = safeFilename(file.name || "attachment");
+    const bucket = getEnv().S3_BUCKET;
+    const objectKey = `inspections/${id}/${randomUUID()}-${filename}`;
+    const sha256 = createHash("sha256").update(bytes).digest("hex");
+    const s3 = getS3();
+    await s3.send(new PutObjectCommand({ Bucket: bucket, Key: objectKey, Body: bytes, ContentType: contentType, ContentLength: bytes.byteLength }));
+    try {
+      const row = await insertInspectionFile(db, id, { bucket, object_key: objectKey, filename, content_type: contentType, size_bytes: bytes.byteLength, sha256 }, user.id);
+      return NextResponse.json(row, { status: 201 });
+    } catch (err) {
+      // The record did not land: take the object back out so nothing is left half-stored.
+      await s3.send(new DeleteObjectCommand({ Bucket: bucket, Key: objectKey })).catch(() => undefined);
+      throw err;
+    }
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}

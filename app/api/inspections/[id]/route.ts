@@ -1,0 +1,20 @@
+import { NextResponse } from "next/server";
+import { getDb } from "@/db/client";
+import { setCalibrationExclusion } from "@/db/queries/inspections";
+import { requireUser } from "@/lib/auth/session";
+import { AppError } from "@/lib/errors";
+import { excludeInspectionSchema } from "@/lib/finishing/schemas";
+import { readJson, toErrorResponse } from "@/lib/http/errors";
+
+// PATCH /api/inspections/[id] – leave a measurement out of shrinkage calibration, or take it back in (admin)
+export async function PATCH(req: Request, { params }: { params: Promise<{ id: string }> }) {
+  try {
+    const user = await requireUser("calibration:apply");
+    const { id } = await params;
+    if (!/^[0-9a-f-]{36}$/i.test(id)) throw new AppError("not_found", "Inspection not found.");
+    const input = excludeInspectionSchema.parse(await readJson(req));
+    return NextResponse.json(await setCalibrationExclusion(getDb(), id, input.excluded_from_calibration, input.reason, user.id));
+  } catch (err) {
+    return toErrorResponse(err);
+  }
+}

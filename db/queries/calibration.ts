@@ -1,0 +1,164 @@
+import { sql, type Transaction } from "kysely";
+import type { Database } from "@/db/client";
+import type { DB } from "@/db/schema";
+import { AppError } from "@/lib/errors";
+import { getSender, inTrx } from "@/lib/jobs/boss";
+import { QUEUES } from "@/lib/jobs/queues";
+import { MIN_SAMPLES_TO_APPLY, sameSuggestion, summarizeCalibration, type CalibrationRow } from "@/lib/finishing/calibration";
+import type { ApplyCalibrationInput } from "@/lib/finishing/schemas";
+
+// Shrinkage calibration per material: the inspections that measured a unit green and sintered,
+// their statistics, the history of applied changes, and applying a suggestion.
+
+type Trx = Transaction<DB>;
+
+/** Stored to 1e-5 (0.001 % linear): far below what a caliper or CMM resolves on a part. */
+const roundShrinkage = (s: number) => Math.round(s * 1e5) / 1e5;
+
+async function calibrationRows(db: Database | Trx, materialId: string): Promise<CalibrationRow[]> {
+  const rows = await db
+    .selectFrom("inspections as i")
+    .innerJoin("units as u", "u.id", "i.unit_id")
+    .innerJoin("parts as p", "p.id", "u.part_id")
+    .select([
+      "i.id", "i.unit_id", "u.serial", "i.created_at", "i.green_source",
+      "i.green_x_mm", "i.green_y_mm", "i.green_z_mm", "i.sintered_x_mm", "i.sintered_y_mm", "i.sintered_z_mm",
+    ])
+    .where("p.material_id", "=", materialId)
+    .where("i.excluded_from_calibration", "=", false)
+    .where((eb) =>
+      eb.or([
+        eb.and([eb("i.green_x_mm", "is not", null), eb("i.sintered_x_mm", "is not", null)]),
+        eb.and([eb("i.green_y_mm", "is not", null), eb("i.sintered_y_mm", "is not", null)]),
+        eb.and([eb("i.green_z_mm", "is not", null), eb("i.sintered_z_mm", "is not", null)]),
+      ]),
+    )
+    .orderBy("i.created_at")
+    .execute();
+  return rows.map((r) => ({ ...r, created_at: new Date(r.created_at) }));
+}
+
+export async function listCalibrationMaterials(db: Database) {
+  const rows = await db
+    .selectFrom("materials as m")
+    .select((eb) => [
+      "m.id", "m.code", "m.name", "m.shrink_xy", "m.shrink_z", "m.version", "m.active",
+      eb
+        .selectFrom("inspections as i")
+        .innerJoin("units as u", "u.id", "i.unit_id")
+        .innerJoin("parts as p", "p.id", "u.part_id")
+        .select((e) => e.fn.countAll<number>().as("n"))
+        .whereRef("p.material_id", "=", "m.id")
+        .where("i.excluded_from_calibration", "=", false)
+        .where((e) => e.or([e("i.sintered_x_mm", "is not", null), e("i.sintered_y_mm", "is not", null), e("i.sintered_z_mm", "is not", null)]))
+        .as("inspections"),
+    ])
+    .orderBy("m.code")
+    .execute();
+  return rows.map((r) => ({ ...r, shrink_xy: Number(r.shrink_xy), shrink_z: Number(r.shrink_z), inspections: Number(r.inspections ?? 0) }));
+}
+
+export async function loadMaterialCalibration(db: Database, materialId: string) {
+  if (!/^[0-9a-f-]{36}$/i.test(materialId)) throw new AppError("not_found", "Material not found.");
+  const material = await db
+    .selectFrom("materials")
+    .select(["id", "code", "name", "shrink_xy", "shrink_z", "version", "updated_at"])
+    .where("id", "=", materialId)
+    .executeTakeFirst();
+  if (!material) throw new AppError("not_found", "Material not found.");
+  const current = { shrink_xy: Number(material.shrink_xy), shrink_z: Number(material.shrink_z) };
+  const [rows, history, excluded] = await Promise.all([
+    calibrationRows(db, materialId),
+    db
+      .selectFrom("events as e")
+      .leftJoin("users as us", "us.id", "e.actor_id")
+      .select(["e.id", "e.kind", "e.created_at", "e.data", "e.reason", "us.name as actor_name"])
+      .where("e.entity", "=", "material")
+      .where("e.entity_id", "=", materialId)
+      .where("e.kind", "in", ["calibration_applied", "shrinkage_change"])
+      .orderBy("e.created_at", "desc")
+      .limit(50)
+      .execute(),
+    db
+      .selectFrom("inspections as i")
+      .innerJoin("units as u", "u.id", "i.unit_id")
+      .innerJoin("parts as p", "p.id", "u.part_id")
+      .select(["i.id", "u.serial", "i.unit_id", "i.created_at", "i.exclusion_reason"])
+      .where("p.material_id", "=", materialId)
+      .where("i.excluded_from_calibration", "=", true)
+      .orderBy("i.created_at", "desc")
+      .execute(),
+  ]);
+  const summary = summarizeCalibration(rows, current);
+  return {
+    material: { ...material, ...current, updated_at: new Date(material.updated_at).toISOString() },
+    min_samples: MIN_SAMPLES_TO_APPLY,
+    ...summary,
+    history: history.map((h) => ({ ...h, created_at: new Date(h.created_at).toISOString() })),
+    excluded: excluded.map((x) => ({ ...x, created_at: new Date(x.created_at).toISOString() })),
+  };
+}
+
+export type MaterialCalibrationView = Awaited<ReturnType<typeof loadMaterialCalibration>>;
+
+/**
+ * Sets the material's shrinkage to the measured means, if nothing moved since the admin looked:
+ * the material's version and the suggestion itself must be the ones shown. New scale-ups use
+ * the new values; builds keep the scale_snapshot they were printed with.
+ */
+export async function applyCalibration(db: Database, materialId: string, input: ApplyCalibrationInput, actorId: string) {
+  if (!/^[0-9a-f-]{36}$/i.test(materialId)) throw new AppError("not_found", "Material not found.");
+  return db.transaction().execute(async (trx) => {
+    const material = await trx
+      .selectFrom("materials")
+      .select(["id", "code", "shrink_xy", "shrink_z", "version"])
+      .where("id", "=", materialId)
+      .forUpdate()
+      .executeTakeFirst();
+    if (!material) throw new AppError("not_found", "Material not found.");
+    if (material.version !== input.version) {
+      throw new AppError("conflict", `${material.code} was changed by someone else (now version ${material.version}); reload to see the current factors.`, undefined, { current_version: material.version });
+    }
+    const before = { shrink_xy: Number(material.shrink_xy), shrink_z: Number(material.shrink_z) };
+    const summary = summarizeCalibration(await calibrationRows(trx, materialId), before);
+    const after = { ...before };
+    for (const axis of new Set(input.axes)) {
+      const suggested = summary.applicable[axis];
+      if (suggested === undefined) {
+        const msg = `${axis.toUpperCase()}: at least ${MIN_SAMPLES_TO_APPLY} inspections are needed before a suggestion can be applied (${summary.inspections[axis]} so far).`;
+        throw new AppError("invalid", msg, { [axis]: [msg] });
+      }
+      if (!sameSuggestion(input.expected[axis], suggested)) {
+        throw new AppError("conflict", "New inspections changed the suggestion since you looked; reload to see it.", undefined, { suggested: summary.applicable });
+      }
+      after[axis === "xy" ? "shrink_xy" : "shrink_z"] = roundShrinkage(suggested);
+    }
+    const row = await trx
+      .updateTable("materials")
+      .set({ shrink_xy: after.shrink_xy, shrink_z: after.shrink_z, version: sql`version + 1`, updated_at: sql`now()` })
+      .where("id", "=", materialId)
+      .returning(["id", "code", "shrink_xy", "shrink_z", "version"])
+      .executeTakeFirstOrThrow();
+    const stats = Object.fromEntries(
+      (["xy", "z"] as const).map((axis) => {
+        const c = summary.calibration[axis];
+        return [axis, c ? { count: c.count, mean: c.meanShrinkage, std_dev: c.stdDev ?? null, interval: c.interval?.shrinkage ?? null, factor: c.suggestedFactor } : null];
+      }),
+    );
+    await trx
+      .insertInto("events")
+      .values({
+        entity: "material",
+        entity_id: materialId,
+        kind: "calibration_applied",
+        actor_id: actorId,
+        reason: `shrinkage set from ${summary.inspections.xy} (XY) and ${summary.inspections.z} (Z) inspections`,
+        data: JSON.stringify({ axes: input.axes, from: before, to: after, stats }),
+      })
+      .execute();
+    // Parts not yet printed get their green size from the new factors; builds keep their snapshot.
+    const boss = await getSender();
+    await boss.send(QUEUES.scaleUp, { material_id: materialId }, { db: inTrx(trx), retryLimit: 5, retryBackoff: true });
+    return { material: { ...row, shrink_xy: Number(row.shrink_xy), shrink_z: Number(row.shrink_z) }, from: before, to: after };
+  });
+}
