@@ -213,7 +213,7 @@ export function printerPlanInstance(
   }
   const horizon = (totalMin / nPrinters) * 60_000;
   for (const d of drafts) {
-    builds.push({ ...d, due: iso(BENCH_NOW + d.duration_min * 60_000 + between(rnd, 0.05, 1.1) * horizon) });
+    builds.push({ ...d, due: iso(BENCH_NOW + d.duration_min * 60_000 + between(rnd, 0.05, 0.95) * horizon) });
   }
   return { kind: "printer-plan", name, now: iso(BENCH_NOW), printers, builds };
 }
