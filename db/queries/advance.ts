@@ -32,10 +32,13 @@ import { findMailContext, listRecipients } from "./notifications";
 //    note): the parts were not made, and a person reorders them. Mail: build_finished|failed.
 //  - wash end: the batch → complete. After shop_settings.drying_minutes more, units
 //    washing (or green and unchanged since the batch dried) → brown when the mass-loss check
-//    passes, otherwise on_hold with the reason (held_from brown). Mail: wash_done.
+//    passes, otherwise on_hold with the reason (held_from green: it goes back for another
+//    wash). Mail: wash_done.
 //  - furnace run end (the cycle includes cool-down): units brown|sintering → sintered → ready
 //    for finishing, the run → complete. Units an operator unloaded as sintered by hand are
 //    moved on by the sweep. Mail: furnace_run_finished, ready_for_finishing.
+//  - a booking completed by hand whose job then arrives (same version) changes nothing more
+//    but still sends its mail.
 
 export type BookingEntity = AdvanceJob["entity"];
 export type AdvanceSource = { via: "job"; job: AdvanceJob; job_id?: string } | { via: "sweep"; worker_id?: string };
@@ -185,8 +188,15 @@ async function advanceBuild(trx: Trx, boss: PgBoss, id: string, source: AdvanceS
   if (source.via === "sweep") q = q.skipLocked();
   const build = await q.executeTakeFirst();
   if (!build) return { status: "skipped", entity: "build", id, reason: "missing" };
-  const skip = checkOpenBooking(build, source);
+  // A technician completed (or failed) the build by hand and sent its job: the units are
+  // already moved, the other technicians still hear of it.
+  const byHand = build.state === "complete" && source.via === "job" && build.version === source.job.version;
+  const skip = byHand ? null : checkOpenBooking(build, source);
   if (skip) return { status: "skipped", entity: "build", id, reason: skip };
+  if (byHand) {
+    const messages = await notifyBuild(trx, boss, build, id);
+    return { status: "advanced", entity: "build", id, code: build.code, transitions: 0, messages };
+  }
 
   const units = await trx
     .selectFrom("units")
@@ -216,7 +226,16 @@ async function advanceBuild(trx: Trx, boss: PgBoss, id: string, source: AdvanceS
     .where("id", "=", id)
     .execute();
   await bookingEvent(trx, "build", id, build.state, "complete", reason, { ...data, units: transitions, failed: build.failed });
+  const messages = await notifyBuild(trx, boss, build, id);
+  return { status: "advanced", entity: "build", id, code: build.code, transitions, messages };
+}
 
+async function notifyBuild(
+  trx: Trx,
+  boss: PgBoss,
+  build: { code: string; printer_id: string | null; material_id: string; material_lot: string; starts_at: Date | null; ends_at: Date | null; failed: boolean; failure_reason: string | null },
+  id: string,
+): Promise<number> {
   const [printer, material, lines, ctx] = await Promise.all([
     build.printer_id ? trx.selectFrom("printers").select("name").where("id", "=", build.printer_id).executeTakeFirst() : undefined,
     trx.selectFrom("materials").select("code").where("id", "=", build.material_id).executeTakeFirst(),
@@ -236,8 +255,7 @@ async function advanceBuild(trx: Trx, boss: PgBoss, id: string, source: AdvanceS
     units: lines,
   };
   const kind: NotificationKind = build.failed ? "build_failed" : "build_finished";
-  const messages = await notify(trx, boss, kind, subjectKey("build", id), (r, c) => buildMail(mailData, r, c), ctx);
-  return { status: "advanced", entity: "build", id, code: build.code, transitions, messages };
+  return notify(trx, boss, kind, subjectKey("build", id), (r, c) => buildMail(mailData, r, c), ctx);
 }
 
 // Wash batches ---------------------------------------------------------------------------------
@@ -325,27 +343,29 @@ async function advanceWashBatch(trx: Trx, boss: PgBoss, id: string, source: Adva
           id: u.id,
           from_state: u.state,
           to_state: "on_hold",
-          held_from: "brown",
+          held_from: "green",
           wash_passed: false,
           hold_reason: `Mass loss ${pct(check.lossFraction)} is below the ${pct(Number(u.min_mass_loss))} minimum for ${u.material_code} (${check.shortByG.toFixed(1)} g of binder still to come out); wash again or release`,
         };
       } catch (err) {
-        return { id: u.id, from_state: u.state, to_state: "on_hold", held_from: "brown", hold_reason: `Mass-loss check impossible: ${err instanceof Error ? err.message : String(err)}` };
+        return { id: u.id, from_state: u.state, to_state: "on_hold", held_from: "green", hold_reason: `Mass-loss check impossible: ${err instanceof Error ? err.message : String(err)}` };
       }
     }
     if (u.wash_passed === true) return { id: u.id, from_state: u.state, to_state: "brown", note: `Washed in ${batch.code} and dried; mass-loss check recorded as passed` };
-    if (u.wash_passed === false) return { id: u.id, from_state: u.state, to_state: "on_hold", held_from: "brown", hold_reason: "The mass-loss check was recorded as failed; wash again or release" };
+    if (u.wash_passed === false) return { id: u.id, from_state: u.state, to_state: "on_hold", held_from: "green", hold_reason: "The mass-loss check was recorded as failed; wash again or release" };
     return {
       id: u.id,
       from_state: u.state,
       to_state: "on_hold",
-      held_from: "brown",
+      held_from: "green",
       hold_reason: `No ${u.green_mass_g == null ? "green" : "brown"} mass recorded by the end of drying, so the mass-loss check could not pass; weigh the unit and release it`,
     };
   });
   const unitTransitions = await applyUnitChanges(trx, changes, `Wash batch ${batch.code} done and dried`, data);
   transitions += unitTransitions;
-  if (unitTransitions === 0) {
+  // A batch finished by hand (the units already brown or held) still tells the furnace operators.
+  const announced = unitTransitions > 0 || (source.via === "job" && batch.state === "complete");
+  if (!announced) {
     return transitions
       ? { status: "advanced", entity: "wash_batch", id, code: batch.code, transitions, messages: 0 }
       : { status: "skipped", entity: "wash_batch", id, reason: "not_open" };
@@ -356,9 +376,9 @@ async function advanceWashBatch(trx: Trx, boss: PgBoss, id: string, source: Adva
     listUnitLines(trx, "wash_batch_id", id),
     findMailContext(trx),
   ]);
-  const changedIds = new Set(changes.map((c) => c.id));
-  const serials = new Set((await trx.selectFrom("units").select("serial").where("id", "in", [...changedIds]).execute()).map((r) => r.serial));
-  const mailData = { id, code: batch.code, station: station?.name ?? null, ends_at: batch.ends_at, dried_at: batch.dried_at, units: lines.filter((l) => serials.has(l.serial)) };
+  const outcome = lines.filter((l) => l.state === "brown" || l.state === "on_hold");
+  if (!outcome.length) return { status: "advanced", entity: "wash_batch", id, code: batch.code, transitions, messages: 0 };
+  const mailData = { id, code: batch.code, station: station?.name ?? null, ends_at: batch.ends_at, dried_at: batch.dried_at, units: outcome };
   const messages = await notify(trx, boss, "wash_done", subjectKey("wash_batch", id), (r, c) => washDoneMail(mailData, r, c), ctx);
   return { status: "advanced", entity: "wash_batch", id, code: batch.code, transitions, messages };
 }

@@ -1,3 +1,4 @@
+import type PgBoss from "pg-boss";
 import type { Transaction } from "kysely";
 import type { DB } from "@/db/schema";
 import { getSender, inTrx } from "./boss";
@@ -9,7 +10,11 @@ import { QUEUES, type AdvanceJob } from "./queues";
  * booking moved or cancelled since then has another version, and the worker ignores the old job.
  */
 export async function scheduleAdvance(trx: Transaction<DB>, job: AdvanceJob): Promise<void> {
-  const boss = await getSender();
+  await sendAdvance(await getSender(), trx, job);
+}
+
+/** scheduleAdvance with a given pg-boss instance (the worker's own, or a test's). */
+export async function sendAdvance(boss: PgBoss, trx: Transaction<DB>, job: AdvanceJob): Promise<void> {
   await boss.send(QUEUES.advance, job, {
     startAfter: new Date(job.due_at),
     singletonKey: `${job.entity}:${job.id}:${job.version}`,
