@@ -102,9 +102,9 @@ export async function lockUserById(trx: Transaction<DB>, id: string) {
     .executeTakeFirst();
 }
 
-/** Active admins other than the given user, locked so two demotions cannot both pass. */
+/** Active admins other than the given user (the caller serialises admin changes). */
 export async function countOtherActiveAdmins(trx: Transaction<DB>, exceptId: string): Promise<number> {
-  const rows = await trx.selectFrom("users").select("id").where("role", "=", "admin").where("active", "=", true).where("id", "!=", exceptId).forUpdate().execute();
+  const rows = await trx.selectFrom("users").select("id").where("role", "=", "admin").where("active", "=", true).where("id", "!=", exceptId).execute();
   return rows.length;
 }
 

@@ -1,7 +1,7 @@
 // Account operations shared by the route handlers and the server actions: sign-in with
 // throttling, invitations and reset links, admin changes, a person's own settings. Framework-free
 // (no next/*): the callers own the cookie. Every operation writes its audit event.
-import type { Transaction } from "kysely";
+import { sql, type Transaction } from "kysely";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
 import {
@@ -253,6 +253,9 @@ export async function setPasswordWithToken(db: Database, token: string, password
 
 export async function updateUserByAdmin(db: Database, actor: Actor, id: string, input: UpdateUserInput) {
   await db.transaction().execute(async (trx) => {
+    // Admin changes are rare; one lock for all of them keeps two admins from demoting each other
+    // at the same moment (row locks taken in opposite orders would deadlock instead).
+    await sql`select pg_advisory_xact_lock(hashtext('hearth.users.admin-changes'))`.execute(trx);
     const user = await lockUserById(trx, id);
     if (!user) throw new AppError("not_found", "No such user.");
     if (user.version !== input.version) {
