@@ -6,6 +6,7 @@ import { getSender, inTrx } from "@/lib/jobs/boss";
 import { QUEUES } from "@/lib/jobs/queues";
 import { MIN_SAMPLES_TO_APPLY, sameSuggestion, summarizeCalibration, type CalibrationRow } from "@/lib/finishing/calibration";
 import type { ApplyCalibrationInput } from "@/lib/finishing/schemas";
+import type { CalibrationMaterialRow, MaterialCalibrationView } from "@/lib/finishing/types";
 
 // Shrinkage calibration per material: the inspections that measured a unit green and sintered,
 // their statistics, the history of applied changes, and applying a suggestion.
@@ -38,7 +39,7 @@ async function calibrationRows(db: Database | Trx, materialId: string): Promise<
   return rows.map((r) => ({ ...r, created_at: new Date(r.created_at) }));
 }
 
-export async function listCalibrationMaterials(db: Database) {
+export async function listCalibrationMaterials(db: Database): Promise<CalibrationMaterialRow[]> {
   const rows = await db
     .selectFrom("materials as m")
     .select((eb) => [
@@ -58,7 +59,7 @@ export async function listCalibrationMaterials(db: Database) {
   return rows.map((r) => ({ ...r, shrink_xy: Number(r.shrink_xy), shrink_z: Number(r.shrink_z), inspections: Number(r.inspections ?? 0) }));
 }
 
-export async function loadMaterialCalibration(db: Database, materialId: string) {
+export async function loadMaterialCalibration(db: Database, materialId: string): Promise<MaterialCalibrationView> {
   if (!/^[0-9a-f-]{36}$/i.test(materialId)) throw new AppError("not_found", "Material not found.");
   const material = await db
     .selectFrom("materials")
@@ -98,8 +99,6 @@ export async function loadMaterialCalibration(db: Database, materialId: string) 
     excluded: excluded.map((x) => ({ ...x, created_at: new Date(x.created_at).toISOString() })),
   };
 }
-
-export type MaterialCalibrationView = Awaited<ReturnType<typeof loadMaterialCalibration>>;
 
 /**
  * Sets the material's shrinkage to the measured means, if nothing moved since the admin looked:

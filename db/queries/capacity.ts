@@ -11,6 +11,7 @@ import {
   type CapacityResource,
 } from "@/lib/capacity/summary";
 import type { CapacityQuery, ResourceKind } from "@/lib/capacity/schemas";
+import type { CapacityView } from "@/lib/capacity/types";
 import { furnaceCycle } from "@/lib/process/furnace-profile";
 import { printMinutes } from "@/lib/process/print-time";
 import { washMinutes } from "@/lib/process/wash";
@@ -114,7 +115,7 @@ export async function listOpenOrdersForRisk(db: Database): Promise<OrderForRisk[
     .leftJoin("wash_batches as w", "w.id", "u.wash_batch_id")
     .leftJoin("furnace_runs as r", "r.id", "u.furnace_run_id")
     .select([
-      "u.serial", "u.state", "u.held_from", "u.state_changed_at",
+      "u.id as unit_id", "u.serial", "u.state", "u.held_from", "u.state_changed_at",
       "o.id as order_id", "o.code as order_code", "o.customer", "o.due_at", "o.priority",
       "p.material_id", "p.volume_mm3", "p.thickest_wall_mm", "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm",
       "p.green_x_mm", "p.green_y_mm", "p.green_z_mm", "m.shrink_xy", "m.shrink_z", "m.wash_k_min_per_mm2", "m.wash_min_minutes",
@@ -147,7 +148,8 @@ export async function listOpenOrdersForRisk(db: Database): Promise<OrderForRisk[
     const print =
       num(r.b_est) ??
       (printer ? printMinutes({ greenVolumeMm3: greenVolume, heightMm: greenZ }, printer).totalMinutes : 24 * 60);
-    const unit: UnitForProjection & { serial: string } = {
+    const unit: UnitForProjection & { serial: string; id: string } = {
+      id: r.unit_id,
       serial: r.serial,
       state: r.state,
       held_from: r.held_from,
@@ -248,7 +250,7 @@ async function loadBacklog(db: Database): Promise<Backlog[]> {
   ];
 }
 
-export async function loadCapacity(db: Database, query: CapacityQuery, now = new Date()) {
+export async function loadCapacity(db: Database, query: CapacityQuery, now = new Date()): Promise<CapacityView> {
   const clock = await loadShopClock(db);
   const { from, to } = rangeInstants(query.from, query.to, clock.time_zone);
   // Bookings from the start of the range, or from now when the range lies in the past, so the
@@ -295,7 +297,6 @@ export async function loadCapacity(db: Database, query: CapacityQuery, now = new
   };
 }
 
-export type CapacityData = Awaited<ReturnType<typeof loadCapacity>>;
 
 // Calendar feeds -------------------------------------------------------------------------------
 

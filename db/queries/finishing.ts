@@ -5,6 +5,7 @@ import { AppError } from "@/lib/errors";
 import { availableActions, planFinishingChange, type UnitState } from "@/lib/finishing/transitions";
 import { toleranceSummary, type PartForFinishing } from "@/lib/finishing/inspection";
 import type { FinishingAction as Action, FinishingActionInput } from "@/lib/finishing/schemas";
+import type { FinishingCard, FinishingQueue } from "@/lib/finishing/types";
 
 // The machinist's queue: units on their way out of a furnace, ready for finishing, being
 // finished, held, and lately done; and the state changes a machinist makes.
@@ -46,7 +47,7 @@ function cardQuery(db: Database | Trx) {
 
 type CardRow = Awaited<ReturnType<ReturnType<typeof cardQuery>["execute"]>>[number];
 
-function toCard(r: CardRow) {
+function toCard(r: CardRow): FinishingCard {
   const part: PartForFinishing = {
     nominal_x_mm: Number(r.nominal_x_mm), nominal_y_mm: Number(r.nominal_y_mm), nominal_z_mm: Number(r.nominal_z_mm),
     stock_x_neg_mm: Number(r.stock_x_neg_mm), stock_x_pos_mm: Number(r.stock_x_pos_mm),
@@ -55,11 +56,11 @@ function toCard(r: CardRow) {
     tolerance_um: num(r.tolerance_um), tolerance_grade: r.tolerance_grade, target_ra_um: num(r.target_ra_um),
   };
   const latest = r.latest_inspection ? { ...r.latest_inspection, created_at: iso(r.latest_inspection.created_at)! } : null;
-  let tolerance;
+  let tolerance: FinishingCard["tolerance"];
   try {
     tolerance = toleranceSummary(part);
   } catch {
-    tolerance = { kind: "none" as const };
+    tolerance = { kind: "none" };
   }
   // The furnace run's end is when the unit comes out; the worker releases it for finishing then.
   const arrival = r.run_unloaded_at ?? r.run_ends_at;
@@ -93,9 +94,7 @@ function toCard(r: CardRow) {
   };
 }
 
-export type FinishingCard = ReturnType<typeof toCard>;
-
-export async function listFinishingQueue(db: Database, now = new Date()) {
+export async function listFinishingQueue(db: Database, now = new Date()): Promise<FinishingQueue> {
   const rows = await cardQuery(db)
     .where((eb) =>
       eb.or([

@@ -5,6 +5,7 @@ import { AppError } from "@/lib/errors";
 import { INSPECTABLE, type UnitState } from "@/lib/finishing/transitions";
 import { runoutStockCheck, toStoredReadings, type PartForFinishing, type StockCheck } from "@/lib/finishing/inspection";
 import { AXES, type CreateInspection } from "@/lib/finishing/schemas";
+import type { InspectionView } from "@/lib/finishing/types";
 import { lockUnitAtVersion } from "./finishing";
 
 // Inspection records: the readings in mm and µm, the runout-against-stock check as it was
@@ -101,7 +102,7 @@ export async function insertInspection(db: Database, input: CreateInspection, in
   });
 }
 
-export async function listInspectionsForUnit(db: Database, unitId: string) {
+export async function listInspectionsForUnit(db: Database, unitId: string): Promise<InspectionView[]> {
   const rows = await db
     .selectFrom("inspections as i")
     .leftJoin("users as us", "us.id", "i.inspector_id")
@@ -142,8 +143,6 @@ export async function listInspectionsForUnit(db: Database, unitId: string) {
       .map((f) => ({ id: f.id, filename: f.filename, content_type: f.content_type, size_bytes: Number(f.size_bytes), url: `/api/inspections/${r.id}/files/${f.id}` })),
   }));
 }
-
-export type InspectionView = Awaited<ReturnType<typeof listInspectionsForUnit>>[number];
 
 export async function findInspection(db: Database, id: string) {
   if (!/^[0-9a-f-]{36}$/i.test(id)) return undefined;

@@ -2,6 +2,7 @@ import type { Database } from "@/db/client";
 import { AppError } from "@/lib/errors";
 import { massLossCheck } from "@/lib/process/wash";
 import { furnaceCycle } from "@/lib/process/furnace-profile";
+import type { TimelineEntry, UnitTrace } from "@/lib/finishing/types";
 import { listInspectionsForUnit } from "./inspections";
 
 // A unit's whole history in one place: the material lot and build it was printed in, the
@@ -11,7 +12,7 @@ import { listInspectionsForUnit } from "./inspections";
 const num = (v: unknown) => (v === null || v === undefined ? null : Number(v));
 const iso = (d: Date | string | null | undefined) => (d ? new Date(d).toISOString() : null);
 
-export async function loadUnitTrace(db: Database, unitId: string) {
+export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitTrace> {
   if (!/^[0-9a-f-]{36}$/i.test(unitId)) throw new AppError("not_found", "Unit not found.");
   const u = await db
     .selectFrom("units as u")
@@ -114,7 +115,7 @@ export async function loadUnitTrace(db: Database, unitId: string) {
     .orderBy("e.id")
     .execute();
 
-  type Entry = { at: string; source: "unit" | "build" | "wash_batch" | "furnace_run" | "inspection"; kind: string; title: string; detail: string | null; actor: string | null; ref: string | null };
+  type Entry = TimelineEntry;
   const timeline: Entry[] = events.map((e) => ({
     at: iso(e.created_at)!,
     source: (entityIds.includes(e.entity_id ?? "") ? e.entity : "unit") as Entry["source"],
@@ -201,5 +202,3 @@ export async function loadUnitTrace(db: Database, unitId: string) {
     timeline,
   };
 }
-
-export type UnitTrace = Awaited<ReturnType<typeof loadUnitTrace>>;

@@ -84,7 +84,7 @@ export type OrderForRisk = {
   customer: string;
   due_at: Date;
   priority: number;
-  units: Array<UnitForProjection & { serial: string }>;
+  units: Array<UnitForProjection & { serial: string; id?: string }>;
 };
 
 export type OrderRisk = {
@@ -101,6 +101,7 @@ export type OrderRisk = {
   units_scrapped: number;
   /** The unit that finishes last, and the step it is at. */
   latest_serial: string;
+  latest_unit_id: string | null;
   latest_state: string;
 };
 
@@ -126,6 +127,7 @@ export function orderRisks(orders: OrderForRisk[], timing: ShopTiming, now: Date
       units_done: order.units.filter((u) => u.state === "done").length,
       units_scrapped: order.units.length - live.length,
       latest_serial: latest.serial,
+      latest_unit_id: latest.id ?? null,
       latest_state: latest.state,
     });
   }
