@@ -520,3 +520,8 @@ export async function listLaneBookings(db: Db, kind: "wash" | "furnace", from: D
     .orderBy("r.starts_at")
     .execute();
 }
+
+export async function findShopTimeZone(db: Db): Promise<string> {
+  const row = await db.selectFrom("shop_settings").select("time_zone").where("id", "=", 1).executeTakeFirst();
+  return row?.time_zone ?? "UTC";
+}

@@ -3,7 +3,7 @@ import type { DB } from "@/db/schema";
 import { scheduleAdvance } from "@/lib/jobs/advance";
 import { AppError } from "@/lib/errors";
 import { checkFurnaceAdd, currentLayout, emptyLayout, layoutWithout, packFurnace, profileLabel } from "@/lib/batches/rules";
-import type { BoardFurnace, BoardFurnaceRun, BoardProfile, BoardUnit, BookingState } from "@/lib/batches/types";
+import type { BoardFurnace, BoardFurnaceRun, BoardProfile, BoardUnit, BookingState, RunDetail } from "@/lib/batches/types";
 import type { TrayRun } from "@/lib/packing/types";
 import { profileCurve } from "@/lib/process/furnace-profile";
 import { cycleMinutesFor, findFurnace, insertEvents, listBoardUnits, listFurnaceRuns, listProfiles, profileForCycle, type Db, type ShopContext } from "./batches";
@@ -279,21 +279,7 @@ export async function cancelRun(trx: Trx, ctx: ShopContext, input: { runId: stri
   return getRun(trx, ctx, row.id);
 }
 
-export type RunDetail = {
-  run: BoardFurnaceRun;
-  furnace: BoardFurnace;
-  profile: BoardProfile;
-  curve: { minute: number; temp_c: number; phase: string }[];
-  cycle: { total_minutes: number };
-  checklist: Record<string, unknown> | null;
-  loaded_at: string | null;
-  unloaded_at: string | null;
-  outcomes: { unit_id: string; serial: string; state: string; scrap_reason: string | null; scrap_note: string | null }[];
-  now: string;
-  time_zone: string;
-  clearance_mm: number;
-  profiles: BoardProfile[];
-};
+
 
 export async function getRunDetail(db: Db, ctx: ShopContext, id: string): Promise<RunDetail> {
   const run = await getRun(db, ctx, id);
@@ -375,7 +361,7 @@ export async function applyProposal(trx: Trx, ctx: ShopContext, proposalId: stri
       .returning(["id", "version", "ends_at"])
       .executeTakeFirstOrThrow();
     await trx.updateTable("units").set({ wash_batch_id: row.id, version: sql<number>`version + 1`, updated_at: new Date() }).where("id", "in", w.units.map((u) => u.id)).execute();
-    await scheduleAdvance(trx, { entity: "wash_batch", id: row.id, version: row.version, due_at: new Date(end.getTime() + ctx.drying_minutes * MIN).toISOString() });
+    await scheduleAdvance(trx, { entity: "wash_batch", id: row.id, version: row.version, due_at: end.toISOString() });
     await insertEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "schedule", to_state: "scheduled", actor_id: actorId, reason: "accepted proposal", data: { proposal_id: p.id, units: w.units.length } }]);
     created.wash_batches.push(row.id);
   }
@@ -419,4 +405,9 @@ export async function refuseProposal(db: Db, proposalId: string, reason: string,
     .where("status", "=", "open")
     .executeTakeFirst();
   if (Number(res.numUpdatedRows) === 0) throw new AppError("conflict", "That proposal was decided already or does not exist.");
+}
+
+export async function findRunCode(db: Db, id: string): Promise<string | undefined> {
+  const row = await db.selectFrom("furnace_runs").select("code").where("id", "=", id).executeTakeFirst();
+  return row?.code;
 }

@@ -98,8 +98,10 @@ async function bumpWash(
   }
   const updated = await trx.updateTable("wash_batches").set(set).where("id", "=", row.id).returning(["id", "version", "state", "ends_at"]).executeTakeFirstOrThrow();
   if (updated.ends_at && ["scheduled", "running", "complete"].includes(updated.state)) {
-    // The worker turns the units brown once the wash is over and the parts have dried.
-    const due = new Date(new Date(updated.ends_at).getTime() + ctx.drying_minutes * MIN);
+    // The worker closes an open batch at its end (the job's due_at must be that end) and turns
+    // the units of a closed batch brown once the parts have dried.
+    const end = new Date(updated.ends_at).getTime();
+    const due = new Date(updated.state === "complete" ? end + ctx.drying_minutes * MIN : end);
     await scheduleAdvance(trx, { entity: "wash_batch", id: updated.id, version: updated.version, due_at: due.toISOString() });
   }
   return updated;
@@ -362,4 +364,9 @@ export async function cancelWash(trx: Trx, ctx: ShopContext, input: { batchId: s
 export async function getWashBatchDetail(db: Db, ctx: ShopContext, id: string) {
   const batch = await getWash(db, ctx, id);
   return { batch, masses: massResults(batch.units), station: ctx.stations.find((s) => s.id === batch.wash_station_id) ?? null };
+}
+
+export async function findWashCode(db: Db, id: string): Promise<string | undefined> {
+  const row = await db.selectFrom("wash_batches").select("code").where("id", "=", id).executeTakeFirst();
+  return row?.code;
 }

@@ -159,3 +159,20 @@ export interface Board {
   profiles: BoardProfile[];
   materials: BoardMaterial[];
 }
+
+/** The run page: the run, its furnace and profile, the temperature curve and what happened. */
+export type RunDetail = {
+  run: BoardFurnaceRun;
+  furnace: BoardFurnace;
+  profile: BoardProfile;
+  curve: { minute: number; temp_c: number; phase: string }[];
+  cycle: { total_minutes: number };
+  checklist: Record<string, unknown> | null;
+  loaded_at: string | null;
+  unloaded_at: string | null;
+  outcomes: { unit_id: string; serial: string; state: string; scrap_reason: string | null; scrap_note: string | null }[];
+  now: string;
+  time_zone: string;
+  clearance_mm: number;
+  profiles: BoardProfile[];
+};

@@ -1,12 +1,35 @@
+import Link from "next/link";
+import { notFound } from "next/navigation";
 import { PageHeader } from "@/components/ui/page-header";
-import { NotLanded } from "@/components/ui/not-landed";
+import { RunView } from "@/components/furnace/run-view";
+import { Cautions } from "@/components/safety/cautions";
+import { getDb } from "@/db/client";
+import { findRunCode } from "@/db/queries/furnace-runs";
+import { requirePageUser } from "@/lib/auth/session";
+
+export const metadata = { title: "Furnace run" };
 
 export default async function FurnaceRunPage({ params }: { params: Promise<{ id: string }> }) {
+  const user = await requirePageUser("shop:read");
   const { id } = await params;
+  if (!/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(id)) notFound();
+  const code = await findRunCode(getDb(), id);
+  if (!code) notFound();
   return (
     <>
-      <PageHeader title="Furnace run" lead={`Run ${id}: profile, trays, loading and unloading.`} />
-      <NotLanded what="The furnace run page" />
+      <PageHeader
+        title={`Furnace run ${code}`}
+        lead="The profile's temperature curve, the trays as loaded, the loading checklist, and the unload."
+        actions={
+          <Link href="/batches" className="rounded-md border border-soot-200 bg-white px-3 py-1.5 text-sm text-soot-700 hover:bg-soot-50">
+            Back to the board
+          </Link>
+        }
+      />
+      <div className="space-y-4 px-8 py-6">
+        <Cautions topic="furnace" />
+        <RunView runId={id} role={user.role} unitPref={user.unit_pref} />
+      </div>
     </>
   );
 }

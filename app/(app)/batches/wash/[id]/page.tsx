@@ -1,0 +1,37 @@
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { PageHeader } from "@/components/ui/page-header";
+import { WashView } from "@/components/batches/wash-view";
+import { Cautions } from "@/components/safety/cautions";
+import { getDb } from "@/db/client";
+import { findWashCode } from "@/db/queries/wash-batches";
+import { findShopTimeZone } from "@/db/queries/batches";
+import { requirePageUser } from "@/lib/auth/session";
+
+export const metadata = { title: "Wash batch" };
+
+export default async function WashBatchPage({ params }: { params: Promise<{ id: string }> }) {
+  const user = await requirePageUser("shop:read");
+  const { id } = await params;
+  if (!/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(id)) notFound();
+  const db = getDb();
+  const [code, timeZone] = await Promise.all([findWashCode(db, id), findShopTimeZone(db)]);
+  if (!code) notFound();
+  return (
+    <>
+      <PageHeader
+        title={`Wash batch ${code}`}
+        lead="Solvent debinding: the basket, its wash time (set by the slowest unit), and each unit's green and brown weighing."
+        actions={
+          <Link href="/batches" className="rounded-md border border-soot-200 bg-white px-3 py-1.5 text-sm text-soot-700 hover:bg-soot-50">
+            Back to the board
+          </Link>
+        }
+      />
+      <div className="space-y-4 px-8 py-6">
+        <Cautions topic="wash" />
+        <WashView batchId={id} role={user.role} timeZone={timeZone} />
+      </div>
+    </>
+  );
+}

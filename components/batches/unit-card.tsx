@@ -1,0 +1,103 @@
+"use client";
+
+import { useDraggable } from "@dnd-kit/core";
+import type { BoardUnit } from "@/lib/batches/types";
+import { formatLength, formatMass } from "@/lib/units";
+import { shopTime, slackWords } from "./format";
+
+export type DragSource = { kind: "waiting" } | { kind: "run" | "wash"; id: string };
+export type DragData = { unit: BoardUnit; from: DragSource; lane: "wash" | "furnace" };
+
+const STATUS = {
+  late: "border-oxide-500/50 bg-oxide-100 text-oxide-700",
+  at_risk: "border-brass-400/60 bg-brass-100 text-brass-600",
+  on_time: "border-verdigris-400/40 bg-verdigris-100 text-verdigris-700",
+} as const;
+
+const STATUS_WORD = { late: "Late", at_risk: "At risk", on_time: "On time" } as const;
+
+export type UnitCardProps = {
+  unit: BoardUnit;
+  from: DragSource;
+  lane: "wash" | "furnace";
+  timeZone: string;
+  unitPref: "mm" | "in";
+  profileLabel?: string;
+  disabled?: boolean;
+  compact?: boolean;
+  onRemove?: () => void;
+};
+
+export function UnitCardBody({ unit, timeZone, unitPref, profileLabel, compact }: Omit<UnitCardProps, "from" | "lane">) {
+  const size = `${formatLength(unit.green_x_mm, unitPref, 1).replace(/ (mm|in)$/, "")}×${formatLength(unit.green_y_mm, unitPref, 1).replace(/ (mm|in)$/, "")}×${formatLength(unit.green_z_mm, unitPref, 1)}`;
+  if (compact) {
+    return (
+      <span className="flex items-center gap-1.5">
+        <span className="font-mono text-2xs font-semibold text-soot-800">{unit.serial}</span>
+        <span className={`rounded px-1 text-2xs ${STATUS[unit.projection_status]}`}>{STATUS_WORD[unit.projection_status]}</span>
+      </span>
+    );
+  }
+  return (
+    <>
+      <div className="flex items-center justify-between gap-2">
+        <span className="font-mono text-xs font-semibold text-soot-900">{unit.serial}</span>
+        <span className={`shrink-0 rounded border px-1.5 text-2xs font-semibold ${STATUS[unit.projection_status]}`} title={`Projected ${slackWords(unit.slack_minutes)}`}>
+          {STATUS_WORD[unit.projection_status]} · {slackWords(unit.slack_minutes)}
+        </span>
+      </div>
+      <div className="mt-0.5 truncate text-xs text-soot-700">
+        {unit.part_name} · {unit.order_code}
+      </div>
+      <div className="mt-0.5 flex flex-wrap gap-x-2 text-2xs text-soot-500">
+        <span>{unit.material_code}</span>
+        {profileLabel ? <span>{profileLabel}</span> : null}
+        <span className="tabular">{size}</span>
+        <span className="tabular" title={unit.mass_source === "estimate" ? "estimated from the part's volume" : `weighed ${unit.mass_source}`}>
+          {unit.mass_source === "estimate" ? "≈" : ""}
+          {formatMass(unit.mass_g, unitPref)}
+        </span>
+        <span>due {shopTime(unit.due_at, timeZone)}</span>
+      </div>
+      {unit.state === "washing" ? (
+        <div className="mt-0.5 text-2xs text-slate2-600">Washing · brown about {shopTime(unit.ready_at, timeZone)}</div>
+      ) : null}
+    </>
+  );
+}
+
+/** A unit that can be picked up and dropped on a wash batch or a furnace run. */
+export function UnitCard(props: UnitCardProps) {
+  const { unit, from, lane, disabled, onRemove, compact } = props;
+  const id = `${lane}:${from.kind === "waiting" ? "waiting" : from.id}:${unit.id}`;
+  const { attributes, listeners, setNodeRef, isDragging } = useDraggable({ id, data: { unit, from, lane } satisfies DragData, disabled });
+  return (
+    <div
+      ref={setNodeRef}
+      {...attributes}
+      {...listeners}
+      data-testid="unit-card"
+      data-unit-id={unit.id}
+      data-serial={unit.serial}
+      aria-label={`${unit.serial}, ${unit.part_name}, ${unit.material_code}${disabled ? "" : ". Space picks it up, arrow keys move between targets, space drops it, escape puts it back"}`}
+      className={`relative rounded-md border bg-white shadow-card outline-none ${compact ? "inline-flex items-center gap-1 px-1.5 py-0.5" : "block px-2.5 py-1.5"} ${
+        isDragging ? "opacity-40" : ""
+      } ${disabled ? "cursor-default border-soot-200" : "cursor-grab border-soot-200 hover:border-clay-400 focus-visible:border-ember-500"}`}
+    >
+      <UnitCardBody {...props} />
+      {onRemove && !disabled ? (
+        <button
+          type="button"
+          onPointerDown={(e) => e.stopPropagation()}
+          onKeyDown={(e) => e.stopPropagation()}
+          onClick={onRemove}
+          className="rounded px-1 text-xs leading-none text-soot-500 hover:bg-soot-100 hover:text-oxide-700"
+          aria-label={`Take ${unit.serial} out`}
+          title="Take out"
+        >
+          ×
+        </button>
+      ) : null}
+    </div>
+  );
+}
