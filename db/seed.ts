@@ -1,6 +1,9 @@
 import type { Database } from "@/db/client";
 import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/permissions";
+import { furnaceCycle } from "@/lib/process/furnace-profile";
+import { feedstockDensity, shrinkageFromSolidsLoading } from "@/lib/process/scale-up";
+import { washMinutes } from "@/lib/process/wash";
 import { DEMO_PASSWORD, DEMO_USERS } from "./seed-users";
 
 /**
@@ -40,6 +43,11 @@ type MaterialSeed = {
   profile: { code: string; name: string; atmosphere: string; segments: [number, number, number][]; cool: number };
 };
 
+const BINDER_DENSITY = 0.95; // g/cm³, a typical polymer binder
+// From the calibration example of Crank's long-time limit: a 4 mm wall washed in 8 h → 480/4² min/mm².
+const WASH_K = 30;
+const WASH_MIN = 60;
+
 const MATERIALS: MaterialSeed[] = [
   {
     code: "17-4PH", name: "17-4 PH stainless", family: "precipitation-hardening stainless", phi: 0.6, fs: 0.97, rhoT: 7.78, zExtra: 0.012,
@@ -59,16 +67,14 @@ const MATERIALS: MaterialSeed[] = [
   },
 ];
 
-// Demo-only: the cycle arithmetic here mirrors lib/process/furnace-profile.ts for the seed's own timestamps.
-function cycleMinutes(segments: [number, number, number][], cool: number, start = 20, coolTo = 100) {
-  let t = 0;
-  let temp = start;
-  for (const [rate, setpoint, hold] of segments) {
-    t += Math.abs(setpoint - temp) / rate + hold;
-    temp = setpoint;
-  }
-  return t + Math.abs(temp - coolTo) / cool;
-}
+const profileOf = (m: MaterialSeed) => ({
+  startTempC: 20,
+  coolToC: 100,
+  coolRateCPerMin: m.profile.cool,
+  segments: m.profile.segments.map(([rateCPerMin, setpointC, holdMin]) => ({ rateCPerMin, setpointC, holdMin })),
+});
+const shrinkXY = (m: MaterialSeed) => shrinkageFromSolidsLoading(m.phi, m.fs);
+const greenDensityOf = (m: MaterialSeed) => feedstockDensity(m.phi, m.rhoT, BINDER_DENSITY);
 
 export async function isEmpty(db: Database): Promise<boolean> {
   const row = await db.selectFrom("users").select((eb) => eb.fn.countAll<number>().as("n")).executeTakeFirstOrThrow();
@@ -106,7 +112,6 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
     // Materials and their sinter profiles ----------------------------------------------------
     const materialIds: Record<string, string> = {};
     const profileIds: Record<string, string> = {};
-    const profileMinutes: Record<string, number> = {};
     for (const m of MATERIALS) {
       const profile = await trx
         .insertInto("sinter_profiles")
@@ -118,19 +123,17 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
         .values(m.profile.segments.map(([rate, setpoint, hold], position) => ({ profile_id: profile.id, position, rate_c_per_min: rate, setpoint_c: setpoint, hold_min: hold })))
         .execute();
       // German's relation: s = 1 − (φ/f_s)^(1/3); Z shrinks a little more in extruded layers.
-      const sXY = 1 - Math.cbrt(m.phi / m.fs);
-      const binder = 0.95;
+      const sXY = shrinkXY(m);
       const material = await trx
         .insertInto("materials")
         .values({
           code: m.code, name: m.name, alloy_family: m.family,
           shrink_xy: round(sXY, 4), shrink_z: round(sXY + m.zExtra, 4),
-          green_density_g_cm3: round(m.phi * m.rhoT + (1 - m.phi) * binder, 3),
+          green_density_g_cm3: round(greenDensityOf(m), 3),
           sintered_density_g_cm3: round(m.fs * m.rhoT, 3),
           theoretical_density_g_cm3: m.rhoT,
-          solids_loading: m.phi, binder_density_g_cm3: binder,
-          // k from the §4.18 long-time limit calibrated on a 4 mm wall washed in 8 h: 480/4² min/mm²
-          wash_k_min_per_mm2: 30, wash_min_minutes: 60,
+          solids_loading: m.phi, binder_density_g_cm3: BINDER_DENSITY,
+          wash_k_min_per_mm2: WASH_K, wash_min_minutes: WASH_MIN,
           min_mass_loss: 0.035,
           default_profile_id: profile.id,
         })
@@ -139,7 +142,6 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
       await trx.insertInto("sinter_profile_materials").values({ profile_id: profile.id, material_id: material.id }).execute();
       materialIds[m.code] = material.id;
       profileIds[m.code] = profile.id;
-      profileMinutes[m.code] = cycleMinutes(m.profile.segments, m.profile.cool);
     }
 
     // Equipment -----------------------------------------------------------------------------------
@@ -183,11 +185,8 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
       ])
       .execute();
     // A furnace cools no faster than it can: the cycle uses the slower of the two rates.
-    const furnaceCycle = (code: string, furnaceIdx: number) => {
-      const m = MATERIALS.find((x) => x.code === code)!;
-      const maxCool = furnaceIdx === 0 ? 8 : 10;
-      return Math.ceil(cycleMinutes(m.profile.segments, Math.min(m.profile.cool, maxCool)));
-    };
+    const cycleOn = (code: string, furnaceIdx: number) =>
+      Math.ceil(furnaceCycle(profileOf(MATERIALS.find((x) => x.code === code)!), { maxCoolRateCPerMin: furnaceIdx === 0 ? 8 : 10 }).totalMinutes);
 
     await trx
       .insertInto("maintenance_windows")
@@ -218,7 +217,7 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
         const mat = MATERIALS[(i + j) % MATERIALS.length];
         const nominal: [number, number, number] = [round(25 + rand() * 90, 1), round(20 + rand() * 60, 1), round(10 + rand() * 50, 1)];
         const stock = round(0.2 + rand() * 0.3, 2);
-        const sXY = 1 - Math.cbrt(mat.phi / mat.fs);
+        const sXY = shrinkXY(mat);
         const sZ = sXY + mat.zExtra;
         const green: [number, number, number] = [
           round((nominal[0] + 2 * stock) / (1 - sXY), 2),
@@ -248,8 +247,7 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
           .executeTakeFirstOrThrow();
         // green mass = finished volume scaled up × green density
         const greenVolCm3 = (volume * (green[0] / nominal[0]) * (green[1] / nominal[1]) * (green[2] / nominal[2])) / 1000;
-        const rhoGreen = mat.phi * mat.rhoT + (1 - mat.phi) * 0.95;
-        parts.push({ id: part.id, code: `${order.code}-${partNumber}`, material: mat.code, qty, green, mass: round(greenVolCm3 * rhoGreen, 1), wall, orderDue: order.due_at });
+        parts.push({ id: part.id, code: `${order.code}-${partNumber}`, material: mat.code, qty, green, mass: round(greenVolCm3 * greenDensityOf(mat), 1), wall, orderDue: order.due_at });
       }
     }
 
@@ -291,10 +289,7 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
     let runSeq = 500;
     let unitCount = 0;
     const eventsRows: { entity: string; entity_id: string; kind: string; from_state: string | null; to_state: string; actor_id: string | null; reason: string | null; created_at: Date }[] = [];
-    const greenDensity = (code: string) => {
-      const m = MATERIALS.find((x) => x.code === code)!;
-      return m.phi * m.rhoT + (1 - m.phi) * 0.95;
-    };
+    const greenDensity = (code: string) => greenDensityOf(MATERIALS.find((x) => x.code === code)!);
 
     for (const group of ordered) {
       let stage = group.stage;
@@ -304,7 +299,7 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
       const greenCm3 = group.parts.reduce((v, p) => v + (p.mass / greenDensity(code)) * p.qty, 0);
       const tallest = Math.max(...group.parts.map((p) => p.green[2]));
       const printMin = Math.round((greenCm3 / printerRate(code)) * 60 + ((tallest / 0.15) * 8) / 60);
-      const washMin = Math.round(Math.max(...group.parts.map((p) => 30 * p.wall * p.wall + 60)));
+      const washMin = Math.round(Math.max(...group.parts.map((p) => washMinutes({ thickestWallMm: p.wall, kMinPerMm2: WASH_K, minMinutes: WASH_MIN }))));
       let depth = depthOf(stage);
 
       let furnaceIdx: number | undefined;
@@ -335,7 +330,7 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
       let run: { start: Date; end: Date } | null = null;
       if (depth >= 5) {
         const fi = furnaceIdx ?? (code === "A2" ? 1 : depth % 2);
-        const cyc = furnaceCycle(code, fi);
+        const cyc = cycleOn(code, fi);
         if (depth === 5) {
           const startH = -Math.round(cyc / 120);
           run = { start: at(startH), end: new Date(at(startH).getTime() + cyc * MIN) };
@@ -406,7 +401,7 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
       }
 
       const m = MATERIALS.find((x) => x.code === code)!;
-      const sXY = 1 - Math.cbrt(m.phi / m.fs);
+      const sXY = shrinkXY(m);
       for (const part of group.parts) {
         for (let k = 0; k < part.qty; k++) {
           unitCount++;
