@@ -356,3 +356,45 @@ export async function unitStateEvents(db: Database, unitIds: string[]) {
     .orderBy("id")
     .execute();
 }
+
+/**
+ * Many due builds at once (one insert for the builds, one for their units), laid on the
+ * printers in one-hour slots going back from `ends_at` so that none overlap.
+ */
+export async function insertDueBuilds(db: Database, shop: Shop, n: number, o: { ends_at: Date; units?: number }): Promise<Booking[]> {
+  const perUnit = o.units ?? 2;
+  const P = shop.printer_ids.length;
+  const seq = ++serialSeq;
+  const rows = await db
+    .insertInto("builds")
+    .values(
+      Array.from({ length: n }, (_, i) => {
+        const ends_at = new Date(o.ends_at.getTime() - Math.floor(i / P) * HOUR);
+        return {
+          code: `B-${shop.tag}-${seq}-${i}`,
+          material_id: shop.material_id,
+          printer_id: shop.printer_ids[i % P],
+          state: "scheduled" as const,
+          starts_at: new Date(ends_at.getTime() - HOUR + 60_000),
+          ends_at,
+        };
+      }),
+    )
+    .returning(["id", "version", "ends_at", "code"])
+    .execute();
+  const units = await db
+    .insertInto("units")
+    .values(rows.flatMap((b) => Array.from({ length: perUnit }, (_, k) => ({ part_id: shop.part_id, serial: `${b.code}-${k}`, state: "planned" as const, build_id: b.id }))))
+    .returning(["id", "build_id"])
+    .execute();
+  const byBuild = new Map<string, string[]>();
+  for (const u of units) byBuild.set(u.build_id!, [...(byBuild.get(u.build_id!) ?? []), u.id]);
+  return rows.map((b) => ({ id: b.id, version: b.version, ends_at: b.ends_at as Date, unit_ids: byBuild.get(b.id) ?? [] }));
+}
+
+/** Each booking's advance job, sent the way the app sends it, all in one transaction. */
+export async function sendJobs(db: Database, boss: PgBoss, entity: AdvanceJob["entity"], bookings: Booking[]): Promise<void> {
+  await db.transaction().execute(async (trx) => {
+    for (const b of bookings) await sendAdvance(boss, trx, { entity, id: b.id, version: b.version, due_at: b.ends_at.toISOString() });
+  });
+}
