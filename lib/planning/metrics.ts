@@ -2,6 +2,7 @@
 // planning instances (runs with tray placements, build assignments) and re-derive every rule from
 // the instance alone, so they also catch mistakes in the planners that produced the plan.
 
+import { GEOMETRY_EPS } from "@/lib/packing/rectangles";
 import { FIT_TOLERANCE_MM } from "@/lib/packing/tray-model";
 import type { TrayRun } from "@/lib/packing/types";
 import type { FurnaceRunsInstance, PrinterPlanInstance } from "./instances";
@@ -82,7 +83,8 @@ export function verifyRuns(
   unplaced?: readonly { unit: string }[],
 ): Verification {
   const v: string[] = [];
-  const tol = FIT_TOLERANCE_MM;
+  // Float noise on top of the fit tolerance.
+  const tol = FIT_TOLERANCE_MM + GEOMETRY_EPS;
   const c = instance.clearance_mm;
   const furnaces = new Map(instance.furnaces.map((f) => [f.id, f]));
   const units = new Map(instance.units.map((u) => [u.id, u]));

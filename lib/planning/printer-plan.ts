@@ -232,6 +232,8 @@ interface PrinterState {
   finish: number;
   lmax: number;
   tard: number;
+  /** Longest idle gap left before the finish. */
+  idle: number;
 }
 
 /** Times `seq` (build indices sorted by due rank) on printer `pr`. */
@@ -250,7 +252,9 @@ function timeSequence(model: Model, pr: PrinterModel, seq: readonly number[], st
     if (late > lmax) lmax = late;
     if (late > 0) tard += late;
   }
-  return { finish, lmax, tard };
+  let idle = 0;
+  for (const [hs, he] of tl.holes) idle = Math.max(idle, he - hs);
+  return { finish, lmax, tard, idle };
 }
 
 /** Minimum M ≥ now with Σ_{i∈S} (free time of printer i in [now, M]) ≥ work. */
@@ -411,6 +415,8 @@ function improve(model: Model, seqs: number[][], lateCap: number, bound: number,
     for (let i = 1; i < state.length; i++) if (state[i].finish > state[crit].finish) crit = i;
     const fc = state[crit].finish;
     if (fc <= bound) break;
+    // Idle time a moved-in build might fill instead of extending the printer's finish.
+    const maxHole = state.map((st) => st.idle);
     type Move = { a: number[]; b: number[]; k: number; sa: PrinterState; sb: PrinterState; key: number; tie: number };
     let best: Move | null = null;
     const timeCrit = (a: number[]): PrinterState | null => {
@@ -431,7 +437,8 @@ function improve(model: Model, seqs: number[][], lateCap: number, bound: number,
       const sa = timeCrit(without);
       if (!sa) continue;
       for (const k of builds[j].compat) {
-        if (k === crit) continue;
+        // Adding a build never brings a printer's finish forward.
+        if (k === crit || state[k].finish + builds[j].p >= fc + maxHole[k]) continue;
         consider(without, sa, insertByRank(model, seqs[k], j), k);
       }
     }
@@ -439,9 +446,11 @@ function improve(model: Model, seqs: number[][], lateCap: number, bound: number,
       for (const j of mine) {
         const without = mine.filter((x) => x !== j);
         for (const k of builds[j].compat) {
-          if (k === crit) continue;
+          if (k === crit || state[k].finish >= fc) continue;
           for (const j2 of seqs[k]) {
-            if (builds[j2].p >= builds[j].p || !compatSet[j2].has(crit)) continue;
+            const grow = builds[j].p - builds[j2].p;
+            // Only swaps that shorten this printer and plausibly leave the other below fc.
+            if (grow <= 0 || !compatSet[j2].has(crit) || state[k].finish + grow >= fc + maxHole[k]) continue;
             const a = insertByRank(model, without, j2);
             const sa = timeCrit(a);
             if (!sa) continue;
