@@ -1,12 +1,28 @@
+import { notFound } from "next/navigation";
+import { connection } from "next/server";
+import { getDb } from "@/db/client";
+import { findBuildById } from "@/db/queries/builds";
+import { BuildView } from "@/components/builds/build-view";
+import { QueryProvider } from "@/components/floor/query-provider";
 import { PageHeader } from "@/components/ui/page-header";
-import { NotLanded } from "@/components/ui/not-landed";
+import { can } from "@/lib/auth/permissions";
+import { requirePageUser } from "@/lib/auth/session";
+
+export const metadata = { title: "Build" };
 
 export default async function BuildPage({ params }: { params: Promise<{ id: string }> }) {
+  const user = await requirePageUser("shop:read");
+  await connection();
   const { id } = await params;
+  if (!/^[0-9a-f-]{36}$/i.test(id)) notFound();
+  const build = await findBuildById(getDb(), id);
+  if (!build) notFound();
   return (
     <>
-      <PageHeader title="Build" lead={`Build ${id}: plate, scale-up, estimates, traveler.`} />
-      <NotLanded what="The build page" />
+      <PageHeader title={`Build ${build.code}`} lead="Units of one material on one plate: the layout, the print time on each printer, the material lot and the traveler that goes with it." />
+      <QueryProvider>
+        <BuildView buildId={build.id} canWrite={can(user.role, "builds:write")} />
+      </QueryProvider>
     </>
   );
 }
