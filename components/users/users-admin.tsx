@@ -65,12 +65,21 @@ function UsersAdminInner({ currentUserId, actions }: UsersAdminProps) {
 
   const rows = users.data?.users ?? [];
   const activeAdmins = rows.filter((u) => u.active && u.role === "admin").length;
+  const invited = rows.filter((u) => u.active && !u.has_password).length;
+  const deactivated = rows.filter((u) => !u.active).length;
+  const summary = [
+    `${rows.length} accounts`,
+    `${rows.length - invited - deactivated} active`,
+    invited ? `${invited} invited` : null,
+    deactivated ? `${deactivated} deactivated` : null,
+    `${activeAdmins} active admin${activeAdmins === 1 ? "" : "s"}`,
+  ].filter(Boolean).join(" · ");
 
   return (
     <div className="space-y-5">
       <div className="flex flex-wrap items-center justify-between gap-3">
         <p className="text-sm text-soot-600">
-          {users.isSuccess ? `${rows.filter((u) => u.active).length} active of ${rows.length} accounts · ${activeAdmins} active admin${activeAdmins === 1 ? "" : "s"}` : " "}
+          {users.isSuccess ? summary : " "}
         </p>
         <button type="button" onClick={() => setShowNew((v) => !v)} className="rounded-md bg-clay-600 px-3.5 py-2 text-sm font-semibold text-white hover:bg-clay-700" aria-expanded={showNew}>
           {showNew ? "Close" : "New user"}
@@ -176,12 +185,12 @@ function NewUserForm({ action, onDone }: { action: UserAction; onDone: (s: Actio
   );
 }
 
-function stateLabel(u: UserRow) {
+function stateLabel(u: UserRow): { text: string; cls: string; detail?: string } {
   if (!u.active) return { text: "Deactivated", cls: "bg-soot-100 text-soot-600" };
   if (!u.has_password) {
     return u.open_invite_expires_at
-      ? { text: `Invited · link until ${when(u.open_invite_expires_at)}`, cls: "bg-brass-100 text-brass-600" }
-      : { text: "Invited · link expired", cls: "bg-oxide-100 text-oxide-700" };
+      ? { text: "Invited", cls: "bg-brass-100 text-brass-600", detail: `link valid until ${when(u.open_invite_expires_at)}` }
+      : { text: "Invited", cls: "bg-oxide-100 text-oxide-700", detail: "the link has expired: resend it" };
   }
   return { text: "Active", cls: "bg-verdigris-100 text-verdigris-700" };
 }
@@ -225,10 +234,11 @@ function UserRowView({ user, self, actions, onDone, open, onToggle }: RowProps) 
         </td>
         <td className="px-4 py-3 align-top">
           <span className={`inline-block rounded px-2 py-0.5 text-xs font-semibold ${label.cls}`}>{label.text}</span>
+          {label.detail ? <div className="mt-1 text-2xs text-soot-500">{label.detail}</div> : null}
         </td>
-        <td className="tabular px-4 py-3 align-top text-xs text-soot-600">{when(user.last_sign_in_at)}</td>
-        <td className="px-4 py-3 align-top">
-          <div className="flex flex-wrap justify-end gap-2">
+        <td className="tabular whitespace-nowrap px-4 py-3 align-top text-xs text-soot-600">{when(user.last_sign_in_at)}</td>
+        <td className="whitespace-nowrap px-4 py-3 align-top">
+          <div className="flex justify-end gap-2">
             {user.active ? (
               <form action={linkAction}>
                 <input type="hidden" name="id" value={user.id} />
