@@ -18,7 +18,9 @@ export default async function SignedInLayout({ children }: { children: React.Rea
               <span data-testid="user-role">{ROLE_LABELS[user.role]}</span> · <span className="text-soot-300 group-hover:text-soot-100">My settings</span>
             </div>
           </Link>
-          <SignOutButton />
+          <div className="shrink-0">
+            <SignOutButton />
+          </div>
         </div>
       }
     >

@@ -90,7 +90,7 @@ export function SettingsForms({ user, mailKinds, passwordMin }: SettingsFormsPro
   }
 
   return (
-    <div className="grid max-w-4xl gap-5 lg:grid-cols-2">
+    <div className="grid max-w-4xl items-start gap-5 lg:grid-cols-2">
       <form onSubmit={saveProfile} className={`${card} space-y-4`} aria-label="Name and units" noValidate>
         <h2 className="font-display text-lg font-semibold">Name and units</h2>
         <label className="block text-sm font-medium text-soot-700">

@@ -305,6 +305,8 @@ const EVENT_LABELS: Record<string, string> = {
   sessions_revoked: "Signed out everywhere",
 };
 
+const stateName = (s: string | null) => (s ? (ROLE_LABELS[s as Role] ?? s) : "");
+
 function UserHistory({ id, version }: { id: string; version: number }) {
   const q = useQuery({ queryKey: ["user", id, version], queryFn: () => fetchJson<{ events: UserEvent[] }>(`/api/users/${id}`) });
   if (q.isPending) return <p className="text-xs text-soot-500">Loading history…</p>;
@@ -317,7 +319,7 @@ function UserHistory({ id, version }: { id: string; version: number }) {
           <span className="tabular w-40 shrink-0 text-soot-500">{when(e.created_at)}</span>
           <span className="font-semibold">{EVENT_LABELS[e.kind] ?? e.kind}</span>
           <span className="text-soot-500">
-            {e.reason ? e.reason.replace(/_/g, " ") : e.from_state || e.to_state ? `${e.from_state ?? ""} → ${e.to_state ?? ""}` : ""}
+            {e.reason ? e.reason.replace(/_/g, " ") : e.from_state || e.to_state ? `${stateName(e.from_state)} → ${stateName(e.to_state)}`.trim() : ""}
             {e.actor_name ? ` · by ${e.actor_name}` : ""}
           </span>
         </li>
