@@ -52,7 +52,7 @@ export function SetPasswordForm({ token, email, passwordMin }: SetPasswordFormPr
         <input name="confirm" type="password" autoComplete="new-password" required className={input} aria-invalid={!!fieldErrors.confirm} />
         {fieldErrors.confirm ? <span className="mt-1 block text-xs text-oxide-700">{fieldErrors.confirm[0]}</span> : null}
       </label>
-      {error ? (
+      {error && !fieldErrors.password && !fieldErrors.confirm ? (
         <p role="alert" className="rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700">
           {error}
         </p>
