@@ -99,8 +99,8 @@ export async function travelerPdf(input: TravelerInput): Promise<Uint8Array> {
     ["Material", `${input.build.material_code} (${input.build.material_name})`],
     ["Material lot", input.build.material_lot || "not recorded"],
     ["Printer", input.build.printer_name ?? "not booked"],
-    ["Start", when(input.build.starts_at, input.time_zone)],
-    ["End", when(input.build.ends_at, input.time_zone)],
+    ["Start", `${when(input.build.starts_at, input.time_zone)}${input.build.starts_at ? ` (${input.time_zone})` : ""}`],
+    ["End", `${when(input.build.ends_at, input.time_zone)}${input.build.ends_at ? ` (${input.time_zone})` : ""}`],
     ["Estimated print time", duration(input.build.est_minutes)],
     ["Units", String(input.units.length)],
   ];
@@ -117,18 +117,18 @@ export async function travelerPdf(input: TravelerInput): Promise<Uint8Array> {
 
   // Units table
   y -= 10;
-  const cols = [m, m + 150, m + 250, m + 390, m + 455];
-  const headers = ["Serial", "Part / rev", "Name", "Order", "Green X × Y × Z mm"];
+  const cols = [m, m + 140, m + 230, m + 350, m + 420];
+  const headers = ["Serial", "Part / rev", "Name", "Order", "Green X × Y × Z, mm"];
   page.drawLine({ start: { x: m, y: y + 12 }, end: { x: width - m, y: y + 12 }, thickness: 0.6, color: LINE });
   headers.forEach((h, i) => text(h, cols[i], y, 8, bold, MUTED));
   y -= 14;
-  const rowsFit = Math.max(0, Math.floor((y - 330) / 13));
+  const rowsFit = Math.max(0, Math.floor((y - 360) / 13));
   const shown = input.units.slice(0, rowsFit);
   for (const u of shown) {
-    text(fit(font, u.serial, 8, 146), cols[0], y, 8, bold);
-    text(fit(font, `${u.part_number} / ${u.revision}`, 8, 96), cols[1], y, 8);
-    text(fit(font, u.part_name, 8, 136), cols[2], y, 8);
-    text(fit(font, u.order_code, 8, 62), cols[3], y, 8);
+    text(fit(font, u.serial, 8, 136), cols[0], y, 8, bold);
+    text(fit(font, `${u.part_number} / ${u.revision}`, 8, 86), cols[1], y, 8);
+    text(fit(font, u.part_name, 8, 116), cols[2], y, 8);
+    text(fit(font, u.order_code, 8, 66), cols[3], y, 8);
     text(u.green ? u.green.map((g) => g.toFixed(1)).join(" × ") : "-", cols[4], y, 8);
     page.drawLine({ start: { x: m, y: y - 4 }, end: { x: width - m, y: y - 4 }, thickness: 0.3, color: LINE });
     y -= 13;
@@ -139,8 +139,9 @@ export async function travelerPdf(input: TravelerInput): Promise<Uint8Array> {
   }
 
   // Plate drawing
-  const boxTop = Math.min(y - 12, 330);
-  const boxH = 200;
+  // The sign-off boxes sit at the foot of the page (y 56 to 100); the plate fills what is between.
+  const boxTop = Math.min(y - 14, 350);
+  const boxH = boxTop - 8 - 128;
   const boxW = width - 2 * m;
   text("Plate layout (green footprints, top view)", m, boxTop, 9, bold, MUTED);
   const L = input.layout;
@@ -160,15 +161,15 @@ export async function travelerPdf(input: TravelerInput): Promise<Uint8Array> {
   }
 
   // Sign-off
-  const sy = 70;
+  const sy = 56;
   const boxes = ["Plate loaded / build started", "Build removed, parts counted", "Handed to wash"];
   const bw = (width - 2 * m - 20) / 3;
   boxes.forEach((b, i) => {
     const x = m + i * (bw + 10);
-    page.drawRectangle({ x, y: sy, width: bw, height: 46, borderColor: LINE, borderWidth: 0.8 });
-    text(b, x + 6, sy + 34, 8, bold, MUTED);
+    page.drawRectangle({ x, y: sy, width: bw, height: 44, borderColor: LINE, borderWidth: 0.8 });
+    text(b, x + 6, sy + 32, 8, bold, MUTED);
     text("Name / date / time", x + 6, sy + 6, 7, font, MUTED);
   });
-  text(`Printed ${when(input.printed_at, input.time_zone)} · ${input.url}`, m, 40, 7, font, MUTED);
+  text(`Printed ${when(input.printed_at, input.time_zone)} · ${input.url}`, m, 36, 7, font, MUTED);
   return doc.save();
 }
