@@ -46,3 +46,24 @@ export const stockLen = (mm: number, system: UnitSystem) => formatLength(mm, sys
 export const ra = (um: number | null | undefined, system: UnitSystem) => (um === null || um === undefined ? "–" : formatRa(um, system));
 
 export const stateLabel = (state: string) => state.replaceAll("_", " ");
+
+type StockCheckNumbers = {
+  status: "ok" | "warning";
+  axis: string;
+  eccentricityMm: number;
+  requiredPerSideMm: number;
+  stockPerSideMm: number;
+  shortByMm: number;
+  underSize: boolean;
+};
+
+/** The runout-against-stock verdict in the reader's own units. */
+export function stockCheckText(c: StockCheckNumbers, system: UnitSystem): string {
+  const l = (mm: number) => formatLength(mm, system, system === "in" ? 4 : 3);
+  const axis = c.axis.toUpperCase();
+  if (c.underSize) return `${axis}: as sintered the size is under nominal, so no stock is left to clean up.`;
+  if (c.status === "ok") {
+    return `${axis}: ${l(c.stockPerSideMm)} per side covers the runout (off centre by ${l(c.eccentricityMm)}) with margin; it should clean up.`;
+  }
+  return `${axis}: the runout puts the diameter ${l(c.eccentricityMm)} off centre, so it needs more than ${l(c.requiredPerSideMm)} per side; ${l(c.stockPerSideMm)} is ${l(c.shortByMm)} short and the diameter may not clean up.`;
+}

@@ -134,7 +134,7 @@ export async function lockUnitAtVersion(trx: Trx, unitId: string, version: numbe
   if (!/^[0-9a-f-]{36}$/i.test(unitId)) throw new AppError("not_found", "Unit not found.");
   const unit = await trx
     .selectFrom("units")
-    .select(["id", "serial", "state", "held_from", "version", "part_id"])
+    .select(["id", "serial", "state", "held_from", "version", "part_id", "build_id"])
     .where("id", "=", unitId)
     .forUpdate()
     .executeTakeFirst();

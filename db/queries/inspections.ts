@@ -3,7 +3,7 @@ import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
 import { AppError } from "@/lib/errors";
 import { INSPECTABLE, type UnitState } from "@/lib/finishing/transitions";
-import { runoutStockCheck, toStoredReadings, type PartForFinishing, type StockCheck } from "@/lib/finishing/inspection";
+import { plannedGreen, runoutStockCheck, toStoredReadings, type PartForFinishing, type StockCheck } from "@/lib/finishing/inspection";
 import { AXES, type CreateInspection } from "@/lib/finishing/schemas";
 import type { InspectionView } from "@/lib/finishing/types";
 import { lockUnitAtVersion } from "./finishing";
@@ -14,7 +14,7 @@ import { lockUnitAtVersion } from "./finishing";
 type Trx = Transaction<DB>;
 const num = (v: unknown) => (v === null || v === undefined ? null : Number(v));
 
-async function partForUnit(trx: Trx, partId: string) {
+async function partForUnit(trx: Trx, partId: string, buildId: string | null) {
   const p = await trx
     .selectFrom("parts")
     .select([
@@ -31,7 +31,9 @@ async function partForUnit(trx: Trx, partId: string) {
     stock_z_neg_mm: Number(p.stock_z_neg_mm), stock_z_pos_mm: Number(p.stock_z_pos_mm),
     tolerance_um: num(p.tolerance_um), tolerance_grade: p.tolerance_grade, target_ra_um: num(p.target_ra_um),
   };
-  return { part, green: { x: num(p.green_x_mm), y: num(p.green_y_mm), z: num(p.green_z_mm) } };
+  const build = buildId ? await trx.selectFrom("builds").select("scale_snapshot").where("id", "=", buildId).executeTakeFirst() : undefined;
+  const green = plannedGreen({ ...part, green_x_mm: num(p.green_x_mm), green_y_mm: num(p.green_y_mm), green_z_mm: num(p.green_z_mm) }, build?.scale_snapshot);
+  return { part, green };
 }
 
 export type InsertedInspection = { id: string; unit_version: number; stock_check: StockCheck | null };
@@ -43,11 +45,11 @@ export async function insertInspection(db: Database, input: CreateInspection, in
       const msg = `Inspections are recorded while a unit is ready for finishing or in finishing; ${unit.serial} is ${unit.state.replaceAll("_", " ")}.`;
       throw new AppError("invalid", msg, { unit_id: [msg] });
     }
-    const { part, green: planned } = await partForUnit(trx, unit.part_id);
+    const { part, green: planned } = await partForUnit(trx, unit.part_id, unit.build_id);
     const r = toStoredReadings(input);
     // "Planned" means the size the part was scaled up to: fill the axes the inspector left out.
     if (input.green_source === "planned") {
-      for (const axis of AXES) if (r.green[axis] === undefined && planned[axis] !== null) r.green[axis] = planned[axis]!;
+      for (const axis of AXES) if (r.green[axis] === undefined && planned[axis] !== undefined) r.green[axis] = planned[axis];
     }
     for (const axis of AXES) {
       const g = r.green[axis];

@@ -149,3 +149,42 @@ export function realizedPerAxis(green: AxisValues, sintered: AxisValues): AxisVa
   }
   return out;
 }
+
+/**
+ * The size a unit was printed to: from the shrinkage its build was printed with when the
+ * build kept a snapshot of it ({shrink_xy, shrink_z} or factors {xy, z}), else the part's
+ * current green size. A recalibration after printing must not change what "as printed" means.
+ */
+export function plannedGreen(
+  part: PartForFinishing & { green_x_mm: number | null; green_y_mm: number | null; green_z_mm: number | null },
+  snapshot: unknown,
+): AxisValues {
+  const snap = (snapshot && typeof snapshot === "object" ? snapshot : {}) as Record<string, unknown>;
+  const factors = (snap.factors && typeof snap.factors === "object" ? snap.factors : snap) as Record<string, unknown>;
+  const isShrink = (v: unknown): v is number => typeof v === "number" && v > 0 && v < 0.5;
+  const isFactor = (v: unknown): v is number => typeof v === "number" && v > 1 && v < 2;
+  let fxy: number | undefined;
+  let fz: number | undefined;
+  if (isShrink(snap.shrink_xy) && isShrink(snap.shrink_z)) {
+    fxy = 1 / (1 - snap.shrink_xy);
+    fz = 1 / (1 - snap.shrink_z);
+  } else if (isFactor(factors.xy) && isFactor(factors.z)) {
+    fxy = factors.xy;
+    fz = factors.z;
+  }
+  if (fxy !== undefined && fz !== undefined) {
+    const f = { x: fxy, y: fxy, z: fz };
+    const out: AxisValues = {};
+    for (const axis of AXES) {
+      const s = plannedStock(part, axis);
+      out[axis] = (nominalOf(part, axis) + s.neg + s.pos) * f[axis];
+    }
+    return out;
+  }
+  const out: AxisValues = {};
+  for (const axis of AXES) {
+    const g = part[`green_${axis}_mm`];
+    if (g !== null) out[axis] = g;
+  }
+  return out;
+}

@@ -1,13 +1,28 @@
+import { FinishingQueue } from "@/components/finishing/finishing-queue";
+import { DustCaution } from "@/components/finishing/dust-caution";
+import { FinishingTabs } from "@/components/finishing/finishing-tabs";
 import { PageHeader } from "@/components/ui/page-header";
-import { NotLanded } from "@/components/ui/not-landed";
+import { getDb } from "@/db/client";
+import { loadShopClock } from "@/db/queries/capacity";
+import { can } from "@/lib/auth/permissions";
+import { requirePageUser } from "@/lib/auth/session";
 
 export const metadata = { title: "Finishing" };
 
-export default function Page() {
+export default async function FinishingPage() {
+  const user = await requirePageUser("shop:read");
+  const clock = await loadShopClock(getDb());
   return (
     <>
-      <PageHeader title="Finishing" lead="What arrives when, with what stock on which faces." />
-      <NotLanded what="The finishing queue" />
+      <PageHeader
+        title="Finishing"
+        lead={`What comes out of the furnaces and when, with the stock left on each face. Lengths in ${user.unit_pref === "in" ? "inches" : "millimetres"}; times in ${clock.time_zone.replaceAll("_", " ")}.`}
+      />
+      <FinishingTabs active="queue" />
+      <div className="space-y-5 px-8 py-6">
+        <DustCaution />
+        <FinishingQueue canWrite={can(user.role, "finishing:write")} units={user.unit_pref} timeZone={clock.time_zone} />
+      </div>
     </>
   );
 }
