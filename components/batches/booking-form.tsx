@@ -33,6 +33,7 @@ export function BookingForm({ label, timeZone, initial, resources, resourceId, b
         {label} ({timeZone})
         <input
           type="datetime-local"
+          aria-label={`${label} (shop time)`}
           value={value}
           onChange={(e) => setValue(e.target.value)}
           className="mt-0.5 block rounded border border-soot-200 bg-white px-1.5 py-1 text-xs"
@@ -41,7 +42,7 @@ export function BookingForm({ label, timeZone, initial, resources, resourceId, b
       </label>
       <label className="text-2xs text-soot-600">
         Lane
-        <select value={resource} onChange={(e) => setResource(e.target.value)} className="mt-0.5 block rounded border border-soot-200 bg-white px-1.5 py-1 text-xs">
+        <select aria-label="Lane" value={resource} onChange={(e) => setResource(e.target.value)} className="mt-0.5 block rounded border border-soot-200 bg-white px-1.5 py-1 text-xs">
           {resources.map((r) => (
             <option key={r.id} value={r.id}>
               {r.name}

@@ -44,3 +44,9 @@ export const dayOf = (iso: string, timeZone: string) => {
   const d = localDateOf(new Date(iso).getTime(), timeZone);
   return `${d.year}-${String(d.month).padStart(2, "0")}-${String(d.day).padStart(2, "0")}`;
 };
+
+/** Masses to the tenth of a gram below a kilogram, then kilograms to 10 g (pounds for inch users). */
+export function massText(g: number, unitPref: "mm" | "in"): string {
+  if (unitPref === "in") return `${(g / 453.59237).toFixed(g < 453.59237 ? 3 : 2)} lb`;
+  return g < 1000 ? `${g.toFixed(1)} g` : `${(g / 1000).toFixed(2)} kg`;
+}

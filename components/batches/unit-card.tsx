@@ -2,8 +2,8 @@
 
 import { useDraggable } from "@dnd-kit/core";
 import type { BoardUnit } from "@/lib/batches/types";
-import { formatLength, formatMass } from "@/lib/units";
-import { shopTime, slackWords } from "./format";
+import { formatLength } from "@/lib/units";
+import { massText, shopTime, slackWords } from "./format";
 
 export type DragSource = { kind: "waiting" } | { kind: "run" | "wash"; id: string };
 export type DragData = { unit: BoardUnit; from: DragSource; lane: "wash" | "furnace" };
@@ -55,7 +55,7 @@ export function UnitCardBody({ unit, timeZone, unitPref, profileLabel, compact }
         <span className="tabular">{size}</span>
         <span className="tabular" title={unit.mass_source === "estimate" ? "estimated from the part's volume" : `weighed ${unit.mass_source}`}>
           {unit.mass_source === "estimate" ? "≈" : ""}
-          {formatMass(unit.mass_g, unitPref)}
+          {massText(unit.mass_g, unitPref)}
         </span>
         <span>due {shopTime(unit.due_at, timeZone)}</span>
       </div>

@@ -8,9 +8,9 @@ import { LOADING_CHECKLIST, missingChecks } from "@/lib/batches/checklist";
 import { SCRAP_REASONS } from "@/lib/batches/schemas";
 import { furnaceGauges } from "@/lib/batches/rules";
 import type { RunDetail } from "@/lib/batches/types";
-import { formatLength, formatMass } from "@/lib/units";
+import { formatLength } from "@/lib/units";
 import { ApiError, getJson, sendJson } from "@/components/batches/client";
-import { duration, shopTime } from "@/components/batches/format";
+import { duration, massText, shopTime } from "@/components/batches/format";
 import { GaugeBar } from "@/components/batches/gauge";
 import { BatchesQueryProvider } from "@/components/batches/query-provider";
 import { ProfileChart } from "./profile-chart";
@@ -122,7 +122,7 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
                     <td className="tabular py-1">
                       {formatLength(u.green_x_mm, unitPref, 1)} × {formatLength(u.green_y_mm, unitPref, 1)} × {formatLength(u.green_z_mm, unitPref, 1)}
                     </td>
-                    <td className="tabular py-1">{formatMass(u.mass_g, unitPref, 1)}</td>
+                    <td className="tabular py-1">{massText(u.mass_g, unitPref)}</td>
                     <td className="py-1">
                       {(o?.state ?? u.state).replace(/_/g, " ")}
                       {o?.scrap_reason ? ` (${REASON_WORDS[o.scrap_reason] ?? o.scrap_reason}${o.scrap_note ? `: ${o.scrap_note}` : ""})` : ""}

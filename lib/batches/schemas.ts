@@ -101,7 +101,7 @@ export const refuseProposalSchema = z.object({ proposal_id: id, reason: z.string
 
 // Sinter profiles -----------------------------------------------------------------------------
 
-const temperature = z.coerce.number().gt(-50, "above −50 °C").lt(2000, "below 2000 °C");
+const temperature = z.coerce.number().gt(-50, "a temperature must be above −50 °C").lt(2000, "a set-point must be below 2000 °C");
 
 export const profileSegmentInputSchema = z.object({
   rate_c_per_min: z.coerce.number().positive("a ramp rate must be greater than 0 °C/min").max(100, "a ramp above 100 °C/min is not a furnace program"),
