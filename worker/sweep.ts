@@ -4,6 +4,7 @@ import type { Database } from "@/db/client";
 import { advanceBooking, listDueBookings } from "@/db/queries/advance";
 import { recomputeScaleUp } from "./handlers/scale-up";
 import { drainOutbox } from "./handlers/send-mail";
+import { shuffled } from "./limit";
 
 export type SweepResult = { advanced: number; rescaled: number; mail_sent: number; errors: string[]; ms: number };
 
@@ -21,7 +22,7 @@ export async function runSweep(db: Database, boss: PgBoss, workerId: string, opt
   let rescaled = 0;
   let mailSent = 0;
   try {
-    for (const due of await listDueBookings(db, opts.limit)) {
+    for (const due of shuffled(await listDueBookings(db, opts.limit))) {
       try {
         const r = await advanceBooking(db, boss, due.entity, due.id, { via: "sweep", worker_id: workerId });
         if (r.status === "advanced") advanced++;

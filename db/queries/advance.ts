@@ -182,7 +182,12 @@ async function advanceBuild(trx: Trx, boss: PgBoss, id: string, source: AdvanceS
   let q = trx
     .selectFrom("builds")
     .select(["id", "code", "state", "version", "starts_at", "ends_at", "failed", "failure_reason", "material_lot", "printer_id", "material_id"])
-    .select(sql<boolean>`ends_at <= now()`.as("ended"))
+    .select([
+      sql<boolean>`ends_at <= now()`.as("ended"),
+      // Subqueries rather than joins: FOR UPDATE then locks the build alone.
+      sql<string | null>`(select name from printers where printers.id = builds.printer_id)`.as("printer_name"),
+      sql<string | null>`(select code from materials where materials.id = builds.material_id)`.as("material_code"),
+    ])
     .where("id", "=", id)
     .forUpdate();
   if (source.via === "sweep") q = q.skipLocked();
@@ -233,20 +238,24 @@ async function advanceBuild(trx: Trx, boss: PgBoss, id: string, source: AdvanceS
 async function notifyBuild(
   trx: Trx,
   boss: PgBoss,
-  build: { code: string; printer_id: string | null; material_id: string; material_lot: string; starts_at: Date | null; ends_at: Date | null; failed: boolean; failure_reason: string | null },
+  build: {
+    code: string;
+    printer_name: string | null;
+    material_code: string | null;
+    material_lot: string;
+    starts_at: Date | null;
+    ends_at: Date | null;
+    failed: boolean;
+    failure_reason: string | null;
+  },
   id: string,
 ): Promise<number> {
-  const [printer, material, lines, ctx] = await Promise.all([
-    build.printer_id ? trx.selectFrom("printers").select("name").where("id", "=", build.printer_id).executeTakeFirst() : undefined,
-    trx.selectFrom("materials").select("code").where("id", "=", build.material_id).executeTakeFirst(),
-    listUnitLines(trx, "build_id", id),
-    findMailContext(trx),
-  ]);
+  const [lines, ctx] = await Promise.all([listUnitLines(trx, "build_id", id), findMailContext(trx)]);
   const mailData = {
     id,
     code: build.code,
-    printer: printer?.name ?? null,
-    material: material?.code ?? "",
+    printer: build.printer_name,
+    material: build.material_code ?? "",
     material_lot: build.material_lot,
     starts_at: build.starts_at,
     ends_at: build.ends_at,

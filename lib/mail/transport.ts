@@ -10,6 +10,10 @@ export function getMailTransport(): Transporter {
       host: env.SMTP_HOST,
       port: env.SMTP_PORT,
       secure: env.SMTP_SECURE === "true",
+      // A few kept-open connections: the worker sends in bursts (a furnace run, a sweep after an outage).
+      pool: true,
+      maxConnections: 3,
+      maxMessages: 200,
       auth: env.SMTP_USER ? { user: env.SMTP_USER, pass: env.SMTP_PASS ?? "" } : undefined,
       // the local capture server has no certificate; a real relay sets SMTP_SECURE
       ignoreTLS: env.SMTP_SECURE !== "true" && !env.SMTP_USER,

@@ -90,21 +90,22 @@ export const STATE_WORDS: Record<string, string> = {
 const escapeHtml = (s: string) =>
   s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;").replace(/'/g, "&#39;");
 
+// Building a formatter costs far more than using one; a worker formats thousands of times.
+const formatters = new Map<string, Intl.DateTimeFormat | null>();
+
 export function formatShopTime(d: Date | null, timeZone: string): string {
   if (!d) return "—";
-  try {
-    return new Intl.DateTimeFormat("en-GB", {
-      timeZone,
-      weekday: "short",
-      day: "numeric",
-      month: "short",
-      hour: "2-digit",
-      minute: "2-digit",
-      timeZoneName: "short",
-    }).format(d);
-  } catch {
-    return d.toISOString();
+  if (!formatters.has(timeZone)) {
+    let f: Intl.DateTimeFormat | null = null;
+    try {
+      f = new Intl.DateTimeFormat("en-GB", { timeZone, weekday: "short", day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", timeZoneName: "short" });
+    } catch {
+      f = null; // an unknown zone name: fall back to UTC in ISO form
+    }
+    formatters.set(timeZone, f);
   }
+  const f = formatters.get(timeZone);
+  return f ? f.format(d) : d.toISOString();
 }
 
 const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;

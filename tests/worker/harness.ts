@@ -90,7 +90,7 @@ export async function createWorkerDb(tag: string, opts: { drying_minutes?: numbe
   };
 }
 
-async function seedShop(db: Database, tag: string, opts: { drying_minutes?: number; printers?: number; furnaces?: number }): Promise<Shop> {
+export async function seedShop(db: Database, tag: string, opts: { drying_minutes?: number; printers?: number; furnaces?: number }): Promise<Shop> {
   await db.insertInto("shop_settings").values({ shop_name: `Test shop ${tag}`, time_zone: "Europe/Berlin", drying_minutes: opts.drying_minutes ?? 0 }).execute();
   const people: [keyof Shop["users"], Role][] = [
     ["technician", "technician"],

@@ -3,6 +3,7 @@ import type { Job } from "pg-boss";
 import type { Database } from "@/db/client";
 import { advanceBooking, type AdvanceResult } from "@/db/queries/advance";
 import { advanceJobSchema, QUEUES } from "@/lib/jobs/queues";
+import { mapLimit } from "../limit";
 
 export type AdvanceTally = { advanced: number; skipped: Record<string, number>; failed: number };
 
@@ -10,15 +11,16 @@ export type AdvanceTally = { advanced: number; skipped: Record<string, number>; 
  * A booking reached its scheduled end. Each job runs in its own transaction; one that throws is
  * failed alone (pg-boss retries it with backoff) and does not take the rest of the batch with it.
  */
-export function advanceHandler(db: Database, boss: PgBoss, opts: { quiet?: boolean } = {}) {
+export function advanceHandler(db: Database, boss: PgBoss, opts: { quiet?: boolean; parallel?: number } = {}) {
   return async (jobs: Job<unknown>[]) => {
     const tally: AdvanceTally = { advanced: 0, skipped: {}, failed: 0 };
-    for (const job of jobs) {
+    // Bookings of one batch are distinct rows with distinct units: they run side by side.
+    await mapLimit(jobs, opts.parallel ?? 4, async (job) => {
       const parsed = advanceJobSchema.safeParse(job.data);
       if (!parsed.success) {
         tally.failed++;
         await boss.fail(QUEUES.advance, job.id, { message: `bad payload: ${parsed.error.issues[0]?.message ?? "invalid"}` });
-        continue;
+        return;
       }
       let result: AdvanceResult;
       try {
@@ -28,11 +30,11 @@ export function advanceHandler(db: Database, boss: PgBoss, opts: { quiet?: boole
         const message = err instanceof Error ? err.message : String(err);
         console.error(`[worker] advance ${parsed.data.entity} ${parsed.data.id} failed: ${message}`);
         await boss.fail(QUEUES.advance, job.id, { message });
-        continue;
+        return;
       }
       if (result.status === "advanced") tally.advanced++;
       else tally.skipped[result.reason] = (tally.skipped[result.reason] ?? 0) + 1;
-    }
+    });
     if (!opts.quiet && (tally.advanced || tally.failed || Object.keys(tally.skipped).length)) {
       const skipped = Object.entries(tally.skipped).map(([k, n]) => `${n} ${k}`).join(", ");
       console.log(`[worker] advance: ${jobs.length} job(s): ${tally.advanced} advanced${skipped ? `, skipped ${skipped}` : ""}${tally.failed ? `, ${tally.failed} failed` : ""}`);

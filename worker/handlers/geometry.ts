@@ -13,8 +13,6 @@ import { getS3 } from "@/lib/storage/s3";
 // trust). pg-boss retries on a throw, so a second run of the same job changes nothing: a file
 // already done or failed is left alone, and only a transient failure (storage down) throws.
 
-export const GEOMETRY_RETRY_LIMIT = 3;
-
 async function readObject(bucket: string, key: string): Promise<Uint8Array> {
   const res = await getS3().send(new GetObjectCommand({ Bucket: bucket, Key: key }));
   if (!res.Body) throw new Error(`the stored object ${key} has no body`);
