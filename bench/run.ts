@@ -17,6 +17,7 @@ import { toInstanceRuns, verifyPlan, verifyRuns, type InstanceAssignment, type I
 import { planPrinters } from "@/lib/planning/printer-plan";
 import { furnaceMixInstance, printerPlanInstance, zeroWasteInstance } from "./generate-instances";
 import type { BenchRow, BenchSection } from "./types";
+import { section as workerSection } from "./worker-bench";
 
 const round = (x: number, digits = 3) => Math.round(x * 10 ** digits) / 10 ** digits;
 const mean = (xs: number[]) => xs.reduce((s, x) => s + x, 0) / xs.length;
@@ -181,7 +182,7 @@ const planning: BenchSection = {
 };
 
 /** Add sections here, or drop a bench/sections/<name>.ts that exports `section: BenchSection`. */
-export const SECTIONS: BenchSection[] = [geometry, packing, planning];
+export const SECTIONS: BenchSection[] = [geometry, packing, planning, workerSection];
 
 async function discoverSections(): Promise<BenchSection[]> {
   const dir = path.join(path.dirname(new URL(import.meta.url).pathname), "sections");

@@ -116,7 +116,15 @@ export const section: BenchSection = {
     const rows: BenchRow[] = [];
     try {
       for (const workers of [1, 2]) {
-        const o = await scenario(workers, capture);
+        let o: Outcome;
+        try {
+          o = await scenario(workers, capture);
+        } catch (err) {
+          // No PostgreSQL to work on (or a worker that would not start): say so in the table.
+          const error = err instanceof Error ? err.message : String(err);
+          rows.push({ section: "worker", name: `${N} due builds, ${workers} worker${workers === 1 ? "" : "s"}`, metric: "s end to end (spawn → last transition)", value: null, ...(workers === 1 ? { target: "≤ 60", ok: false } : {}), detail: { error } });
+          continue;
+        }
         const name = `${N} due builds, ${workers} worker${workers === 1 ? "" : "s"}`;
         const detail = { ...o, units: N * UNITS_PER_BUILD };
         const clean = o.duplicateUnitEvents === 0 && o.duplicateBookingEvents === 0 && o.duplicateMessages === 0 && o.outboxRows === N && o.messages === N && o.unitEvents === N * UNITS_PER_BUILD;
