@@ -12,8 +12,9 @@ import { ApiError, apiJson } from "./api";
 import { PlanPanel, type Proposal } from "./plan-panel";
 import { ScheduleForm } from "./schedule-form";
 import { formatSlot, minutesLabel } from "./format";
+import { laneEditable, laneMoveRefusal, moveLaneBooking, type LaneEventProps, type LanePermissions } from "@/components/furnace/lane-interactions";
 
-export type FloorBoardProps = { canSchedule: boolean; canPropose: boolean; canApply: boolean };
+export type FloorBoardProps = { canSchedule: boolean; canPropose: boolean; canApply: boolean; canWash?: boolean; canFurnace?: boolean };
 
 type Message = { tone: "success" | "danger" | "info"; text: string } | null;
 type Slot = { printer_id: string | null; starts_at: string | null };
@@ -37,7 +38,8 @@ const STATE_WORDS: Record<FloorEvent["kind"], Record<string, string>> = {
   furnace_run: { scheduled: "booked", running: "firing", complete: "done" },
 };
 
-function toEvent(e: FloorEvent): EventInput {
+function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
+  const lane = e.kind !== "build";
   const c = e.failed ? COLORS.failed : e.kind === "build" ? (COLORS[e.state] ?? COLORS.scheduled) : COLORS[e.kind];
   return {
     id: e.id,
@@ -45,7 +47,8 @@ function toEvent(e: FloorEvent): EventInput {
     title: e.title,
     start: e.start,
     end: e.end,
-    editable: e.editable,
+    editable: lane ? e.editable && laneEditable(e, lanes) : e.editable,
+    ...(lane ? { resourceEditable: e.editable && laneEditable(e, lanes) } : {}),
     durationEditable: false,
     backgroundColor: c.bg,
     borderColor: c.border,
@@ -55,7 +58,7 @@ function toEvent(e: FloorEvent): EventInput {
   };
 }
 
-export function FloorBoard({ canSchedule, canPropose, canApply }: FloorBoardProps) {
+export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false, canFurnace = false }: FloorBoardProps) {
   const qc = useQueryClient();
   const [range, setRange] = useState<{ from: string; to: string } | null>(null);
   const [message, setMessage] = useState<Message>(null);
@@ -92,7 +95,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply }: FloorBoardProp
   const printerName = useCallback((id: string | null) => (id ? (resourceById.get(id)?.title ?? "a printer") : "nothing"), [resourceById]);
 
   const events = useMemo<EventInput[]>(() => {
-    const list: EventInput[] = (floor.data?.events ?? []).map(toEvent);
+    const list: EventInput[] = (floor.data?.events ?? []).map((e) => toEvent(e, { wash: canWash, furnace: canFurnace }));
     for (const b of floor.data?.blocks ?? []) {
       list.push({ id: `mw-${b.id}`, resourceId: b.resource_id, start: b.start, end: b.end, display: "background", backgroundColor: "#8d8273", classNames: ["hearth-maintenance"], title: `Maintenance: ${b.reason || "no reason given"}` });
     }
@@ -102,7 +105,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply }: FloorBoardProp
       }
     }
     return list;
-  }, [floor.data, proposal]);
+  }, [floor.data, proposal, canWash, canFurnace]);
 
   const hint = useCallback((text: string | null) => {
     const el = hintRef.current;
@@ -187,6 +190,11 @@ export function FloorBoard({ canSchedule, canPropose, canApply }: FloorBoardProp
       if (!moving || !resource) return false;
       const r = resource.extendedProps as unknown as FloorResource;
       const code = (moving.extendedProps.code as string | undefined) ?? moving.title.split(" ")[0];
+      if (moving.extendedProps.kind === "wash_batch" || moving.extendedProps.kind === "furnace_run") {
+        const why = laneMoveRefusal(moving.extendedProps as LaneEventProps, { ...r, title: resource.title });
+        hint(why ?? `Drop ${code} on ${resource.title}…`);
+        return !why;
+      }
       if (r.kind !== "printer") {
         hint(`${resource.title} is a ${r.kind === "furnace" ? "furnace" : "wash station"} lane: builds go on printers.`);
         return false;
@@ -219,6 +227,13 @@ export function FloorBoard({ canSchedule, canPropose, canApply }: FloorBoardProp
       const props = e.extendedProps as FloorEvent;
       const oldResource = info.oldEvent.getResources()[0]?.id ?? props.resource_id;
       const newResource = info.newResource?.id ?? oldResource;
+      if (props.kind !== "build") {
+        const r = await moveLaneBooking(props, newResource, e.start!.toISOString(), e.end?.toISOString());
+        setMessage({ tone: r.ok ? "success" : "danger", text: r.text });
+        if (!r.ok) info.revert();
+        await qc.invalidateQueries({ queryKey: ["floor"] });
+        return;
+      }
       const ok = await move(
         { build_id: e.id, code: props.title.split(" ")[0], version: props.version },
         { printer_id: newResource, starts_at: e.start!.toISOString() },
@@ -226,7 +241,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply }: FloorBoardProp
       );
       if (!ok) info.revert();
     },
-    [hint, move],
+    [hint, move, qc],
   );
 
   const onEventReceive = useCallback(
@@ -313,7 +328,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply }: FloorBoardProp
                 <div className="leading-tight">
                   <div className="font-semibold text-soot-800">{arg.resource.title}</div>
                   <div className="text-2xs text-soot-500">
-                    {r.kind === "printer" ? `${r.build_x_mm} × ${r.build_y_mm} × ${r.build_z_mm} mm` : "read-only here"}
+                    {r.kind === "printer" ? `${r.build_x_mm} × ${r.build_y_mm} × ${r.build_z_mm} mm` : (r.kind === "furnace" ? canFurnace : canWash) ? "drag booked ones" : "read-only here"}
                   </div>
                 </div>
               );

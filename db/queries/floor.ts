@@ -120,7 +120,7 @@ export async function loadPrinterLanes(db: Database, w: FloorWindow): Promise<La
   };
 }
 
-/** Wash stations and their batches in the window (read-only lanes for now). */
+/** Wash stations and their batches in the window; booked batches can be dragged (components/furnace/lane-interactions). */
 export async function loadWashLanes(db: Database, w: FloorWindow): Promise<LaneData> {
   const [stations, batches, blocks] = await Promise.all([
     db.selectFrom("wash_stations").select(["id", "name"]).where("active", "=", true).orderBy("name").execute(),
@@ -134,34 +134,35 @@ export async function loadWashLanes(db: Database, w: FloorWindow): Promise<LaneD
     maintenanceFor(db, "wash_station", w),
   ]);
   return {
-    resources: stations.map((s) => ({ id: s.id, kind: "wash_station", title: s.name, group: "Wash stations", editable: false })),
+    resources: stations.map((s) => ({ id: s.id, kind: "wash_station", title: s.name, group: "Wash stations", editable: true })),
     events: batches.map((b) => ({
       id: b.id, kind: "wash_batch", resource_id: b.wash_station_id!, title: `${b.code} · wash`, start: iso(b.starts_at!), end: iso(b.ends_at!),
-      state: b.state, version: b.version, editable: false,
+      state: b.state, version: b.version, editable: b.state === "scheduled",
     })),
     blocks,
   };
 }
 
-/** Furnaces and their runs in the window (read-only lanes for now). */
+/** Furnaces and their runs in the window; booked runs can be dragged (components/furnace/lane-interactions). */
 export async function loadFurnaceLanes(db: Database, w: FloorWindow): Promise<LaneData> {
-  const [furnaces, runs, blocks] = await Promise.all([
+  const [furnaces, runs, blocks, links] = await Promise.all([
     db.selectFrom("furnaces").select(["id", "name"]).where("active", "=", true).orderBy("name").execute(),
     db
       .selectFrom("furnace_runs as r")
       .innerJoin("sinter_profiles as p", "p.id", "r.profile_id")
-      .select(["r.id", "r.code", "r.furnace_id", "r.starts_at", "r.ends_at", "r.state", "r.version", "p.code as profile_code"])
+      .select(["r.id", "r.code", "r.furnace_id", "r.starts_at", "r.ends_at", "r.state", "r.version", "r.profile_id", "p.code as profile_code"])
       .where("r.furnace_id", "is not", null)
       .where("r.state", "in", ["scheduled", "running", "complete"])
       .where(sql<boolean>`tstzrange(r.starts_at, r.ends_at) && tstzrange(${w.from}::timestamptz, ${w.to}::timestamptz)`)
       .execute(),
     maintenanceFor(db, "furnace", w),
+    db.selectFrom("furnace_profiles").select(["furnace_id", "profile_id"]).execute(),
   ]);
   return {
-    resources: furnaces.map((f) => ({ id: f.id, kind: "furnace", title: f.name, group: "Furnaces", editable: false })),
+    resources: furnaces.map((f) => ({ id: f.id, kind: "furnace", title: f.name, group: "Furnaces", editable: true, profile_ids: links.filter((l) => l.furnace_id === f.id).map((l) => l.profile_id) })),
     events: runs.map((r) => ({
       id: r.id, kind: "furnace_run", resource_id: r.furnace_id!, title: `${r.code} · ${r.profile_code}`, start: iso(r.starts_at!), end: iso(r.ends_at!),
-      state: r.state, version: r.version, editable: false,
+      state: r.state, version: r.version, editable: r.state === "scheduled", profile_id: r.profile_id,
     })),
     blocks,
   };

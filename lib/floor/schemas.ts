@@ -36,6 +36,8 @@ export type FloorResource = {
   build_y_mm?: number;
   build_z_mm?: number;
   material_ids?: string[];
+  /** Furnaces: the sinter profiles they run (a run may only move to one of these). */
+  profile_ids?: string[];
 };
 
 export type FloorEvent = {
@@ -52,6 +54,8 @@ export type FloorEvent = {
   material_id?: string;
   failed?: boolean;
   unit_count?: number;
+  /** Furnace runs: their sinter profile. */
+  profile_id?: string;
 };
 
 export type FloorBlock = { id: string; resource_id: string; start: string; end: string; reason: string };

@@ -12,10 +12,10 @@ export default async function FloorPage() {
     <>
       <PageHeader
         title="Floor"
-        lead="Printers, wash stations and furnaces on one timeline. Drag an unscheduled build onto a printer, or move a booked one; wash and furnace lanes are shown for reference. Times are in your browser's time zone."
+        lead="Printers, wash stations and furnaces on one timeline. Drag an unscheduled build onto a printer, or move a booked one; booked wash batches and furnace runs move along their lanes the same way (their length is fixed by the wash or the profile). Times are in your browser's time zone."
       />
       <QueryProvider>
-        <FloorBoard canSchedule={can(user.role, "builds:schedule")} canPropose={can(user.role, "plan:propose")} canApply={can(user.role, "plan:apply")} />
+        <FloorBoard canSchedule={can(user.role, "builds:schedule")} canPropose={can(user.role, "plan:propose")} canApply={can(user.role, "plan:apply")} canWash={can(user.role, "wash:write")} canFurnace={can(user.role, "furnace:write")} />
       </QueryProvider>
     </>
   );
