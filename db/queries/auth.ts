@@ -41,8 +41,8 @@ export async function listRecentFailures(
     .where("created_at", ">", accountSince);
   let address = db.selectFrom("sign_in_attempts").select("created_at").where("ip", "=", ip).where("succeeded", "=", false).where("created_at", ">", since);
   if (beforeId !== undefined) {
-    account = account.where("id", "<", String(beforeId));
-    address = address.where("id", "<", String(beforeId));
+    account = account.where(sql<boolean>`id < ${Number(beforeId)}`);
+    address = address.where(sql<boolean>`id < ${Number(beforeId)}`);
   }
   const [a, b] = await Promise.all([account.execute(), address.execute()]);
   return { account: a.map((r) => new Date(r.created_at).getTime()), address: b.map((r) => new Date(r.created_at).getTime()) };
@@ -58,12 +58,12 @@ export async function insertProvisionalFailure(db: Executor, email: string, ip: 
 }
 
 export async function markAttemptSucceeded(db: Executor, id: number | string) {
-  await db.updateTable("sign_in_attempts").set({ succeeded: true }).where("id", "=", String(id)).execute();
+  await db.updateTable("sign_in_attempts").set({ succeeded: true }).where(sql<boolean>`id = ${Number(id)}`).execute();
 }
 
 /** A throttled attempt was never checked, so it does not count as a failure. */
 export async function deleteAttempt(db: Executor, id: number | string) {
-  await db.deleteFrom("sign_in_attempts").where("id", "=", String(id)).execute();
+  await db.deleteFrom("sign_in_attempts").where(sql<boolean>`id = ${Number(id)}`).execute();
 }
 
 /** Reset-link requests from one address in the window (known and unknown accounts alike). */
@@ -130,9 +130,27 @@ export async function listUserEvents(db: Executor, userId: string, limit = 20) {
 
 // Set-password tokens -------------------------------------------------------------------------
 
-/** Issuing a new link makes the older open links of the same kind useless. */
+/**
+ * Issuing a new link makes the older open links of the same kind useless, and withdraws their
+ * e-mails still waiting in the outbox (a relay that was down must not deliver a dead link later).
+ */
 export async function revokeOpenTokens(db: Executor, userId: string, kind: TokenKind) {
-  await db.updateTable("auth_tokens").set({ used_at: sql`now()` }).where("user_id", "=", userId).where("kind", "=", kind).where("used_at", "is", null).execute();
+  const revoked = await db
+    .updateTable("auth_tokens")
+    .set({ used_at: sql`now()` })
+    .where("user_id", "=", userId)
+    .where("kind", "=", kind)
+    .where("used_at", "is", null)
+    .returning("id")
+    .execute();
+  if (revoked.length === 0) return;
+  await db
+    .updateTable("notification_outbox")
+    .set({ status: "failed", last_error: "withdrawn: a newer link replaced this one, or the account changed" })
+    .where("kind", "=", kind === "invite" ? "invite" : "password_reset")
+    .where("status", "=", "pending")
+    .where("subject_key", "in", revoked.map((r) => r.id))
+    .execute();
 }
 
 export async function insertAuthToken(db: Executor, row: { user_id: string; kind: TokenKind; token_hash: string; expires_at: Date; created_by: string | null }) {
