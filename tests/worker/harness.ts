@@ -283,7 +283,9 @@ export type WorkerProc = { child: ChildProcess; logs: string[]; exited: Promise<
  * tsx wrapper) so that SIGKILL reaches the worker itself.
  */
 export async function startWorker(url: string, capture: Capture, env: Record<string, string> = {}): Promise<WorkerProc> {
-  const child = spawn(process.execPath, ["--import", "tsx", "worker/index.ts"], {
+  const root = path.resolve(import.meta.dirname, "../..");
+  const child = spawn(process.execPath, ["--import", "tsx", path.join(root, "worker/index.ts")], {
+    cwd: root,
     env: {
       ...process.env,
       DATABASE_URL: url,
