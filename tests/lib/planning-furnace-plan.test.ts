@@ -63,7 +63,14 @@ describe("planFurnaceRuns", () => {
     expect(Date.parse(ph.start)).toBeGreaterThanOrEqual(Date.parse(at(10)));
     // The last run ends at 5 h + 20 h + 20 h (two H13 runs) or after the 17-4PH run.
     expect(res.metrics.makespan_min).toBe(Math.max(...res.runs.map((r) => (Date.parse(r.end) - T0) / 60_000)));
-    const inst: FurnaceRunsInstance = { kind: "furnace-runs", name: "t", clearance_mm: 5, furnaces: [F("F1")], units: units.map((u) => ({ ...u, due: u.due! })) };
+    const f1 = F("F1");
+    const inst: FurnaceRunsInstance = {
+      kind: "furnace-runs",
+      name: "t",
+      clearance_mm: 5,
+      furnaces: [{ ...f1, tray_mm: [f1.tray_mm[0], f1.tray_mm[1]], profiles: [...f1.profiles] }],
+      units: units.map((u) => ({ ...u, footprint_mm: [u.footprint_mm[0], u.footprint_mm[1]], due: u.due! })),
+    };
     const placed = res.runs.map((r) => ({ furnace: r.furnace, profile: r.profile, placements: r.trays.flatMap((t) => t.placements.map((p) => ({ unit: p.unit, tray: t.index, x: p.x, y: p.y, rotated: p.rotated }))) }));
     expect(verifyRuns(inst, placed, res.unplaced).violations).toEqual([]);
   });
