@@ -5,8 +5,7 @@ import { AppError } from "@/lib/errors";
 import { judgePrinter, judgePrinters, type PrinterSpec, type PrinterVerdict } from "@/lib/builds/estimate";
 import type { BuildAction, CreateBuild, ScheduleBuild, UpdateBuild } from "@/lib/builds/schemas";
 import { scheduleAdvance } from "@/lib/jobs/advance";
-import { planPrinters } from "@/lib/floor/plan";
-import { nextStaffedTime } from "@/lib/process/time-zone";
+import { planFloor, staffedHoursFor } from "@/lib/floor/plan";
 import { getShopPlanning, listPrinterSpecs, listUnscheduledBuilds, printerBlockedFrom, unitSpecsForBuilds } from "./floor";
 
 type Trx = Transaction<DB>;
@@ -397,19 +396,10 @@ export async function proposePrinterPlan(db: Database, opts: { build_ids?: strin
   const drafts = await listUnscheduledBuilds(db, opts.build_ids);
   const { verdicts, printers, shop } = await verdictsForBuilds(db, drafts);
   const blocked = await printerBlockedFrom(db, now);
-  const staffed = shop.staffed_hours.length
-    ? (t: number) => {
-        try {
-          return nextStaffedTime(new Date(t), shop.staffed_hours, shop.time_zone).getTime();
-        } catch {
-          return t;
-        }
-      }
-    : undefined;
   const t0 = performance.now();
-  const result = planPrinters({
+  const result = planFloor({
     now: now.getTime(),
-    nextStart: staffed,
+    staffed: staffedHoursFor(shop.staffed_hours, shop.time_zone),
     printers: printers.map((p) => ({ id: p.id, blocked: blocked.get(p.id) ?? [] })),
     builds: drafts.map((b) => ({
       id: b.id,

@@ -73,7 +73,7 @@ export function judgePrinter(units: BuildUnitSpec[], materialId: string, printer
     };
   }
   const items: PlateItem[] = units.map((u) => ({ id: u.unit_id, label: u.serial, x_mm: u.green_x_mm, y_mm: u.green_y_mm, z_mm: u.green_z_mm }));
-  const layout = layoutPlate(items, { x_mm: printer.build_x_mm, y_mm: printer.build_y_mm }, clearanceMm);
+  const layout = layoutPlate(items, { x_mm: printer.build_x_mm, y_mm: printer.build_y_mm, z_mm: printer.build_z_mm }, clearanceMm);
   if (layout.unplaced.length) {
     const first = layout.unplaced[0];
     return {

@@ -1,9 +1,18 @@
 import { ComputationError } from "@/lib/errors";
+import { planPrinters } from "@/lib/planning/printer-plan";
+import { StaffedCalendar, type StaffedHours } from "@/lib/planning/staffed-hours";
+import type { WeeklyPattern } from "@/lib/process/time-zone";
 
-// Printer plan for the floor's "Propose plan": unscheduled builds onto compatible printers by
-// earliest due date (Jackson's rule), each to the printer on which it finishes first, in the
-// earliest gap that clears maintenance windows and the bookings already on the floor, starting
-// only when someone is on shift. Durations may differ per printer (deposition rates differ).
+// The floor's "Propose plan" on top of lib/planning/printer-plan (earliest due date list
+// scheduling with a local search). The floor knows more than that planner's instance format
+// holds, so it is translated:
+// - which printers can take a build was decided by the real plate packer and height check
+//   (lib/builds/estimate); each distinct set of such printers becomes one compatibility tag,
+//   passed as the planner's "material", and sizes are left neutral;
+// - print time differs per printer (deposition rates differ) while the planner takes one
+//   duration per build, so it plans with the longest, which is always safe, and each printer's
+//   sequence is then re-timed with the real duration on that printer. Re-timing in the planned
+//   order only ever moves a build earlier, so nothing the planner kept apart can overlap.
 // Times are UTC milliseconds; durations minutes.
 
 export type PlanPrinter = {
@@ -23,10 +32,8 @@ export type PlanInput = {
   now: number;
   printers: PlanPrinter[];
   builds: PlanBuild[];
-  /** Earliest instant ≥ t at which someone can start a build; identity when absent. */
-  nextStart?: (t: number) => number;
-  /** Give up on a build that cannot start within this horizon (default 120 days). */
-  horizonMs?: number;
+  /** Builds may only start in these hours; none = any time. */
+  staffed?: StaffedHours | null;
 };
 
 export type PlanItem = { build_id: string; printer_id: string; start: number; end: number; lateness_min: number };
@@ -36,108 +43,117 @@ export type PlanMetrics = {
   placed: number;
   /** Latest end minus now, minutes. */
   makespan_min: number;
-  /** A bound no plan can beat: the longer of the longest single build and the work spread evenly over the printers. */
+  /** No plan ends sooner: the longer of the longest build on its fastest printer and the work spread evenly. */
   makespan_lower_bound_min: number;
   max_lateness_min: number;
   total_lateness_min: number;
   late_count: number;
+  /** Moves the planner's local search made beyond plain earliest-due-date. */
+  search_moves: number;
 };
 export type PlanResult = { items: PlanItem[]; unplaced: PlanUnplaced[]; metrics: PlanMetrics };
 
 const MIN = 60_000;
+// A build without a due date is planned after every dated one.
+const NO_DUE_MS = 10 * 365 * 86_400_000;
 
-/** Earliest start ≥ t of a d-minute job that overlaps nothing in the sorted `blocked` list. */
-export function earliestGap(blocked: Array<[number, number]>, t: number, minutes: number, nextStart: (t: number) => number, limit: number): number | null {
+/** Earliest start ≥ t of a job of `minutes` that overlaps nothing in `blocked` (sorted by start). */
+export function earliestGap(blocked: Array<[number, number]>, t: number, minutes: number, nextStart: (t: number) => number, limit = Infinity): number | null {
   const d = minutes * MIN;
   let start = nextStart(t);
-  // blocked is sorted by start; skip what ends before the candidate start.
-  let i = 0;
   for (let guard = 0; guard < 100_000; guard++) {
     if (start > limit) return null;
-    while (i < blocked.length && blocked[i][1] <= start) i++;
-    let moved = false;
-    for (let j = i; j < blocked.length && blocked[j][0] < start + d; j++) {
-      if (blocked[j][1] > start) {
-        start = nextStart(blocked[j][1]);
-        moved = true;
-        break;
-      }
-    }
-    if (!moved) return start;
+    const hit = blocked.find(([s, e]) => s < start + d && e > start);
+    if (!hit) return start;
+    start = nextStart(hit[1]);
   }
   return null;
 }
 
-function insertSorted(list: Array<[number, number]>, iv: [number, number]) {
-  let lo = 0;
-  let hi = list.length;
-  while (lo < hi) {
-    const mid = (lo + hi) >> 1;
-    if (list[mid][0] < iv[0]) lo = mid + 1;
-    else hi = mid;
-  }
-  list.splice(lo, 0, iv);
+/** The shop's weekly shifts in its time zone, or none (then a build may start at any time). */
+export function staffedHoursFor(pattern: WeeklyPattern, timeZone: string): StaffedHours | null {
+  return pattern.length ? { pattern, timeZone } : null;
 }
 
-export function planPrinters(input: PlanInput): PlanResult {
+export function planFloor(input: PlanInput): PlanResult {
   const { now } = input;
   if (!Number.isFinite(now)) throw new ComputationError("the plan needs a valid start time", "now");
-  const nextStart = input.nextStart ?? ((t: number) => t);
-  const limit = now + (input.horizonMs ?? 120 * 86_400_000);
-  const lanes = new Map(input.printers.map((p) => [p.id, [...p.blocked].filter(([s, e]) => e > now && e > s).sort((a, b) => a[0] - b[0])]));
   for (const b of input.builds) {
     for (const [pid, m] of Object.entries(b.minutes)) {
       if (!(m > 0) || !Number.isFinite(m)) throw new ComputationError(`build ${b.id}: print time on ${pid} must be positive`, "minutes");
     }
   }
-  // Earliest due first; no due date goes last; a longer build first among equals.
-  const order = [...input.builds].sort((a, b) => {
-    const da = a.due ?? Infinity;
-    const db = b.due ?? Infinity;
-    if (da !== db) return da - db;
-    const ma = Math.min(...Object.values(a.minutes), Infinity);
-    const mb = Math.min(...Object.values(b.minutes), Infinity);
-    return mb - ma || a.id.localeCompare(b.id);
-  });
-  const items: PlanItem[] = [];
+  const printerIds = new Set(input.printers.map((p) => p.id));
   const unplaced: PlanUnplaced[] = [];
-  for (const b of order) {
-    let best: { printer_id: string; start: number; end: number } | null = null;
-    const candidates = Object.keys(b.minutes).filter((pid) => lanes.has(pid));
-    if (candidates.length === 0) {
-      unplaced.push({ build_id: b.id, reason: "no printer can take it (material, plate or build height)" });
-      continue;
-    }
-    for (const pid of candidates) {
-      const start = earliestGap(lanes.get(pid)!, now, b.minutes[pid], nextStart, limit);
-      if (start === null) continue;
-      const end = start + b.minutes[pid] * MIN;
-      if (!best || end < best.end || (end === best.end && pid < best.printer_id)) best = { printer_id: pid, start, end };
-    }
-    if (!best) {
-      unplaced.push({ build_id: b.id, reason: "no free slot on a compatible printer within the planning horizon" });
-      continue;
-    }
-    insertSorted(lanes.get(best.printer_id)!, [best.start, best.end]);
-    const lateness = b.due === null ? 0 : Math.max(0, (best.end - b.due) / MIN);
-    items.push({ build_id: b.id, ...best, lateness_min: lateness });
+  const plannable: Array<PlanBuild & { tag: string }> = [];
+  for (const b of input.builds) {
+    const takers = Object.keys(b.minutes).filter((p) => printerIds.has(p)).sort();
+    if (!takers.length) unplaced.push({ build_id: b.id, reason: "no printer can take it (material, plate or build height)" });
+    else plannable.push({ ...b, tag: takers.join("|") });
   }
-  const placedBuilds = order.filter((b) => items.some((i) => i.build_id === b.id));
-  const shortest = placedBuilds.map((b) => Math.min(...Object.values(b.minutes)));
-  const printersUsed = new Set(placedBuilds.flatMap((b) => Object.keys(b.minutes))).size || 1;
-  const lowerBound = shortest.length ? Math.max(Math.max(...shortest), shortest.reduce((s, m) => s + m, 0) / printersUsed) : 0;
+  const iso = (t: number) => new Date(t).toISOString();
+  const result = planPrinters(
+    {
+      kind: "printer-plan",
+      name: "floor",
+      now: iso(now),
+      printers: input.printers.map((p) => {
+        const tags = [...new Set(plannable.filter((b) => b.tag.split("|").includes(p.id)).map((b) => b.tag))];
+        return {
+          id: p.id,
+          materials: tags.length ? tags : ["-"],
+          build_volume_mm: [1, 1, 1],
+          blocked: p.blocked.filter(([s, e]) => e > now && e > s).map(([s, e]) => ({ start: iso(s), end: iso(e) })),
+        };
+      }),
+      builds: plannable.map((b) => ({
+        id: b.id,
+        material: b.tag,
+        size_mm: [1, 1, 1],
+        duration_min: Math.max(...b.tag.split("|").map((p) => b.minutes[p])),
+        due: iso(b.due ?? now + NO_DUE_MS),
+      })),
+    },
+    { staffed_hours: input.staffed ?? null },
+  );
+  for (const u of result.unplaced) unplaced.push({ build_id: u.build, reason: u.reason });
+
+  const cal = input.staffed ? new StaffedCalendar(input.staffed, now) : null;
+  const nextStart = (t: number) => (cal ? cal.nextStart(t) : t);
+  const byId = new Map(plannable.map((b) => [b.id, b]));
+  const items: PlanItem[] = [];
+  for (const p of input.printers) {
+    const blocked = p.blocked.filter(([s, e]) => e > now && e > s).sort((a, b) => a[0] - b[0]);
+    const mine = result.assignments.filter((a) => a.printer === p.id).sort((a, b) => Date.parse(a.start) - Date.parse(b.start));
+    let cursor = now;
+    for (const a of mine) {
+      const b = byId.get(a.build)!;
+      const minutes = b.minutes[p.id];
+      const planned = Date.parse(a.start);
+      const start = Math.min(planned, earliestGap(blocked, cursor, minutes, nextStart) ?? planned);
+      const end = start + minutes * MIN;
+      cursor = end;
+      items.push({ build_id: b.id, printer_id: p.id, start, end, lateness_min: b.due === null ? 0 : Math.max(0, (end - b.due) / MIN) });
+    }
+  }
+  items.sort((a, b) => a.start - b.start || a.printer_id.localeCompare(b.printer_id));
+
+  const placed = items.map((i) => byId.get(i.build_id)!);
+  const fastest = placed.map((b) => Math.min(...Object.values(b.minutes)));
+  const printersUsable = new Set(placed.flatMap((b) => Object.keys(b.minutes).filter((p) => printerIds.has(p)))).size || 1;
   const lateness = items.map((i) => i.lateness_min);
   return {
-    items: items.sort((a, b) => a.start - b.start || a.printer_id.localeCompare(b.printer_id)),
+    items,
     unplaced,
     metrics: {
       builds: input.builds.length,
       placed: items.length,
       makespan_min: items.length ? (Math.max(...items.map((i) => i.end)) - now) / MIN : 0,
-      makespan_lower_bound_min: lowerBound,
+      makespan_lower_bound_min: fastest.length ? Math.max(Math.max(...fastest), fastest.reduce((s, m) => s + m, 0) / printersUsable) : 0,
       max_lateness_min: lateness.length ? Math.max(...lateness) : 0,
       total_lateness_min: lateness.reduce((s, l) => s + l, 0),
       late_count: lateness.filter((l) => l > 0).length,
+      search_moves: result.moves,
     },
   };
 }

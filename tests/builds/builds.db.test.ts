@@ -75,9 +75,11 @@ describe("builds", () => {
 
   it("fails a running build with a reason: units scrapped as print failures and replaced by planned units", async () => {
     const { build, part } = await makeDraftBuild(tech, db, { material: "316L", quantity: 2 });
-    const s = await api(`/api/builds/${build.id}/schedule`, { method: "PATCH", cookie: tech, body: { version: build.version, printer_id: printer.id, starts_at: hoursFromNow(-6).toISOString() } });
+    const s = await api(`/api/builds/${build.id}/schedule`, { method: "PATCH", cookie: tech, body: { version: build.version, printer_id: printer.id, starts_at: hoursFromNow(30).toISOString() } });
     expect(s.status, JSON.stringify(s.body)).toBe(200);
+    // booked ahead so that the worker's end-of-booking job cannot move it on meanwhile
     const started = await act(build.id, { action: "start", version: s.body.build.version });
+    expect(started.status, JSON.stringify(started.body)).toBe(200);
     const noReason = await act(build.id, { action: "fail", version: started.body.build.version });
     expect(noReason.status).toBe(422);
     expect(noReason.body.error.fieldErrors.reason).toBeTruthy();

@@ -1,14 +1,18 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
 import { layoutPlate } from "@/lib/builds/plate";
+import { FIT_TOLERANCE_MM } from "@/lib/packing/trays";
 import { judgePrinter, type BuildUnitSpec, type PrinterSpec } from "@/lib/builds/estimate";
 import { buildPrintMinutes } from "@/lib/process/print-time";
 
-// Plate layout and printer verdicts: footprints never overlap, keep the clearance to each
-// other and to the edge, and a printer is refused for the reason that applies.
+// Plate layout (lib/packing/plate behind the build's own shape) and printer verdicts: footprints
+// never overlap, keep the clearance to each other and to the edge, and a printer is refused for
+// the reason that applies.
 
+// The packer in lib/packing allows itself a fit tolerance of FIT_TOLERANCE_MM (0.01 mm).
+const TOL = FIT_TOLERANCE_MM + 1e-6;
 const overlaps = (a: { x_mm: number; y_mm: number; w_mm: number; h_mm: number }, b: typeof a, gap: number) =>
-  a.x_mm < b.x_mm + b.w_mm + gap - 1e-6 && b.x_mm < a.x_mm + a.w_mm + gap - 1e-6 && a.y_mm < b.y_mm + b.h_mm + gap - 1e-6 && b.y_mm < a.y_mm + a.h_mm + gap - 1e-6;
+  a.x_mm < b.x_mm + b.w_mm + gap - TOL && b.x_mm < a.x_mm + a.w_mm + gap - TOL && a.y_mm < b.y_mm + b.h_mm + gap - TOL && b.y_mm < a.y_mm + a.h_mm + gap - TOL;
 
 describe("layoutPlate", () => {
   it("places four 100 × 100 mm footprints on a 215 × 215 mm plate with 5 mm clearance, and not on a 214 mm one", () => {
@@ -44,10 +48,10 @@ describe("layoutPlate", () => {
           const r = layoutPlate(items, { x_mm: 300, y_mm: 250 }, clearance);
           expect(r.placements.length + r.unplaced.length).toBe(items.length);
           for (const p of r.placements) {
-            expect(p.x_mm).toBeGreaterThanOrEqual(clearance - 1e-6);
-            expect(p.y_mm).toBeGreaterThanOrEqual(clearance - 1e-6);
-            expect(p.x_mm + p.w_mm).toBeLessThanOrEqual(300 - clearance + 1e-6);
-            expect(p.y_mm + p.h_mm).toBeLessThanOrEqual(250 - clearance + 1e-6);
+            expect(p.x_mm).toBeGreaterThanOrEqual(clearance - TOL);
+            expect(p.y_mm).toBeGreaterThanOrEqual(clearance - TOL);
+            expect(p.x_mm + p.w_mm).toBeLessThanOrEqual(300 - clearance + TOL);
+            expect(p.y_mm + p.h_mm).toBeLessThanOrEqual(250 - clearance + TOL);
           }
           for (let i = 0; i < r.placements.length; i++) {
             for (let j = i + 1; j < r.placements.length; j++) expect(overlaps(r.placements[i], r.placements[j], clearance)).toBe(false);

@@ -1,9 +1,10 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
-import { earliestGap, planPrinters } from "@/lib/floor/plan";
+import { earliestGap, planFloor as planPrinters, staffedHoursFor } from "@/lib/floor/plan";
 
-// The floor's printer plan: earliest due date first, each build where it ends soonest, never
-// over a blocked interval, never two on one printer at once.
+// The floor's printer plan (lib/planning/printer-plan behind the floor's translation): earliest
+// due date first, never over a blocked interval, never two on one printer at once, each build
+// timed with its own print time on the printer it got.
 
 const H = 3_600_000;
 const id = (t: number) => t;
@@ -34,15 +35,41 @@ describe("planPrinters", () => {
     });
     expect(r.items.map((i) => i.build_id)).toEqual(["early-due", "late-due", "no-due"]);
     expect(r.metrics).toMatchObject({ placed: 3, late_count: 0, max_lateness_min: 0, makespan_min: 210, makespan_lower_bound_min: 210 });
+    expect(r.items.map((i) => [i.start / 60_000, i.end / 60_000])).toEqual([[0, 120], [120, 180], [180, 210]]);
   });
 
-  it("prefers the faster printer and reports lateness", () => {
+  it("plans with the longest print time, then re-times each printer with its own, so builds move up", () => {
     const r = planPrinters({
       now: 0,
-      printers: [{ id: "slow", blocked: [] }, { id: "fast", blocked: [[0, H]] }],
-      builds: [{ id: "b", due: 90 * 60_000, minutes: { slow: 240, fast: 60 } }],
+      printers: [{ id: "fast", blocked: [] }, { id: "slow", blocked: [[0, 100 * H]] }],
+      builds: [
+        { id: "x", due: 3 * H, minutes: { fast: 60, slow: 240 } },
+        { id: "y", due: 4 * H, minutes: { fast: 60, slow: 240 } },
+      ],
     });
-    expect(r.items[0]).toMatchObject({ printer_id: "fast", start: H, end: 2 * H, lateness_min: 30 });
+    expect(r.items).toEqual([
+      { build_id: "x", printer_id: "fast", start: 0, end: H, lateness_min: 0 },
+      { build_id: "y", printer_id: "fast", start: H, end: 2 * H, lateness_min: 0 },
+    ]);
+  });
+
+  it("reports lateness against the due date", () => {
+    const r = planPrinters({ now: 0, printers: [{ id: "p", blocked: [[0, H]] }], builds: [{ id: "b", due: 90 * 60_000, minutes: { p: 60 } }] });
+    expect(r.items[0]).toMatchObject({ printer_id: "p", start: H, end: 2 * H, lateness_min: 30 });
+    expect(r.metrics).toMatchObject({ late_count: 1, max_lateness_min: 30 });
+  });
+
+  it("starts builds only in staffed hours", () => {
+    // Monday 2026-11-30 00:00 UTC; one shift on Mondays 08:00 to 16:00 UTC
+    const monday = Date.parse("2026-11-30T00:00:00Z");
+    const staffed = staffedHoursFor([{ day: 1, start: "08:00", end: "16:00" }], "UTC");
+    const r = planPrinters({ now: monday, staffed, printers: [{ id: "p", blocked: [] }], builds: [{ id: "a", due: null, minutes: { p: 600 } }, { id: "b", due: null, minutes: { p: 60 } }] });
+    for (const item of r.items) {
+      const hour = new Date(item.start).getUTCHours() + new Date(item.start).getUTCMinutes() / 60;
+      expect(new Date(item.start).getUTCDay()).toBe(1);
+      expect(hour >= 8 && hour < 16).toBe(true);
+    }
+    expect(staffedHoursFor([], "UTC")).toBeNull();
   });
 
   it("leaves a build no printer can take unplaced, with the reason", () => {
