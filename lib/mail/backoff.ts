@@ -11,7 +11,7 @@ export function retryDelaySeconds(attempts: number, policy: BackoffPolicy = DEFA
   return Math.min(policy.maxSeconds, policy.baseSeconds * 2 ** Math.min(n - 1, 30));
 }
 
-export function backoffFromEnv(env: NodeJS.ProcessEnv = process.env): BackoffPolicy {
+export function backoffFromEnv(env: Record<string, string | undefined> = process.env): BackoffPolicy {
   const base = Number(env.HEARTH_MAIL_BACKOFF_SECONDS);
   const max = Number(env.HEARTH_MAIL_BACKOFF_MAX_SECONDS);
   const baseSeconds = Number.isFinite(base) && base > 0 ? base : DEFAULT_BACKOFF.baseSeconds;
