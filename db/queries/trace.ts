@@ -129,7 +129,18 @@ export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitT
     actor: e.actor_name ?? (e.actor_id ? null : "worker"),
     ref: e.entity_id,
   }));
+  // An inspection recorded through the app has its own event; older records only their row.
+  const logged = new Set<string>();
+  for (const [k, e] of events.entries()) {
+    const inspectionId = (e.data as { inspection_id?: string } | null)?.inspection_id;
+    if (e.kind === "inspection" && inspectionId) {
+      logged.add(inspectionId);
+      const passed = (e.data as { passed?: boolean }).passed;
+      timeline[k] = { ...timeline[k], source: "inspection", title: passed ? "inspection passed" : "inspection failed", detail: passed ? null : timeline[k].detail };
+    }
+  }
   for (const i of inspections) {
+    if (logged.has(i.id)) continue;
     timeline.push({
       at: i.created_at,
       source: "inspection",
