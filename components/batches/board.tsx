@@ -327,6 +327,7 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
         <SuggestPanel
           board={data}
           role={role}
+          profileId={filters.profile || undefined}
           onClose={() => setShowSuggest(false)}
           onApplied={(text) => {
             setShowSuggest(false);

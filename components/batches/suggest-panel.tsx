@@ -11,11 +11,11 @@ import { duration, shopTime, slackWords } from "./format";
 
 type Proposal = SuggestResult & { id: string; planned_from: string; current: { wash_batches: number; furnace_runs: number }; server_ms: number };
 
-export type SuggestPanelProps = { board: Board; role: Role; onClose: () => void; onApplied: (message: string) => void };
+export type SuggestPanelProps = { board: Board; role: Role; profileId?: string; onClose: () => void; onApplied: (message: string) => void };
 
-export function SuggestPanel({ board, role, onClose, onApplied }: SuggestPanelProps) {
+export function SuggestPanel({ board, role, profileId, onClose, onApplied }: SuggestPanelProps) {
   const [error, setError] = useState<string | null>(null);
-  const suggest = useMutation({ mutationFn: () => sendJson<Proposal>("/api/batches/suggest", "POST", { wash: true, furnace: true }) });
+  const suggest = useMutation({ mutationFn: () => sendJson<Proposal>("/api/batches/suggest", "POST", { wash: true, furnace: true, ...(profileId ? { profile_ids: [profileId] } : {}) }) });
   const apply = useMutation({
     mutationFn: (id: string) => sendJson<{ wash_batches: string[]; furnace_runs: string[] }>("/api/batches/suggest/apply", "POST", { proposal_id: id }),
     onSuccess: (r) => onApplied(`Booked ${r.furnace_runs.length} furnace run${r.furnace_runs.length === 1 ? "" : "s"} and ${r.wash_batches.length} wash batch${r.wash_batches.length === 1 ? "" : "es"}.`),
@@ -44,7 +44,10 @@ export function SuggestPanel({ board, role, onClose, onApplied }: SuggestPanelPr
       <header className="flex flex-wrap items-start justify-between gap-3">
         <div>
           <h2 className="font-display text-lg font-semibold text-soot-900">Suggested batches</h2>
-          <p className="text-xs text-soot-500">Nothing is booked until you accept. Units already in open batches and runs stay where they are.</p>
+          <p className="text-xs text-soot-500">
+            Nothing is booked until you accept. Units already in open batches and runs stay where they are.
+            {profileId ? ` Only units for ${board.profiles.find((p) => p.id === profileId)?.label ?? "the chosen profile"}, as the board is filtered.` : ""}
+          </p>
         </div>
         <button type="button" onClick={dismiss} className="rounded border border-soot-200 px-2.5 py-1 text-xs text-soot-700 hover:bg-soot-100">
           Dismiss

@@ -440,11 +440,18 @@ export type Proposal = SuggestResult & {
  * Computes and stores a proposal for the units waiting now. The route and the benchmark both
  * call this, so the benchmark times exactly what a person waits for.
  */
-export async function proposeBatches(db: Database, opts: { wash: boolean; furnace: boolean; horizon_hours: number }, actorId: string | null, now = new Date()): Promise<Proposal> {
+export async function proposeBatches(
+  db: Database,
+  opts: { wash: boolean; furnace: boolean; horizon_hours: number; profile_ids?: string[] },
+  actorId: string | null,
+  now = new Date(),
+): Promise<Proposal> {
   const t0 = performance.now();
   const ctx = await loadShopContext(db, now);
   const horizon = new Date(now.getTime() + opts.horizon_hours * 3_600_000);
-  const [washUnits, furnaceUnits, busy, open] = await Promise.all([
+  const only = opts.profile_ids?.length ? new Set(opts.profile_ids) : null;
+  const keep = (u: BoardUnit) => !only || (u.profile_id !== null && only.has(u.profile_id));
+  const [washAll, furnaceAll, busy, open] = await Promise.all([
     opts.wash ? listBoardUnits(db, ctx, { kind: "waiting_wash" }) : Promise.resolve([]),
     opts.furnace ? listBoardUnits(db, ctx, { kind: "waiting_furnace", horizon }) : Promise.resolve([]),
     busyIntervals(db, now),
@@ -453,6 +460,8 @@ export async function proposeBatches(db: Database, opts: { wash: boolean; furnac
       db.selectFrom("furnace_runs").select((eb) => eb.fn.countAll<number>().as("n")).where("state", "in", ["draft", "scheduled"]).executeTakeFirstOrThrow(),
     ]),
   ]);
+  const washUnits = washAll.filter(keep);
+  const furnaceUnits = furnaceAll.filter(keep);
   const result = suggestBatches({
     now,
     staffing: ctx.staffing,

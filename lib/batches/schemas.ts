@@ -93,6 +93,8 @@ export const suggestSchema = z.object({
   furnace: z.boolean().default(true),
   /** Also plan units still washing whose wash ends within this many hours. */
   horizon_hours: z.coerce.number().min(0).max(24 * 14).default(48),
+  /** Only units whose material's default profile is one of these (the board's profile filter). */
+  profile_ids: z.array(id).max(50).optional(),
 });
 
 export const applyProposalSchema = z.object({ proposal_id: id });
