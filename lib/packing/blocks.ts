@@ -71,6 +71,8 @@ export function buildBlocks(
   grow: number,
   matchTol: number,
   fitTol: number,
+  /** "unique": join two blocks only when each is the other's sole partner (no guessing). */
+  mode: "greedy" | "unique" = "greedy",
 ): Block[] {
   const near = (x: number, y: number) => Math.abs(x - y) <= matchTol;
   const fits = (a: number, b: number) => (a <= W + fitTol && b <= D + fitTol) || (a <= D + fitTol && b <= W + fitTol);
@@ -95,13 +97,10 @@ export function buildBlocks(
     for (const s of sides(b)) index.get(Math.round(s / bucket))?.delete(id);
     blocks.delete(id);
   };
-  const queue: number[] = [];
-  for (const it of items) queue.push(add(singleBlock(it, grow)));
-  while (queue.length > 0) {
-    const id = queue.pop()!;
-    const a = blocks.get(id);
-    if (!a) continue;
-    let best = null as { j: number; si: "w" | "h"; sj: "w" | "h"; completes: boolean } | null;
+  type Join = { j: number; si: "w" | "h"; sj: "w" | "h"; completes: boolean };
+  const partners = (id: number): Join[] => {
+    const a = blocks.get(id)!;
+    const out: Join[] = [];
     for (const si of ["w", "h"] as const) {
       const s = a[si];
       const other = si === "w" ? a.h : a.w;
@@ -117,10 +116,26 @@ export function buildBlocks(
             const fullSide = near(s, W) || near(s, D);
             const completes = (near(s, W) && near(sum, D)) || (near(s, D) && near(sum, W));
             if (fullSide && !completes) continue;
-            if (!best || (completes && !best.completes)) best = { j, si, sj, completes };
+            if (!out.some((x) => x.j === j && x.si === si && x.sj === sj)) out.push({ j, si, sj, completes });
           }
         }
-        if (best?.completes) break;
+      }
+    }
+    return out;
+  };
+  const queue: number[] = [];
+  for (const it of items) queue.push(add(singleBlock(it, grow)));
+  while (queue.length > 0) {
+    const id = queue.pop()!;
+    const a = blocks.get(id);
+    if (!a) continue;
+    const mine = partners(id);
+    let best: Join | undefined = mine.find((x) => x.completes);
+    if (!best && mine.length > 0) {
+      if (mode === "greedy") best = mine[0];
+      else if (new Set(mine.map((x) => x.j)).size === 1) {
+        const theirs = partners(mine[0].j);
+        if (theirs.every((x) => x.j === id)) best = mine[0];
       }
     }
     if (!best) continue;
@@ -128,9 +143,14 @@ export function buildBlocks(
     const left = best.si === "h" ? a : turnBlock(a);
     const b = blocks.get(best.j)!;
     const right = best.sj === "h" ? b : turnBlock(b);
+    const touched = new Set<number>();
+    for (const x of [a, b]) for (const s of sides(x)) for (const kk of [-1, 0, 1]) for (const j of index.get(Math.round(s / bucket) + kk) ?? []) touched.add(j);
     remove(id);
     remove(best.j);
-    queue.push(add(join(left, right, false)));
+    const joined = add(join(left, right, false));
+    // Blocks that competed for these sides may now have a single partner left.
+    if (mode === "unique") for (const j of touched) if (blocks.has(j)) queue.push(j);
+    queue.push(joined);
   }
   const out = completeStrips([...blocks.values()], W, D, matchTol);
   return out.sort((p, q) => q.w * q.h - p.w * p.h);

@@ -6,7 +6,7 @@
 
 import { GEOMETRY_EPS, MaxRectsBin, type PlacementRule } from "./rectangles";
 import { buildBlocks, singleBlock, turnBlock, type Block } from "./blocks";
-import { fillTrayExactly } from "./tile-search";
+import { fillTrayExactly, type TilePlacement } from "./tile-search";
 import { FIT_TOLERANCE_MM, type FurnaceModel, type ItemModel, type ProfileModel } from "./tray-model";
 
 export interface PlacedItem {
@@ -155,12 +155,12 @@ export type ConstructConfig =
   | { kind: "dot"; rule: PlacementRule }
   | { kind: "tray"; attempts: { order: ItemModel[]; rule: PlacementRule }[]; exact?: ExactSearch };
 
-/** Shared across a profile's constructions: the exact search is dropped once it has failed. */
+/** Shared across one construction: per furnace, the exact search is dropped once it has failed. */
 export interface ExactSearch {
-  enabled: boolean;
   workBudget: number;
-  /** Blocks of the units still free, kept between trays of one construction. */
-  blocks?: Block[];
+  disabled: Set<number>;
+  /** Blocks per furnace and joining mode, built once and reused while their units stay free. */
+  blocks: Map<string, Block[]>;
 }
 
 function passFill(run: RunState, order: readonly ItemModel[], used: Uint8Array, rule: PlacementRule, trays: TrayChoice): RunState {
@@ -188,11 +188,26 @@ function exactTray(f: FurnaceModel, free: readonly ItemModel[], massLeft: number
   const singles = free.map((it) => singleBlock(it, tol));
   // Blocks built once per construction; a block that lost a unit to a tray is dropped.
   const freeSet = new Set(free);
-  exact.blocks ??= buildBlocks(free, f.W, f.D, tol, 0.003, tol);
-  const blocks = exact.blocks.filter((b) => b.parts.every((p) => freeSet.has(p.item)));
-  const inBlocks = new Set(blocks.flatMap((b) => b.parts.map((p) => p.item)));
-  for (const it of free) if (!inBlocks.has(it)) blocks.push(singleBlock(it, tol));
-  const tiling = (blocks.length < singles.length ? attempt(blocks) : null) ?? attempt(singles);
+  const blocksOf = (mode: "greedy" | "unique"): Block[] => {
+    const key = `${f.idx}:${mode}`;
+    let built = exact.blocks.get(key);
+    if (!built) {
+      built = buildBlocks(free, f.W, f.D, tol, 0.003, tol, mode);
+      exact.blocks.set(key, built);
+    }
+    const blocks = built.filter((b) => b.parts.every((p) => freeSet.has(p.item)));
+    const inBlocks = new Set(blocks.flatMap((b) => b.parts.map((p) => p.item)));
+    for (const it of free) if (!inBlocks.has(it)) blocks.push(singleBlock(it, tol));
+    return blocks;
+  };
+  // Greedy joins rebuild the most; joins without guessing are the fallback; single pieces last.
+  let tiling: TilePlacement<Block>[] | null = null;
+  for (const mode of ["greedy", "unique"] as const) {
+    const blocks = blocksOf(mode);
+    if (blocks.length < singles.length) tiling = attempt(blocks);
+    if (tiling) break;
+  }
+  tiling ??= attempt(singles);
   if (!tiling) return null;
   const out: PlacedItem[] = [];
   for (const p of tiling) {
@@ -222,7 +237,7 @@ function trayBestOfFill(
 ): RunState {
   const run = new RunState(f, minSide);
   for (let t = 0; t < f.trays; t++) {
-    if (exact?.enabled) {
+    if (exact && !exact.disabled.has(f.idx)) {
       const free = attempts[0].order.filter(
         (it) => !used[it.local] && !run.members.has(it) && it.eligibleMask.has(f.idx),
       );
@@ -236,7 +251,7 @@ function trayBestOfFill(
         run.bins[t] = bin;
         continue;
       }
-      exact.enabled = false;
+      exact.disabled.add(f.idx);
     }
     let bestBin: MaxRectsBin | null = null;
     let bestPlaced: PlacedItem[] = [];
@@ -554,7 +569,7 @@ export function solveProfile(pm: ProfileModel, options: SolveOptions): RunState[
     { kind: "pass", order: orders.sum, rule: "contact", trays: "first" },
     {
       kind: "tray",
-      exact: exactBudget > 0 ? { enabled: true, workBudget: exactBudget } : undefined,
+      exact: exactBudget > 0 ? { workBudget: exactBudget, disabled: new Set(), blocks: new Map() } : undefined,
       attempts: [
         { order: orders.area, rule: "short-side" },
         { order: orders.area, rule: "contact" },
