@@ -94,8 +94,7 @@ describe("user administration in a browser", () => {
     await form.getByRole("button", { name: "Create and send invitation" }).click();
     await expect(a.getByTestId("users-flash").textContent()).resolves.toContain(`${name} has an account as Furnace operator. The e-mail has been sent.`);
     const row = a.getByTestId(`user-row-${email}`);
-    await row.waitFor();
-    await expect(row.textContent()).resolves.toContain("Invited");
+    await row.getByText("Invited", { exact: true }).waitFor();
     await screenshot(a, "auth-users-admin");
 
     // the invitation, as the capture server received it
@@ -143,7 +142,7 @@ describe("user administration in a browser", () => {
     await row2.getByRole("button", { name: "Deactivate" }).click();
     await row2.getByRole("button", { name: "Confirm: deactivate" }).click();
     await expect(a.getByTestId("users-flash").textContent()).resolves.toContain("is deactivated; their sessions have ended.");
-    await expect(a.getByTestId(`user-row-${email}`).textContent()).resolves.toContain("Deactivated");
+    await a.getByTestId(`user-row-${email}`).getByText("Deactivated", { exact: true }).waitFor();
     await a.getByTestId(`user-row-${email}`).getByRole("button", { name: "History" }).click();
     await a.getByText("Invitation sent").first().waitFor();
     await screenshot(a, "auth-users-deactivated");

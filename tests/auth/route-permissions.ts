@@ -62,6 +62,7 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/parts/[id]/geometry": { POST: "geometry:upload" },
   "/api/parts/import": { POST: "parts:write" },
   "/api/units": { GET: "shop:read" },
+  "/api/units/[id]/trace": { GET: "shop:read" },
   "/api/files/[id]": { GET: "shop:read" },
   "/api/files/[id]/content": { GET: "shop:read" },
 
