@@ -1,8 +1,11 @@
-// Builds furnace runs for one sinter profile. Each run is filled from all waiting units (so for
-// one tray and one resource this is First Fit Decreasing, Dósa's 11/9·OPT + 6/9 bound applies),
-// several orderings and placement rules are tried and the fewest runs kept, then the weakest run
-// is emptied into the others where they have room. Among equal run counts a due-date-first
-// construction wins when it keeps the count, so urgent units go into the first runs.
+// Builds furnace runs for one sinter profile. Runs are filled one at a time from all waiting units
+// (for one tray and one resource that is First Fit Decreasing, with Dósa's 11/9·OPT + 6/9 bound),
+// on the furnace where the run takes the most work. Several constructions are tried (orderings
+// with maxrects rules, a dot-product vector-packing rule, and tray-by-tray filling that first
+// looks for a waste-free tray), each followed by emptying the weakest run into the others where
+// they have room; the fewest runs win, and the search stops once a construction meets the lower
+// bound. A due-date-first construction always runs too and wins ties on the run count, so urgent
+// units go into the first runs.
 
 import { GEOMETRY_EPS, MaxRectsBin, type PlacementRule } from "./rectangles";
 import { buildBlocks, singleBlock, turnBlock, type Block } from "./blocks";
