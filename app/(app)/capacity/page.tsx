@@ -1,13 +1,23 @@
+import { CapacityBoard } from "@/components/capacity/capacity-board";
 import { PageHeader } from "@/components/ui/page-header";
-import { NotLanded } from "@/components/ui/not-landed";
+import { getDb } from "@/db/client";
+import { loadShopClock } from "@/db/queries/capacity";
+import { defaultRange } from "@/lib/capacity/summary";
+import { formatLocalDate, localDateOf } from "@/lib/process/time-zone";
+import { requirePageUser } from "@/lib/auth/session";
 
 export const metadata = { title: "Capacity" };
 
-export default function Page() {
+export default async function CapacityPage() {
+  await requirePageUser("capacity:read");
+  const clock = await loadShopClock(getDb());
+  const now = new Date();
   return (
     <>
-      <PageHeader title="Capacity" lead="Utilization, work in progress and the orders at risk." />
-      <NotLanded what="The capacity view" />
+      <PageHeader title="Capacity" lead="Can the shop keep its promises? Late and at-risk orders, how busy each printer, wash station and furnace is, what is booked ahead and what came out." />
+      <div className="px-8 py-6">
+        <CapacityBoard initialRange={defaultRange(now, clock.time_zone)} today={formatLocalDate(localDateOf(now.getTime(), clock.time_zone))} />
+      </div>
     </>
   );
 }
