@@ -66,6 +66,14 @@ describe("each demo role in a browser", () => {
     await alert.waitFor();
     expect(await alert.textContent()).toBe("That e-mail address and password do not match an active account.");
     await screenshot(page, "auth-sign-in");
+    await page.getByRole("link", { name: "Forgot your password?" }).click();
+    await page.waitForURL(/\/forgot-password$/);
+    await page.getByLabel("E-mail").fill(`nobody-${Date.now()}@test.hearth.test`);
+    await page.getByRole("button", { name: "Send me a link" }).click();
+    const answer = page.locator("form [role=status]");
+    await answer.waitFor();
+    expect(await answer.textContent()).toMatch(/^If that address belongs to an active account, a link to set a new password is on its way/);
+    await screenshot(page, "auth-forgot-password");
     await page.close();
   });
 });
