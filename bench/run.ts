@@ -217,9 +217,16 @@ async function runSections(only: string | undefined): Promise<void> {
   const rows: BenchRow[] = [];
   for (const s of chosen) {
     const t0 = performance.now();
-    const got = await s.run();
-    rows.push(...got);
-    console.error(`${s.name}: ${got.length} rows in ${round((performance.now() - t0) / 1000, 1)} s`);
+    try {
+      const got = await s.run();
+      rows.push(...got);
+      console.error(`${s.name}: ${got.length} rows in ${round((performance.now() - t0) / 1000, 1)} s`);
+    } catch (err) {
+      // One broken section (say, no database) must not hide the others' figures.
+      const message = err instanceof Error ? err.message : String(err);
+      console.error(`${s.name}: failed: ${message}`);
+      rows.push({ section: s.name, name: "section failed", metric: message.slice(0, 80), value: null, ok: false });
+    }
   }
   printTable(
     ["section", "name", "metric", "value", "target", "ok", "ms"],
