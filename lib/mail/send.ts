@@ -32,6 +32,10 @@ export function outboxMessageId(id: string, from = getEnv().MAIL_FROM): string {
  */
 export async function sendOutboxRow(db: Database, id: string): Promise<SendOutcome> {
   return db.transaction().execute(async (trx) => {
+    // Between the relay's acceptance and this commit a crash means a second send; not waiting
+    // for the WAL flush keeps that window short. A database crash that loses the commit only
+    // brings the same second send, never a lost message.
+    await sql`set local synchronous_commit = off`.execute(trx);
     const row = await trx
       .selectFrom("notification_outbox")
       .select(["id", "status", "recipient_email", "subject", "text_body", "html_body", "attempts", "kind", "subject_key"])
