@@ -53,7 +53,7 @@ const pct = (xs: number[], p: number) => {
 };
 const r1 = (x: number) => Math.round(x * 10) / 10;
 
-async function freshDatabase(): Promise<{ url: string; drop: () => Promise<void> }> {
+export async function freshDatabase(): Promise<{ url: string; drop: () => Promise<void> }> {
   const base = new URL(process.env.DATABASE_URL ?? "postgres://postgres@127.0.0.1:54329/hearth");
   const admin = new URL(base);
   admin.pathname = "/postgres";
@@ -80,7 +80,7 @@ function weekStart(t: number): number {
   return d.getTime() - d.getUTCDay() * 24 * HOUR;
 }
 
-async function seedFloor(db: Database): Promise<{ from: number; printers: number; builds: number }> {
+export async function seedFloor(db: Database): Promise<{ from: number; printers: number; builds: number }> {
   await seedDemoShop(db);
   const rand = rng(5);
   const materials = await db.selectFrom("materials").select("id").execute();
@@ -228,7 +228,7 @@ export const section: BenchSection = {
       console.log(`[floor] ${seeded.builds} builds on ${seeded.printers} printers seeded in ${Math.round(performance.now() - t0)} ms`);
       const distDir = ensureBuild();
       const base = `http://127.0.0.1:${PORT}`;
-      const env = { ...process.env, DATABASE_URL: url, NEXT_DIST_DIR: distDir, NODE_ENV: "production", PORT: String(PORT), APP_URL: base, SESSION_SECRET: process.env.SESSION_SECRET ?? "bench-floor-secret-0123456789abcdef0123456789" };
+      const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: url, NEXT_DIST_DIR: distDir, NODE_ENV: "production", PORT: String(PORT), APP_URL: base, SESSION_SECRET: process.env.SESSION_SECRET ?? "bench-floor-secret-0123456789abcdef0123456789" };
       procs = [startProc("app", bin("next"), ["start", "-H", "127.0.0.1", "-p", String(PORT)], env, true)];
       await waitFor(`${base}/sign-in`, 90_000, (s) => s === 200);
       const cookie = await signIn(base);

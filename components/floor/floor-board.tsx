@@ -3,7 +3,7 @@
 import FullCalendar from "@fullcalendar/react";
 import interactionPlugin, { Draggable, type EventReceiveArg } from "@fullcalendar/interaction";
 import resourceTimelinePlugin from "@fullcalendar/resource-timeline";
-import type { DateSpanApi, DatesSetArg, EventApi, EventContentArg, EventDropArg, EventInput } from "@fullcalendar/core";
+import type { CalendarOptions, DateSpanApi, DatesSetArg, EventApi, EventContentArg, EventDropArg, EventInput } from "@fullcalendar/core";
 import { keepPreviousData, useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useCallback, useEffect, useMemo, useRef, useState } from "react";
@@ -37,6 +37,33 @@ const STATE_WORDS: Record<FloorEvent["kind"], Record<string, string>> = {
   wash_batch: { scheduled: "booked", running: "washing", complete: "done" },
   furnace_run: { scheduled: "booked", running: "firing", complete: "done" },
 };
+
+// FullCalendar re-renders every event when an option's identity changes, so options live here
+// or in memos, never inline.
+const PLUGINS = [resourceTimelinePlugin, interactionPlugin];
+const HEADER = { left: "prev,today,next", center: "title", right: "resourceTimelineDay,resourceTimelineWeek" };
+const BUTTONS = { today: "Now", resourceTimelineDay: "Day", resourceTimelineWeek: "Week" };
+const VIEWS: CalendarOptions["views"] = {
+  resourceTimelineDay: { slotDuration: { hours: 1 }, slotLabelFormat: { hour: "2-digit", minute: "2-digit", hour12: false } },
+  resourceTimelineWeek: { slotDuration: { hours: 6 }, slotLabelFormat: [{ weekday: "short", day: "numeric", month: "short" }, { hour: "2-digit", hour12: false }] },
+};
+const SNAP = { minutes: 15 };
+const CALENDAR_STYLE = {
+  "--fc-border-color": "#e9e6e1", "--fc-today-bg-color": "rgba(242,106,18,0.06)", "--fc-now-indicator-color": "#d0520a", "--fc-neutral-bg-color": "#f6f5f3",
+  "--fc-button-bg-color": "#403a33", "--fc-button-border-color": "#403a33", "--fc-button-hover-bg-color": "#2b2723", "--fc-button-hover-border-color": "#2b2723",
+  "--fc-button-active-bg-color": "#a84f2a", "--fc-button-active-border-color": "#a84f2a", "--fc-bg-event-opacity": "0.35",
+} as React.CSSProperties;
+
+function ResourceLabel({ title, r, canWash, canFurnace }: { title: string; r: FloorResource; canWash: boolean; canFurnace: boolean }) {
+  return (
+    <div className="leading-tight">
+      <div className="font-semibold text-soot-800">{title}</div>
+      <div className="text-2xs text-soot-500">
+        {r.kind === "printer" ? `${r.build_x_mm} × ${r.build_y_mm} × ${r.build_z_mm} mm` : (r.kind === "furnace" ? canFurnace : canWash) ? "drag booked ones" : "read-only here"}
+      </div>
+    </div>
+  );
+}
 
 function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
   const lane = e.kind !== "build";
@@ -92,6 +119,13 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
 
   const resources = useMemo(() => floor.data?.resources ?? [], [floor.data]);
   const resourceById = useMemo(() => new Map(resources.map((r) => [r.id, r])), [resources]);
+  // Same lanes, same array: a refetch that changes no lane must not make FullCalendar redraw them.
+  const laneKey = resources.map((r) => `${r.id}:${r.title}:${r.material_ids?.join(",") ?? ""}`).join("|");
+  const calendarResources = useMemo(
+    () => resources.map((r) => ({ ...r, kindOrder: r.kind === "printer" ? 0 : r.kind === "wash_station" ? 1 : 2 })),
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+    [laneKey],
+  );
   const printerName = useCallback((id: string | null) => (id ? (resourceById.get(id)?.title ?? "a printer") : "nothing"), [resourceById]);
 
   const events = useMemo<EventInput[]>(() => {
@@ -279,6 +313,33 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
     );
   }, []);
 
+  const renderResourceLabel = useCallback(
+    (arg: { resource: { title: string; extendedProps: Record<string, unknown> } }) => (
+      <ResourceLabel title={arg.resource.title} r={arg.resource.extendedProps as unknown as FloorResource} canWash={canWash} canFurnace={canFurnace} />
+    ),
+    [canWash, canFurnace],
+  );
+  const onDragStart = useCallback(() => {
+    dragging.current = true;
+  }, []);
+  const onDragStop = useCallback(() => {
+    dragging.current = false;
+    hint(null);
+  }, [hint]);
+  const onMouseEnter = useCallback(
+    (arg: { event: EventApi }) => {
+      const id = arg.event.extendedProps.build_id as string | undefined;
+      if (id && arg.event.startEditable) {
+        void qc.prefetchQuery({ queryKey: ["build", id], queryFn: () => apiJson<BuildVerdicts>(`/api/builds/${id}`), staleTime: 30_000 });
+      }
+    },
+    [qc],
+  );
+  const onEventClick = useCallback((arg: { event: EventApi }) => {
+    const id = arg.event.extendedProps.build_id as string | undefined;
+    if (id) window.location.assign(`/builds/${id}`);
+  }, []);
+
   const onDatesSet = useCallback((arg: DatesSetArg) => {
     setRange((r) => {
       const next = { from: arg.start.toISOString(), to: arg.end.toISOString() };
@@ -295,71 +356,41 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
       <section className="min-w-0 flex-1 rounded-card border border-soot-200 bg-white p-3 shadow-card" aria-label="Floor timeline">
         <div
           className="hearth-floor"
-          style={{
-            "--fc-border-color": "#e9e6e1", "--fc-today-bg-color": "rgba(242,106,18,0.06)", "--fc-now-indicator-color": "#d0520a", "--fc-neutral-bg-color": "#f6f5f3",
-            "--fc-button-bg-color": "#403a33", "--fc-button-border-color": "#403a33", "--fc-button-hover-bg-color": "#2b2723", "--fc-button-hover-border-color": "#2b2723",
-            "--fc-button-active-bg-color": "#a84f2a", "--fc-button-active-border-color": "#a84f2a", "--fc-bg-event-opacity": "0.35",
-          } as React.CSSProperties}
+          style={CALENDAR_STYLE}
         >
           <FullCalendar
             ref={calendarRef}
-            plugins={[resourceTimelinePlugin, interactionPlugin]}
+            plugins={PLUGINS}
             schedulerLicenseKey="GPL-My-Project-Is-Open-Source"
             initialView="resourceTimelineWeek"
             timeZone="local"
             height="auto"
             nowIndicator
             scrollTime="00:00:00"
-            headerToolbar={{ left: "prev,today,next", center: "title", right: "resourceTimelineDay,resourceTimelineWeek" }}
-            buttonText={{ today: "Now", resourceTimelineDay: "Day", resourceTimelineWeek: "Week" }}
-            views={{
-              resourceTimelineDay: { slotDuration: { hours: 1 }, slotLabelFormat: { hour: "2-digit", minute: "2-digit", hour12: false } },
-              resourceTimelineWeek: { slotDuration: { hours: 6 }, slotLabelFormat: [{ weekday: "short", day: "numeric", month: "short" }, { hour: "2-digit", hour12: false }] },
-            }}
+            headerToolbar={HEADER}
+            buttonText={BUTTONS}
+            views={VIEWS}
             resourceAreaWidth="150px"
             slotMinWidth={22}
             resourceAreaHeaderContent="Lane"
             resourceGroupField="group"
             resourceOrder="kindOrder,title"
-            resources={resources.map((r) => ({ ...r, kindOrder: r.kind === "printer" ? 0 : r.kind === "wash_station" ? 1 : 2 }))}
-            resourceLabelContent={(arg) => {
-              const r = arg.resource.extendedProps as unknown as FloorResource;
-              return (
-                <div className="leading-tight">
-                  <div className="font-semibold text-soot-800">{arg.resource.title}</div>
-                  <div className="text-2xs text-soot-500">
-                    {r.kind === "printer" ? `${r.build_x_mm} × ${r.build_y_mm} × ${r.build_z_mm} mm` : (r.kind === "furnace" ? canFurnace : canWash) ? "drag booked ones" : "read-only here"}
-                  </div>
-                </div>
-              );
-            }}
+            resources={calendarResources}
+            resourceLabelContent={renderResourceLabel}
             events={events}
             eventContent={renderEvent}
             editable={canSchedule}
             eventDurationEditable={false}
             eventResourceEditable={canSchedule}
             droppable={canSchedule}
-            snapDuration={{ minutes: 15 }}
+            snapDuration={SNAP}
             eventAllow={eventAllow}
-            eventDragStart={() => {
-              dragging.current = true;
-            }}
-            eventDragStop={() => {
-              dragging.current = false;
-              hint(null);
-            }}
-            eventMouseEnter={(arg) => {
-              const id = arg.event.extendedProps.build_id as string | undefined;
-              if (id && arg.event.startEditable) {
-                void qc.prefetchQuery({ queryKey: ["build", id], queryFn: () => apiJson<BuildVerdicts>(`/api/builds/${id}`), staleTime: 30_000 });
-              }
-            }}
+            eventDragStart={onDragStart}
+            eventDragStop={onDragStop}
+            eventMouseEnter={onMouseEnter}
             eventDrop={onEventDrop}
             eventReceive={onEventReceive}
-            eventClick={(arg) => {
-              const id = arg.event.extendedProps.build_id as string | undefined;
-              if (id) window.location.assign(`/builds/${id}`);
-            }}
+            eventClick={onEventClick}
             datesSet={onDatesSet}
           />
         </div>
