@@ -101,6 +101,9 @@ function JobsBoardInner() {
         </div>
         <div className="rounded-card border border-soot-200 bg-white p-5 shadow-card lg:col-span-2">
           <h2 className="text-xs font-semibold uppercase tracking-wide text-soot-500">Jobs per queue</h2>
+          {queues.every((q) => q.waiting + q.active + q.scheduled + q.failed === 0) ? (
+            <p className="mt-1 text-sm text-soot-600">Nothing waiting, running, scheduled or failed: every queue is empty.</p>
+          ) : null}
           <div className="mt-2 h-44" aria-label="Jobs per queue by state" role="img">
             <ResponsiveContainer width="100%" height="100%">
               <BarChart data={queues} layout="vertical" margin={{ left: 24, right: 12, top: 4, bottom: 4 }}>
