@@ -20,8 +20,9 @@ export async function GET(_req: Request, { params }: { params: Promise<{ token: 
     const target = await findResource(db, resource.replace(/\.ics$/, ""));
     if (!target) throw new AppError("not_found", "No such resource.");
     const now = new Date();
-    const from = new Date(now.getTime() - 30 * DAY);
-    const to = new Date(now.getTime() + 180 * DAY);
+    // The recent past for context and everything booked ahead, however far.
+    const from = new Date(now.getTime() - 60 * DAY);
+    const to = new Date(now.getTime() + 10 * 365 * DAY);
     const [clock, bookings, maintenance] = await Promise.all([
       loadShopClock(db),
       listBookings(db, from, to, target.id),

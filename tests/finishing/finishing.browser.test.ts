@@ -1,0 +1,91 @@
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import type { Browser, Page } from "playwright-core";
+import { appUrl, launchBrowser, screenshot } from "../helpers/browser";
+import { testDb } from "../helpers/db";
+import { DEMO } from "../helpers/session";
+import { makeMaterial, readyUnit, tag } from "./fixtures";
+
+// A machinist receives a unit that is ready for finishing, records an inspection in inches,
+// finishes the unit, and the material's calibration chart shows the new point.
+
+const { db, close } = testDb();
+let browser: Browser;
+
+beforeAll(async () => {
+  browser = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+  await close();
+});
+
+async function signInAs(page: Page, email: string) {
+  await page.goto(`${appUrl()}/sign-in`);
+  await page.getByLabel("E-mail").fill(email);
+  await page.getByLabel("Password").fill("hearth-demo");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"), { timeout: 60_000 });
+}
+
+describe("finishing in the browser", () => {
+  it("accepts, inspects and finishes a unit; the calibration chart gains its point", async () => {
+    const material = await makeMaterial(db, `BRW-${tag()}`, { xy: 0.15, z: 0.17 });
+    // green 30.0 × 47.65 × 14.76 mm as printed; nominal 25 × 40 × 12 with 0.25 mm stock
+    const { unit } = await readyUnit(db, { materialId: material.id, part: { nominal: [25, 40, 12], green: [30, 47.65, 14.76], tolerance_grade: "IT7" } });
+    const serial = unit.serial;
+
+    const page = await browser.newPage({ viewport: { width: 1400, height: 1000 } });
+    await signInAs(page, DEMO.machinist);
+    expect(new URL(page.url()).pathname).toBe("/finishing");
+    const card = page.locator(`[data-testid="finishing-card"][data-serial="${serial}"]`);
+    await card.waitFor();
+    // the drawing's IT7 read as µm for each nominal size (ISO 286-1 table: 21, 25, 18 µm)
+    expect(await card.textContent()).toContain("X 21 µm · Y 25 µm · Z 18 µm");
+    await screenshot(page, "finishing-queue");
+
+    await card.getByRole("button", { name: "Accept" }).click();
+    await page.getByText(`${serial}: now finishing.`).waitFor();
+    const inFinishing = page.locator('[data-testid="section-in-finishing"]').locator(`[data-serial="${serial}"]`);
+    await inFinishing.getByRole("link", { name: "Inspect" }).click();
+    await page.waitForURL(new RegExp(`/finishing/${unit.id}`));
+    await page.getByTestId("inspection-form").waitFor();
+
+    // The demo machinist works in inches: 1.0050 in is 25.527 mm as sintered on X.
+    await page.getByLabel("As sintered X").fill("1.0050");
+    await page.getByLabel("As sintered Y").fill("1.6000");
+    await page.getByLabel("As sintered Z").fill("0.4820");
+    await page.getByLabel("Finished X").fill("0.9843");
+    await page.getByLabel("Ra in µin").fill("28");
+    await page.getByLabel("Runout in in").fill("0.0200");
+    await page.getByLabel("Runout measured across").selectOption("x");
+    // 0.508 mm TIR against 0.2635 mm per side left: the page warns before anything is saved
+    await page.getByTestId("stock-check").getByText("Stock warning").waitFor();
+    await page.getByLabel("Pass").check();
+    await screenshot(page, "finishing-inspection-form");
+    await page.getByRole("button", { name: "Save inspection" }).click();
+    await page.getByTestId("unit-flash").getByText("Inspection saved").waitFor();
+    await page.getByTestId("inspection-list").getByText("passed").first().waitFor();
+
+    await page.getByRole("button", { name: "Mark finished" }).click();
+    await page.getByTestId("unit-flash").getByText("Now done.").waitFor();
+    await screenshot(page, "finishing-unit-done");
+
+    const row = await db.selectFrom("units").select(["state"]).where("id", "=", unit.id).executeTakeFirstOrThrow();
+    expect(row.state).toBe("done");
+    const insp = await db.selectFrom("inspections").selectAll().where("unit_id", "=", unit.id).executeTakeFirstOrThrow();
+    expect(Number(insp.sintered_x_mm)).toBeCloseTo(25.527, 9);
+    expect(Number(insp.green_x_mm)).toBe(30);
+
+    await page.goto(`${appUrl()}/finishing/calibration?material=${material.id}`);
+    const chart = page.getByTestId("calibration-chart");
+    await chart.waitFor();
+    // one inspection, three axes measured green and sintered: three points
+    expect(await chart.getAttribute("data-points")).toBe("3");
+    expect(await page.locator(".recharts-scatter-symbol").count()).toBe(3);
+    expect(await page.getByTestId("calibration-recent").textContent()).toContain(serial);
+    // realized X shrinkage 1 − 25.527/30 = 14.91 %
+    expect(await page.getByTestId("calibration-recent").textContent()).toContain("14.91 %");
+    await screenshot(page, "finishing-calibration-chart");
+    await page.close();
+  });
+});
