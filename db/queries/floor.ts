@@ -1,4 +1,4 @@
-import { sql } from "kysely";
+import { sql, type RawBuilder } from "kysely";
 import type { Database } from "@/db/client";
 import type { BuildUnitSpec, PrinterSpec } from "@/lib/builds/estimate";
 import type { ShopTiming } from "@/lib/parts/projection";
@@ -56,129 +56,113 @@ export async function listPrinterSpecs(db: Database, opts: { activeOnly?: boolea
   }));
 }
 
-const overlapsWindow = (w: FloorWindow) => sql<boolean>`tstzrange(starts_at, ends_at) && tstzrange(${w.from}::timestamptz, ${w.to}::timestamptz)`;
+// The floor's window is the most requested thing in the app, so it is one statement: each kind
+// of lane contributes three JSON arrays (lanes, bookings, maintenance) as scalar subqueries, and
+// PostgreSQL writes the JSON the route sends as it is. To grow a kind of lane (make it
+// interactive, add fields), change only its function below; FloorResource, FloorEvent and
+// FloorBlock in lib/floor/schemas.ts say what the client reads.
 
-export type LaneData = { resources: FloorResource[]; events: FloorEvent[]; blocks: FloorBlock[] };
+export type LaneSql = { resources: RawBuilder<unknown>; events: RawBuilder<unknown>; blocks: RawBuilder<unknown> };
 
-async function maintenanceFor(db: Database, kind: "printer" | "wash_station" | "furnace", w: FloorWindow): Promise<FloorBlock[]> {
-  const col = kind === "printer" ? "printer_id" : kind === "wash_station" ? "wash_station_id" : "furnace_id";
-  const rows = await db
-    .selectFrom("maintenance_windows")
-    .select(["id", col, "starts_at", "ends_at", "reason"])
-    .where("resource", "=", kind)
-    .where(overlapsWindow(w))
-    .execute();
-  return rows.map((r) => ({ id: r.id, resource_id: (r as Record<string, unknown>)[col] as string, start: iso(r.starts_at), end: iso(r.ends_at), reason: r.reason }));
+const isoSql = (col: RawBuilder<unknown>) => sql`to_char(${col} at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"')`;
+const jsonArray = (inner: RawBuilder<unknown>) => sql`coalesce((${inner}), '[]'::json)`;
+const windowRange = (w: FloorWindow) => sql`tstzrange(${w.from}::timestamptz, ${w.to}::timestamptz)`;
+
+function maintenanceSql(kind: "printer" | "wash_station" | "furnace", w: FloorWindow): RawBuilder<unknown> {
+  const col = sql.ref(kind === "printer" ? "mw.printer_id" : kind === "wash_station" ? "mw.wash_station_id" : "mw.furnace_id");
+  return jsonArray(sql`
+    select json_agg(json_build_object('id', mw.id, 'resource_id', ${col}, 'start', ${isoSql(sql.ref("mw.starts_at"))}, 'end', ${isoSql(sql.ref("mw.ends_at"))}, 'reason', mw.reason))
+      from maintenance_windows mw
+     where mw.resource = ${kind} and tstzrange(mw.starts_at, mw.ends_at) && ${windowRange(w)}`);
 }
 
 /** Printers and their builds in the window: the lanes a technician drags onto. */
-export async function loadPrinterLanes(db: Database, w: FloorWindow): Promise<LaneData> {
-  const [printers, builds, blocks] = await Promise.all([
-    listPrinterSpecs(db, { activeOnly: true }),
-    db
-      .selectFrom("builds as b")
-      .innerJoin("materials as m", "m.id", "b.material_id")
-      .select([
-        "b.id", "b.code", "b.printer_id", "b.starts_at", "b.ends_at", "b.state", "b.version", "b.failed", "b.material_id", "m.code as material_code",
-        sql<number>`(select count(*) from units u where u.build_id = b.id)`.as("unit_count"),
-      ])
-      .where("b.printer_id", "is not", null)
-      .where("b.state", "in", ["scheduled", "running", "complete"])
-      .where(sql<boolean>`tstzrange(b.starts_at, b.ends_at) && tstzrange(${w.from}::timestamptz, ${w.to}::timestamptz)`)
-      .execute(),
-    maintenanceFor(db, "printer", w),
-  ]);
+export function printerLanesSql(w: FloorWindow): LaneSql {
   return {
-    resources: printers.map((p) => ({
-      id: p.id,
-      kind: "printer",
-      title: p.name,
-      group: "Printers",
-      editable: true,
-      build_x_mm: p.build_x_mm,
-      build_y_mm: p.build_y_mm,
-      build_z_mm: p.build_z_mm,
-      material_ids: p.material_ids,
-    })),
-    events: builds.map((b) => ({
-      id: b.id,
-      kind: "build",
-      resource_id: b.printer_id!,
-      title: `${b.code} · ${b.material_code}`,
-      start: iso(b.starts_at!),
-      end: iso(b.ends_at!),
-      state: b.state,
-      version: b.version,
-      // a build on the plate or finished stays where it printed
-      editable: b.state === "scheduled",
-      material_code: b.material_code,
-      material_id: b.material_id,
-      failed: b.failed,
-      unit_count: Number(b.unit_count),
-    })),
-    blocks,
+    resources: jsonArray(sql`
+      select json_agg(json_build_object(
+               'id', p.id, 'kind', 'printer', 'title', p.name, 'group', 'Printers', 'editable', true,
+               'build_x_mm', p.build_x_mm, 'build_y_mm', p.build_y_mm, 'build_z_mm', p.build_z_mm,
+               'material_ids', coalesce((select json_agg(pm.material_id) from printer_materials pm where pm.printer_id = p.id), '[]'::json))
+             order by p.name)
+        from printers p
+       where p.active`),
+    events: jsonArray(sql`
+      select json_agg(json_build_object(
+               'id', b.id, 'kind', 'build', 'resource_id', b.printer_id, 'title', b.code || ' · ' || m.code,
+               'start', ${isoSql(sql.ref("b.starts_at"))}, 'end', ${isoSql(sql.ref("b.ends_at"))}, 'state', b.state, 'version', b.version,
+               -- a build on the plate or finished stays where it printed
+               'editable', b.state = 'scheduled',
+               'material_code', m.code, 'material_id', b.material_id, 'failed', b.failed,
+               'unit_count', (select count(*) from units u where u.build_id = b.id)))
+        from builds b
+        join materials m on m.id = b.material_id
+       where b.printer_id is not null
+         and b.state in ('scheduled', 'running', 'complete')
+         and tstzrange(b.starts_at, b.ends_at) && ${windowRange(w)}`),
+    blocks: maintenanceSql("printer", w),
   };
 }
 
 /** Wash stations and their batches in the window; booked batches can be dragged (components/furnace/lane-interactions). */
-export async function loadWashLanes(db: Database, w: FloorWindow): Promise<LaneData> {
-  const [stations, batches, blocks] = await Promise.all([
-    db.selectFrom("wash_stations").select(["id", "name"]).where("active", "=", true).orderBy("name").execute(),
-    db
-      .selectFrom("wash_batches")
-      .select(["id", "code", "wash_station_id", "starts_at", "ends_at", "state", "version"])
-      .where("wash_station_id", "is not", null)
-      .where("state", "in", ["scheduled", "running", "complete"])
-      .where(overlapsWindow(w))
-      .execute(),
-    maintenanceFor(db, "wash_station", w),
-  ]);
+export function washLanesSql(w: FloorWindow): LaneSql {
   return {
-    resources: stations.map((s) => ({ id: s.id, kind: "wash_station", title: s.name, group: "Wash stations", editable: true })),
-    events: batches.map((b) => ({
-      id: b.id, kind: "wash_batch", resource_id: b.wash_station_id!, title: `${b.code} · wash`, start: iso(b.starts_at!), end: iso(b.ends_at!),
-      state: b.state, version: b.version, editable: b.state === "scheduled",
-    })),
-    blocks,
+    resources: jsonArray(sql`
+      select json_agg(json_build_object('id', s.id, 'kind', 'wash_station', 'title', s.name, 'group', 'Wash stations', 'editable', true) order by s.name)
+        from wash_stations s
+       where s.active`),
+    events: jsonArray(sql`
+      select json_agg(json_build_object(
+               'id', wb.id, 'kind', 'wash_batch', 'resource_id', wb.wash_station_id, 'title', wb.code || ' · wash',
+               'start', ${isoSql(sql.ref("wb.starts_at"))}, 'end', ${isoSql(sql.ref("wb.ends_at"))}, 'state', wb.state, 'version', wb.version,
+               'editable', wb.state = 'scheduled'))
+        from wash_batches wb
+       where wb.wash_station_id is not null
+         and wb.state in ('scheduled', 'running', 'complete')
+         and tstzrange(wb.starts_at, wb.ends_at) && ${windowRange(w)}`),
+    blocks: maintenanceSql("wash_station", w),
   };
 }
 
 /** Furnaces and their runs in the window; booked runs can be dragged (components/furnace/lane-interactions). */
-export async function loadFurnaceLanes(db: Database, w: FloorWindow): Promise<LaneData> {
-  const [furnaces, runs, blocks, links] = await Promise.all([
-    db.selectFrom("furnaces").select(["id", "name"]).where("active", "=", true).orderBy("name").execute(),
-    db
-      .selectFrom("furnace_runs as r")
-      .innerJoin("sinter_profiles as p", "p.id", "r.profile_id")
-      .select(["r.id", "r.code", "r.furnace_id", "r.starts_at", "r.ends_at", "r.state", "r.version", "r.profile_id", "p.code as profile_code"])
-      .where("r.furnace_id", "is not", null)
-      .where("r.state", "in", ["scheduled", "running", "complete"])
-      .where(sql<boolean>`tstzrange(r.starts_at, r.ends_at) && tstzrange(${w.from}::timestamptz, ${w.to}::timestamptz)`)
-      .execute(),
-    maintenanceFor(db, "furnace", w),
-    db.selectFrom("furnace_profiles").select(["furnace_id", "profile_id"]).execute(),
-  ]);
+export function furnaceLanesSql(w: FloorWindow): LaneSql {
   return {
-    resources: furnaces.map((f) => ({ id: f.id, kind: "furnace", title: f.name, group: "Furnaces", editable: true, profile_ids: links.filter((l) => l.furnace_id === f.id).map((l) => l.profile_id) })),
-    events: runs.map((r) => ({
-      id: r.id, kind: "furnace_run", resource_id: r.furnace_id!, title: `${r.code} · ${r.profile_code}`, start: iso(r.starts_at!), end: iso(r.ends_at!),
-      state: r.state, version: r.version, editable: r.state === "scheduled", profile_id: r.profile_id,
-    })),
-    blocks,
+    resources: jsonArray(sql`
+      select json_agg(json_build_object(
+               'id', f.id, 'kind', 'furnace', 'title', f.name, 'group', 'Furnaces', 'editable', true,
+               'profile_ids', coalesce((select json_agg(fp.profile_id) from furnace_profiles fp where fp.furnace_id = f.id), '[]'::json))
+             order by f.name)
+        from furnaces f
+       where f.active`),
+    events: jsonArray(sql`
+      select json_agg(json_build_object(
+               'id', r.id, 'kind', 'furnace_run', 'resource_id', r.furnace_id, 'title', r.code || ' · ' || sp.code,
+               'start', ${isoSql(sql.ref("r.starts_at"))}, 'end', ${isoSql(sql.ref("r.ends_at"))}, 'state', r.state, 'version', r.version,
+               'editable', r.state = 'scheduled', 'profile_id', r.profile_id))
+        from furnace_runs r
+        join sinter_profiles sp on sp.id = r.profile_id
+       where r.furnace_id is not null
+         and r.state in ('scheduled', 'running', 'complete')
+         and tstzrange(r.starts_at, r.ends_at) && ${windowRange(w)}`),
+    blocks: maintenanceSql("furnace", w),
   };
 }
 
-/** Everything the floor shows for one window. */
+export const LANE_KINDS = [printerLanesSql, washLanesSql, furnaceLanesSql];
+
+/** Everything the floor shows for one window, as the JSON text of a FloorData. */
+export async function loadFloorJson(db: Database, w: FloorWindow): Promise<string> {
+  const lanes = LANE_KINDS.map((kind) => kind(w));
+  const part = (key: keyof LaneSql) => sql.join(lanes.map((l) => sql`(${l[key]})::text`), sql`, `);
+  const { rows } = await sql<{ resources: string[]; events: string[]; blocks: string[] }>`
+    select array[${part("resources")}] as resources, array[${part("events")}] as events, array[${part("blocks")}] as blocks`.execute(db);
+  const concat = (arrays: string[]) => `[${arrays.map((a) => a.trim().slice(1, -1).trim()).filter(Boolean).join(",")}]`;
+  const r = rows[0];
+  return `{"from":${JSON.stringify(w.from)},"to":${JSON.stringify(w.to)},"resources":${concat(r.resources)},"events":${concat(r.events)},"blocks":${concat(r.blocks)},"stamp":${JSON.stringify(new Date().toISOString())}}`;
+}
+
 export async function loadFloor(db: Database, w: FloorWindow): Promise<FloorData> {
-  const lanes = await Promise.all([loadPrinterLanes(db, w), loadWashLanes(db, w), loadFurnaceLanes(db, w)]);
-  return {
-    from: w.from,
-    to: w.to,
-    resources: lanes.flatMap((l) => l.resources),
-    events: lanes.flatMap((l) => l.events),
-    blocks: lanes.flatMap((l) => l.blocks),
-    stamp: new Date().toISOString(),
-  };
+  return JSON.parse(await loadFloorJson(db, w)) as FloorData;
 }
 
 // Build contents -------------------------------------------------------------------------------
