@@ -48,10 +48,13 @@ export function TrayDrawing({ layout, tray_x_mm, tray_y_mm, tray_count, clearanc
             ) : null}
             {placements.map((p) => {
               const isNew = highlight.includes(p.unit);
-              const label = labels[p.unit] ?? "";
+              const full = labels[p.unit] ?? "";
+              const label = full.length > 7 ? full.slice(-7) : full;
+              // Monospace glyphs are about 0.6 em wide: shrink the label to its rectangle.
+              const size = Math.min(font, (p.w * 0.9) / Math.max(1, label.length * 0.62), p.d * 0.6);
               return (
                 <g key={p.unit} data-unit={p.unit} data-new={isNew ? "true" : undefined}>
-                  <title>{`${label} · ${p.w.toFixed(1)} × ${p.d.toFixed(1)} mm${p.rotated ? " (turned 90°)" : ""}`}</title>
+                  <title>{`${full} · ${p.w.toFixed(1)} × ${p.d.toFixed(1)} mm${p.rotated ? " (turned 90°)" : ""}`}</title>
                   <rect
                     x={p.x}
                     y={p.y}
@@ -61,9 +64,9 @@ export function TrayDrawing({ layout, tray_x_mm, tray_y_mm, tray_count, clearanc
                     className={isNew ? "fill-ember-400/70 stroke-ember-600" : "fill-clay-200 stroke-clay-600"}
                     strokeWidth={stroke}
                   />
-                  {p.w > font * 2.2 && p.d > font * 1.3 ? (
-                    <text x={p.x + p.w / 2} y={p.y + p.d / 2} fontSize={font} textAnchor="middle" dominantBaseline="central" className="fill-soot-800 font-mono">
-                      {label.length > 7 ? label.slice(-7) : label}
+                  {size >= font * 0.45 ? (
+                    <text x={p.x + p.w / 2} y={p.y + p.d / 2} fontSize={size} textAnchor="middle" dominantBaseline="central" className="fill-soot-800 font-mono">
+                      {label}
                     </text>
                   ) : null}
                 </g>

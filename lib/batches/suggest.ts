@@ -2,15 +2,15 @@
 // soon-brown ones, with start times on the lanes. A proposal only; nothing is booked until a
 // person accepts it.
 //
-// Furnace runs go through the tray packer (fewest runs, one sinter profile per run, urgent
-// units in the earliest runs) and its lower bound, then each run takes the earliest staffed
-// start on its furnace after its units are ready that collides with no booking or maintenance.
+// Furnace runs come from the furnace planner (lib/planning/furnace-plan: the tray packer, fewest
+// runs with one sinter profile each and urgent units first, its lower bound, and for each run the
+// earliest staffed start on a furnace that holds its layout once its units are brown).
 // Wash batches group units of similar wash time (a batch lasts as long as its slowest unit, so
 // mixing a 6 mm wall with 2 mm walls makes the thin parts wait): units go longest wash first into
 // the first batch that takes them (first-fit decreasing), and batches are booked most urgent first.
 
-import { packTrays } from "@/lib/packing/trays";
 import type { TrayRun } from "@/lib/packing/types";
+import { planFurnaceRuns } from "@/lib/planning/furnace-plan";
 import { furnaceCycle } from "@/lib/process/furnace-profile";
 import { checkWashAdd, packFurnace, packUnit, profileLabel, washMinutesOf } from "./rules";
 import { nextStaffed, type Staffing } from "./staffed";
@@ -115,62 +115,73 @@ function suggestFurnace(input: SuggestInput, unplaced: Unplaced[], busy: Busy[])
   const byLabel = new Map(input.profiles.map((p) => [profileLabel(p), p]));
   const furnaceByName = new Map(input.furnaces.map((f) => [f.name, f]));
   const units = new Map(input.furnace_units.map((u) => [u.id, u]));
-  const packUnits = [];
+  const planUnits = [];
   for (const u of input.furnace_units) {
     const profile = input.profiles.find((p) => p.id === u.profile_id);
     if (!profile) {
       unplaced.push({ unit_id: u.id, serial: u.serial, kind: "furnace", reason: `${u.material_code} has no default sinter profile` });
       continue;
     }
-    packUnits.push(packUnit(u, profile, input.profiles));
+    planUnits.push({ ...packUnit(u, profile, input.profiles), ready_at: u.ready_at });
   }
-  const packed = packTrays(
-    { clearance_mm: input.clearance_mm, furnaces: input.furnaces.map((f) => packFurnace(f, input.profiles)), units: packUnits },
-    { restarts: input.restarts },
-  );
+  // The planner takes one cycle per profile; the longest over the furnaces that run it keeps
+  // every proposed slot long enough whichever furnace the run lands on.
+  const cycle = (p: BoardProfile, f?: BoardFurnace) => Math.ceil(furnaceCycle(profileForCycleOf(p), f ? { maxCoolRateCPerMin: f.max_cool_rate_c_per_min } : undefined).totalMinutes);
+  const cycleMin: Record<string, number> = {};
+  for (const p of input.profiles) {
+    const takers = input.furnaces.filter((f) => f.profile_ids.includes(p.id));
+    if (takers.length) cycleMin[profileLabel(p)] = Math.max(...takers.map((f) => cycle(p, f)));
+  }
+  const byId = new Map(input.furnaces.map((f) => [f.id, f]));
+  const plan = planFurnaceRuns({
+    now: input.now.toISOString(),
+    clearance_mm: input.clearance_mm,
+    furnaces: input.furnaces.map((f) => packFurnace(f, input.profiles)),
+    units: planUnits,
+    cycle_min: cycleMin,
+    bookings: busy.filter((b) => byId.has(b.resource_id)).map((b) => ({ furnace: byId.get(b.resource_id)!.name, start: new Date(b.start).toISOString(), end: new Date(b.end).toISOString() })),
+    staffed_hours: input.staffing,
+  });
   const packMs = performance.now() - t0;
-  for (const u of packed.unplaced) {
+  for (const u of plan.unplaced) {
     const unit = units.get(u.unit)!;
     unplaced.push({ unit_id: u.unit, serial: unit.serial, kind: "furnace", reason: u.reason });
   }
-  const now = input.now.getTime();
-  const runs: ProposedRun[] = [];
-  packed.runs.forEach((run, i) => {
+  const runs: ProposedRun[] = plan.runs.map((run, i) => {
     const furnace = furnaceByName.get(run.furnace)!;
     const profile = byLabel.get(run.profile)!;
-    const cycle = Math.ceil(furnaceCycle(
-      {
-        startTempC: profile.start_temp_c,
-        segments: profile.segments.map((s) => ({ rateCPerMin: s.rate_c_per_min, setpointC: s.setpoint_c, holdMin: s.hold_min })),
-        coolRateCPerMin: profile.cool_rate_c_per_min,
-        coolToC: profile.cool_to_c,
-      },
-      { maxCoolRateCPerMin: furnace.max_cool_rate_c_per_min },
-    ).totalMinutes);
-    const ids = run.trays.flatMap((t) => t.placements.map((p) => p.unit));
-    const members = ids.map((id) => units.get(id)!);
-    const ready = Math.max(now, ...members.map((u) => (u.ready_at ? Date.parse(u.ready_at) : now)));
-    const start = earliestSlot(furnace.id, ready, cycle, busy, input.staffing);
-    const end = start + cycle * MIN;
+    const minutes = cycle(profile, furnace);
+    const start = Date.parse(run.start);
+    const end = start + minutes * MIN;
     busy.push({ resource_id: furnace.id, start, end });
+    const members = run.trays.flatMap((t) => t.placements.map((p) => units.get(p.unit)!));
     const out = nextStaffed(new Date(end), input.staffing).getTime() + input.finishing_lead_minutes * MIN;
     const lateness = Math.max(...members.map((u) => (out - Date.parse(u.due_at)) / MIN));
-    runs.push({
+    const { start: _s, end: _e, ready_at: _r, ...layout } = run;
+    void _s, void _e, void _r;
+    return {
       key: `run-${i + 1}`,
       furnace_id: furnace.id,
       profile_id: profile.id,
       starts_at: new Date(start).toISOString(),
       ends_at: new Date(end).toISOString(),
-      cycle_minutes: cycle,
-      tray_layout: run,
+      cycle_minutes: minutes,
+      tray_layout: layout,
       units: members.map((u) => ({ id: u.id, version: u.version, serial: u.serial })),
       mass_g: run.mass_g,
       area_used_fraction: run.area_used_fraction,
       max_lateness_min: Math.round(lateness),
-    });
+    };
   });
-  return { runs, lowerBound: packed.lowerBound.largest, packMs, placedUnits: packUnits.length - packed.unplaced.length };
+  return { runs, lowerBound: plan.metrics.lower_bound, packMs, placedUnits: planUnits.length - plan.unplaced.length };
 }
+
+const profileForCycleOf = (p: BoardProfile) => ({
+  startTempC: p.start_temp_c,
+  segments: p.segments.map((s) => ({ rateCPerMin: s.rate_c_per_min, setpointC: s.setpoint_c, holdMin: s.hold_min })),
+  coolRateCPerMin: p.cool_rate_c_per_min,
+  coolToC: p.cool_to_c,
+});
 
 function suggestWash(input: SuggestInput, unplaced: Unplaced[], busy: Busy[]) {
   type Open = { station: BoardStation; units: BoardUnit[] };
