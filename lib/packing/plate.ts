@@ -77,7 +77,7 @@ export function packPlate(units: readonly PlateUnit[], printer: PlatePrinter, cl
   if (!pm) {
     return { printer: printer.id, placements: [], unplaced, area_used_fraction: 0, plates_needed: 0, lower_bound_plates: 0 };
   }
-  const runs = solveProfile(pm, { restarts: 2 });
+  const runs = solveProfile(pm, { restarts: 0 });
   const first = runs[0];
   const c = model.clearance;
   const placements: TrayPlacement[] = first.placed.map((p) => {

@@ -180,13 +180,12 @@ function passFill(run: RunState, order: readonly ItemModel[], used: Uint8Array, 
  */
 function exactTray(f: FurnaceModel, free: readonly ItemModel[], massLeft: number, exact: ExactSearch): PlacedItem[] | null {
   const tol = FIT_TOLERANCE_MM;
-  const opts = { tol, massLeft, workBudget: exact.workBudget };
-  const attempt = (blocks: Block[]) =>
+  const attempt = (blocks: Block[], share: number) =>
     fillTrayExactly(
       f.W,
       f.D,
       blocks.map((b) => ({ w: b.w, h: b.h, mass: b.mass, ref: b })),
-      opts,
+      { tol, massLeft, workBudget: exact.workBudget * share },
     ).placements;
   const singles = free.map((it) => singleBlock(it, tol));
   // Blocks built once per construction; a block that lost a unit to a tray is dropped.
@@ -203,14 +202,18 @@ function exactTray(f: FurnaceModel, free: readonly ItemModel[], massLeft: number
     for (const it of free) if (!inBlocks.has(it)) blocks.push(singleBlock(it, tol));
     return blocks;
   };
-  // Greedy joins rebuild the most; joins without guessing are the fallback; single pieces last.
+  // Greedy joins rebuild the most; joins without guessing are the fallback; single pieces last,
+  // each with a smaller share of the budget (most waste-free trays are found at the first step).
   let tiling: TilePlacement<Block>[] | null = null;
-  for (const mode of ["greedy", "unique"] as const) {
+  for (const [mode, share] of [
+    ["greedy", 1],
+    ["unique", 0.5],
+  ] as const) {
     const blocks = blocksOf(mode);
-    if (blocks.length < singles.length) tiling = attempt(blocks);
+    if (blocks.length < singles.length) tiling = attempt(blocks, share);
     if (tiling) break;
   }
-  tiling ??= attempt(singles);
+  tiling ??= attempt(singles, 0.3);
   if (!tiling) return null;
   const out: PlacedItem[] = [];
   for (const p of tiling) {
@@ -566,10 +569,9 @@ export function solveProfile(pm: ProfileModel, options: SolveOptions): RunState[
   const orders = computeOrders(pm.items);
   const n = pm.items.length;
   const exactBudget = options.exactWorkBudget ?? 150_000;
+  // Measured on generated mixes and zero-waste sets: after the due-date-first construction only
+  // the tray-by-tray one ever wins outright (the waste-free trays); the passes add variety.
   const configs: ConstructConfig[] = [
-    { kind: "pass", order: orders.size, rule: "short-side", trays: "first" },
-    { kind: "dot", rule: "short-side" },
-    { kind: "pass", order: orders.sum, rule: "contact", trays: "first" },
     {
       kind: "tray",
       exact: exactBudget > 0 ? { workBudget: exactBudget, disabled: new Set(), blocks: new Map() } : undefined,
@@ -582,9 +584,10 @@ export function solveProfile(pm: ProfileModel, options: SolveOptions): RunState[
         { order: orders.size, rule: "short-side" },
       ],
     },
-    { kind: "pass", order: orders.area, rule: "contact", trays: "first" },
+    { kind: "dot", rule: "short-side" },
+    { kind: "pass", order: orders.size, rule: "short-side", trays: "first" },
+    { kind: "pass", order: orders.sum, rule: "contact", trays: "first" },
     { kind: "pass", order: orders["long-side"], rule: "short-side", trays: "best" },
-    { kind: "pass", order: orders.mass, rule: "short-side", trays: "first" },
   ];
   for (let k = 0; k < options.restarts; k++) {
     const order = perturbedOrder(pm.items, 0x9e3779b9 ^ (k * 7919), 0.3);
