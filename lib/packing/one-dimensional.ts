@@ -34,7 +34,7 @@ export function continuousBound(weights: readonly number[], capacity: number): n
 }
 
 /**
- * Martello & Toth's L2 (Discrete Applied Mathematics 28, 1990): for α in [0, C/2],
+ * Martello & Toth's L2 (Discrete Applied Mathematics 28, 1990 [from memory]): for α in [0, C/2],
  * J1 = {w > C−α}, J2 = {C−α ≥ w > C/2}, J3 = {C/2 ≥ w ≥ α};
  * L(α) = |J1| + |J2| + max(0, ⌈(ΣJ3 − (|J2|·C − ΣJ2)) / C⌉), L2 = max over α.
  * Only α equal to 0 or to an item size ≤ C/2 can change the sets, so those are the ones tried.

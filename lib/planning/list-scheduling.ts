@@ -11,7 +11,7 @@ export interface SequencedJob {
   due: number;
 }
 
-/** Earliest due date first (Jackson 1955); ties by id so that the order is reproducible. */
+/** Earliest due date first (Jackson 1955 [from memory]); ties by id so that the order is reproducible. */
 export function eddOrder<T extends SequencedJob>(jobs: readonly T[]): T[] {
   return [...jobs].sort((a, b) => a.due - b.due || (a.id < b.id ? -1 : a.id > b.id ? 1 : 0));
 }
@@ -53,7 +53,7 @@ export function listSchedule(durations: readonly number[], m: number, order?: re
   return { machines, loads, makespan: Math.max(0, ...loads) };
 }
 
-/** Longest processing time first (Graham 1969): C_max(LPT) ≤ (4/3 − 1/(3m))·C*_max. */
+/** Longest processing time first (Graham 1969 [from memory]): C_max(LPT) ≤ (4/3 − 1/(3m))·C*_max. */
 export function lptSchedule(durations: readonly number[], m: number): ListSchedule {
   const order = durations.map((_, i) => i).sort((a, b) => durations[b] - durations[a] || a - b);
   return listSchedule(durations, m, order);

@@ -3,7 +3,7 @@
 // build or a blocked window, never starts before the printer is available and, when the shop
 // sets staffed hours, starts inside them (printing runs unattended, starting does not).
 //
-// Start: earliest-due-date list scheduling (Jackson's rule, 1955, applied as a list rule): builds
+// Start: earliest-due-date list scheduling (Jackson's rule, 1955 [from memory], applied as a list rule): builds
 // in due order, each on the compatible printer where it would finish first. Each printer runs its
 // builds in due order and a build may drop into an idle gap left before a blocked window, which
 // delays nobody. Then a local search moves and swaps builds off the printer that finishes last

@@ -35,6 +35,7 @@ describe("continuous bound L1 (worked example, computed by hand)", () => {
   });
 });
 
+// Citation details from memory; the bound and its worked value are checkable by hand.
 describe("Martello & Toth L2 (Discrete Applied Mathematics 28, 1990)", () => {
   it("{6, 6, 6, 6} with C = 10: L1 = 3 but L2 = 4 (worked example, computed by hand)", () => {
     expect(continuousBound([6, 6, 6, 6], 10)).toBe(3);
@@ -70,6 +71,7 @@ function cutBins(seed: number, k: number, C: number): number[] {
   return items;
 }
 
+// LNCS volume and pages of the ESCAPE paper from memory.
 describe("First Fit Decreasing bound FFD ≤ 11/9·OPT + 6/9 (Dósa, ESCAPE 2007; Dósa et al., TCS 510, 2013)", () => {
   it("floors of the bound for small OPT (computed by hand)", () => {
     const bound = (opt: number) => Math.floor((11 / 9) * opt + 6 / 9);

@@ -28,6 +28,7 @@ function bruteForceMakespan(durations: number[], m: number): number {
   return best;
 }
 
+// Jackson (1955), Research Report 43, UCLA: bibliographic details from memory.
 describe("Jackson's rule: EDD minimises maximum lateness on one machine (Jackson 1955)", () => {
   const A = { id: "A", p: 3, due: 5 };
   const B = { id: "B", p: 2, due: 4 };
@@ -74,6 +75,7 @@ describe("Jackson's rule: EDD minimises maximum lateness on one machine (Jackson
   });
 });
 
+// Graham (1969) volume, pages and the 1966 list-scheduling bound: from memory.
 describe("Graham's LPT bound C_max(LPT)/C*_max ≤ 4/3 − 1/(3m) (Graham, SIAM J. Appl. Math. 17, 1969)", () => {
   // Tight instances (computed by hand): 2m+1 jobs 2m−1, 2m−1, …, m+1, m+1, m, m, m.
   it("m = 2, {3, 3, 2, 2, 2}: LPT 7 against an optimum of 6, exactly the bound 7/6", () => {
