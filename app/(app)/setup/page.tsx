@@ -15,7 +15,8 @@ const SECTIONS: Section[] = [
   { title: "Users", href: "/setup/users", lead: "Accounts, roles, invitations, reset links, deactivation." },
   { title: "Equipment", href: "/setup/equipment", lead: "Printers, wash stations and furnaces: sizes, rates, limits and maintenance windows." },
   { title: "Materials", href: "/setup/materials", lead: "Feedstocks: shrinkage, densities, wash rate and default sinter profile." },
-  { title: "Sinter profiles", href: null, lead: "Ramp, hold and cool-down segments, atmosphere and compatible materials." },
+  { title: "Sinter profiles", href: "/setup/profiles", lead: "Ramp, hold and cool-down segments, atmosphere and compatible materials." },
+  { title: "Shrinkage calibration", href: "/finishing/calibration", lead: "Realized shrinkage from inspections per material, and the suggested factors to apply." },
   { title: "Shop settings", href: "/setup/settings", lead: "Shop name, time zone, staffed hours and planning margins." },
   { title: "Background jobs", href: "/setup/jobs", lead: "The worker's queues, failed jobs and its last sweep for bookings whose end went by." },
 ];
