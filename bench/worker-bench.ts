@@ -67,8 +67,8 @@ async function scenario(workers: number, capture: Capture): Promise<Outcome> {
 
     const done = async (d: Database) => (await sql<{ n: number }>`select count(*)::int as n from builds where state = 'complete'`.execute(d)).rows[0].n;
     const t0 = performance.now();
-    // Shop defaults: sweep every minute, poll every second, batches of 25, two pollers a queue.
-    const env = { HEARTH_SWEEP_SECONDS: "60", HEARTH_MAIL_PUMP_SECONDS: "10", HEARTH_WORKER_POLL_SECONDS: "1", HEARTH_MAIL_BACKOFF_SECONDS: "15", HEARTH_MAIL_BACKOFF_MAX_SECONDS: "600" };
+    // Shop defaults: ten connections, sweep every minute, poll every second, batches of 25, two pollers a queue.
+    const env = { DB_POOL_MAX: "10", HEARTH_SWEEP_SECONDS: "60", HEARTH_MAIL_PUMP_SECONDS: "10", HEARTH_WORKER_POLL_SECONDS: "1", HEARTH_MAIL_BACKOFF_SECONDS: "15", HEARTH_MAIL_BACKOFF_MAX_SECONDS: "600" };
     procs.push(...(await Promise.all(Array.from({ length: workers }, () => startWorker(url, capture, env)))));
     const startupS = (performance.now() - t0) / 1000;
     await waitUntil("every build complete", async () => (await done(db)) === N, 180_000, 100);
