@@ -1,6 +1,9 @@
 // Seeded generators for the benchmark and the tests: realistic furnace-run mixes, zero-waste
 // instances with a known optimum (recursive guillotine cuts of full trays), and printer plans.
 
+import fs from "node:fs";
+import path from "node:path";
+import { pathToFileURL } from "node:url";
 import type {
   BuildSpec,
   FurnaceRunsInstance,
@@ -216,4 +219,32 @@ export function printerPlanInstance(
     builds.push({ ...d, due: iso(BENCH_NOW + d.duration_min * 60_000 + between(rnd, 0.05, 0.95) * horizon) });
   }
   return { kind: "printer-plan", name, now: iso(BENCH_NOW), printers, builds };
+}
+
+/**
+ * Writes the generated benchmark instances as planning-instance files:
+ * npx tsx bench/generate-instances.ts OUT_DIR (then npm run bench -- --instances OUT_DIR).
+ */
+export function writeBenchInstances(dir: string): string[] {
+  fs.mkdirSync(dir, { recursive: true });
+  const all: { name: string }[] = [
+    furnaceMixInstance(1),
+    zeroWasteInstance(1004, { trays: 4, trayCount: 2 }),
+    zeroWasteInstance(1020, { trays: 20, trayCount: 4 }),
+    printerPlanInstance(1),
+  ];
+  return all.map((inst) => {
+    const file = path.join(dir, `${inst.name}.json`);
+    fs.writeFileSync(file, JSON.stringify(inst, null, 1) + "\n");
+    return file;
+  });
+}
+
+if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
+  const out = process.argv[2];
+  if (!out) {
+    console.error("usage: npx tsx bench/generate-instances.ts OUT_DIR");
+    process.exit(2);
+  }
+  for (const f of writeBenchInstances(out)) console.log(f);
 }
