@@ -17,7 +17,7 @@ import type {
   UnitState,
 } from "@/lib/batches/types";
 import { furnaceCycle, type SinterProfile } from "@/lib/process/furnace-profile";
-import { projectUnit, type StepState } from "@/lib/process/projection";
+import { projectionStatus, projectUnit, type StepState } from "@/lib/process/projection";
 import { washMinutes } from "@/lib/process/wash";
 import type { TrayRun } from "@/lib/packing/types";
 import { suggestBatches, type Busy, type SuggestResult } from "@/lib/batches/suggest";
@@ -184,6 +184,41 @@ function unitQuery(db: Db) {
 
 type UnitRow = Awaited<ReturnType<ReturnType<typeof unitQuery>["execute"]>>[number];
 
+// A unit's projected completion depends on its steps, not on its due date, and the units on the
+// board share a handful of step chains (one per profile and wash time): project each chain once.
+const projectionMemo = new WeakMap<ShopContext, Map<string, Date | null>>();
+const cycleMemo = new WeakMap<ShopContext, Map<string, number>>();
+
+function profileCycle(ctx: ShopContext, p: BoardProfile): number {
+  let memo = cycleMemo.get(ctx);
+  if (!memo) cycleMemo.set(ctx, (memo = new Map()));
+  let m = memo.get(p.id);
+  if (m === undefined) {
+    try {
+      m = cycleMinutesFor(p);
+    } catch {
+      m = 0;
+    }
+    memo.set(p.id, m);
+  }
+  return m;
+}
+
+function projectedEnd(ctx: ShopContext, steps: Record<string, StepState>): Date | null {
+  let memo = projectionMemo.get(ctx);
+  if (!memo) projectionMemo.set(ctx, (memo = new Map()));
+  const key = JSON.stringify(steps);
+  if (memo.has(key)) return memo.get(key)!;
+  let end: Date | null = null;
+  try {
+    end = projectUnit({ now: ctx.now, dueAt: ctx.now, steps: steps as Parameters<typeof projectUnit>[0]["steps"], atRiskMarginMinutes: ctx.at_risk_margin_minutes, staffing: ctx.staffing ?? undefined }).projectedEnd;
+  } catch {
+    end = null;
+  }
+  memo.set(key, end);
+  return end;
+}
+
 function toBoardUnit(r: UnitRow, ctx: ShopContext): BoardUnit {
   // The worker keeps parts' green sizes current; a part not scaled yet is scaled here the same way.
   const sxy = num(r.shrink_xy);
@@ -220,12 +255,7 @@ function toBoardUnit(r: UnitRow, ctx: ShopContext): BoardUnit {
 
   const profile = ctx.profiles.find((p) => p.id === r.default_profile_id);
   const compatible = ctx.profiles.filter((p) => p.material_ids.includes(r.material_id)).map((p) => p.id);
-  let cycle = 0;
-  try {
-    cycle = profile ? cycleMinutesFor(profile) : 0;
-  } catch {
-    cycle = 0;
-  }
+  const cycle = profile ? profileCycle(ctx, profile) : 0;
   const booked = (s: Date | null, e: Date | null): StepState | null =>
     s && e && new Date(s) < new Date(e) ? { status: "booked", start: new Date(s), end: new Date(e) } : null;
   const washOpen = r.wb_state && ["scheduled", "running"].includes(r.wb_state) ? booked(r.wb_starts_at, r.wb_ends_at) : null;
@@ -238,14 +268,16 @@ function toBoardUnit(r: UnitRow, ctx: ShopContext): BoardUnit {
     furnace: runOpen ?? ({ status: "unbooked", minutes: cycle } as StepState),
     finishing: { status: "unbooked", minutes: ctx.finishing_lead_minutes } as StepState,
   };
-  let slack = 0;
-  let status: BoardUnit["projection_status"] = "on_time";
-  try {
-    const pr = projectUnit({ now: ctx.now, dueAt: new Date(r.due_at), steps, atRiskMarginMinutes: ctx.at_risk_margin_minutes, staffing: ctx.staffing ?? undefined });
-    slack = Math.round(pr.slackMinutes);
-    status = pr.status;
-  } catch {
-    slack = Math.round((new Date(r.due_at).getTime() - ctx.now.getTime()) / 60_000);
+  const due = new Date(r.due_at);
+  let slack: number;
+  let status: BoardUnit["projection_status"];
+  const end = projectedEnd(ctx, steps);
+  if (end) {
+    slack = Math.round((due.getTime() - end.getTime()) / 60_000);
+    status = projectionStatus(end, due, ctx.at_risk_margin_minutes);
+  } else {
+    slack = Math.round((due.getTime() - ctx.now.getTime()) / 60_000);
+    status = slack < 0 ? "late" : "on_time";
   }
   return {
     id: r.id,
@@ -434,6 +466,8 @@ export type Proposal = SuggestResult & {
   /** What is open on the board now, for the diff. */
   current: { wash_batches: number; furnace_runs: number };
   server_ms: number;
+  /** Where the time went: reading the shop and its units, planning, storing the proposal. */
+  timing: { load_ms: number; plan_ms: number; store_ms: number };
 };
 
 /**
@@ -460,6 +494,7 @@ export async function proposeBatches(
       db.selectFrom("furnace_runs").select((eb) => eb.fn.countAll<number>().as("n")).where("state", "in", ["draft", "scheduled"]).executeTakeFirstOrThrow(),
     ]),
   ]);
+  const tLoaded = performance.now();
   const washUnits = washAll.filter(keep);
   const furnaceUnits = furnaceAll.filter(keep);
   const result = suggestBatches({
@@ -477,6 +512,7 @@ export async function proposeBatches(
     wash: opts.wash,
     furnace: opts.furnace,
   });
+  const tPlanned = performance.now();
   const row = await db
     .insertInto("batch_proposals")
     .values({
@@ -485,7 +521,7 @@ export async function proposeBatches(
       wash: JSON.stringify(result.wash),
       furnace: JSON.stringify(result.furnace),
       unplaced: JSON.stringify(result.unplaced),
-      metrics: JSON.stringify({ ...result.metrics, server_ms: Math.round(performance.now() - t0) }),
+      metrics: JSON.stringify({ ...result.metrics, load_ms: Math.round(tLoaded - t0), plan_ms: Math.round(tPlanned - tLoaded), server_ms: Math.round(performance.now() - t0) }),
     })
     .returning("id")
     .executeTakeFirstOrThrow();
@@ -495,6 +531,7 @@ export async function proposeBatches(
     planned_from: now.toISOString(),
     current: { wash_batches: Number(open[0].n), furnace_runs: Number(open[1].n) },
     server_ms: Math.round(performance.now() - t0),
+    timing: { load_ms: Math.round(tLoaded - t0), plan_ms: Math.round(tPlanned - tLoaded), store_ms: Math.round(performance.now() - tPlanned) },
   };
 }
 
