@@ -319,28 +319,28 @@ function StatsTable({ v }: { v: MaterialCalibrationView }) {
     <table className="tabular w-full whitespace-nowrap text-xs" data-testid="calibration-stats">
       <thead className="text-left text-2xs uppercase tracking-wide text-soot-500">
         <tr>
-          <th className="py-1">Axis</th>
-          <th className="py-1">n</th>
-          <th className="py-1">Mean</th>
-          <th className="py-1">s.d.</th>
-          <th className="py-1">95 % interval</th>
-          <th className="py-1">Factor</th>
-          <th className="py-1">In use</th>
+          <th className="py-1 pr-2">Axis</th>
+          <th className="py-1 pr-2">n</th>
+          <th className="py-1 pr-2">Mean</th>
+          <th className="py-1 pr-2">s.d.</th>
+          <th className="py-1 pr-2">95 % interval</th>
+          <th className="py-1 pr-2">Factor</th>
+          <th className="py-1 pr-2">In use</th>
         </tr>
       </thead>
       <tbody>
         {rows.map((r) => (
           <tr key={r.key} className={`border-t border-soot-100 align-top ${r.minor ? "text-soot-500" : "text-sm"}`} data-axis={r.key}>
-            <td className="py-1 font-semibold">{r.label}</td>
-            <td className="py-1" data-testid={`count-${r.key}`}>{r.cal?.count ?? 0}</td>
-            <td className="py-1">{pct(r.cal?.meanShrinkage, 3)}</td>
-            <td className="py-1">{pct(r.cal?.stdDev, 3)}</td>
-            <td className="py-1">{r.cal?.interval ? `${(r.cal.interval.shrinkage[0] * 100).toFixed(2)}–${pct(r.cal.interval.shrinkage[1])}` : "–"}</td>
-            <td className="py-1">
+            <td className="py-1 pr-2 font-semibold">{r.label}</td>
+            <td className="py-1 pr-2" data-testid={`count-${r.key}`}>{r.cal?.count ?? 0}</td>
+            <td className="py-1 pr-2">{pct(r.cal?.meanShrinkage, 3)}</td>
+            <td className="py-1 pr-2">{pct(r.cal?.stdDev, 3)}</td>
+            <td className="py-1 pr-2">{r.cal?.interval ? `${(r.cal.interval.shrinkage[0] * 100).toFixed(2)}–${pct(r.cal.interval.shrinkage[1])}` : "–"}</td>
+            <td className="py-1 pr-2">
               {r.cal ? r.cal.suggestedFactor.toFixed(4) : "–"}
               {r.cal?.interval ? <div className="text-2xs text-soot-500">{r.cal.interval.factor[0].toFixed(4)} – {r.cal.interval.factor[1].toFixed(4)}</div> : null}
             </td>
-            <td className="py-1">{r.current !== undefined ? <>{pct(r.current, 3)}<div className="text-2xs text-soot-500">f {factorOf(r.current).toFixed(4)}</div></> : ""}</td>
+            <td className="py-1 pr-2">{r.current !== undefined ? <>{pct(r.current, 3)}<div className="text-2xs text-soot-500">f {factorOf(r.current).toFixed(4)}</div></> : ""}</td>
           </tr>
         ))}
       </tbody>

@@ -72,14 +72,14 @@ export function UtilizationChart({ rows, kind, period, today }: { rows: Utilizat
 
 export function UtilizationTable({ rows, kind }: { rows: UtilizationRow[]; kind?: KindUtilizationRow }) {
   return (
-    <table className="tabular mt-2 w-full text-xs">
+    <table className="tabular mt-2 w-full whitespace-nowrap text-xs">
       <thead className="text-left text-2xs uppercase tracking-wide text-soot-500">
         <tr>
           <th className="py-1">Resource</th>
-          <th className="py-1 text-right">Busy h</th>
-          <th className="py-1 text-right">Available h</th>
-          <th className="py-1 text-right">Maintenance h</th>
-          <th className="py-1 text-right">Utilization</th>
+          <th className="py-1 pl-2 text-right" title="booked hours">Busy h</th>
+          <th className="py-1 pl-2 text-right" title="hours less maintenance">Open h</th>
+          <th className="py-1 pl-2 text-right" title="maintenance hours">Maint. h</th>
+          <th className="py-1 pl-2 text-right">Used</th>
         </tr>
       </thead>
       <tbody>
