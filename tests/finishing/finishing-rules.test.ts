@@ -1,7 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { availableActions, planFinishingChange } from "@/lib/finishing/transitions";
-import { realizedPerAxis, runoutStockCheck, sizeDeviations, stockLeft, toStoredReadings, toleranceSummary, type PartForFinishing } from "@/lib/finishing/inspection";
-import { createInspectionSchema, finishingActionSchema } from "@/lib/finishing/schemas";
+import { plannedGreen, realizedPerAxis, runoutStockCheck, sizeDeviations, stockLeft, toStoredReadings, toleranceSummary, type PartForFinishing } from "@/lib/finishing/inspection";
+import { ATTACHMENT_MAX_BYTES, createInspectionSchema, finishingActionSchema } from "@/lib/finishing/schemas";
+import { checkAttachment, safeFilename, sniffAttachmentType } from "@/lib/finishing/attachments";
 
 const part: PartForFinishing = {
   nominal_x_mm: 25, nominal_y_mm: 40, nominal_z_mm: 12,
@@ -113,5 +114,42 @@ describe("tolerances", () => {
     expect(d.map((x) => x.withinPlusMinus)).toEqual([true, false]);
     expect(d[1].deviationUm).toBeCloseTo(30, 9);
     expect(sizeDeviations(part, { x: 25.015 })[0].withinPlusMinus).toBeUndefined();
+  });
+});
+
+describe("the size a unit was printed to", () => {
+  const withGreen = { ...part, green_x_mm: 30.1, green_y_mm: 47.7, green_z_mm: 14.8 };
+  it("comes from the build's own shrinkage snapshot, so a later recalibration does not change it", () => {
+    // f = 1/(1 − s); green = (nominal + both stocks) × f
+    const g = plannedGreen(withGreen, { shrink_xy: 0.16, shrink_z: 0.2 });
+    expect(g.x).toBeCloseTo(25.5 / 0.84, 12);
+    expect(g.y).toBeCloseTo(40.5 / 0.84, 12);
+    expect(g.z).toBeCloseTo(12.25 / 0.8, 12);
+    const byFactors = plannedGreen(withGreen, { factors: { xy: 1.25, z: 1.2 } });
+    expect(byFactors.x).toBeCloseTo(25.5 * 1.25, 12);
+  });
+  it("falls back to the part's green size without a usable snapshot", () => {
+    expect(plannedGreen(withGreen, null)).toEqual({ x: 30.1, y: 47.7, z: 14.8 });
+    expect(plannedGreen(withGreen, { shrink_xy: 16, shrink_z: 20 })).toEqual({ x: 30.1, y: 47.7, z: 14.8 }); // percentages, not fractions
+  });
+});
+
+describe("attachments are judged by their first bytes", () => {
+  const png = new Uint8Array([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a, 0, 0]);
+  const pdf = new TextEncoder().encode("%PDF-1.7\n");
+  it("recognises photos and PDFs", () => {
+    expect(sniffAttachmentType(png)).toBe("image/png");
+    expect(sniffAttachmentType(pdf)).toBe("application/pdf");
+    expect(sniffAttachmentType(new Uint8Array([0xff, 0xd8, 0xff, 0xe0]))).toBe("image/jpeg");
+    expect(sniffAttachmentType(new TextEncoder().encode("RIFF\0\0\0\0WEBPVP8 "))).toBe("image/webp");
+    expect(sniffAttachmentType(new TextEncoder().encode("solid cube"))).toBeUndefined();
+  });
+  it("gives 415 for another type, 422 when the contents do not match, 413 when too large", () => {
+    expect(checkAttachment(png, "image/png", "a.png")).toBe("image/png");
+    expect(() => checkAttachment(png, "text/plain", "a.txt")).toThrow(expect.objectContaining({ status: 415 }));
+    expect(() => checkAttachment(pdf, "image/png", "a.png")).toThrow(expect.objectContaining({ status: 422 }));
+    expect(() => checkAttachment(new Uint8Array(ATTACHMENT_MAX_BYTES + 1), "image/png", "big.png")).toThrow(expect.objectContaining({ status: 413 }));
+    expect(safeFilename("../../etc/passwd")).toBe("etc_passwd");
+    expect(safeFilename("bore photo (2).jpg")).toBe("bore_photo_2_.jpg");
   });
 });
