@@ -218,19 +218,25 @@ describe("scale-up recomputation", () => {
     await recomputeScaleUp(w.db, { part_id: w.shop.part_id });
     const before = await w.db.selectFrom("parts").selectAll().where("id", "=", w.shop.part_id).executeTakeFirstOrThrow();
     // (40 + 0.3 + 0.3) / (1 − 0.15) and (20 + 0.5) / (1 − 0.165)
-    expect(Number(before.green_x_mm)).toBeCloseTo(40.6 / 0.85, 9);
-    expect(Number(before.green_z_mm)).toBeCloseTo(20.5 / 0.835, 9);
+    expect(Number(before.green_x_mm)).toBeCloseTo(40.6 / 0.85, 3);
+    expect(Number(before.green_z_mm)).toBeCloseTo(20.5 / 0.835, 3);
 
+    // The part was scaled a while ago; then the material's shrinkage changed.
+    await w.db.updateTable("parts").set({ scaled_at: sql`now() - interval '10 seconds'` }).where("id", "=", w.shop.part_id).execute();
     await w.db.updateTable("materials").set({ shrink_xy: 0.18, updated_at: sql`now()` }).where("id", "=", w.shop.material_id).execute();
     const stale = await recomputeScaleUp(w.db, { stale: 100 });
     expect(stale).toMatchObject({ checked: 1, changed: 1 });
     const after = await w.db.selectFrom("parts").selectAll().where("id", "=", w.shop.part_id).executeTakeFirstOrThrow();
-    expect(Number(after.green_x_mm)).toBeCloseTo(40.6 / 0.82, 9);
+    expect(Number(after.green_x_mm)).toBeCloseTo(40.6 / 0.82, 3);
     expect(after.scale_factors).toMatchObject({ shrink_xy: 0.18 });
     expect(after.version).toBe(before.version);
     const ev = await w.db.selectFrom("events").selectAll().where("entity", "=", "part").where("entity_id", "=", w.shop.part_id).where("kind", "=", "scale_up").execute();
     expect(ev.length).toBeGreaterThanOrEqual(1);
     expect(ev.at(-1)!.data).toMatchObject({ after: { x: expect.closeTo(40.6 / 0.82, 9) } });
+    // Nothing changed since: the sizes stay exactly as stored.
+    await recomputeScaleUp(w.db, { part_id: w.shop.part_id });
+    const again = await w.db.selectFrom("parts").select(["green_x_mm", "green_z_mm"]).where("id", "=", w.shop.part_id).executeTakeFirstOrThrow();
+    expect(again).toEqual({ green_x_mm: after.green_x_mm, green_z_mm: after.green_z_mm });
     // Up to date now: nothing stale is left.
     expect(await recomputeScaleUp(w.db, { stale: 100 })).toMatchObject({ checked: 0 });
     const build = await w.db.selectFrom("builds").select("scale_snapshot").where("id", "=", b.id).executeTakeFirstOrThrow();

@@ -46,7 +46,12 @@ export async function recomputeScaleUp(db: Database, target: Target): Promise<Sc
     else {
       q = q
         .where((eb) =>
-          eb.or([eb("parts.scaled_at", "is", null), eb("parts.scaled_at", "<", eb.ref("parts.updated_at")), eb("parts.scaled_at", "<", eb.ref("materials.updated_at"))]),
+          // A second's grace: the app stamps scaled_at from its own clock in the same write.
+          eb.or([
+            eb("parts.scaled_at", "is", null),
+            eb("parts.scaled_at", "<", sql<Date>`parts.updated_at - interval '1 second'`),
+            eb("parts.scaled_at", "<", sql<Date>`materials.updated_at - interval '1 second'`),
+          ]),
         )
         .orderBy("parts.updated_at")
         .limit(target.stale);
@@ -83,9 +88,15 @@ export async function recomputeScaleUp(db: Database, target: Target): Promise<Sc
       const before = { x: p.green_x_mm == null ? null : Number(p.green_x_mm), y: p.green_y_mm == null ? null : Number(p.green_y_mm), z: p.green_z_mm == null ? null : Number(p.green_z_mm) };
       const factors = { xy: result.x.factor, z: result.z.factor, shrink_xy: result.x.shrinkage, shrink_z: result.z.shrinkage };
       const differs = (["x", "y", "z"] as const).some((a) => before[a] == null || Math.abs((before[a] as number) - green[a]) > EPS);
+      // Sizes kept to the micrometre, as the parts pages store them; unchanged sizes are left as they are.
+      const um = (x: number) => Math.round(x * 1000) / 1000;
       await trx
         .updateTable("parts")
-        .set({ green_x_mm: green.x, green_y_mm: green.y, green_z_mm: green.z, scale_factors: JSON.stringify(factors), scaled_at: sql`now()` })
+        .set(
+          differs
+            ? { green_x_mm: um(green.x), green_y_mm: um(green.y), green_z_mm: um(green.z), scale_factors: JSON.stringify(factors), scaled_at: sql`now()` }
+            : { scaled_at: sql`now()` },
+        )
         .where("id", "=", p.id)
         .execute();
       if (differs) {
