@@ -7,7 +7,7 @@ import type { UnitSystem } from "@/lib/units";
 import type { FinishingAction } from "@/lib/finishing/schemas";
 import type { FinishingCard, FinishingQueue as Queue } from "@/lib/finishing/types";
 import { ApiError, getJson, sendJson } from "./api";
-import { formatWhen, relative, stateLabel } from "./format";
+import { formatWhen, ra, relative, stateLabel, stockLen } from "./format";
 import { ShopQueryProvider } from "./query-provider";
 import { StateBadge } from "./state-badge";
 import { ToleranceText, UnitFacts } from "./unit-facts";
@@ -120,7 +120,8 @@ function ArrivingTable({ cards, units, timeZone, now }: { cards: FinishingCard[]
             <th className="px-3 py-2">Material</th>
             <th className="px-3 py-2">Furnace run</th>
             <th className="px-3 py-2">Comes out</th>
-            <th className="px-3 py-2">Tolerance</th>
+            <th className="whitespace-nowrap px-3 py-2">Stock − / +</th>
+            <th className="px-3 py-2">Tolerance · Ra · notes</th>
             <th className="px-3 py-2">Order due</th>
           </tr>
         </thead>
@@ -131,11 +132,11 @@ function ArrivingTable({ cards, units, timeZone, now }: { cards: FinishingCard[]
             return (
               <tr key={c.id} className="border-t border-soot-100 align-top" data-serial={c.serial}>
                 <td className="px-3 py-2">
-                  <Link href={`/units/${c.id}`} className="font-mono text-xs font-semibold text-clay-700 hover:underline">{c.serial}</Link>
+                  <Link href={`/units/${c.id}`} className="whitespace-nowrap font-mono text-xs font-semibold text-clay-700 hover:underline">{c.serial}</Link>
                   <div className="mt-0.5"><StateBadge state={c.state} /></div>
                 </td>
                 <td className="px-3 py-2">
-                  {c.part.part_number} rev {c.part.revision}
+                  <span className="whitespace-nowrap">{c.part.part_number} rev {c.part.revision}</span>
                   <div className="text-xs text-soot-500">{c.part.name}</div>
                 </td>
                 <td className="px-3 py-2">{c.material.code}</td>
@@ -147,14 +148,24 @@ function ArrivingTable({ cards, units, timeZone, now }: { cards: FinishingCard[]
                   {formatWhen(out, timeZone)}
                   <div className={`text-xs ${past ? "text-brass-600" : "text-soot-500"}`}>{out ? (past ? "out of the furnace, awaiting release" : relative(out, new Date(now).getTime())) : ""}</div>
                 </td>
-                <td className="px-3 py-2 text-xs"><ToleranceText unit={c} /></td>
+                <td className="whitespace-nowrap px-3 py-2 text-xs">
+                  {(["x", "y", "z"] as const).map((a) => (
+                    <div key={a}>
+                      <span className="font-semibold">{a.toUpperCase()}</span> {stockLen(c.part[`stock_${a}_neg_mm`], units)} / {stockLen(c.part[`stock_${a}_pos_mm`], units)}
+                    </div>
+                  ))}
+                </td>
+                <td className="px-3 py-2 text-xs">
+                  <ToleranceText unit={c} />
+                  <div>Ra {ra(c.part.target_ra_um, units)}</div>
+                  <div className="text-soot-500">{c.part.finishing_notes}</div>
+                </td>
                 <td className="px-3 py-2 text-xs">{c.order.code} · {formatWhen(c.order.due_at, timeZone)}</td>
               </tr>
             );
           })}
         </tbody>
       </table>
-      <p className="border-t border-soot-100 px-3 py-1.5 text-2xs text-soot-500">Stock per face: {units === "in" ? "inches" : "millimetres"}; open a unit for its drawing notes once it is ready.</p>
     </div>
   );
 }
