@@ -37,6 +37,9 @@ export class MaxRectsBin {
   free: Rect[];
   used: Rect[] = [];
   usedArea = 0;
+  /** Largest short side and largest long side over the free rectangles: a quick "cannot fit". */
+  private maxShort = 0;
+  private maxLong = 0;
 
   /**
    * @param minSide free rectangles thinner than this are dropped: nothing that will be offered
@@ -48,6 +51,18 @@ export class MaxRectsBin {
     readonly minSide = GEOMETRY_EPS,
   ) {
     this.free = width >= minSide && height >= minSide ? [{ x: 0, y: 0, w: width, h: height }] : [];
+    this.refreshLimits();
+  }
+
+  private refreshLimits(): void {
+    let s = 0;
+    let l = 0;
+    for (const f of this.free) {
+      s = Math.max(s, Math.min(f.w, f.h));
+      l = Math.max(l, Math.max(f.w, f.h));
+    }
+    this.maxShort = s;
+    this.maxLong = l;
   }
 
   clone(): MaxRectsBin {
@@ -55,6 +70,8 @@ export class MaxRectsBin {
     b.free = this.free.map((r) => ({ ...r }));
     b.used = this.used.map((r) => ({ ...r }));
     b.usedArea = this.usedArea;
+    b.maxShort = this.maxShort;
+    b.maxLong = this.maxLong;
     return b;
   }
 
@@ -64,6 +81,7 @@ export class MaxRectsBin {
 
   /** Best position for a w×h rectangle (optionally turned 90°) under `rule`, or null. */
   find(w: number, h: number, rule: PlacementRule, allowRotate: boolean): Fit | null {
+    if (Math.min(w, h) > this.maxShort + GEOMETRY_EPS || Math.max(w, h) > this.maxLong + GEOMETRY_EPS) return null;
     let best: Fit | null = null;
     const tryOrientation = (ow: number, oh: number, rotated: boolean) => {
       for (const f of this.free) {
@@ -172,6 +190,7 @@ export class MaxRectsBin {
       if (!contained) survivors.push(a);
     }
     this.free = kept.concat(survivors);
+    this.refreshLimits();
     this.used.push({ x: r.x, y: r.y, w: r.w, h: r.h });
     this.usedArea += r.w * r.h;
   }

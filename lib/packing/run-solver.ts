@@ -297,26 +297,30 @@ function trayBestOfFill(
  */
 function dotProductFill(f: FurnaceModel, pm: ProfileModel, used: Uint8Array, rule: PlacementRule): RunState {
   const run = new RunState(f, pm.minSide);
-  let cands = pm.items.filter((it) => !used[it.local] && it.eligibleMask.has(f.idx));
+  const cands = pm.items.filter((it) => !used[it.local] && it.eligibleMask.has(f.idx));
+  // Free space only shrinks and the load only grows, so a unit that fails once stays out.
+  const alive = new Uint8Array(cands.length).fill(1);
   for (;;) {
     const ra = 1 - run.area / f.runArea;
     const rm = 1 - run.mass / f.load;
-    const scored = cands
-      .filter((it) => run.massFits(it) && it.area <= f.runArea - run.area + GEOMETRY_EPS)
-      .map((it) => ({ it, s: (it.area / f.runArea) * ra + (it.mass / f.load) * rm }))
-      .sort((x, y) => y.s - x.s || x.it.dueRank - y.it.dueRank);
-    let placed: ItemModel | null = null;
-    const failed = new Set<ItemModel>();
-    for (const { it } of scored) {
-      if (run.tryAdd(it, rule, "first")) {
-        placed = it;
-        break;
+    let best = -1;
+    let bestScore = Number.NEGATIVE_INFINITY;
+    for (let i = 0; i < cands.length; i++) {
+      if (!alive[i]) continue;
+      const it = cands[i];
+      if (!run.massFits(it) || it.area > f.runArea - run.area + GEOMETRY_EPS) {
+        alive[i] = 0;
+        continue;
       }
-      failed.add(it);
+      const score = (it.area / f.runArea) * ra + (it.mass / f.load) * rm;
+      if (score > bestScore || (score === bestScore && it.dueRank < cands[best].dueRank)) {
+        best = i;
+        bestScore = score;
+      }
     }
-    if (!placed) break;
-    // Free space only shrinks, so a unit that did not fit will not fit later in this run.
-    cands = scored.map((x) => x.it).filter((it) => it !== placed && !failed.has(it));
+    if (best < 0) break;
+    alive[best] = 0;
+    run.tryAdd(cands[best], rule, "first");
   }
   return run;
 }
