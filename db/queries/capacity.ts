@@ -15,7 +15,7 @@ import type { CapacityView } from "@/lib/capacity/types";
 import { furnaceCycle } from "@/lib/process/furnace-profile";
 import { printMinutes } from "@/lib/process/print-time";
 import { washMinutes } from "@/lib/process/wash";
-import type { WeeklyPattern } from "@/lib/process/time-zone";
+import { weeklyPatternSchema, type WeeklyPattern } from "@/lib/process/time-zone";
 
 // Everything the capacity view shows, read in a handful of queries and computed in lib/.
 
@@ -30,7 +30,10 @@ export async function loadShopClock(db: Database): Promise<ShopClock> {
     .select(["shop_name", "time_zone", "staffed_hours", "drying_minutes", "finishing_lead_minutes", "at_risk_margin_minutes"])
     .where("id", "=", 1)
     .executeTakeFirst();
-  const pattern = (row?.staffed_hours as WeeklyPattern | undefined) ?? [];
+  // A shop that has not set staffed hours (or set ones that do not parse) is projected as if
+  // someone were always there, rather than not at all.
+  const parsed = weeklyPatternSchema.safeParse(row?.staffed_hours ?? []);
+  const pattern: WeeklyPattern = parsed.success ? parsed.data : [];
   const time_zone = row?.time_zone ?? "UTC";
   return {
     shop_name: row?.shop_name ?? "Hearth",
