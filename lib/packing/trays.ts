@@ -156,6 +156,9 @@ export function canAddToRun(run: TrayRun, unit: PackUnit, ctx: CanAddContext): C
   );
   let k = 0;
   for (const t of run.trays) {
+    if (t.placements.length > 0 && !(Number.isInteger(t.index) && t.index >= 0 && t.index < f.trays)) {
+      throw new ComputationError(`run uses tray ${t.index}, furnace ${f.furnace.id} has ${f.trays}`, "trays");
+    }
     for (const p of t.placements) {
       const it = items[k++];
       const w = p.rotated ? it.ph : it.pw;
