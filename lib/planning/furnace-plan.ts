@@ -1,6 +1,6 @@
 // Furnace-run proposals: brown (and soon-brown) units grouped into runs by the tray packer, one
-// sinter profile per run, then each run booked on a furnace that can hold its layout at the
-// earliest time when all its units are brown, the furnace is free (existing bookings and runs
+// sinter profile per run, urgent first (urgency = when a unit's run should start, see below), then
+// each run booked on a furnace that can hold its layout at the earliest time when all its units are brown, the furnace is free (existing bookings and runs
 // proposed before it) and, when the shop sets staffed hours, someone is there to load it.
 // Runs are booked in order of their most urgent unit. A proposal is only a proposal: nothing is
 // written until a person accepts it.
@@ -126,7 +126,16 @@ export function planFurnaceRuns(input: FurnacePlanInput): FurnacePlanResult {
     packable.map((u) => [u.id, Math.max(now, u.ready_at ? parseTime(u.ready_at, `unit ${u.id} ready_at`) : now)]),
   );
   const due = new Map(packable.map((u) => [u.id, u.due ? parseTime(u.due, `unit ${u.id} due`) : Infinity]));
-  const packed = packTrays({ clearance_mm: input.clearance_mm, furnaces: input.furnaces, units: packable });
+  // The packer groups by urgency. Rank each unit by when its run should start: not before it is
+  // brown, and no later than its due date minus the cycle. So a soon-brown unit joins units that
+  // can wait until it is ready, instead of holding back units that are needed now.
+  const packUnits = packable.map((u) => {
+    const d = due.get(u.id)!;
+    if (!Number.isFinite(d)) return u;
+    const key = Math.max(ready.get(u.id)!, d - input.cycle_min[u.profile] * MINUTE_MS);
+    return { ...u, due: new Date(key).toISOString() };
+  });
+  const packed = packTrays({ clearance_mm: input.clearance_mm, furnaces: input.furnaces, units: packUnits });
   unplaced.push(...packed.unplaced);
   const cal = input.staffed_hours ? new StaffedCalendar(input.staffed_hours, now) : null;
 

@@ -75,6 +75,18 @@ describe("planFurnaceRuns", () => {
     expect(verifyRuns(inst, placed, res.unplaced).violations).toEqual([]);
   });
 
+  it("keeps soon-brown units out of the run that can start now", () => {
+    // 3 kg per run, 500 g units: two runs of three. a, c, e are brown only in 48 h.
+    const units = ["a", "b", "c", "d", "e", "f"].map((id, i) => U({ id, due: at(30), ready_at: i % 2 === 0 ? at(48) : null, mass_g: 1000 }));
+    const res = planFurnaceRuns({ now: at(0), clearance_mm: 5, furnaces: [F("F1")], units, cycle_min: { "H13-std": 600 } });
+    expect(res.runs).toHaveLength(2);
+    const withB = res.runs.find((r) => r.trays.some((t) => t.placements.some((p) => p.unit === "b")))!;
+    expect(withB.start).toBe(at(0));
+    expect(withB.trays.flatMap((t) => t.placements.map((p) => p.unit)).sort()).toEqual(["b", "d", "f"]);
+    // Lateness is still measured against the real due dates.
+    expect(res.metrics.max_lateness_min).toBe((48 + 10 - 30) * 60);
+  });
+
   it("moves a run to another furnace that holds the same layout when its own is booked", () => {
     const res = planFurnaceRuns({
       now: at(0),
