@@ -212,7 +212,11 @@ function UnitCard({ card, units, timeZone, canWrite, busy, onAction }: Omit<Card
         </div>
         <div className="flex flex-col items-end gap-1 text-xs">
           {card.build ? (
-            <Link href={`/builds/${card.build.id}`} className="text-clay-700 hover:underline">Traveler · {card.build.code}</Link>
+            <span>
+              <a href={`/api/builds/${card.build.id}/traveler`} target="_blank" rel="noreferrer" className="text-clay-700 hover:underline">Traveler</a>
+              {" · "}
+              <Link href={`/builds/${card.build.id}`} className="text-clay-700 hover:underline">build {card.build.code}</Link>
+            </span>
           ) : null}
           <Link href={`/units/${card.id}`} className="text-clay-700 hover:underline">Trace</Link>
         </div>

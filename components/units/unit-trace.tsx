@@ -84,7 +84,7 @@ function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
               <Row k="Booked">{slot(t.build.starts_at, t.build.ends_at)}</Row>
               <Row k="Printed">{t.build.started_at ? `${when(t.build.started_at)} → ${when(t.build.finished_at)}` : "–"}</Row>
               {t.build.failed ? <Row k="Failed">{t.build.failure_reason ?? "yes"}</Row> : null}
-              <Row k="Traveler"><Link href={`/builds/${t.build.id}`} className="text-clay-700 hover:underline">build page and traveler</Link></Row>
+              <Row k="Traveler"><a href={`/api/builds/${t.build.id}/traveler`} target="_blank" rel="noreferrer" className="text-clay-700 hover:underline">traveler (PDF)</a></Row>
             </>
           ) : null}
           <Row k="Finished size">{size(t.part.nominal)}</Row>
