@@ -123,7 +123,19 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
       if (ctx?.before) qc.setQueryData(["batches-board"], ctx.before);
       fail(err);
     },
-    onSuccess: (_r, c) => {
+    onSuccess: (r, c) => {
+      // The answer is the batch or run as saved: take its version at once, so the next action on
+      // it does not wait for the refetch (and is not refused as stale).
+      const saved = r as Partial<BoardFurnaceRun & BoardWashBatch> | null;
+      if (saved && typeof saved.id === "string" && typeof saved.version === "number" && Array.isArray(saved.units)) {
+        qc.setQueryData<Board>(["batches-board"], (b) =>
+          b && {
+            ...b,
+            furnace_runs: b.furnace_runs.map((x) => (x.id === saved.id ? { ...x, ...(saved as BoardFurnaceRun) } : x)),
+            wash_batches: b.wash_batches.map((x) => (x.id === saved.id ? { ...x, ...(saved as BoardWashBatch) } : x)),
+          },
+        );
+      }
       if (c.done) setFlash({ tone: "success", text: c.done });
     },
     onSettled: () => {

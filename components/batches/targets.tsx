@@ -16,12 +16,12 @@ export type HoverVerdict = { targetId: string; ok: true; layout?: TrayRun; unit:
 
 const STATE_WORDS: Record<string, string> = { draft: "Draft", scheduled: "Booked", running: "Running", complete: "Complete", cancelled: "Cancelled" };
 
-function DropFrame({ id, hover, children, testId, label }: { id: string; hover: HoverVerdict | null; children: React.ReactNode; testId: string; label: string }) {
+function DropFrame({ id, hover, children, testId, label, version }: { id: string; hover: HoverVerdict | null; children: React.ReactNode; testId: string; label: string; version: number }) {
   const { setNodeRef, isOver } = useDroppable({ id });
   const mine = hover && hover.targetId === id ? hover : null;
   const ring = mine ? (mine.ok ? "border-verdigris-500 ring-2 ring-verdigris-400/40" : "border-oxide-500 ring-2 ring-oxide-500/30") : isOver ? "border-clay-400" : "border-soot-200";
   return (
-    <section ref={setNodeRef} data-testid={testId} data-target-id={id} aria-label={label} className={`rounded-card border bg-white p-3 shadow-card transition-colors ${ring}`}>
+    <section ref={setNodeRef} data-testid={testId} data-target-id={id} data-version={version} aria-label={label} className={`rounded-card border bg-white p-3 shadow-card transition-colors ${ring}`}>
       {children}
       {mine ? (
         <p role="status" className={`mt-2 rounded px-2 py-1 text-xs font-medium ${mine.ok ? "bg-verdigris-100 text-verdigris-700" : "bg-oxide-100 text-oxide-700"}`} data-testid="drop-verdict">
@@ -58,7 +58,7 @@ export function RunTarget({ run, furnace, furnaces, profile, clearance_mm, timeZ
   const gauges = furnace ? furnaceGauges(run.tray_layout, run.units, furnace) : [];
   const previewGauges = furnace && previewLayout && mine ? furnaceGauges(previewLayout, [...run.units, mine.unit], furnace) : null;
   return (
-    <DropFrame id={id} hover={hover} testId="run-target" label={`Furnace run ${run.code}`}>
+    <DropFrame id={id} hover={hover} testId="run-target" label={`Furnace run ${run.code}`} version={run.version}>
       <header className="flex flex-wrap items-start justify-between gap-2">
         <div>
           <div className="flex items-center gap-2">
@@ -158,7 +158,7 @@ export function WashTarget({ batch, station, stations, timeZone, unitPref, hover
   const previewMinutes = mine?.ok ? washMinutesOf([...batch.units, mine.unit]) : null;
   const slowest = batch.units.reduce<BoardUnit | null>((s, u) => (!s || u.wash_minutes > s.wash_minutes ? u : s), null);
   return (
-    <DropFrame id={id} hover={hover} testId="wash-target" label={`Wash batch ${batch.code}`}>
+    <DropFrame id={id} hover={hover} testId="wash-target" label={`Wash batch ${batch.code}`} version={batch.version}>
       <header className="flex flex-wrap items-start justify-between gap-2">
         <div>
           <div className="flex items-center gap-2">

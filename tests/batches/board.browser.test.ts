@@ -3,7 +3,7 @@ import type { Browser, Locator, Page } from "playwright-core";
 import { appUrl, launchBrowser, screenshot } from "../helpers/browser";
 import { testDb } from "../helpers/db";
 import { DEMO } from "../helpers/session";
-import { makeFurnace, makeProfileAndMaterial, makeUnits, profileId, retireEquipment, retireMaterials, staffAroundTheClock } from "./fixtures";
+import { makeFurnace, makeProfileAndMaterial, makeStation, makeUnits, profileId, retireEquipment, retireMaterials, staffAroundTheClock } from "./fixtures";
 
 // A furnace operator fills a run on the board by dragging, sees the gauges and the tray drawing
 // change, is refused an incompatible unit before it lands, and starts the run after the checklist.
@@ -12,6 +12,7 @@ const { db, close } = testDb();
 let browser: Browser;
 let restoreHours: () => Promise<void>;
 const furnaces: string[] = [];
+const stations: string[] = [];
 const materials: string[] = [];
 let mine: { profile_id: string; material_code: string };
 let otherMaterial: { profile_id: string; material_code: string };
@@ -53,7 +54,8 @@ beforeAll(async () => {
 afterAll(async () => {
   await browser?.close();
   await db.updateTable("furnace_runs").set({ state: "cancelled" }).where("furnace_id", "in", furnaces).where("state", "in", ["draft", "scheduled"]).execute();
-  await retireEquipment(db, furnaces, []);
+  await db.updateTable("wash_batches").set({ state: "cancelled" }).where("wash_station_id", "in", stations.length ? stations : ["00000000-0000-0000-0000-000000000000"]).where("state", "in", ["draft", "scheduled"]).execute();
+  await retireEquipment(db, furnaces, stations);
   await retireMaterials(db, materials);
   await restoreHours();
   await close();
@@ -163,6 +165,54 @@ describe("the batching board in a browser", () => {
     await page.keyboard.press("Space");
     await expect.poll(async () => (await db.selectFrom("units").select("furnace_run_id").where("id", "=", u.id).executeTakeFirstOrThrow()).furnace_run_id, { timeout: 15_000 }).not.toBeNull();
     await screenshot(page, "batches-board-keyboard");
+    await page.close();
+  });
+
+  it("fills a wash batch, starts it, and holds a unit whose weighings show too little binder came out", async () => {
+    const st = await makeStation(db, { capacity: 6, load: 5000 });
+    stations.push(st.id);
+    const [a, b] = await makeUnits(db, { material: mine.material_code, state: "green", count: 2, green: [50, 40, 30], mass_g: 200, wall_mm: 3 });
+    const page = await browser.newPage({ viewport: { width: 1440, height: 1100 } });
+    page.setDefaultTimeout(60_000);
+    await signInAs(page, DEMO.technician);
+    await page.goto(`${appUrl()}/batches`);
+    await page.getByRole("tab", { name: /Wash batches/ }).click();
+    await page.getByLabel("Wash station for the new batch").selectOption({ label: (await page.getByLabel("Wash station for the new batch").locator("option", { hasText: st.name }).textContent())! });
+    await page.getByRole("button", { name: "Open batch" }).click();
+    const target = page.getByTestId("wash-target").filter({ hasText: st.name }).last();
+    await target.waitFor();
+    const filter = page.getByLabel("Filter by material");
+    await filter.selectOption((await filter.locator("option", { hasText: mine.material_code }).getAttribute("value"))!);
+    for (const u of [a, b]) {
+      const card = page.getByTestId("waiting-wash").locator(`[data-unit-id="${u.id}"]`);
+      expect(await drag(page, card, target)).toContain("fits here");
+      await expect.poll(async () => (await db.selectFrom("units").select("wash_batch_id").where("id", "=", u.id).executeTakeFirstOrThrow()).wash_batch_id, { timeout: 15_000 }).not.toBeNull();
+    }
+    await expect.poll(async () => target.locator('[data-gauge="capacity"]').getAttribute("data-fraction"), { timeout: 15_000 }).toBe((2 / 6).toFixed(4));
+    const batchId = (await db.selectFrom("units").select("wash_batch_id").where("id", "=", a.id).executeTakeFirstOrThrow()).wash_batch_id!;
+    const saved = (await db.selectFrom("wash_batches").select("version").where("id", "=", batchId).executeTakeFirstOrThrow()).version;
+    await expect.poll(async () => Number(await target.getAttribute("data-version")), { timeout: 15_000 }).toBe(saved);
+    await target.getByRole("button", { name: "Start now" }).click();
+    await expect.poll(async () => (await db.selectFrom("units").select("state").where("id", "=", a.id).executeTakeFirstOrThrow()).state, { timeout: 15_000 }).toBe("washing");
+
+    await page.goto(`${appUrl()}/batches/wash/${batchId}`);
+    await page.getByTestId("mass-table").waitFor();
+    await expect(page.getByTestId("cautions").textContent()).resolves.toContain("Flammable solvent vapours");
+    const aBrown = page.getByLabel(`Brown mass of ${a.serial}`);
+    const bBrown = page.getByLabel(`Brown mass of ${b.serial}`);
+    await aBrown.fill("190"); // 5 % out: passes
+    await bBrown.fill("197"); // 1.5 % out: short of 3.5 %
+    const rowB = page.locator(`tr[data-unit-id="${b.id}"]`);
+    await expect(rowB.getByTestId("mass-check").textContent()).resolves.toMatch(/Short by/);
+    await screenshot(page, "wash-batch-weighings");
+    await page.getByTestId("finish-wash").click();
+    await expect.poll(async () => (await db.selectFrom("units").select("state").where("id", "=", b.id).executeTakeFirstOrThrow()).state, { timeout: 15_000 }).toBe("on_hold");
+    await expect.poll(async () => rowB.getByTestId("mass-check").textContent(), { timeout: 15_000 }).toMatch(/Held: Mass loss 1\.50 %/);
+    await screenshot(page, "wash-batch-finished");
+    const held = await db.selectFrom("units").select(["hold_reason", "wash_passed"]).where("id", "=", b.id).executeTakeFirstOrThrow();
+    expect(held.wash_passed).toBe(false);
+    expect(held.hold_reason).toMatch(/below the 3\.50 % minimum/);
+    expect((await db.selectFrom("units").select("wash_passed").where("id", "=", a.id).executeTakeFirstOrThrow()).wash_passed).toBe(true);
     await page.close();
   });
 });
