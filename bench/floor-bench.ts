@@ -9,6 +9,7 @@
 // HEARTH_BENCH_NEXT_DIR reuses an existing build (else one is made in .next-bench once);
 // HEARTH_BENCH_FLOOR_PORT moves the app (default 3159).
 import fs from "node:fs";
+import os from "node:os";
 import { createRequire } from "node:module";
 import path from "node:path";
 import { spawnSync } from "node:child_process";
@@ -27,7 +28,7 @@ const WEEKS = 20;
 const CONNECTIONS = 20;
 const DURATION_S = Number(process.env.HEARTH_BENCH_FLOOR_SECONDS ?? 10);
 const PORT = Number(process.env.HEARTH_BENCH_FLOOR_PORT ?? 3159);
-const DB_NAME = "hearth_bench_floor";
+const DB_NAME = process.env.HEARTH_BENCH_FLOOR_DB ?? "hearth_bench_floor";
 const HOUR = 3_600_000;
 const WEEK = 7 * 24 * HOUR;
 
@@ -247,7 +248,7 @@ export const section: BenchSection = {
         value: r1(p95),
         target: "≤ 30",
         ok: p95 <= 30 && res.non2xx === 0 && res.errors === 0,
-        detail: { p50_ms: r1(pct(times, 50)), p99_ms: r1(pct(times, 99)), requests: res.requests.total, req_per_s: r1(res.requests.average), non2xx: res.non2xx, errors: res.errors, timeouts: res.timeouts, printers: seeded.printers },
+        detail: { load_average_1m: r1(os.loadavg()[0]), cores: os.cpus().length, p50_ms: r1(pct(times, 50)), p99_ms: r1(pct(times, 99)), requests: res.requests.total, req_per_s: r1(res.requests.average), non2xx: res.non2xx, errors: res.errors, timeouts: res.timeouts, printers: seeded.printers },
       });
       rows.push({ section: "floor", name: "GET /api/floor, one week", metric: "p50 ms", value: r1(pct(times, 50)) });
       rows.push({ section: "floor", name: "GET /api/floor, one week", metric: "requests/s", value: r1(res.requests.average) });
@@ -261,7 +262,7 @@ export const section: BenchSection = {
         value: Math.round(median),
         target: "≤ 1500",
         ok: median <= 1500,
-        detail: { runs_ms: render.ms.map(Math.round), screenshot: render.screenshot },
+        detail: { load_average_1m: r1(os.loadavg()[0]), runs_ms: render.ms.map(Math.round), screenshot: render.screenshot },
       });
     } finally {
       await stopProcs(procs);

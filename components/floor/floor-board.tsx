@@ -54,15 +54,13 @@ const CALENDAR_STYLE = {
   "--fc-button-active-bg-color": "#a84f2a", "--fc-button-active-border-color": "#a84f2a", "--fc-bg-event-opacity": "0.35",
 } as React.CSSProperties;
 
-function ResourceLabel({ title, r, canWash, canFurnace }: { title: string; r: FloorResource; canWash: boolean; canFurnace: boolean }) {
-  return (
-    <div className="leading-tight">
-      <div className="font-semibold text-soot-800">{title}</div>
-      <div className="text-2xs text-soot-500">
-        {r.kind === "printer" ? `${r.build_x_mm} × ${r.build_y_mm} × ${r.build_z_mm} mm` : (r.kind === "furnace" ? canFurnace : canWash) ? "drag booked ones" : "read-only here"}
-      </div>
-    </div>
-  );
+/** A DOM element with classes, text and data attributes (textContent, so nothing is parsed as HTML). */
+function el(tag: string, className: string, text?: string | null, data: Record<string, string> = {}): HTMLElement {
+  const node = document.createElement(tag);
+  node.className = className;
+  if (text) node.textContent = text;
+  for (const [k, v] of Object.entries(data)) node.dataset[k] = v;
+  return node;
 }
 
 function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
@@ -87,7 +85,14 @@ function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
 
 export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false, canFurnace = false }: FloorBoardProps) {
   const qc = useQueryClient();
-  const [range, setRange] = useState<{ from: string; to: string } | null>(null);
+  // The week the calendar opens on (Sunday to Sunday, browser time, as FullCalendar's week
+  // view): asking for it at once, not after the calendar has mounted, saves a round trip.
+  const [range, setRange] = useState<{ from: string; to: string } | null>(() => {
+    const now = new Date();
+    const start = new Date(now.getFullYear(), now.getMonth(), now.getDate() - now.getDay());
+    const end = new Date(start.getFullYear(), start.getMonth(), start.getDate() + 7);
+    return { from: start.toISOString(), to: end.toISOString() };
+  });
   const [message, setMessage] = useState<Message>(null);
   const [lastMove, setLastMove] = useState<LastMove | null>(null);
   const [proposal, setProposal] = useState<Proposal | null>(null);
@@ -171,7 +176,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
               {
                 id: nb.id, kind: "build", resource_id: nb.printer_id, title: prev?.title ?? `${nb.code} · ${draft?.material_code ?? ""}`,
                 start: new Date(nb.starts_at).toISOString(), end: new Date(nb.ends_at).toISOString(), state: nb.state, version: nb.version, editable: true,
-                material_code: prev?.material_code ?? draft?.material_code, material_id: prev?.material_id ?? draft?.material_id, unit_count: prev?.unit_count ?? draft?.unit_count,
+                material_code: prev?.material_code ?? draft?.material_code, material_id: prev?.material_id ?? draft?.material_id,
               },
             ],
           };
@@ -298,25 +303,29 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
     await move({ build_id: lastMove.build_id, code: lastMove.code, version: lastMove.version }, lastMove.before, null, { undo: true });
   }, [lastMove, move]);
 
+  // Plain DOM, not React: FullCalendar's React adapter re-renders every portal whenever one
+  // event's content mounts, which made a week of 500 bookings take seconds to appear.
   const renderEvent = useCallback((arg: EventContentArg) => {
     const p = arg.event.extendedProps as Partial<FloorEvent>;
     if (arg.event.display === "background") {
-      return <div className="truncate px-1 pt-0.5 text-2xs italic text-soot-800" data-testid="maintenance-block">{arg.event.title}</div>;
+      return { domNodes: [el("div", "truncate px-1 pt-0.5 text-2xs italic text-soot-800", arg.event.title, { testid: "maintenance-block" })] };
     }
     const state = p.failed ? "failed" : p.state && p.kind ? (STATE_WORDS[p.kind][p.state] ?? p.state) : arg.event.classNames.includes("hearth-proposed") ? "proposed" : "";
-    return (
-      <div className="flex min-w-0 items-baseline gap-1 overflow-hidden px-1 text-2xs leading-4" data-testid="floor-event" data-event-id={arg.event.id}>
-        <span className="truncate font-semibold">{arg.event.title}</span>
-        {state ? <span className="shrink-0 uppercase tracking-wide opacity-75">{state}</span> : null}
-        {p.unit_count ? <span className="shrink-0 opacity-75">{p.unit_count} u</span> : null}
-      </div>
-    );
+    const box = el("div", "flex min-w-0 items-baseline gap-1 overflow-hidden px-1 text-2xs leading-4", null, { testid: "floor-event", eventId: arg.event.id });
+    box.append(el("span", "truncate font-semibold", arg.event.title));
+    if (state) box.append(el("span", "shrink-0 uppercase tracking-wide opacity-75", state));
+    if (p.unit_count) box.append(el("span", "shrink-0 opacity-75", `${p.unit_count} u`));
+    return { domNodes: [box] };
   }, []);
 
   const renderResourceLabel = useCallback(
-    (arg: { resource: { title: string; extendedProps: Record<string, unknown> } }) => (
-      <ResourceLabel title={arg.resource.title} r={arg.resource.extendedProps as unknown as FloorResource} canWash={canWash} canFurnace={canFurnace} />
-    ),
+    (arg: { resource: { title: string; extendedProps: Record<string, unknown> } }) => {
+      const r = arg.resource.extendedProps as unknown as FloorResource;
+      const box = el("div", "leading-tight");
+      box.append(el("div", "font-semibold text-soot-800", arg.resource.title));
+      box.append(el("div", "text-2xs text-soot-500", r.kind === "printer" ? `${r.build_x_mm} × ${r.build_y_mm} × ${r.build_z_mm} mm` : (r.kind === "furnace" ? canFurnace : canWash) ? "drag booked ones" : "read-only here"));
+      return { domNodes: [box] };
+    },
     [canWash, canFurnace],
   );
   const onDragStart = useCallback(() => {
