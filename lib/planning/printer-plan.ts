@@ -236,14 +236,25 @@ interface PrinterState {
   idle: number;
 }
 
-/** Times `seq` (build indices sorted by due rank) on printer `pr`. */
-function timeSequence(model: Model, pr: PrinterModel, seq: readonly number[], starts?: number[]): PrinterState {
+/**
+ * Times `seq` (build indices sorted by due rank) on printer `pr`, with build `drop` left out and
+ * build `add` put in at its due-rank place (−1: none), without building the edited list.
+ */
+function timeSequence(
+  model: Model,
+  pr: PrinterModel,
+  seq: readonly number[],
+  starts?: number[],
+  drop = -1,
+  add = -1,
+): PrinterState {
+  const builds = model.builds;
   const tl = new Timeline(pr, model.cal);
   let finish = model.now;
   let lmax = Number.NEGATIVE_INFINITY;
   let tard = 0;
-  for (const bi of seq) {
-    const b = model.builds[bi];
+  const visit = (bi: number) => {
+    const b = builds[bi];
     const s = tl.add(b.p);
     if (starts) starts[bi] = s;
     const end = s + b.p;
@@ -251,10 +262,26 @@ function timeSequence(model: Model, pr: PrinterModel, seq: readonly number[], st
     const late = end - b.due;
     if (late > lmax) lmax = late;
     if (late > 0) tard += late;
+  };
+  const addRank = add >= 0 ? builds[add].rank : Infinity;
+  let pending = add >= 0;
+  for (const bi of seq) {
+    if (pending && builds[bi].rank > addRank) {
+      visit(add);
+      pending = false;
+    }
+    if (bi !== drop) visit(bi);
   }
+  if (pending) visit(add);
   let idle = 0;
   for (const [hs, he] of tl.holes) idle = Math.max(idle, he - hs);
   return { finish, lmax, tard, idle };
+}
+
+/** The list timeSequence(…, drop, add) times. */
+function edited(model: Model, seq: readonly number[], drop: number, add: number): number[] {
+  const out = drop >= 0 ? seq.filter((x) => x !== drop) : [...seq];
+  return add >= 0 ? insertByRank(model, out, add) : out;
 }
 
 /** Minimum M ≥ now with Σ_{i∈S} (free time of printer i in [now, M]) ≥ work. */
@@ -415,59 +442,46 @@ function improve(model: Model, seqs: number[][], lateCap: number, bound: number,
     for (let i = 1; i < state.length; i++) if (state[i].finish > state[crit].finish) crit = i;
     const fc = state[crit].finish;
     if (fc <= bound) break;
-    // Idle time a moved-in build might fill instead of extending the printer's finish.
-    const maxHole = state.map((st) => st.idle);
-    type Move = { a: number[]; b: number[]; k: number; sa: PrinterState; sb: PrinterState; key: number; tie: number };
+    const critPr = model.printers[crit];
+    type Move = { j: number; k: number; j2: number; sa: PrinterState; sb: PrinterState; key: number; tie: number };
     let best: Move | null = null;
-    const timeCrit = (a: number[]): PrinterState | null => {
-      const sa = timeSequence(model, model.printers[crit], a);
-      return sa.lmax > lateCap || sa.finish >= fc ? null : sa;
-    };
-    const consider = (a: number[], sa: PrinterState, b: number[], k: number) => {
-      const sb = timeSequence(model, model.printers[k], b);
+    const consider = (j: number, k: number, j2: number, sa: PrinterState) => {
+      const sb = timeSequence(model, model.printers[k], seqs[k], undefined, j2, j);
       if (sb.lmax > lateCap) return;
       const key = Math.max(sa.finish, sb.finish);
       if (key >= fc) return;
       const tie = sa.tard + sb.tard - state[crit].tard - state[k].tard;
-      if (!best || key < best.key || (key === best.key && tie < best.tie)) best = { a, b, k, sa, sb, key, tie };
+      if (!best || key < best.key || (key === best.key && tie < best.tie)) best = { j, k, j2, sa, sb, key, tie };
     };
+    const okCrit = (sa: PrinterState) => sa.lmax <= lateCap && sa.finish < fc;
     const mine = seqs[crit];
     for (const j of mine) {
-      const without = mine.filter((x) => x !== j);
-      const sa = timeCrit(without);
-      if (!sa) continue;
+      const sa = timeSequence(model, critPr, mine, undefined, j);
+      if (!okCrit(sa)) continue;
       for (const k of builds[j].compat) {
-        // Adding a build never brings a printer's finish forward.
-        if (k === crit || state[k].finish + builds[j].p >= fc + maxHole[k]) continue;
-        consider(without, sa, insertByRank(model, seqs[k], j), k);
+        // Adding a build never brings a printer's finish forward (an idle gap may absorb it).
+        if (k === crit || state[k].finish + builds[j].p >= fc + state[k].idle) continue;
+        consider(j, k, -1, sa);
       }
     }
     if (!best) {
       for (const j of mine) {
-        const without = mine.filter((x) => x !== j);
         for (const k of builds[j].compat) {
           if (k === crit || state[k].finish >= fc) continue;
           for (const j2 of seqs[k]) {
             const grow = builds[j].p - builds[j2].p;
             // Only swaps that shorten this printer and plausibly leave the other below fc.
-            if (grow <= 0 || !compatSet[j2].has(crit) || state[k].finish + grow >= fc + maxHole[k]) continue;
-            const a = insertByRank(model, without, j2);
-            const sa = timeCrit(a);
-            if (!sa) continue;
-            const b = insertByRank(
-              model,
-              seqs[k].filter((x) => x !== j2),
-              j,
-            );
-            consider(a, sa, b, k);
+            if (grow <= 0 || !compatSet[j2].has(crit) || state[k].finish + grow >= fc + state[k].idle) continue;
+            const sa = timeSequence(model, critPr, mine, undefined, j, j2);
+            if (okCrit(sa)) consider(j, k, j2, sa);
           }
         }
       }
     }
     if (!best) break;
     const m = best as Move;
-    seqs[crit] = m.a;
-    seqs[m.k] = m.b;
+    seqs[crit] = edited(model, mine, m.j, m.j2);
+    seqs[m.k] = edited(model, seqs[m.k], m.j2, m.j);
     state[crit] = m.sa;
     state[m.k] = m.sb;
     moves++;
