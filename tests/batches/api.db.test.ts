@@ -191,6 +191,21 @@ describe("furnace runs: booking, start and unload", () => {
     expect(resized.status).toBe(422);
     expect(resized.body.error.details.rule).toBe("resize");
 
+    // The floor shows it on its furnace lane as a booking that can be dragged, with its profile.
+    const from = new Date(start.getTime() - 24 * HOUR).toISOString();
+    const to = new Date(start.getTime() + 48 * HOUR).toISOString();
+    const floor = await api(`/api/floor?from=${encodeURIComponent(from)}&to=${encodeURIComponent(to)}`, { cookie: operator });
+    expect(floor.status).toBe(200);
+    const ev = floor.body.events.find((e: { id: string }) => e.id === run.id);
+    expect(ev).toMatchObject({ kind: "furnace_run", resource_id: kiln.id, editable: true, profile_id: p174 });
+    expect(floor.body.resources.find((r: { id: string }) => r.id === kiln.id).profile_ids).toContain(p174);
+    // Moving it to a furnace that does not run its profile is refused by the server too.
+    const narrow = await makeFurnace(db, { profiles: [p316] });
+    furnaces.push(narrow.id);
+    const wrongLane = await api(`/api/furnace-runs/${run.id}/schedule`, { method: "PATCH", cookie: operator, body: { version: booked.body.version, starts_at: start.toISOString(), furnace_id: narrow.id } });
+    expect(wrongLane.status).toBe(422);
+    expect(wrongLane.body.error.details.rule).toBe("profile");
+
     const other = await openRun();
     const clash = await api(`/api/furnace-runs/${other.id}/schedule`, { method: "PATCH", cookie: operator, body: { version: other.version, starts_at: new Date(start.getTime() + HOUR).toISOString() } });
     expect(clash.status).toBe(409);
