@@ -129,7 +129,6 @@ export async function seedFloor(db: Database): Promise<{ from: number; printers:
     });
   }
   for (let i = 0; i < rows.length; i += 1000) {
-    // eslint-disable-next-line @typescript-eslint/no-explicit-any
     const inserted = await db.insertInto("builds").values(rows.slice(i, i + 1000) as any).returning(["id", "code", "material_id"]).execute();
     const byMaterial = new Map<string, string[]>();
     for (const p of parts) byMaterial.set(p.material_id, [...(byMaterial.get(p.material_id) ?? []), p.id]);

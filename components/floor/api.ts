@@ -37,6 +37,8 @@ export async function apiJson<T>(path: string, init: { method?: string; body?: u
   if (!res.ok) {
     const e = (body as { error?: { message?: string; fieldErrors?: Record<string, string[]>; details?: Record<string, unknown> } } | null)?.error;
     if (res.status === 401 && typeof window !== "undefined") {
+      // A signed-out session needs a full page load of the sign-in page, not a client route change.
+      // eslint-disable-next-line @next/next/no-location-assign-relative-destination
       window.location.assign(`/sign-in?next=${encodeURIComponent(window.location.pathname)}`);
     }
     throw new ApiError(res.status, e?.message ?? `The server answered ${res.status}.`, e?.fieldErrors ?? {}, (e?.details as Record<string, unknown>) ?? {});

@@ -6,6 +6,7 @@ import resourceTimelinePlugin from "@fullcalendar/resource-timeline";
 import type { CalendarOptions, DateSpanApi, DatesSetArg, EventApi, EventContentArg, EventDropArg, EventInput } from "@fullcalendar/core";
 import { keepPreviousData, useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
+import { useRouter } from "next/navigation";
 import { useCallback, useEffect, useMemo, useRef, useState } from "react";
 import type { FloorData, FloorEvent, FloorResource, UnscheduledBuild } from "@/lib/floor/schemas";
 import { ApiError, apiJson } from "./api";
@@ -85,6 +86,7 @@ function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
 
 export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false, canFurnace = false }: FloorBoardProps) {
   const qc = useQueryClient();
+  const router = useRouter();
   // The week the calendar opens on (Sunday to Sunday, browser time, as FullCalendar's week
   // view): asking for it at once, not after the calendar has mounted, saves a round trip.
   const [range, setRange] = useState<{ from: string; to: string } | null>(() => {
@@ -344,10 +346,13 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
     },
     [qc],
   );
-  const onEventClick = useCallback((arg: { event: EventApi }) => {
-    const id = arg.event.extendedProps.build_id as string | undefined;
-    if (id) window.location.assign(`/builds/${id}`);
-  }, []);
+  const onEventClick = useCallback(
+    (arg: { event: EventApi }) => {
+      const id = arg.event.extendedProps.build_id as string | undefined;
+      if (id) router.push(`/builds/${id}`);
+    },
+    [router],
+  );
 
   const onDatesSet = useCallback((arg: DatesSetArg) => {
     setRange((r) => {
