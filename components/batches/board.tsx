@@ -20,7 +20,9 @@ import {
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { can, type Role } from "@/lib/auth/permissions";
 import { checkFurnaceAdd, checkWashAdd, profileLabel } from "@/lib/batches/rules";
-import type { Board, BoardFurnaceRun, BoardUnit, BoardWashBatch } from "@/lib/batches/types";
+import Link from "next/link";
+import type { Board, BoardActive, BoardFurnaceRun, BoardUnit, BoardWashBatch } from "@/lib/batches/types";
+import { shopTime } from "./format";
 import { ApiError, getJson, sendJson } from "./client";
 import { BatchesQueryProvider } from "./query-provider";
 import { SuggestPanel } from "./suggest-panel";
@@ -349,6 +351,8 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
         />
       ) : null}
 
+      <ActiveStrip items={data.active.filter((a) => (lane === "furnace" ? a.kind === "furnace_run" : a.kind === "wash_batch"))} timeZone={data.time_zone} lane={lane} />
+
       <DndContext sensors={sensors} collisionDetection={collision} onDragStart={onDragStart} onDragOver={onDragOver} onDragEnd={onDragEnd} onDragCancel={() => (setDragging(null), setHover(null))}
         accessibility={{
           announcements: {
@@ -438,6 +442,31 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
         </DragOverlay>
       </DndContext>
     </div>
+  );
+}
+
+function ActiveStrip({ items, timeZone, lane }: { items: BoardActive[]; timeZone: string; lane: Lane }) {
+  if (!items.length) return null;
+  return (
+    <section aria-label={lane === "furnace" ? "Runs in the furnace" : "Washes in the solvent"} className="rounded-card border border-soot-200 bg-white px-3 py-2" data-testid="active-strip">
+      <h2 className="text-xs font-semibold text-soot-700">{lane === "furnace" ? "In the furnace" : "In the solvent"}</h2>
+      <ul className="mt-1 flex flex-wrap gap-2">
+        {items.map((a) => (
+          <li key={a.id}>
+            <Link
+              href={a.kind === "furnace_run" ? `/furnace-runs/${a.id}` : `/batches/wash/${a.id}`}
+              className={`inline-flex items-center gap-2 rounded-md border px-2 py-1 text-xs hover:bg-soot-50 ${a.needs === "unload" ? "border-brass-400 bg-brass-100/60" : "border-soot-200"}`}
+            >
+              <span className="font-semibold text-soot-900">{a.code}</span>
+              <span className="text-soot-600">
+                {a.resource_name} · {a.unit_count} units · until {shopTime(a.ends_at, timeZone)}
+              </span>
+              {a.needs === "unload" ? <span className="font-semibold text-brass-600">record unload</span> : a.needs === "weighing" ? <span className="text-slate2-600">weigh and finish</span> : null}
+            </Link>
+          </li>
+        ))}
+      </ul>
+    </section>
   );
 }
 

@@ -6,6 +6,7 @@ import { profileLabel } from "@/lib/batches/rules";
 import { staffingOf, type Staffing } from "@/lib/batches/staffed";
 import type {
   Board,
+  BoardActive,
   BoardFurnace,
   BoardFurnaceRun,
   BoardMaterial,
@@ -407,13 +408,41 @@ export async function listFurnaceRuns(db: Db, ctx: ShopContext, opts: { states?:
   return rows.map((r) => toBoardRun(r, units));
 }
 
+async function listActive(db: Db, now: Date): Promise<BoardActive[]> {
+  const weekAgo = new Date(now.getTime() - 7 * 86_400_000);
+  const [washes, runs] = await Promise.all([
+    db
+      .selectFrom("wash_batches as w")
+      .leftJoin("wash_stations as s", "s.id", "w.wash_station_id")
+      .select(["w.id", "w.code", "w.state", "w.starts_at", "w.ends_at", "s.name as resource_name", sql<number>`(select count(*) from units u where u.wash_batch_id = w.id)`.as("unit_count")])
+      .where("w.state", "=", "running")
+      .orderBy("w.ends_at")
+      .execute(),
+    db
+      .selectFrom("furnace_runs as r")
+      .leftJoin("furnaces as f", "f.id", "r.furnace_id")
+      .select(["r.id", "r.code", "r.state", "r.starts_at", "r.ends_at", "f.name as resource_name", sql<number>`(select count(*) from units u where u.furnace_run_id = r.id)`.as("unit_count")])
+      .where((eb) => eb.or([eb("r.state", "=", "running"), eb.and([eb("r.state", "=", "complete"), eb("r.unloaded_at", "is", null), eb("r.ends_at", ">", weekAgo)])]))
+      .orderBy("r.ends_at")
+      .execute(),
+  ]);
+  return [
+    ...washes.map((w) => ({ kind: "wash_batch" as const, id: w.id, code: w.code, state: w.state, resource_name: w.resource_name ?? "", starts_at: iso(w.starts_at), ends_at: iso(w.ends_at), unit_count: Number(w.unit_count), needs: "weighing" as const })),
+    ...runs.map((r) => ({
+      kind: "furnace_run" as const, id: r.id, code: r.code, state: r.state, resource_name: r.resource_name ?? "", starts_at: iso(r.starts_at), ends_at: iso(r.ends_at), unit_count: Number(r.unit_count),
+      needs: r.state === "complete" || (r.ends_at && new Date(r.ends_at) <= now) ? ("unload" as const) : null,
+    })),
+  ];
+}
+
 export async function loadBoard(db: Db, now = new Date()): Promise<Board> {
   const ctx = await loadShopContext(db, now);
-  const [washWaiting, furnaceWaiting, washes, runs] = await Promise.all([
+  const [washWaiting, furnaceWaiting, washes, runs, active] = await Promise.all([
     listBoardUnits(db, ctx, { kind: "waiting_wash" }),
     listBoardUnits(db, ctx, { kind: "waiting_furnace" }),
     listWashBatches(db, ctx, { states: ["draft", "scheduled"] }),
     listFurnaceRuns(db, ctx, { states: ["draft", "scheduled"] }),
+    listActive(db, now),
   ]);
   return {
     now: now.toISOString(),
@@ -424,6 +453,7 @@ export async function loadBoard(db: Db, now = new Date()): Promise<Board> {
     furnace_waiting: furnaceWaiting,
     wash_batches: washes,
     furnace_runs: runs,
+    active,
     stations: ctx.stations,
     furnaces: ctx.furnaces,
     profiles: ctx.profiles,

@@ -143,6 +143,20 @@ export interface BoardFurnaceRun {
   units: BoardUnit[];
 }
 
+/** A wash in the solvent or a run in (or just out of) the furnace: where masses and unloads are recorded. */
+export interface BoardActive {
+  kind: "wash_batch" | "furnace_run";
+  id: string;
+  code: string;
+  state: BookingState;
+  resource_name: string;
+  starts_at: string | null;
+  ends_at: string | null;
+  unit_count: number;
+  /** A finished run still waiting for its unload to be recorded, or a wash waiting for its weighings. */
+  needs: "unload" | "weighing" | null;
+}
+
 export interface Board {
   now: string;
   time_zone: string;
@@ -154,6 +168,8 @@ export interface Board {
   furnace_waiting: BoardUnit[];
   wash_batches: BoardWashBatch[];
   furnace_runs: BoardFurnaceRun[];
+  /** Running washes and runs, and finished runs not unloaded yet. */
+  active: BoardActive[];
   stations: BoardStation[];
   furnaces: BoardFurnace[];
   profiles: BoardProfile[];
