@@ -61,6 +61,21 @@ export async function markAttemptSucceeded(db: Executor, id: number | string) {
   await db.updateTable("sign_in_attempts").set({ succeeded: true }).where(sql<boolean>`id = ${Number(id)}`).execute();
 }
 
+/**
+ * Writes the provisional failure and reads the failures before it under per-account and
+ * per-address advisory locks, so parallel guesses are counted one after another: without
+ * them a guess could commit before an earlier id became visible and count one too few.
+ */
+export async function reserveSignInAttempt(db: Database, email: string, ip: string, since: Date) {
+  return db.transaction().execute(async (trx) => {
+    await sql`select pg_advisory_xact_lock(hashtext(${`sign-in:account:${email.trim().toLowerCase()}`}))`.execute(trx);
+    await sql`select pg_advisory_xact_lock(hashtext(${`sign-in:address:${ip}`}))`.execute(trx);
+    const attempt = await insertProvisionalFailure(trx, email, ip);
+    const failures = await listRecentFailures(trx, email, ip, since, attempt.id);
+    return { attempt, failures };
+  });
+}
+
 /** A throttled attempt was never checked, so it does not count as a failure. */
 export async function deleteAttempt(db: Executor, id: number | string) {
   await db.deleteFrom("sign_in_attempts").where(sql<boolean>`id = ${Number(id)}`).execute();

@@ -13,9 +13,8 @@ import {
   findShopName,
   insertAccountMail,
   insertAuthToken,
-  insertProvisionalFailure,
   insertUserEvent,
-  listRecentFailures,
+  reserveSignInAttempt,
   markAttemptSucceeded,
   revokeOpenTokens,
 } from "@/db/queries/auth";
@@ -57,8 +56,7 @@ const pgCode = (err: unknown) => (err as { code?: string } | null)?.code;
 
 export async function signInWithPassword(db: Database, input: { email: string; password: string; ip: string }) {
   const now = Date.now();
-  const attempt = await insertProvisionalFailure(db, input.email, input.ip);
-  const failures = await listRecentFailures(db, input.email, input.ip, new Date(now - THROTTLE_WINDOW_MS), attempt.id);
+  const { attempt, failures } = await reserveSignInAttempt(db, input.email, input.ip, new Date(now - THROTTLE_WINDOW_MS));
   const verdict = throttleVerdict(failures.account, failures.address, now);
   const user = await findUserByEmail(db, input.email);
   if (verdict.blocked) {
@@ -318,8 +316,7 @@ export async function updateOwnProfile(db: Database, user: CurrentUser, input: U
  */
 export async function changeOwnPassword(db: Database, user: CurrentUser, current: string, next: string, ip: string): Promise<number> {
   const now = Date.now();
-  const attempt = await insertProvisionalFailure(db, user.email, ip);
-  const failures = await listRecentFailures(db, user.email, ip, new Date(now - THROTTLE_WINDOW_MS), attempt.id);
+  const { attempt, failures } = await reserveSignInAttempt(db, user.email, ip, new Date(now - THROTTLE_WINDOW_MS));
   const verdict = throttleVerdict(failures.account, failures.address, now);
   if (verdict.blocked) {
     await deleteAttempt(db, attempt.id);
