@@ -164,6 +164,12 @@ export async function loadFloorJson(db: Database, w: FloorWindow): Promise<strin
   return `{"from":${JSON.stringify(w.from)},"to":${JSON.stringify(w.to)},"resources":${concat("resources")},"events":${concat("events")},"blocks":${concat("blocks")},"stamp":${JSON.stringify(new Date().toISOString())}}`;
 }
 
+/** Moves on every change to anything the floor shows (migration 202612012302). */
+export async function floorChangeStamp(db: Database): Promise<string> {
+  const { rows } = await sql<{ v: string }>`select last_value::text || ':' || is_called::text as v from floor_change_seq`.execute(db);
+  return rows[0].v;
+}
+
 export async function loadFloor(db: Database, w: FloorWindow): Promise<FloorData> {
   return JSON.parse(await loadFloorJson(db, w)) as FloorData;
 }

@@ -141,6 +141,20 @@ describe("scheduling a build", () => {
     expect(notId.status).toBe(404);
   });
 
+  it("shows a change made anywhere (here: straight in the database) at the next window request", async () => {
+    const { build } = await makeDraftBuild(tech, db, { material: "17-4PH" });
+    const start = hoursFromNow(500);
+    const ok = await schedule(build.id, { version: build.version, printer_id: wide.id, starts_at: start.toISOString() });
+    expect(ok.status).toBe(200);
+    const window = `/api/floor?from=${new Date(start.getTime() - 86_400_000).toISOString()}&to=${new Date(start.getTime() + 86_400_000).toISOString()}`;
+    const before = await api(window, { cookie: tech });
+    const mine = (body: { events: { id: string; start: string }[] }) => body.events.find((e) => e.id === build.id);
+    expect(new Date(mine(before.body)!.start).getTime()).toBe(start.getTime());
+    await db.updateTable("builds").set({ starts_at: new Date(start.getTime() + 3_600_000), ends_at: new Date(new Date(ok.body.build.ends_at).getTime() + 3_600_000) }).where("id", "=", build.id).execute();
+    const after = await api(window, { cookie: tech });
+    expect(new Date(mine(after.body)!.start).getTime()).toBe(start.getTime() + 3_600_000);
+  });
+
   it("lets only technicians and admins book", async () => {
     const { build } = await makeDraftBuild(tech, db, { material: "17-4PH" });
     const machinist = await signIn(DEMO.machinist);

@@ -2,6 +2,7 @@ import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { applyPlanProposal, getPlanProposal, refusePlanProposal } from "@/db/queries/builds";
 import { requireUser } from "@/lib/auth/session";
+import { floorWindowCache } from "@/lib/floor/window-cache";
 import { AppError } from "@/lib/errors";
 import { readJson, toErrorResponse } from "@/lib/http/errors";
 import { decidePlanSchema } from "@/lib/floor/schemas";
@@ -31,6 +32,7 @@ export async function PATCH(req: Request, ctx: IdContext) {
     }
     try {
       const row = await db.transaction().execute((trx) => applyPlanProposal(trx, id, user.id));
+      floorWindowCache().clear();
       return NextResponse.json({ proposal: row });
     } catch (err) {
       // Nothing was booked; the proposal is closed so that nobody applies it later by mistake.

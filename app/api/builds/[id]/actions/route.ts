@@ -2,6 +2,7 @@ import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { applyBuildAction } from "@/db/queries/builds";
 import { requireUser } from "@/lib/auth/session";
+import { floorWindowCache } from "@/lib/floor/window-cache";
 import { readJson, toErrorResponse } from "@/lib/http/errors";
 import { buildActionSchema } from "@/lib/builds/schemas";
 import { readId, type IdContext } from "../../_helpers";
@@ -13,6 +14,7 @@ export async function POST(req: Request, ctx: IdContext) {
     const id = await readId(ctx, "Build");
     const input = buildActionSchema.parse(await readJson(req));
     const build = await getDb().transaction().execute((trx) => applyBuildAction(trx, id, input, user.id));
+    floorWindowCache().clear();
     return NextResponse.json({ build });
   } catch (err) {
     return toErrorResponse(err);

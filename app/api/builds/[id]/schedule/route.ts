@@ -2,6 +2,7 @@ import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { scheduleBuild } from "@/db/queries/builds";
 import { requireUser } from "@/lib/auth/session";
+import { floorWindowCache } from "@/lib/floor/window-cache";
 import { readJson, toErrorResponse } from "@/lib/http/errors";
 import { scheduleBuildSchema } from "@/lib/builds/schemas";
 import { readId, type IdContext } from "../../_helpers";
@@ -13,6 +14,7 @@ export async function PATCH(req: Request, ctx: IdContext) {
     const id = await readId(ctx, "Build");
     const input = scheduleBuildSchema.parse(await readJson(req));
     const { build } = await getDb().transaction().execute((trx) => scheduleBuild(trx, id, input, user.id));
+    floorWindowCache().clear();
     return NextResponse.json({
       build: {
         id: build.id, code: build.code, state: build.state, version: build.version, printer_id: build.printer_id,

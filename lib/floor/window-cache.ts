@@ -1,0 +1,49 @@
+// The floor's window JSON, kept for a moment per window and per change stamp. A request whose
+// stamp differs from the cached one reloads; concurrent misses of one window share one load.
+// The age limit covers the one gap a stamp cannot: a change whose stamp moved just before its
+// transaction committed, read in between.
+
+type Entry = { stamp: string; at: number; value: Promise<string> };
+
+export class WindowCache {
+  private entries = new Map<string, Entry>();
+
+  constructor(
+    private readonly maxAgeMs = 2_000,
+    private readonly maxEntries = 200,
+    private readonly now: () => number = Date.now,
+  ) {}
+
+  async get(key: string, stamp: string, load: () => Promise<string>): Promise<string> {
+    const hit = this.entries.get(key);
+    const t = this.now();
+    if (hit && hit.stamp === stamp && t - hit.at <= this.maxAgeMs) return hit.value;
+    const value = load();
+    this.entries.set(key, { stamp, at: t, value });
+    // A failed load is not kept: the next request tries again.
+    value.catch(() => {
+      if (this.entries.get(key)?.value === value) this.entries.delete(key);
+    });
+    if (this.entries.size > this.maxEntries) {
+      const oldest = this.entries.keys().next().value;
+      if (oldest !== undefined) this.entries.delete(oldest);
+    }
+    return value;
+  }
+
+  /** After a change made by this process: the next request reloads whatever its stamp says. */
+  clear(): void {
+    this.entries.clear();
+  }
+
+  get size(): number {
+    return this.entries.size;
+  }
+}
+
+const globalForCache = globalThis as unknown as { hearthFloorCache?: WindowCache };
+
+/** The process-wide cache of floor windows. */
+export function floorWindowCache(): WindowCache {
+  return (globalForCache.hearthFloorCache ??= new WindowCache());
+}
