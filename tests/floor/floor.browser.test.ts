@@ -1,0 +1,120 @@
+import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import type { Browser, BrowserContext, Page } from "playwright-core";
+import { testDb } from "../helpers/db";
+import { appUrl, launchBrowser, screenshot } from "../helpers/browser";
+import { DEMO, signIn } from "../helpers/session";
+import { makeDraftBuild, makePrinter, retirePrinters } from "./fixtures";
+
+// The floor in Chromium, signed in as a technician: drag an unscheduled build onto a printer
+// lane, see it there after a reload, and see an overlapping drop refused with the reason.
+
+const { db, close } = testDb();
+let browser: Browser;
+let context: BrowserContext;
+let tech: string;
+let lane: { id: string; name: string };
+let first: Awaited<ReturnType<typeof makeDraftBuild>>;
+let second: Awaited<ReturnType<typeof makeDraftBuild>>;
+
+async function openNextWeek(page: Page) {
+  await page.goto(`${appUrl()}/floor`);
+  await page.waitForSelector('[data-testid="floor-board"][data-ready="true"]');
+  await page.click(".fc-next-button");
+  await page.waitForFunction(() => document.querySelector('[data-testid="floor-board"]')?.getAttribute("data-ready") === "true");
+  await page.waitForSelector(`.fc-timeline-lane[data-resource-id="${lane.id}"]`);
+}
+
+/** Drags an element onto the printer lane at the start of the n-th time slot of the view. */
+async function dragTo(page: Page, selector: string, slotIndex: number, opts: { drop?: boolean } = {}) {
+  const source = await page.locator(selector).boundingBox();
+  const laneBox = await page.locator(`.fc-timeline-lane[data-resource-id="${lane.id}"]`).first().boundingBox();
+  const slot = await page.locator(".fc-timeline-slot-lane").nth(slotIndex).boundingBox();
+  if (!source || !laneBox || !slot) throw new Error("floor elements not found");
+  await page.mouse.move(source.x + source.width / 2, source.y + source.height / 2);
+  await page.mouse.down();
+  await page.mouse.move(source.x + source.width / 2 - 20, source.y + source.height / 2, { steps: 5 });
+  await page.mouse.move(slot.x + 4, laneBox.y + laneBox.height / 2, { steps: 25 });
+  await page.waitForTimeout(200);
+  if (opts.drop !== false) await page.mouse.up();
+}
+
+beforeAll(async () => {
+  tech = await signIn(DEMO.technician);
+  lane = await makePrinter(db, { materials: ["17-4PH"], build: [300, 250, 200], rate: 20, name: `AA-${Date.now().toString(36)}` });
+  first = await makeDraftBuild(tech, db, { material: "17-4PH", quantity: 2, due: new Date(Date.now() - 86_400_000) });
+  second = await makeDraftBuild(tech, db, { material: "17-4PH", due: new Date(Date.now() - 86_400_000) });
+  browser = await launchBrowser();
+  context = await browser.newContext({ viewport: { width: 1600, height: 1100 } });
+  const [name, value] = tech.split("=");
+  await context.addCookies([{ name, value, url: appUrl() }]);
+});
+
+afterAll(async () => {
+  await browser?.close();
+  await retirePrinters(db, [lane.id]);
+  await close();
+});
+
+describe("the floor in a browser", () => {
+  it("drags an unscheduled build onto a printer lane and finds it there after a reload", async () => {
+    const page = await context.newPage();
+    await openNextWeek(page);
+    await page.waitForSelector(`[data-testid="unscheduled-${first.build.code}"]`);
+    await dragTo(page, `[data-testid="unscheduled-${first.build.code}"]`, 9);
+    const message = page.getByTestId("floor-message");
+    await expect.poll(async () => message.getAttribute("data-tone"), { timeout: 15_000 }).toBe("success");
+    expect(await message.textContent()).toContain(`${first.build.code} is booked on ${lane.name}`);
+    await screenshot(page, "floor-after-drop");
+
+    const row = await db.selectFrom("builds").select(["state", "printer_id", "starts_at"]).where("id", "=", first.build.id).executeTakeFirstOrThrow();
+    expect(row.state).toBe("scheduled");
+    expect(row.printer_id).toBe(lane.id);
+
+    await page.reload();
+    await openNextWeek(page);
+    const booked = page.locator(`.fc-timeline-lane[data-resource-id="${lane.id}"] [data-event-id="${first.build.id}"]`);
+    await booked.waitFor({ timeout: 15_000 });
+    expect(await booked.textContent()).toContain(first.build.code);
+    expect(await page.locator(`[data-testid="unscheduled-${first.build.code}"]`).count()).toBe(0);
+    await screenshot(page, "floor-after-reload");
+    await page.close();
+  });
+
+  it("refuses an overlapping drop with a message and leaves the build unscheduled", async () => {
+    const page = await context.newPage();
+    await openNextWeek(page);
+    await page.waitForSelector(`[data-testid="unscheduled-${second.build.code}"]`);
+    await dragTo(page, `[data-testid="unscheduled-${second.build.code}"]`, 9);
+    const message = page.getByTestId("floor-message");
+    await expect.poll(async () => message.getAttribute("data-tone"), { timeout: 15_000 }).toBe("danger");
+    const text = (await message.textContent()) ?? "";
+    expect(text).toContain("Refused");
+    expect(text).toContain(first.build.code);
+    await screenshot(page, "floor-overlap-refused");
+    // snapped back: not on the lane, still in the list, still a draft
+    expect(await page.locator(`.fc-timeline-lane[data-resource-id="${lane.id}"] [data-event-id="${second.build.id}"]`).count()).toBe(0);
+    await page.waitForSelector(`[data-testid="unscheduled-${second.build.code}"]`);
+    const row = await db.selectFrom("builds").select(["state", "version"]).where("id", "=", second.build.id).executeTakeFirstOrThrow();
+    expect(row).toEqual({ state: "draft", version: second.build.version });
+    await page.close();
+  });
+
+  it("refuses a lane that is not a printer before the drop lands, and says why", async () => {
+    const page = await context.newPage();
+    await openNextWeek(page);
+    const station = (await db.selectFrom("wash_stations").select("id").where("active", "=", true).orderBy("name").executeTakeFirstOrThrow()).id;
+    const source = await page.locator(`[data-testid="unscheduled-${second.build.code}"]`).boundingBox();
+    const target = await page.locator(`.fc-timeline-lane[data-resource-id="${station}"]`).first().boundingBox();
+    const slot = await page.locator(".fc-timeline-slot-lane").nth(12).boundingBox();
+    await page.mouse.move(source!.x + 10, source!.y + 10);
+    await page.mouse.down();
+    await page.mouse.move(slot!.x + 4, target!.y + target!.height / 2, { steps: 25 });
+    await expect.poll(async () => page.getByTestId("drag-hint").textContent()).toContain("builds go on printers");
+    await screenshot(page, "floor-refused-lane");
+    await page.mouse.up();
+    await page.waitForTimeout(500);
+    const row = await db.selectFrom("builds").select("state").where("id", "=", second.build.id).executeTakeFirstOrThrow();
+    expect(row.state).toBe("draft");
+    await page.close();
+  });
+});
