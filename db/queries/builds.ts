@@ -242,7 +242,13 @@ export async function applyBuildAction(trx: Trx, id: string, input: BuildAction,
     if (!units.length) throw new AppError("invalid", `${build.code} has no units to print.`);
     await trx.updateTable("units").set({ state: "printing", state_changed_at: now, updated_at: now, version: sql`version + 1` }).where("id", "in", units.map((u) => u.id)).execute();
     await unitEvents(units, "printing", "build started");
-    set = { state: "running", started_at: now };
+    // The factors the build is printed with: a later calibration changes new scale-ups, not this build.
+    const material = await trx.selectFrom("materials").select(["code", "shrink_xy", "shrink_z", "version"]).where("id", "=", build.material_id).executeTakeFirstOrThrow();
+    const scale_snapshot = JSON.stringify({
+      material: material.code, material_version: material.version, shrink_xy: material.shrink_xy, shrink_z: material.shrink_z,
+      xy: 1 / (1 - material.shrink_xy), z: 1 / (1 - material.shrink_z), taken_at: now.toISOString(),
+    });
+    set = { state: "running", started_at: now, scale_snapshot };
     toState = "running";
   } else if (input.action === "complete") {
     if (build.state !== "running") refuse("completed");

@@ -60,6 +60,11 @@ describe("builds", () => {
     const started = await act(build.id, { action: "start", version: s.body.build.version });
     expect(started.status, JSON.stringify(started.body)).toBe(200);
     expect(started.body.build.state).toBe("running");
+    // the factors it is printed with are kept on the build (German's relation f = 1/(1 − s))
+    const m = await db.selectFrom("materials").select(["shrink_xy", "shrink_z"]).where("code", "=", "17-4PH").executeTakeFirstOrThrow();
+    const snap = (await db.selectFrom("builds").select("scale_snapshot").where("id", "=", build.id).executeTakeFirstOrThrow()).scale_snapshot as Record<string, number>;
+    expect(snap.shrink_xy).toBe(m.shrink_xy);
+    expect(snap.z).toBeCloseTo(1 / (1 - m.shrink_z), 12);
     expect((await unitsOf(db, (await db.selectFrom("units").select("part_id").where("id", "=", units[0].id).executeTakeFirstOrThrow()).part_id)).map((u) => u.state)).toEqual(["printing", "printing"]);
     const stale = await act(build.id, { action: "complete", version: s.body.build.version });
     expect(stale.status).toBe(409);
