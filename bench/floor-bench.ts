@@ -21,6 +21,7 @@ import { migrateToLatest } from "@/db/migrate";
 import { seedDemoShop } from "@/db/seed";
 import { bin, startProc, stopProcs, waitFor, type Proc } from "../scripts/stack";
 import type { BenchRow, BenchSection } from "./types";
+import { mulberry32 } from "@/lib/random";
 
 const N_BUILDS = Number(process.env.HEARTH_BENCH_FLOOR_BUILDS ?? 10_000);
 const EXTRA_PRINTERS = 24;
@@ -37,16 +38,7 @@ type AutocannonInstance = { on: (event: "response", cb: (client: unknown, status
 type Autocannon = (opts: Record<string, unknown>, cb: (err: Error | null, res: AutocannonResult) => void) => AutocannonInstance;
 const autocannon = createRequire(import.meta.url)("autocannon") as Autocannon;
 
-function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+const rng = mulberry32;
 
 const pct = (xs: number[], p: number) => {
   const s = [...xs].sort((a, b) => a - b);

@@ -12,18 +12,10 @@ import type {
   PrinterPlanInstance,
   PrinterSpec,
 } from "@/lib/planning/instances";
+import { mulberry32 } from "@/lib/random";
 
 /** mulberry32: small, fast, seedable; the same seed gives the same instance on every machine. */
-export function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+export const prng = mulberry32;
 
 const between = (rnd: () => number, lo: number, hi: number) => lo + (hi - lo) * rnd();
 const round = (x: number, digits: number) => Math.round(x * 10 ** digits) / 10 ** digits;

@@ -5,6 +5,7 @@ import { furnaceCycle } from "@/lib/process/furnace-profile";
 import { feedstockDensity, shrinkageFromSolidsLoading } from "@/lib/process/scale-up";
 import { washMinutes } from "@/lib/process/wash";
 import { DEMO_PASSWORD, DEMO_USERS } from "./seed-users";
+import { mulberry32 } from "@/lib/random";
 
 /**
  * The demo shop: an invented contract shop, "Kestrel Sinterworks", with its own equipment,
@@ -15,17 +16,6 @@ import { DEMO_PASSWORD, DEMO_USERS } from "./seed-users";
 
 export { DEMO_PASSWORD, DEMO_USERS };
 
-// Mulberry32: a small seeded generator so the demo shop is the same on every machine.
-function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const MIN = 60_000;
 const HOUR = 60 * MIN;
@@ -82,7 +72,7 @@ export async function isEmpty(db: Database): Promise<boolean> {
 }
 
 export async function seedDemoShop(db: Database, now = new Date()): Promise<{ units: number; orders: number }> {
-  const rand = rng(20261201);
+  const rand = mulberry32(20261201);
   const pick = <T,>(xs: T[]) => xs[Math.floor(rand() * xs.length)];
   // Bookings line up on the hour so the floor reads cleanly.
   const t0 = new Date(Math.floor(now.getTime() / HOUR) * HOUR);

@@ -11,6 +11,7 @@ import { GEOMETRY_EPS, MaxRectsBin, type PlacementRule } from "./rectangles";
 import { buildBlocks, singleBlock, turnBlock, type Block } from "./blocks";
 import { fillTrayExactly, type TilePlacement } from "./tile-search";
 import { FIT_TOLERANCE_MM, type FurnaceModel, type ItemModel, type ProfileModel } from "./tray-model";
+import { mulberry32 } from "@/lib/random";
 
 export interface PlacedItem {
   item: ItemModel;
@@ -131,18 +132,6 @@ export function computeOrders(items: readonly ItemModel[]): Orders {
   const o = {} as Orders;
   for (const k of ORDER_KEYS) o[k] = sortItems(items, k);
   return o;
-}
-
-/** Deterministic PRNG (mulberry32) for the perturbed orderings; results repeat run to run. */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }
 
 /** Area-decreasing order with each key scaled by a random factor in [1−spread, 1]. */
