@@ -1,6 +1,7 @@
 import { NextResponse, type NextRequest } from "next/server";
 import { getIronSession } from "iron-session";
-import { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS, type SessionData } from "@/lib/auth/session-config";
+import { unsealSession } from "@/lib/auth/seal-cache";
+import { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS, renewalDue, type SessionData } from "@/lib/auth/session-config";
 
 function isHttps(req: NextRequest) {
   const proto = req.headers.get("x-forwarded-proto");
@@ -9,7 +10,8 @@ function isHttps(req: NextRequest) {
 
 /**
  * Optimistic only: tells pages where the visitor was (for the way back after sign-in) and slides
- * the session's idle lifetime. Every page and handler still checks the user itself.
+ * the session's idle lifetime. Every page and handler still checks the user itself. API routes
+ * are left out: they renew in requireUser, and skipping the proxy halves a poll's cost.
  */
 export async function proxy(req: NextRequest) {
   const path = req.nextUrl.pathname + req.nextUrl.search;
@@ -20,13 +22,16 @@ export async function proxy(req: NextRequest) {
   const secret = process.env.SESSION_SECRET;
   if (!secret || secret.length < 32 || !req.cookies.has(SESSION_COOKIE)) return res;
   try {
+    // The cached read first: the cookie is re-sealed only when the renewal is due.
+    const seen = await unsealSession(req.cookies.get(SESSION_COOKIE)!.value, secret);
+    const now = Date.now();
+    if (!renewalDue(seen, now)) return res;
     const session = await getIronSession<SessionData>(req, res, {
       password: secret,
       cookieName: SESSION_COOKIE,
       ttl: SESSION_IDLE_SECONDS,
       cookieOptions: { httpOnly: true, sameSite: "lax", secure: isHttps(req), path: "/" },
     });
-    const now = Date.now();
     if (session.userId && session.issuedAt && session.seenAt) {
       const fresh = now - session.seenAt < SESSION_IDLE_SECONDS * 1000 && now - session.issuedAt < SESSION_MAX_SECONDS * 1000;
       if (fresh && now - session.seenAt > SESSION_RENEW_SECONDS * 1000) {
@@ -41,5 +46,5 @@ export async function proxy(req: NextRequest) {
 }
 
 export const config = {
-  matcher: ["/((?!_next/static|_next/image|favicon.ico|fonts/).*)"],
+  matcher: ["/((?!api/|_next/static|_next/image|favicon.ico|fonts/).*)"],
 };

@@ -1,7 +1,7 @@
 // npm run bench -- --only floor
 // The floor with 10,000 builds: a database of its own (hearth_bench_floor) seeded with the demo
 // shop plus 24 more printers and 10,000 bookings laid back to back over twenty weeks (about 500
-// a week), the built app started against it (`next start`), and then
+// a week), the built app started against it (scripts/serve.ts, as `npm start` runs it), and then
 //   1. the real window route, GET /api/floor?from&to for one week at a time, signed in, hit by
 //      autocannon with 20 connections on loopback: p50/p95/p99 latency (target p95 ≤ 30 ms);
 //   2. first render of /floor's week view (about 500 events) in headless Chromium: from
@@ -19,7 +19,7 @@ import { chromium } from "playwright-core";
 import { createDb, type Database } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
 import { seedDemoShop } from "@/db/seed";
-import { bin, startProc, stopProcs, waitFor, type Proc } from "../scripts/stack";
+import { bin, startApp, stopProcs, waitFor, type Proc } from "../scripts/stack";
 import type { BenchRow, BenchSection } from "./types";
 import { mulberry32 } from "@/lib/random";
 
@@ -221,7 +221,7 @@ export const section: BenchSection = {
       const distDir = ensureBuild();
       const base = `http://127.0.0.1:${PORT}`;
       const env: NodeJS.ProcessEnv = { ...process.env, DATABASE_URL: url, NEXT_DIST_DIR: distDir, NODE_ENV: "production", PORT: String(PORT), APP_URL: base, SESSION_SECRET: process.env.SESSION_SECRET ?? "bench-floor-secret-0123456789abcdef0123456789" };
-      procs = [startProc("app", bin("next"), ["start", "-H", "127.0.0.1", "-p", String(PORT)], env, true)];
+      procs = [startApp(PORT, env, true)];
       await waitFor(`${base}/sign-in`, 90_000, (s) => s === 200);
       const cookie = await signIn(base);
 

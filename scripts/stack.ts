@@ -57,12 +57,20 @@ export async function stopProcs(procs: Proc[], graceMs = 10_000) {
 
 export type StackOptions = { port: number; env: NodeJS.ProcessEnv; quiet?: boolean };
 
-/** The fakes, `next start` and one worker; resolves when the app answers its health check. */
+/**
+ * The built app's web server (scripts/serve.ts) in one process, so that a signal reaches it
+ * directly; PORT says where it listens.
+ */
+export function startApp(port: number, env: NodeJS.ProcessEnv, quiet = false): Proc {
+  return startProc("app", process.execPath, ["--import", "tsx", "scripts/serve.ts"], { ...env, PORT: String(port), HOSTNAME: "127.0.0.1" }, quiet);
+}
+
+/** The fakes, the web server and one worker; resolves when the app answers its health check. */
 export async function startStack({ port, env, quiet }: StackOptions): Promise<Proc[]> {
   const procs: Proc[] = [];
   procs.push(startProc("fakes", bin("tsx"), ["scripts/fakes.ts"], env, quiet));
   procs.push(startProc("worker", bin("tsx"), ["worker/index.ts"], env, quiet));
-  procs.push(startProc("app", bin("next"), ["start", "-H", "127.0.0.1", "-p", String(port)], env, quiet));
+  procs.push(startApp(port, env, quiet));
   try {
     await waitFor(`http://127.0.0.1:${port}/api/health`, 90_000, (s) => s === 200);
   } catch (err) {

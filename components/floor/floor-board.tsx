@@ -13,6 +13,7 @@ import { ApiError, apiJson } from "./api";
 import { PlanPanel, type Proposal } from "./plan-panel";
 import { ScheduleForm } from "./schedule-form";
 import { formatSlot, minutesLabel } from "./format";
+import { floorUrl, openingWeek, takeOpeningFetch, type FloorRange } from "./opening-week";
 import { laneEditable, laneMoveRefusal, moveLaneBooking, type LaneEventProps, type LanePermissions } from "@/components/furnace/lane-interactions";
 
 export type FloorBoardProps = { canSchedule: boolean; canPropose: boolean; canApply: boolean; canWash?: boolean; canFurnace?: boolean };
@@ -87,14 +88,7 @@ function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
 export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false, canFurnace = false }: FloorBoardProps) {
   const qc = useQueryClient();
   const router = useRouter();
-  // The week the calendar opens on (Sunday to Sunday, browser time, as FullCalendar's week
-  // view): asking for it at once, not after the calendar has mounted, saves a round trip.
-  const [range, setRange] = useState<{ from: string; to: string } | null>(() => {
-    const now = new Date();
-    const start = new Date(now.getFullYear(), now.getMonth(), now.getDate() - now.getDay());
-    const end = new Date(start.getFullYear(), start.getMonth(), start.getDate() + 7);
-    return { from: start.toISOString(), to: end.toISOString() };
-  });
+  const [range, setRange] = useState<FloorRange | null>(() => openingWeek());
   const [message, setMessage] = useState<Message>(null);
   const [lastMove, setLastMove] = useState<LastMove | null>(null);
   const [proposal, setProposal] = useState<Proposal | null>(null);
@@ -107,7 +101,10 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
   const floorKey = useMemo(() => ["floor", range?.from, range?.to] as const, [range]);
   const floor = useQuery({
     queryKey: floorKey,
-    queryFn: ({ signal }) => apiJson<FloorData>(`/api/floor?from=${encodeURIComponent(range!.from)}&to=${encodeURIComponent(range!.to)}`, { signal }),
+    queryFn: async ({ signal }) => {
+      const url = floorUrl(range!);
+      return (await takeOpeningFetch<FloorData>(url)) ?? apiJson<FloorData>(url, { signal });
+    },
     enabled: range !== null,
     placeholderData: keepPreviousData,
     // Someone else's change shows up within seconds; never while a drag is in the air.
@@ -372,6 +369,9 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
           className="hearth-floor"
           style={CALENDAR_STYLE}
         >
+          {/* The calendar mounts with its first window's lanes and bookings: mounting it empty and
+              then filling it would lay the whole timeline out twice. */}
+          {floor.data ? (
           <FullCalendar
             ref={calendarRef}
             plugins={PLUGINS}
@@ -407,6 +407,11 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
             eventClick={onEventClick}
             datesSet={onDatesSet}
           />
+          ) : floor.isError ? null : (
+            <div className="flex h-64 items-center justify-center text-sm text-soot-500" data-testid="floor-loading">
+              Loading the floor…
+            </div>
+          )}
         </div>
         <div ref={hintRef} aria-live="polite" data-testid="drag-hint" className="mt-2 min-h-5 text-sm text-soot-600 data-[active=true]:font-medium data-[active=true]:text-clay-700" />
         <Legend />

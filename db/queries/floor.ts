@@ -5,6 +5,10 @@ import type { ShopTiming } from "@/lib/parts/projection";
 import type { FloorBlock, FloorData, FloorEvent, FloorResource, FloorWindow } from "@/lib/floor/schemas";
 import type { WeeklyPattern } from "@/lib/process/time-zone";
 import { scaleUp } from "@/lib/process/scale-up";
+import type { Role } from "@/lib/auth/permissions";
+import { WindowBody } from "@/lib/floor/window-body";
+import { floorWindowCache } from "@/lib/floor/window-cache";
+import { isUuid } from "./users";
 
 // The floor's data, one loader per kind of lane so that each kind can grow on its own
 // (the batching work makes wash and furnace lanes interactive through their own loaders).
@@ -164,10 +168,36 @@ export async function loadFloorJson(db: Database, w: FloorWindow): Promise<strin
   return `{"from":${JSON.stringify(w.from)},"to":${JSON.stringify(w.to)},"resources":${concat("resources")},"events":${concat("events")},"blocks":${concat("blocks")},"stamp":${JSON.stringify(new Date().toISOString())}}`;
 }
 
+const STAMP_SQL = sql`select last_value::text || ':' || is_called::text from floor_change_seq`;
+
 /** Moves on every change to anything the floor shows (migration 202612012302). */
 export async function floorChangeStamp(db: Database): Promise<string> {
-  const { rows } = await sql<{ v: string }>`select last_value::text || ':' || is_called::text as v from floor_change_seq`.execute(db);
+  const { rows } = await sql<{ v: string }>`${STAMP_SQL}`.execute(db);
   return rows[0].v;
+}
+
+export type FloorViewer = { role: Role; sessions_valid_after: Date | number | null };
+
+/**
+ * The active user a session names and the floor's change stamp in one round trip: what the web
+ * server's direct path needs before it may answer from the window cache.
+ */
+export async function floorViewerAndStamp(db: Database, userId: string): Promise<{ viewer: FloorViewer | null; stamp: string }> {
+  const viewer = isUuid(userId)
+    ? sql`(select json_build_object('role', u.role, 'valid_after', floor(extract(epoch from u.sessions_valid_after) * 1000)) from users u where u.id = ${userId} and u.active)`
+    : sql`null::json`;
+  const { rows } = await sql<{ viewer: { role: Role; valid_after: number | string | null } | null; stamp: string }>`select ${viewer} as viewer, (${STAMP_SQL}) as stamp`.execute(db);
+  const v = rows[0].viewer;
+  if (!v) return { viewer: null, stamp: rows[0].stamp };
+  // Milliseconds, truncated as pg's Date would be; ±infinity (the default is -infinity) arrives
+  // in JSON as a string.
+  const after = typeof v.valid_after === "string" ? Number(v.valid_after) : v.valid_after;
+  return { viewer: { role: v.role, sessions_valid_after: after }, stamp: rows[0].stamp };
+}
+
+/** The encoded body of one window, from the process-wide cache while the stamp holds. */
+export function floorWindowBody(db: Database, w: FloorWindow, stamp: string): Promise<WindowBody> {
+  return floorWindowCache().get(`${w.from}|${w.to}`, stamp, async () => WindowBody.fromJson(await loadFloorJson(db, w)));
 }
 
 export async function loadFloor(db: Database, w: FloorWindow): Promise<FloorData> {

@@ -13,3 +13,18 @@ export const SESSION_IDLE_SECONDS = 8 * 60 * 60;
 export const SESSION_MAX_SECONDS = 7 * 24 * 60 * 60;
 /** Renew at most this often, so a busy page does not rewrite its cookie on every request. */
 export const SESSION_RENEW_SECONDS = 5 * 60;
+
+// pg returns the column's default '-infinity' as the number -Infinity, not a Date.
+export function sessionIsLive(data: SessionData, validAfter: Date | number | null, now = Date.now()): boolean {
+  if (!data.userId || !data.issuedAt || !data.seenAt) return false;
+  if (now - data.issuedAt > SESSION_MAX_SECONDS * 1000) return false;
+  if (now - data.seenAt > SESSION_IDLE_SECONDS * 1000) return false;
+  const after = validAfter instanceof Date ? validAfter.getTime() : (validAfter ?? -Infinity);
+  if (data.issuedAt < after) return false;
+  return true;
+}
+
+/** Whether a request with this session should get a re-sealed cookie (the idle lifetime slides). */
+export function renewalDue(data: SessionData, now = Date.now()): boolean {
+  return !!data.userId && !!data.seenAt && now - data.seenAt > SESSION_RENEW_SECONDS * 1000;
+}

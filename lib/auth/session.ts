@@ -10,9 +10,10 @@ import { clientAddress } from "@/lib/auth/throttle";
 
 export type { CurrentUser };
 
-import { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, type SessionData } from "./session-config";
+import { SESSION_COOKIE, SESSION_IDLE_SECONDS, renewalDue, sessionIsLive, type SessionData } from "./session-config";
+import { unsealSession } from "./seal-cache";
 
-export { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS, type SessionData } from "./session-config";
+export { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS, sessionIsLive, type SessionData } from "./session-config";
 
 export function sessionOptions(secure: boolean): SessionOptions {
   const password = process.env.SESSION_SECRET;
@@ -57,32 +58,42 @@ export async function requestAddress(): Promise<string> {
   return clientAddress(h.get("x-forwarded-for"), h.get("x-real-ip"));
 }
 
-// pg returns the column's default '-infinity' as the number -Infinity, not a Date.
-export function sessionIsLive(data: SessionData, validAfter: Date | number | null, now = Date.now()): boolean {
-  if (!data.userId || !data.issuedAt || !data.seenAt) return false;
-  if (now - data.issuedAt > SESSION_MAX_SECONDS * 1000) return false;
-  if (now - data.seenAt > SESSION_IDLE_SECONDS * 1000) return false;
-  const after = validAfter instanceof Date ? validAfter.getTime() : (validAfter ?? -Infinity);
-  if (data.issuedAt < after) return false;
-  return true;
-}
+/** What the request's session cookie holds; null without one, or for a tampered or expired seal. */
+const readSession = cache(async (): Promise<SessionData | null> => {
+  const seal = (await cookies()).get(SESSION_COOKIE)?.value;
+  if (!seal) return null;
+  try {
+    const data = await unsealSession(seal, sessionOptions(false).password as string);
+    return data.userId ? data : null;
+  } catch {
+    return null;
+  }
+});
 
 /**
  * The signed-in user, re-read from the database on every request so that a role change or a
  * deactivation takes effect at once. A tampered, expired or revoked cookie means signed out.
  */
 export const getCurrentUser = cache(async (): Promise<CurrentUser | null> => {
-  let data: SessionData;
-  try {
-    data = { ...(await getSession()) };
-  } catch {
-    return null;
-  }
-  if (!data.userId) return null;
-  const user = await findActiveUserById(getDb(), data.userId);
+  const data = await readSession();
+  if (!data) return null;
+  const user = await findActiveUserById(getDb(), data.userId!);
   if (!user || !sessionIsLive(data, user.sessions_valid_after)) return null;
   return user;
 });
+
+/**
+ * Slides the idle lifetime for API calls and server actions (proxy.ts does it for pages, where
+ * a server component may not set cookies). At most once per renewal interval.
+ */
+async function renewIfDue(now = Date.now()): Promise<void> {
+  const data = await readSession();
+  if (!data || !renewalDue(data, now)) return;
+  const session = await getSession();
+  if (!session.userId) return;
+  session.seenAt = now;
+  await session.save();
+}
 
 /** For route handlers and server actions: 401 when signed out, 403 without the permission. */
 export async function requireUser(permission?: Permission): Promise<CurrentUser> {
@@ -91,6 +102,7 @@ export async function requireUser(permission?: Permission): Promise<CurrentUser>
   if (permission && !can(user.role, permission)) {
     throw new AppError("forbidden", `Your role (${user.role.replace("_", " ")}) may not do this: it needs "${permission}".`);
   }
+  await renewIfDue();
   return user;
 }
 

@@ -3,10 +3,12 @@
 // The age limit covers the one gap a stamp cannot: a change whose stamp moved just before its
 // transaction committed, read in between.
 
-type Entry = { stamp: string; at: number; value: Promise<string> };
+import type { WindowBody } from "./window-body";
 
-export class WindowCache {
-  private entries = new Map<string, Entry>();
+type Entry<T> = { stamp: string; at: number; value: Promise<T> };
+
+export class WindowCache<T = string> {
+  private entries = new Map<string, Entry<T>>();
 
   constructor(
     private readonly maxAgeMs = 2_000,
@@ -14,7 +16,7 @@ export class WindowCache {
     private readonly now: () => number = Date.now,
   ) {}
 
-  async get(key: string, stamp: string, load: () => Promise<string>): Promise<string> {
+  async get(key: string, stamp: string, load: () => Promise<T>): Promise<T> {
     const hit = this.entries.get(key);
     const t = this.now();
     if (hit && hit.stamp === stamp && t - hit.at <= this.maxAgeMs) return hit.value;
@@ -41,9 +43,12 @@ export class WindowCache {
   }
 }
 
-const globalForCache = globalThis as unknown as { hearthFloorCache?: WindowCache };
+// On globalThis: the web server's direct path (scripts/serve.ts) and the route handlers that
+// Next.js bundled separately run in one process and must share one cache, so that a booking
+// change clearing it is seen by both.
+const globalForCache = globalThis as unknown as { hearthFloorCache?: WindowCache<WindowBody> };
 
-/** The process-wide cache of floor windows. */
-export function floorWindowCache(): WindowCache {
-  return (globalForCache.hearthFloorCache ??= new WindowCache());
+/** The process-wide cache of floor windows, as encoded response bodies. */
+export function floorWindowCache(): WindowCache<WindowBody> {
+  return (globalForCache.hearthFloorCache ??= new WindowCache<WindowBody>());
 }

@@ -1,4 +1,5 @@
 import { FloorBoard } from "@/components/floor/floor-board";
+import { OPENING_FETCH_SCRIPT } from "@/components/floor/opening-week";
 import { QueryProvider } from "@/components/floor/query-provider";
 import { PageHeader } from "@/components/ui/page-header";
 import { can } from "@/lib/auth/permissions";
@@ -10,6 +11,8 @@ export default async function FloorPage() {
   const user = await requirePageUser("shop:read");
   return (
     <>
+      {/* Asks for the opening week while the page is still loading (components/floor/opening-week.ts). */}
+      <script dangerouslySetInnerHTML={{ __html: OPENING_FETCH_SCRIPT }} />
       <PageHeader
         title="Floor"
         lead="Printers, wash stations and furnaces on one timeline. Drag an unscheduled build onto a printer, or move a booked one; booked wash batches and furnace runs move along their lanes the same way (their length is fixed by the wash or the profile). Times are in your browser's time zone."

@@ -1,0 +1,70 @@
+// The web server of a built Hearth (`npm run serve`, `npm start`, the tests and the benchmarks):
+// Next.js's request handler behind Node's own HTTP server, the framework's "custom server"
+// (https://nextjs.org/docs/app/guides/custom-server). It exists for one request: the floor's
+// window, which every open floor polls, is answered from its cache before the framework's
+// per-request work (lib/floor/window-direct.ts); everything else is Next.js's, unchanged.
+// PORT (3000) and HOSTNAME (127.0.0.1) say where it listens; the build is NEXT_DIST_DIR (.next).
+import http from "node:http";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import next from "next";
+import { closeDb, getDb } from "@/db/client";
+import { answerFloorWindow } from "@/lib/floor/window-direct";
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
+const port = Number(process.env.PORT ?? 3000);
+const hostname = process.env.HOSTNAME ?? "127.0.0.1";
+
+async function main() {
+  const app = next({ dev: false, dir: root, hostname, port });
+  await app.prepare();
+  const handle = app.getRequestHandler();
+  // Without a usable secret nothing can be answered directly; Next.js then reports the set-up error.
+  const secret = process.env.SESSION_SECRET && process.env.SESSION_SECRET.length >= 32 ? process.env.SESSION_SECRET : null;
+
+  const server = http.createServer((req, res) => {
+    const direct = secret ? answerFloorWindow(req, res, getDb(), secret) : Promise.resolve(false);
+    direct
+      .catch((err: unknown) => {
+        // An error before anything was written (the database, say) is the route handler's to report.
+        if (res.headersSent) throw err;
+        return false;
+      })
+      .then((answered) => (answered ? undefined : handle(req, res)))
+      .catch((err: unknown) => {
+        console.error("[app] request failed", req.method, req.url, err);
+        if (!res.headersSent) res.writeHead(500, { "content-type": "text/plain" });
+        res.end();
+      });
+  });
+  // Longer than a reverse proxy's usual idle timeout, so that the proxy closes first.
+  server.keepAliveTimeout = 65_000;
+  server.headersTimeout = 66_000;
+  server.listen(port, hostname, () => console.log(`[app] ready on http://${hostname}:${port}`));
+
+  let stopping = false;
+  const stop = async (signal: string) => {
+    if (stopping) return;
+    stopping = true;
+    console.log(`[app] ${signal}: closing`);
+    // Requests in flight may finish (five seconds at most); idle keep-alive connections go now.
+    await new Promise<void>((resolve) => {
+      server.close(() => resolve());
+      server.closeIdleConnections();
+      setTimeout(() => {
+        server.closeAllConnections();
+        resolve();
+      }, 5_000).unref();
+    });
+    await app.close().catch(() => undefined);
+    await closeDb().catch(() => undefined);
+    process.exit(0);
+  };
+  process.on("SIGTERM", () => void stop("SIGTERM"));
+  process.on("SIGINT", () => void stop("SIGINT"));
+}
+
+main().catch((err) => {
+  console.error("[app] failed to start:", err);
+  process.exit(1);
+});

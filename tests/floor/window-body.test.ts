@@ -1,0 +1,47 @@
+import { gunzipSync } from "node:zlib";
+import { describe, expect, it } from "vitest";
+import { WindowBody, acceptsGzip } from "@/lib/floor/window-body";
+
+// The floor window's encoded body and the Accept-Encoding rule (RFC 9110 §12.5.3: a coding is
+// acceptable when listed or covered by "*" with a weight above zero; "q=0" means "not acceptable").
+
+describe("acceptsGzip", () => {
+  it("reads the header as RFC 9110 §12.5.3 says", () => {
+    expect(acceptsGzip("gzip, deflate, br")).toBe(true); // what browsers send
+    expect(acceptsGzip("br;q=1.0, gzip;q=0.8, *;q=0.1")).toBe(true);
+    expect(acceptsGzip("GZIP")).toBe(true);
+    expect(acceptsGzip("x-gzip")).toBe(true);
+    expect(acceptsGzip("*")).toBe(true);
+    expect(acceptsGzip("gzip;q=0")).toBe(false);
+    expect(acceptsGzip("gzip;q=0.000, identity")).toBe(false);
+    expect(acceptsGzip("*;q=0.5, gzip;q=0")).toBe(false); // the named coding wins over "*"
+    expect(acceptsGzip("br, deflate")).toBe(false);
+    expect(acceptsGzip("identity")).toBe(false);
+    expect(acceptsGzip("")).toBe(false);
+    expect(acceptsGzip(null)).toBe(false);
+    expect(acceptsGzip(undefined)).toBe(false);
+    expect(acceptsGzip("gzip;q=abc")).toBe(false);
+  });
+});
+
+describe("WindowBody", () => {
+  const json = JSON.stringify({ events: Array.from({ length: 200 }, (_, i) => ({ id: i, title: `B-${i} · 17-4PH`, state: "scheduled" })) });
+
+  it("keeps the UTF-8 bytes and describes them", () => {
+    const body = WindowBody.fromJson(json);
+    const { bytes, headers } = body.encoded(false);
+    expect(bytes.toString("utf8")).toBe(json);
+    expect(headers["content-length"]).toBe(String(Buffer.byteLength(json)));
+    expect(headers["content-encoding"]).toBeUndefined();
+    expect(headers.vary).toBe("Accept-Encoding");
+  });
+
+  it("gzips once and serves the same bytes after", () => {
+    const body = WindowBody.fromJson(json);
+    const first = body.encoded(true);
+    expect(first.headers["content-encoding"]).toBe("gzip");
+    expect(gunzipSync(first.bytes).toString("utf8")).toBe(json);
+    expect(first.bytes.length).toBeLessThan(Buffer.byteLength(json) / 4);
+    expect(body.encoded(true).bytes).toBe(first.bytes);
+  });
+});
