@@ -18,6 +18,9 @@ export function openingWeek(now = new Date()): FloorRange {
 }
 
 const GLOBAL = "__hearthFloorOpening";
+
+/** The User Timing mark the board sets when its first window's data is in hand. */
+export const FLOOR_DATA_MARK = "hearth:floor-data";
 const MAX_AGE_MS = 10_000;
 
 type Opening = { url: string; at: number; data: Promise<unknown> };
