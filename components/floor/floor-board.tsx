@@ -47,7 +47,7 @@ const HEADER = { left: "prev,today,next", center: "title", right: "resourceTimel
 const BUTTONS = { today: "Now", resourceTimelineDay: "Day", resourceTimelineWeek: "Week" };
 const VIEWS: CalendarOptions["views"] = {
   resourceTimelineDay: { slotDuration: { hours: 1 }, slotLabelFormat: { hour: "2-digit", minute: "2-digit", hour12: false } },
-  resourceTimelineWeek: { slotDuration: { hours: 6 }, slotLabelFormat: [{ weekday: "short", day: "numeric", month: "short" }, { hour: "2-digit", hour12: false }] },
+  resourceTimelineWeek: { slotDuration: { hours: 6 }, slotLabelFormat: [{ weekday: "short", day: "numeric" }, { hour: "2-digit", hour12: false }] },
 };
 const SNAP = { minutes: 15 };
 const CALENDAR_STYLE = {
