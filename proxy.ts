@@ -1,7 +1,7 @@
 import { NextResponse, type NextRequest } from "next/server";
 import { getIronSession } from "iron-session";
 import { unsealSession } from "@/lib/auth/seal-cache";
-import { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS, renewalDue, type SessionData } from "@/lib/auth/session-config";
+import { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, renewalDue, type SessionData } from "@/lib/auth/session-config";
 
 function isHttps(req: NextRequest) {
   const proto = req.headers.get("x-forwarded-proto");
@@ -34,7 +34,7 @@ export async function proxy(req: NextRequest) {
     });
     if (session.userId && session.issuedAt && session.seenAt) {
       const fresh = now - session.seenAt < SESSION_IDLE_SECONDS * 1000 && now - session.issuedAt < SESSION_MAX_SECONDS * 1000;
-      if (fresh && now - session.seenAt > SESSION_RENEW_SECONDS * 1000) {
+      if (fresh && renewalDue(session, now)) {
         session.seenAt = now;
         await session.save();
       }

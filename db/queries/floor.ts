@@ -172,7 +172,7 @@ const STAMP_SQL = sql`select last_value::text || ':' || is_called::text from flo
 
 /** Moves on every change to anything the floor shows (migration 202612012302). */
 export async function floorChangeStamp(db: Database): Promise<string> {
-  const { rows } = await sql<{ v: string }>`${STAMP_SQL}`.execute(db);
+  const { rows } = await sql<{ v: string }>`select (${STAMP_SQL}) as v`.execute(db);
   return rows[0].v;
 }
 

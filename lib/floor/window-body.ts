@@ -40,12 +40,12 @@ export function acceptsGzip(header: string | null | undefined): boolean {
   let gzip: number | undefined;
   let star: number | undefined;
   for (const part of header.split(",")) {
-    const [token, ...params] = part.trim().toLowerCase().split(";");
-    const qParam = params.map((p) => p.trim()).find((p) => p.startsWith("q="));
+    const [token, ...params] = part.toLowerCase().split(";").map((p) => p.trim());
+    const qParam = params.find((p) => p.startsWith("q="));
     const q = qParam ? Number(qParam.slice(2)) : 1;
     const weight = Number.isFinite(q) ? q : 0;
-    if (token.trim() === "gzip" || token.trim() === "x-gzip") gzip = weight;
-    else if (token.trim() === "*") star = weight;
+    if (token === "gzip" || token === "x-gzip") gzip = weight;
+    else if (token === "*") star = weight;
   }
   return (gzip ?? star ?? 0) > 0;
 }

@@ -11,7 +11,7 @@ import type { Database } from "@/db/client";
 import { floorViewerAndStamp, floorWindowBody } from "@/db/queries/floor";
 import { can } from "@/lib/auth/permissions";
 import { unsealSession } from "@/lib/auth/seal-cache";
-import { SESSION_COOKIE, renewalDue, sessionIsLive } from "@/lib/auth/session-config";
+import { SESSION_COOKIE, renewalDue, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
 import { floorWindowSchema } from "./schemas";
 import { acceptsGzip } from "./window-body";
 
@@ -25,7 +25,7 @@ export async function answerFloorWindow(req: IncomingMessage, res: ServerRespons
 
   const seal = req.headers.cookie ? parseCookies(req.headers.cookie)[SESSION_COOKIE] : undefined;
   if (!seal) return false;
-  let session;
+  let session: SessionData;
   try {
     session = await unsealSession(seal, secret, now);
   } catch {

@@ -5,7 +5,7 @@ import { randomUUID } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { sealData } from "iron-session";
 import { sql } from "kysely";
-import { loadFloorJson } from "@/db/queries/floor";
+import { floorChangeStamp, floorViewerAndStamp, loadFloorJson } from "@/db/queries/floor";
 import { ROLES, type Role } from "@/lib/auth/permissions";
 import { SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS } from "@/lib/auth/session-config";
 import { answerFloorWindow } from "@/lib/floor/window-direct";
@@ -145,6 +145,19 @@ describe("the direct path answers the plain signed-in case", () => {
       .where("id", "=", build.id)
       .execute();
     expect(await startOf()).toBe(start.getTime() + 3_600_000);
+  });
+});
+
+describe("the floor's change stamp", () => {
+  it("is the same from both paths' queries and moves when a booking changes", async () => {
+    const user = await makeUser("technician");
+    const before = await floorChangeStamp(db);
+    expect(before).toMatch(/^\d+:(true|false)$/);
+    expect((await floorViewerAndStamp(db, user)).stamp).toBe(before);
+    await db.updateTable("printers").set({ name: sql`name` }).where("id", "in", db.selectFrom("printers").select("id").limit(1)).execute();
+    const after = await floorChangeStamp(db);
+    expect(after).not.toBe(before);
+    expect((await floorViewerAndStamp(db, user)).stamp).toBe(after);
   });
 });
 
