@@ -16,11 +16,11 @@ import path from "node:path";
 import { spawnSync } from "node:child_process";
 import pg from "pg";
 import { sql } from "kysely";
-import { chromium } from "playwright-core";
 import { createDb, type Database } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
 import { seedDemoShop } from "@/db/seed";
 import { bin, startApp, stopProcs, waitFor, type Proc } from "../scripts/stack";
+import { launchChromium } from "../scripts/chromium";
 import type { BenchRow, BenchSection } from "./types";
 import { mulberry32 } from "@/lib/random";
 import { FLOOR_DATA_MARK } from "@/components/floor/opening-week";
@@ -170,11 +170,7 @@ function load(base: string, cookie: string, paths: string[], acceptEncoding?: st
 }
 
 async function firstRender(base: string, cookie: string): Promise<{ ms: number[]; dataMs: number[]; events: number; screenshot: string }> {
-  const browser = await chromium.launch({
-    executablePath: process.env.HEARTH_CHROMIUM ?? "/usr/bin/chromium",
-    headless: true,
-    args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
-  });
+  const browser = await launchChromium();
   const times: number[] = [];
   const dataTimes: number[] = [];
   let events = 0;

@@ -1,8 +1,9 @@
 // The web server of a built Hearth (`npm run serve`, `npm start`, the tests and the benchmarks):
 // Next.js's request handler behind Node's own HTTP server, the framework's "custom server"
-// (https://nextjs.org/docs/app/guides/custom-server). It exists for one request: the floor's
-// window, which every open floor polls, is answered from its cache before the framework's
-// per-request work (lib/floor/window-direct.ts); everything else is Next.js's, unchanged.
+// (https://nextjs.org/docs/app/guides/custom-server). It answers two kinds of request before the
+// framework's per-request work: the floor's window, which every open floor polls, from its
+// cache (lib/floor/window-direct.ts), and the build's hashed static files from memory, gzipped
+// once (lib/http/static-assets.ts). Everything else is Next.js's, unchanged.
 // PORT (3000) and HOSTNAME (127.0.0.1) say where it listens; the build is NEXT_DIST_DIR (.next).
 import http from "node:http";
 import path from "node:path";
@@ -10,6 +11,7 @@ import { fileURLToPath } from "node:url";
 import next from "next";
 import { closeDb, getDb } from "@/db/client";
 import { answerFloorWindow } from "@/lib/floor/window-direct";
+import { STATIC_PREFIX, StaticAssets } from "@/lib/http/static-assets";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const port = Number(process.env.PORT ?? 3000);
@@ -19,11 +21,16 @@ async function main() {
   const app = next({ dev: false, dir: root, hostname, port });
   await app.prepare();
   const handle = app.getRequestHandler();
+  const assets = new StaticAssets(path.resolve(root, process.env.NEXT_DIST_DIR || ".next", "static"));
   // Without a usable secret nothing can be answered directly; Next.js then reports the set-up error.
   const secret = process.env.SESSION_SECRET && process.env.SESSION_SECRET.length >= 32 ? process.env.SESSION_SECRET : null;
 
   const server = http.createServer((req, res) => {
-    const direct = secret ? answerFloorWindow(req, res, getDb(), secret) : Promise.resolve(false);
+    const direct = req.url?.startsWith(STATIC_PREFIX)
+      ? assets.answer(req, res)
+      : secret
+        ? answerFloorWindow(req, res, getDb(), secret)
+        : Promise.resolve(false);
     direct
       .catch((err: unknown) => {
         // An error before anything was written (the database, say) is the route handler's to report.
@@ -41,6 +48,9 @@ async function main() {
   server.keepAliveTimeout = 65_000;
   server.headersTimeout = 66_000;
   server.listen(port, hostname, () => console.log(`[app] ready on http://${hostname}:${port}`));
+  // Off the request path (the reads and gzip run on libuv's pool): the first page load then
+  // finds its scripts ready too.
+  void assets.warm().catch((err: unknown) => console.error("[app] static files not preloaded:", err));
 
   let stopping = false;
   const stop = async (signal: string) => {

@@ -10,10 +10,10 @@ import { parse as parseCookies } from "cookie";
 import type { Database } from "@/db/client";
 import { floorViewerAndStamp, floorWindowBody } from "@/db/queries/floor";
 import { can } from "@/lib/auth/permissions";
+import { acceptsGzip } from "@/lib/http/accept-encoding";
 import { unsealSession } from "@/lib/auth/seal-cache";
 import { SESSION_COOKIE, renewalDue, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
 import { floorWindowSchema } from "./schemas";
-import { acceptsGzip } from "./window-body";
 
 export const FLOOR_WINDOW_PATH = "/api/floor";
 

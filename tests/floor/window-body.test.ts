@@ -1,6 +1,7 @@
 import { gunzipSync } from "node:zlib";
 import { describe, expect, it } from "vitest";
-import { WindowBody, acceptsGzip } from "@/lib/floor/window-body";
+import { WindowBody } from "@/lib/floor/window-body";
+import { acceptsGzip } from "@/lib/http/accept-encoding";
 
 // The floor window's encoded body and the Accept-Encoding rule (RFC 9110 §12.5.3: a coding is
 // acceptable when listed or covered by "*" with a weight above zero; "q=0" means "not acceptable").

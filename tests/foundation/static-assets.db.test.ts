@@ -1,0 +1,30 @@
+import { readFileSync, readdirSync } from "node:fs";
+import path from "node:path";
+import { describe, expect, it } from "vitest";
+import { STATIC_PREFIX } from "@/lib/http/static-assets";
+import { appUrl } from "../helpers/browser";
+
+// The running app (scripts/serve.ts) answers the build's static files itself, from memory
+// (lib/http/static-assets.ts): what a page asks for must be the build's own bytes.
+
+describe("static files through the running app", () => {
+  it("serves a page's scripts with the bytes of the build on disk", async () => {
+    const html = await (await fetch(`${appUrl()}/sign-in`)).text();
+    const srcs = [...html.matchAll(/src="(\/_next\/static\/chunks\/[^"]+\.js)"/g)].map((m) => m[1]);
+    expect(srcs.length).toBeGreaterThan(2);
+    const distDir = process.env.NEXT_DIST_DIR ?? ".next";
+    const onDisk = new Set(readdirSync(path.join(distDir, "static", "chunks")));
+    let compared = 0;
+    for (const src of srcs) {
+      const name = src.slice(`${STATIC_PREFIX}chunks/`.length);
+      expect(onDisk.has(name), name).toBe(true);
+      const r = await fetch(`${appUrl()}${src}`, { headers: { "accept-encoding": "gzip" } });
+      expect(r.status).toBe(200);
+      expect(r.headers.get("cache-control")).toBe("public, max-age=31536000, immutable");
+      // fetch undoes the gzip coding; what arrives must be the file itself.
+      expect(Buffer.from(await r.arrayBuffer()).equals(readFileSync(path.join(distDir, "static", "chunks", name)))).toBe(true);
+      compared++;
+    }
+    expect(compared).toBe(srcs.length);
+  });
+});
