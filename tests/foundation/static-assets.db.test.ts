@@ -1,11 +1,12 @@
 import { readFileSync, readdirSync } from "node:fs";
 import path from "node:path";
 import { describe, expect, it } from "vitest";
-import { STATIC_PREFIX } from "@/lib/http/static-assets";
+import { COMPILE_HINT, STATIC_PREFIX } from "@/lib/http/static-assets";
 import { appUrl } from "../helpers/browser";
 
 // The running app (scripts/serve.ts) answers the build's static files itself, from memory
-// (lib/http/static-assets.ts): what a page asks for must be the build's own bytes.
+// (lib/http/static-assets.ts): what a page asks for must be the build's own bytes, scripts
+// behind V8's compile hint.
 
 describe("static files through the running app", () => {
   it("serves a page's scripts with the bytes of the build on disk", async () => {
@@ -21,8 +22,9 @@ describe("static files through the running app", () => {
       const r = await fetch(`${appUrl()}${src}`, { headers: { "accept-encoding": "gzip" } });
       expect(r.status).toBe(200);
       expect(r.headers.get("cache-control")).toBe("public, max-age=31536000, immutable");
-      // fetch undoes the gzip coding; what arrives must be the file itself.
-      expect(Buffer.from(await r.arrayBuffer()).equals(readFileSync(path.join(distDir, "static", "chunks", name)))).toBe(true);
+      // fetch undoes the gzip coding; what arrives must be the file itself behind V8's compile hint.
+      const file = readFileSync(path.join(distDir, "static", "chunks", name));
+      expect(Buffer.from(await r.arrayBuffer()).equals(Buffer.concat([COMPILE_HINT, file]))).toBe(true);
       compared++;
     }
     expect(compared).toBe(srcs.length);

@@ -5,7 +5,7 @@ import os from "node:os";
 import path from "node:path";
 import { gunzipSync } from "node:zlib";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { STATIC_PREFIX, StaticAssets, etagMatches } from "@/lib/http/static-assets";
+import { COMPILE_HINT, STATIC_PREFIX, StaticAssets, etagMatches } from "@/lib/http/static-assets";
 
 // The build's hashed static files answered from memory (lib/http/static-assets.ts): the same
 // bytes as on disk, gzip only when asked for (RFC 9110 §12.5.3), If-None-Match (§13.1.2), HEAD,
@@ -20,6 +20,8 @@ let server: http.Server;
 let base = "";
 
 const script = "export const floor = " + JSON.stringify(Array.from({ length: 400 }, (_, i) => ({ lane: i % 28, label: `booking ${i}` }))) + ";\n";
+/** A script as served: V8's compile hint on the first line, then the file. */
+const served = (text: string) => COMPILE_HINT.toString("utf8") + text;
 
 function get(urlPath: string, headers: Record<string, string> = {}, method = "GET"): Promise<{ status: number; headers: http.IncomingHttpHeaders; bytes: Buffer }> {
   return new Promise((resolve, reject) => {
@@ -69,7 +71,7 @@ describe("static files from memory", () => {
     const r = await get(`${STATIC_PREFIX}chunks/floor-3f2a.js`, { "accept-encoding": "gzip, deflate, br, zstd" });
     expect(r.status).toBe(200);
     expect(r.headers["content-encoding"]).toBe("gzip");
-    expect(gunzipSync(r.bytes).toString("utf8")).toBe(script);
+    expect(gunzipSync(r.bytes).toString("utf8")).toBe(served(script));
     expect(r.bytes.length).toBeLessThan(Buffer.byteLength(script) / 3);
     expect(Number(r.headers["content-length"])).toBe(r.bytes.length);
     expect(r.headers["content-type"]).toBe("application/javascript; charset=UTF-8");
@@ -84,7 +86,7 @@ describe("static files from memory", () => {
       const r = await get(`${STATIC_PREFIX}chunks/floor-3f2a.js`, headers);
       expect(r.status).toBe(200);
       expect(r.headers["content-encoding"]).toBeUndefined();
-      expect(r.bytes.toString("utf8")).toBe(script);
+      expect(r.bytes.toString("utf8")).toBe(served(script));
     }
   });
 
@@ -99,7 +101,7 @@ describe("static files from memory", () => {
     }
     const stale = await get(`${STATIC_PREFIX}chunks/floor-3f2a.js`, { "if-none-match": '"an-older-build"' });
     expect(stale.status).toBe(200);
-    expect(stale.bytes.toString("utf8")).toBe(script);
+    expect(stale.bytes.toString("utf8")).toBe(served(script));
   });
 
   it("answers HEAD with the headers alone", async () => {
@@ -110,6 +112,16 @@ describe("static files from memory", () => {
     expect(Number(r.headers["content-length"])).toBeGreaterThan(0);
   });
 
+  it("starts every script with V8's compile hint (a comment to any other engine)", async () => {
+    expect(COMPILE_HINT.toString()).toBe("//# allFunctionsCalledOnLoad\n");
+    const r = await get(`${STATIC_PREFIX}chunks/floor-3f2a.js`);
+    expect(r.bytes.toString("utf8").split("\n")[0]).toBe("//# allFunctionsCalledOnLoad");
+    // Still the same program: the hint is a line comment, the file follows unchanged.
+    expect(r.bytes.subarray(COMPILE_HINT.length).toString("utf8")).toBe(script);
+    const css = await get(`${STATIC_PREFIX}chunks/site%201.css`);
+    expect(css.bytes.toString("utf8").startsWith("body{")).toBe(true);
+  });
+
   it("leaves fonts and very small files uncompressed, and decodes names", async () => {
     const font = await get(`${STATIC_PREFIX}media/face.woff2`, { "accept-encoding": "gzip" });
     expect(font.headers["content-type"]).toBe("font/woff2");
@@ -117,7 +129,7 @@ describe("static files from memory", () => {
     expect(font.bytes.equals(Buffer.alloc(4096, 7))).toBe(true);
     const tiny = await get(`${STATIC_PREFIX}chunks/tiny.js`, { "accept-encoding": "gzip" });
     expect(tiny.headers["content-encoding"]).toBeUndefined();
-    expect(tiny.bytes.toString()).toBe("1;\n");
+    expect(tiny.bytes.toString()).toBe(served("1;\n"));
     const css = await get(`${STATIC_PREFIX}chunks/site%201.css`, { "accept-encoding": "gzip" });
     expect(css.headers["content-type"]).toBe("text/css; charset=UTF-8");
     expect(gunzipSync(css.bytes).toString()).toBe("body{color:#222}\n".repeat(200));
@@ -151,7 +163,7 @@ describe("static files from memory", () => {
     await new Promise((r) => setTimeout(r, 10));
     const r = await get(`${STATIC_PREFIX}chunks/late.js`);
     expect(r.status).toBe(200);
-    expect(r.bytes.toString()).toBe("late();\n");
+    expect(r.bytes.toString()).toBe(served("late();\n"));
   });
 
   it("preloads every servable file", async () => {
