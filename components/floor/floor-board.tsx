@@ -306,17 +306,19 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
   }, [lastMove, move]);
 
   // Plain DOM, not React: FullCalendar's React adapter re-renders every portal whenever one
-  // event's content mounts, which made a week of 500 bookings take seconds to appear.
+  // event's content mounts, which made a week of 500 bookings take seconds to appear. And one
+  // element per booking: the state and unit count are drawn from a data attribute by CSS
+  // (.hearth-booking in app/globals.css), which cut the week's first render by about a tenth.
   const renderEvent = useCallback((arg: EventContentArg) => {
     const p = arg.event.extendedProps as Partial<FloorEvent>;
     if (arg.event.display === "background") {
       return { domNodes: [el("div", "truncate px-1 pt-0.5 text-2xs italic text-soot-800", arg.event.title, { testid: "maintenance-block" })] };
     }
     const state = p.failed ? "failed" : p.state && p.kind ? (STATE_WORDS[p.kind][p.state] ?? p.state) : arg.event.classNames.includes("hearth-proposed") ? "proposed" : "";
-    const box = el("div", "flex min-w-0 items-baseline gap-1 overflow-hidden px-1 text-2xs leading-4", null, { testid: "floor-event", eventId: arg.event.id });
-    box.append(el("span", "truncate font-semibold", arg.event.title));
-    if (state) box.append(el("span", "shrink-0 uppercase tracking-wide opacity-75", state));
-    if (p.unit_count) box.append(el("span", "shrink-0 opacity-75", `${p.unit_count} u`));
+    const detail = [state, p.unit_count ? `${p.unit_count} u` : ""].filter(Boolean).join(" · ");
+    const box = el("div", "hearth-booking", arg.event.title, { testid: "floor-event", eventId: arg.event.id, detail });
+    // The bar is often narrower than its words: the whole line on hover.
+    box.title = detail ? `${arg.event.title} (${detail})` : arg.event.title;
     return { domNodes: [box] };
   }, []);
 

@@ -75,6 +75,10 @@ describe("the floor in a browser", () => {
     const booked = page.locator(`.fc-timeline-lane[data-resource-id="${lane.id}"] [data-event-id="${first.build.id}"]`);
     await booked.waitFor({ timeout: 15_000 });
     expect(await booked.textContent()).toContain(first.build.code);
+    // Its state and unit count are drawn from data-detail; the tooltip carries the whole line.
+    expect(await booked.getAttribute("data-detail")).toMatch(/^booked( · \d+ u)?$/);
+    expect(await booked.getAttribute("title")).toContain(`${first.build.code}`);
+    expect(await booked.evaluate((el) => getComputedStyle(el, "::after").content)).toMatch(/booked/);
     expect(await page.locator(`[data-testid="unscheduled-${first.build.code}"]`).count()).toBe(0);
     await screenshot(page, "floor-after-reload");
     await page.close();
