@@ -1,7 +1,7 @@
 "use client";
 
 import FullCalendar from "@fullcalendar/react";
-import interactionPlugin, { Draggable, type EventReceiveArg } from "@fullcalendar/interaction";
+import interactionPlugin, { Draggable, type DateClickArg, type EventReceiveArg } from "@fullcalendar/interaction";
 import resourceTimelinePlugin from "@fullcalendar/resource-timeline";
 import type { CalendarOptions, DateSpanApi, DatesSetArg, EventApi, EventContentArg, EventDropArg, EventInput } from "@fullcalendar/core";
 import { keepPreviousData, useQuery, useQueryClient } from "@tanstack/react-query";
@@ -65,9 +65,17 @@ function el(tag: string, className: string, text?: string | null, data: Record<s
   return node;
 }
 
+/**
+ * A finished booking is history: nothing can move it. It is drawn as a block in its lane's
+ * background, which FullCalendar neither measures nor stacks (on a busy week about half the
+ * bookings, and a tenth of the first render), and a click on it opens the build (onDateClick).
+ */
+export const isHistory = (e: Pick<FloorEvent, "state" | "failed">) => e.state === "complete" && !e.failed;
+
 function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
   const lane = e.kind !== "build";
   const c = e.failed ? COLORS.failed : e.kind === "build" ? (COLORS[e.state] ?? COLORS.scheduled) : COLORS[e.kind];
+  const history = isHistory(e);
   return {
     id: e.id,
     resourceId: e.resource_id,
@@ -77,10 +85,11 @@ function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
     editable: lane ? e.editable && laneEditable(e, lanes) : e.editable,
     ...(lane ? { resourceEditable: e.editable && laneEditable(e, lanes) } : {}),
     durationEditable: false,
+    ...(history ? { display: "background" } : {}),
     backgroundColor: c.bg,
     borderColor: c.border,
     textColor: c.text,
-    classNames: [`hearth-${e.kind}`, `hearth-state-${e.state}`],
+    classNames: [`hearth-${e.kind}`, `hearth-state-${e.state}`, ...(history ? ["hearth-history"] : [])],
     extendedProps: { ...e, build_id: e.kind === "build" ? e.id : undefined },
   };
 }
@@ -311,7 +320,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
   // (.hearth-booking in app/globals.css), which cut the week's first render by about a tenth.
   const renderEvent = useCallback((arg: EventContentArg) => {
     const p = arg.event.extendedProps as Partial<FloorEvent>;
-    if (arg.event.display === "background") {
+    if (arg.event.display === "background" && !p.kind) {
       return { domNodes: [el("div", "truncate px-1 pt-0.5 text-2xs italic text-soot-800", arg.event.title, { testid: "maintenance-block" })] };
     }
     const state = p.failed ? "failed" : p.state && p.kind ? (STATE_WORDS[p.kind][p.state] ?? p.state) : arg.event.classNames.includes("hearth-proposed") ? "proposed" : "";
@@ -354,6 +363,17 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
       if (id) router.push(`/builds/${id}`);
     },
     [router],
+  );
+
+  // A click on a finished build's block (a background event, which takes no clicks of its own).
+  const onDateClick = useCallback(
+    (arg: DateClickArg) => {
+      const laneId = (arg as DateClickArg & { resource?: { id: string } }).resource?.id;
+      const t = arg.date.getTime();
+      const hit = (floor.data?.events ?? []).find((e) => e.kind === "build" && e.resource_id === laneId && isHistory(e) && Date.parse(e.start) <= t && t < Date.parse(e.end));
+      if (hit) router.push(`/builds/${hit.id}`);
+    },
+    [floor.data, router],
   );
 
   const onDatesSet = useCallback((arg: DatesSetArg) => {
@@ -410,6 +430,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
             eventDrop={onEventDrop}
             eventReceive={onEventReceive}
             eventClick={onEventClick}
+            dateClick={onDateClick}
             datesSet={onDatesSet}
           />
           ) : floor.isError ? null : (

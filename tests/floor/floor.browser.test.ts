@@ -3,10 +3,12 @@ import type { Browser, BrowserContext, Page } from "playwright-core";
 import { testDb } from "../helpers/db";
 import { appUrl, launchBrowser, screenshot } from "../helpers/browser";
 import { DEMO, signIn } from "../helpers/session";
+import { openingWeek } from "@/components/floor/opening-week";
 import { makeDraftBuild, makePrinter, retirePrinters } from "./fixtures";
 
 // The floor in Chromium, signed in as a technician: drag an unscheduled build onto a printer
-// lane, see it there after a reload, and see an overlapping drop refused with the reason.
+// lane, see it there after a reload, and see an overlapping drop refused with the reason; a
+// finished build is a block in its lane's background that opens the build when clicked.
 
 const { db, close } = testDb();
 let browser: Browser;
@@ -119,6 +121,34 @@ describe("the floor in a browser", () => {
     await page.waitForTimeout(500);
     const row = await db.selectFrom("builds").select("state").where("id", "=", second.build.id).executeTakeFirstOrThrow();
     expect(row.state).toBe("draft");
+    await page.close();
+  });
+
+  it("draws a finished build as a block in its lane and opens the build when it is clicked", async () => {
+    const material = await db.selectFrom("materials").select("id").where("code", "=", "17-4PH").executeTakeFirstOrThrow();
+    const ends = new Date(Date.now() - 3_600_000);
+    const starts = new Date(ends.getTime() - 2 * 3_600_000);
+    const done = await db
+      .insertInto("builds")
+      .values({ code: `HX-${Date.now().toString(36)}`, material_id: material.id, printer_id: lane.id, state: "complete", starts_at: starts, ends_at: ends, est_minutes: 120, material_lot: "TEST" })
+      .returning(["id", "code"])
+      .executeTakeFirstOrThrow();
+    const page = await context.newPage();
+    await page.goto(`${appUrl()}/floor`);
+    await page.waitForSelector('[data-testid="floor-board"][data-ready="true"]');
+    // Early on a Sunday the build finished in last week's view.
+    if (ends.getTime() <= Date.parse(openingWeek().from)) {
+      await page.click(".fc-prev-button");
+      await page.waitForFunction(() => document.querySelector('[data-testid="floor-board"]')?.getAttribute("data-ready") === "true");
+    }
+    const block = page.locator(`.fc-timeline-lane[data-resource-id="${lane.id}"] .fc-bg-event.hearth-history [data-event-id="${done.id}"]`);
+    await block.waitFor({ timeout: 15_000 });
+    expect(await block.textContent()).toContain(done.code);
+    expect(await block.getAttribute("data-detail")).toBe("done");
+    await screenshot(page, "floor-finished-block");
+    const box = (await block.boundingBox())!;
+    await page.mouse.click(box.x + 3, box.y + box.height / 2);
+    await page.waitForURL(`**/builds/${done.id}`, { timeout: 15_000 });
     await page.close();
   });
 });
