@@ -63,20 +63,22 @@ export class StaticAssets {
 
   /** The file for a request path under STATIC_PREFIX, or null (unknown type, outside, missing). */
   asset(urlPath: string): Promise<StaticAsset | null> {
-    let cached = this.cache.get(urlPath);
+    const file = this.fileFor(urlPath);
+    if (!file) return Promise.resolve(null);
+    // Keyed by the file, not the address: "%61.js" and "a.js" share one entry.
+    let cached = this.cache.get(file);
     if (!cached) {
-      cached = this.load(urlPath);
-      this.cache.set(urlPath, cached);
-      // A file that is not there may be written later (it never is for a build, but a cache of
-      // misses would let any caller grow this map without bound).
-      void cached.then((a) => (a ? undefined : this.cache.delete(urlPath)));
+      cached = this.load(file);
+      this.cache.set(file, cached);
+      // A file that is not there may be written later (it never is for a build), and a miss
+      // or a failed read is not kept.
+      const forget = () => void this.cache.delete(file);
+      cached.then((a) => (a ? undefined : forget()), forget);
     }
     return cached;
   }
 
-  private async load(urlPath: string): Promise<StaticAsset | null> {
-    const file = this.fileFor(urlPath);
-    if (!file) return null;
+  private async load(file: string): Promise<StaticAsset | null> {
     const kind = TYPES[path.extname(file).toLowerCase()];
     if (!kind) return null;
     let raw: Buffer;

@@ -157,6 +157,15 @@ describe("static files from memory", () => {
     expect(post.status).toBe(DEFERRED);
   });
 
+  it("keeps one copy of a file however its name is spelled in the address", async () => {
+    const plain = await assets.asset(`${STATIC_PREFIX}chunks/floor-3f2a.js`);
+    const escaped = await assets.asset(`${STATIC_PREFIX}chunks/%66loor-3f2a.js`);
+    const dotted = await assets.asset(`${STATIC_PREFIX}media/../chunks/floor-3f2a.js`);
+    expect(plain).not.toBeNull();
+    expect(escaped).toBe(plain);
+    expect(dotted).toBe(plain);
+  });
+
   it("serves a file that appears after a request missed it", async () => {
     expect((await get(`${STATIC_PREFIX}chunks/late.js`)).status).toBe(DEFERRED);
     writeFileSync(path.join(staticDir, "chunks", "late.js"), "late();\n");
