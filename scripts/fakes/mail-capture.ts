@@ -62,7 +62,16 @@ export async function startMailCapture(opts: { smtpPort: number; apiPort: number
   });
   await new Promise<void>((resolve, reject) => {
     smtp.once("error", reject);
-    smtp.listen(opts.smtpPort, host, () => resolve());
+    smtp.listen(opts.smtpPort, host, () => {
+      smtp.off("error", reject);
+      resolve();
+    });
+  });
+  // Once listening, a session's socket error (a sender killed mid-message: ECONNRESET) is that
+  // session's end, not the server's: smtp-server reports it on the server, where an unheard
+  // "error" event would bring the whole process down.
+  smtp.on("error", (err: NodeJS.ErrnoException) => {
+    if (err.code !== "ECONNRESET" && err.code !== "EPIPE") console.warn("[mail-capture]", err.message);
   });
 
   const api = http.createServer((req, res) => {
