@@ -280,7 +280,7 @@ export async function listUnscheduledBuilds(db: Database, ids?: string[]): Promi
       sql<Date | null>`(select min(o.due_at) from units u join parts p on p.id = u.part_id join orders o on o.id = p.order_id where u.build_id = b.id)`.as("due_at"),
     ])
     .where("b.state", "=", "draft")
-    .orderBy(sql`due_at`, sql`asc nulls last`)
+    .orderBy(sql`due_at`, (ob) => ob.asc().nullsLast())
     .orderBy("b.code")
     .limit(500);
   if (ids) q = q.where("b.id", "in", ids.length ? ids : ["00000000-0000-0000-0000-000000000000"]);

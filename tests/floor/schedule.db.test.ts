@@ -2,6 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { sql } from "kysely";
 import { testDb } from "../helpers/db";
 import { api, DEMO, signIn } from "../helpers/session";
+import { listUnscheduledBuilds } from "@/db/queries/floor";
 import { hoursFromNow, makeBuild, makeDraftBuild, makeOrder, makePart, makePrinter, overlapsOn, retirePrinters, unitsOf } from "./fixtures";
 
 // PATCH /api/builds/[id]/schedule against the running app: book, move, reassign, and every
@@ -187,5 +188,17 @@ describe("scheduling a build", () => {
     const booked = await db.selectFrom("builds").select("id").where("printer_id", "=", lane.id).where("state", "=", "scheduled").execute();
     expect(booked).toHaveLength(winners);
     for (const r of results.filter((x) => x.status === 409)) expect(r.body.error.message).toMatch(/booked there|already booked|changed by someone/);
+  });
+
+  it("lists unscheduled builds earliest due first, a build without a due date last", async () => {
+    const later = await makeDraftBuild(tech, db, { material: "17-4PH", due: hoursFromNow(72) });
+    const sooner = await makeDraftBuild(tech, db, { material: "17-4PH", due: hoursFromNow(24) });
+    const material = await db.selectFrom("materials").select("id").where("code", "=", "17-4PH").executeTakeFirstOrThrow();
+    // No units, so no order and no due date.
+    const undated = await db.insertInto("builds").values({ code: `ND-${Date.now().toString(36)}`, material_id: material.id, state: "draft" }).returning("id").executeTakeFirstOrThrow();
+    const rows = await listUnscheduledBuilds(db, [undated.id, later.build.id, sooner.build.id]);
+    expect(rows.map((r) => r.id)).toEqual([sooner.build.id, later.build.id, undated.id]);
+    expect(rows[2].due_at).toBeNull();
+    await db.deleteFrom("builds").where("id", "=", undated.id).execute();
   });
 });
