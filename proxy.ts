@@ -1,7 +1,7 @@
 import { NextResponse, type NextRequest } from "next/server";
 import { getIronSession } from "iron-session";
 import { unsealSession } from "@/lib/auth/seal-cache";
-import { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, renewalDue, type SessionData } from "@/lib/auth/session-config";
+import { SESSION_COOKIE, SESSION_IDLE_SECONDS, renewalDue, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
 
 function isHttps(req: NextRequest) {
   const proto = req.headers.get("x-forwarded-proto");
@@ -22,23 +22,18 @@ export async function proxy(req: NextRequest) {
   const secret = process.env.SESSION_SECRET;
   if (!secret || secret.length < 32 || !req.cookies.has(SESSION_COOKIE)) return res;
   try {
-    // The cached read first: the cookie is re-sealed only when the renewal is due.
+    // The cached read first: the cookie is re-sealed only when a live session's renewal is due.
     const seen = await unsealSession(req.cookies.get(SESSION_COOKIE)!.value, secret);
     const now = Date.now();
-    if (!renewalDue(seen, now)) return res;
+    if (!sessionIsLive(seen, null, now) || !renewalDue(seen, now)) return res;
     const session = await getIronSession<SessionData>(req, res, {
       password: secret,
       cookieName: SESSION_COOKIE,
       ttl: SESSION_IDLE_SECONDS,
       cookieOptions: { httpOnly: true, sameSite: "lax", secure: isHttps(req), path: "/" },
     });
-    if (session.userId && session.issuedAt && session.seenAt) {
-      const fresh = now - session.seenAt < SESSION_IDLE_SECONDS * 1000 && now - session.issuedAt < SESSION_MAX_SECONDS * 1000;
-      if (fresh && renewalDue(session, now)) {
-        session.seenAt = now;
-        await session.save();
-      }
-    }
+    session.seenAt = now;
+    await session.save();
   } catch {
     // a tampered cookie is simply not renewed; the page treats it as signed out
   }

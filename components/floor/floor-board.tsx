@@ -70,7 +70,7 @@ function el(tag: string, className: string, text?: string | null, data: Record<s
  * background, which FullCalendar neither measures nor stacks (on a busy week about half the
  * bookings, and a tenth of the first render), and a click on it opens the build (onDateClick).
  */
-export const isHistory = (e: Pick<FloorEvent, "state" | "failed">) => e.state === "complete" && !e.failed;
+const isHistory = (e: Pick<FloorEvent, "state" | "failed">) => e.state === "complete" && !e.failed;
 
 function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
   const lane = e.kind !== "build";
@@ -365,15 +365,18 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
     [router],
   );
 
-  // A click on a finished build's block (a background event, which takes no clicks of its own).
+  // A click on a finished build's block (a background event, which takes no clicks of its own),
+  // found among the calendar's own events so that the handler's identity never changes.
   const onDateClick = useCallback(
     (arg: DateClickArg) => {
       const laneId = (arg as DateClickArg & { resource?: { id: string } }).resource?.id;
-      const t = arg.date.getTime();
-      const hit = (floor.data?.events ?? []).find((e) => e.kind === "build" && e.resource_id === laneId && isHistory(e) && Date.parse(e.start) <= t && t < Date.parse(e.end));
+      const hit = calendarRef.current
+        ?.getApi()
+        .getEvents()
+        .find((ev) => ev.classNames.includes("hearth-history") && ev.extendedProps.kind === "build" && ev.getResources()[0]?.id === laneId && ev.start! <= arg.date && arg.date < ev.end!);
       if (hit) router.push(`/builds/${hit.id}`);
     },
-    [floor.data, router],
+    [router],
   );
 
   const onDatesSet = useCallback((arg: DatesSetArg) => {

@@ -64,8 +64,11 @@ export class StaticAssets {
   /** The file for a request path under STATIC_PREFIX, or null (unknown type, outside, missing). */
   asset(urlPath: string): Promise<StaticAsset | null> {
     const file = this.fileFor(urlPath);
-    if (!file) return Promise.resolve(null);
-    // Keyed by the file, not the address: "%61.js" and "a.js" share one entry.
+    return file ? this.entry(file) : Promise.resolve(null);
+  }
+
+  /** Keyed by the file, not the address: "%61.js" and "a.js" share one entry. */
+  private entry(file: string): Promise<StaticAsset | null> {
     let cached = this.cache.get(file);
     if (!cached) {
       cached = this.load(file);
@@ -115,7 +118,7 @@ export class StaticAssets {
       for (const e of entries) {
         const full = path.join(dir, e.name);
         if (e.isDirectory()) await walk(full);
-        else if (e.isFile() && (await this.asset(STATIC_PREFIX + path.relative(this.root, full).split(path.sep).map(encodeURIComponent).join("/")))) n++;
+        else if (e.isFile() && (await this.entry(full))) n++;
       }
     };
     await walk(this.root);

@@ -12,6 +12,7 @@ import { answerFloorWindow } from "@/lib/floor/window-direct";
 import { testDb } from "../helpers/db";
 import { api, DEMO, signIn } from "../helpers/session";
 import { hoursFromNow, makeDraftBuild, makePrinter, retirePrinters } from "./fixtures";
+import { rawRequest } from "../helpers/raw-request";
 
 // GET /api/floor answered by the web server itself (lib/floor/window-direct.ts), on the real test
 // database: what it answers must be what the route handler would answer, and everything that is
@@ -48,19 +49,7 @@ function windowPath(from: Date, to: Date) {
   return `/api/floor?from=${encodeURIComponent(from.toISOString())}&to=${encodeURIComponent(to.toISOString())}`;
 }
 
-/** A request with exactly these headers (fetch would add Accept-Encoding and undo the coding). */
-function direct(path: string, headers: Record<string, string> = {}, method = "GET"): Promise<{ status: number; headers: http.IncomingHttpHeaders; bytes: Buffer }> {
-  return new Promise((resolve, reject) => {
-    const req = http.request(`${base}${path}`, { method, headers }, (res) => {
-      const chunks: Buffer[] = [];
-      res.on("data", (c: Buffer) => chunks.push(c));
-      res.on("end", () => resolve({ status: res.statusCode ?? 0, headers: res.headers, bytes: Buffer.concat(chunks) }));
-      res.on("error", reject);
-    });
-    req.on("error", reject);
-    req.end();
-  });
-}
+const direct = (path: string, headers: Record<string, string> = {}, method = "GET") => rawRequest(base, path, headers, method);
 
 /** The window as the database writes it, without the load time the body carries. */
 const withoutStamp = (json: string) => {

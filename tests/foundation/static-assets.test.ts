@@ -6,6 +6,7 @@ import path from "node:path";
 import { gunzipSync } from "node:zlib";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { COMPILE_HINT, STATIC_PREFIX, StaticAssets, etagMatches } from "@/lib/http/static-assets";
+import { rawRequest } from "../helpers/raw-request";
 
 // The build's hashed static files answered from memory (lib/http/static-assets.ts): the same
 // bytes as on disk, gzip only when asked for (RFC 9110 §12.5.3), If-None-Match (§13.1.2), HEAD,
@@ -23,19 +24,7 @@ const script = "export const floor = " + JSON.stringify(Array.from({ length: 400
 /** A script as served: V8's compile hint on the first line, then the file. */
 const served = (text: string) => COMPILE_HINT.toString("utf8") + text;
 
-function get(urlPath: string, headers: Record<string, string> = {}, method = "GET"): Promise<{ status: number; headers: http.IncomingHttpHeaders; bytes: Buffer }> {
-  return new Promise((resolve, reject) => {
-    // A raw path: fetch() would normalise "..", and would add Accept-Encoding on its own.
-    const req = http.request({ host: "127.0.0.1", port: Number(new URL(base).port), path: urlPath, method, headers }, (res) => {
-      const chunks: Buffer[] = [];
-      res.on("data", (c: Buffer) => chunks.push(c));
-      res.on("end", () => resolve({ status: res.statusCode ?? 0, headers: res.headers, bytes: Buffer.concat(chunks) }));
-      res.on("error", reject);
-    });
-    req.on("error", reject);
-    req.end();
-  });
-}
+const get = (urlPath: string, headers: Record<string, string> = {}, method = "GET") => rawRequest(base, urlPath, headers, method);
 
 beforeAll(async () => {
   tmp = mkdtempSync(path.join(os.tmpdir(), "hearth-static-"));
