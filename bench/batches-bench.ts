@@ -10,7 +10,7 @@
 import pg from "pg";
 import { sql } from "kysely";
 import { createDb, type Database } from "@/db/client";
-import { proposeBatches } from "@/db/queries/batches";
+import { proposeBatches } from "@/db/batches/commands";
 import { migrateToLatest } from "@/db/migrate";
 import { seedDemoShop } from "@/db/seed";
 import { BENCH_FURNACES, furnaceMixInstance } from "./generate-instances";

@@ -2,16 +2,16 @@
 // Next.js's request handler behind Node's own HTTP server, the framework's "custom server"
 // (https://nextjs.org/docs/app/guides/custom-server). It answers two kinds of request before the
 // framework's per-request work: the floor's window, which every open floor polls, from its
-// cache (lib/floor/window-direct.ts), and the build's hashed static files from memory, gzipped
-// once (lib/http/static-assets.ts). Everything else is Next.js's, unchanged.
+// cache (app/_server/floor-window-direct.ts), and the build's hashed static files from memory, gzipped
+// once (app/_server/static-assets.ts). Everything else is Next.js's, unchanged.
 // PORT (3000) and HOSTNAME (127.0.0.1) say where it listens; the build is NEXT_DIST_DIR (.next).
 import http from "node:http";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
 import next from "next";
 import { closeDb, getDb } from "@/db/client";
-import { answerFloorWindow } from "@/lib/floor/window-direct";
-import { STATIC_PREFIX, StaticAssets } from "@/lib/http/static-assets";
+import { answerFloorWindow } from "@/app/_server/floor-window-direct";
+import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const port = Number(process.env.PORT ?? 3000);

@@ -1,7 +1,8 @@
 import type PgBoss from "pg-boss";
 import { sql } from "kysely";
 import type { Database } from "@/db/client";
-import { advanceBooking, listDueBookings } from "@/db/queries/advance";
+import { advanceBooking } from "@/db/advance/commands";
+import { listDueBookings } from "@/db/advance/reads";
 import { recomputeScaleUp } from "./handlers/scale-up";
 import { drainOutbox } from "./handlers/send-mail";
 import { shuffled } from "./limit";

@@ -2,7 +2,7 @@ import Link from "next/link";
 import { AppShell } from "@/components/shell/app-shell";
 import { SignOutButton } from "@/components/shell/sign-out-button";
 import { ROLE_LABELS, navFor } from "@/lib/auth/permissions";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export default async function SignedInLayout({ children }: { children: React.ReactNode }) {
   const user = await requirePageUser();

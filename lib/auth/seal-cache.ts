@@ -1,7 +1,7 @@
 // Reading a session cookie means unsealing it: two PBKDF2 key derivations, an HMAC check and an
 // AES decryption. A page and its polling present the same cookie many times a minute, and what
 // one exact sealed string holds never changes, so the answer is kept for a short while.
-// Shared by proxy.ts and lib/auth/session.ts (no next/* imports here).
+// Shared by proxy.ts and app/_server/session.ts (no next/* imports here).
 import { unsealData } from "iron-session";
 import { SESSION_IDLE_SECONDS, type SessionData } from "./session-config";
 

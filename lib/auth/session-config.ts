@@ -1,4 +1,4 @@
-// Session cookie settings shared by lib/auth/session.ts and proxy.ts (no next/* imports here).
+// Session cookie settings shared by app/_server/session.ts and proxy.ts (no next/* imports here).
 
 export type SessionData = {
   userId?: string;

@@ -1,5 +1,5 @@
 // Sign-in throttling: a fixed window over recorded failures, per account and per address.
-// Pure, so the rule can be tested without a database; db/queries/auth.ts supplies the times.
+// Pure, so the rule can be tested without a database; db/auth/commands.ts supplies the times.
 
 export const THROTTLE_WINDOW_MS = 15 * 60 * 1000;
 /** Failures allowed in the window before the next attempt must wait. */

@@ -4,7 +4,7 @@ import { createServer } from "node:net";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createDb, type Database } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
-import { createUserAndInvite, sendAccountLink, updateUserByAdmin, type Actor } from "@/lib/auth/accounts";
+import { createUserAndInvite, sendAccountLink, updateUserByAdmin, type Actor } from "@/db/auth/accounts";
 import { resetEnvCache } from "@/lib/env";
 import { AppError } from "@/lib/errors";
 import { scratchDatabase } from "../helpers/db";

@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { sql } from "kysely";
 import { testDb } from "../helpers/db";
 import { api, DEMO, signIn } from "../helpers/session";
-import { listUnscheduledBuilds } from "@/db/queries/floor";
+import { listUnscheduledBuilds } from "@/db/floor/reads";
 import { hoursFromNow, makeBuild, makeDraftBuild, makeOrder, makePart, makePrinter, overlapsOn, retirePrinters, unitsOf } from "./fixtures";
 
 // PATCH /api/builds/[id]/schedule against the running app: book, move, reassign, and every

@@ -5,16 +5,16 @@ import { randomUUID } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { sealData } from "iron-session";
 import { sql } from "kysely";
-import { floorChangeStamp, floorViewerAndStamp, loadFloorJson } from "@/db/queries/floor";
+import { floorChangeStamp, floorViewerAndStamp, loadFloorJson } from "@/db/floor/reads";
 import { ROLES, type Role } from "@/lib/auth/permissions";
 import { SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS } from "@/lib/auth/session-config";
-import { answerFloorWindow } from "@/lib/floor/window-direct";
+import { answerFloorWindow } from "@/app/_server/floor-window-direct";
 import { testDb } from "../helpers/db";
 import { api, DEMO, signIn } from "../helpers/session";
 import { hoursFromNow, makeDraftBuild, makePrinter, retirePrinters } from "./fixtures";
 import { rawRequest } from "../helpers/raw-request";
 
-// GET /api/floor answered by the web server itself (lib/floor/window-direct.ts), on the real test
+// GET /api/floor answered by the web server itself (app/_server/floor-window-direct.ts), on the real test
 // database: what it answers must be what the route handler would answer, and everything that is
 // not the plain signed-in case must be left to the route handler. An in-process server with a
 // fallback that only says "deferred" shows which requests the direct path takes; the running app

@@ -1,11 +1,11 @@
 import { readFileSync, readdirSync } from "node:fs";
 import path from "node:path";
 import { describe, expect, it } from "vitest";
-import { COMPILE_HINT, STATIC_PREFIX } from "@/lib/http/static-assets";
+import { COMPILE_HINT, STATIC_PREFIX } from "@/app/_server/static-assets";
 import { appUrl } from "../helpers/browser";
 
 // The running app (scripts/serve.ts) answers the build's static files itself, from memory
-// (lib/http/static-assets.ts): what a page asks for must be the build's own bytes, scripts
+// (app/_server/static-assets.ts): what a page asks for must be the build's own bytes, scripts
 // behind V8's compile hint.
 
 describe("static files through the running app", () => {

@@ -5,10 +5,10 @@ import os from "node:os";
 import path from "node:path";
 import { gunzipSync } from "node:zlib";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { COMPILE_HINT, STATIC_PREFIX, StaticAssets, etagMatches } from "@/lib/http/static-assets";
+import { COMPILE_HINT, STATIC_PREFIX, StaticAssets, etagMatches } from "@/app/_server/static-assets";
 import { rawRequest } from "../helpers/raw-request";
 
-// The build's hashed static files answered from memory (lib/http/static-assets.ts): the same
+// The build's hashed static files answered from memory (app/_server/static-assets.ts): the same
 // bytes as on disk, gzip only when asked for (RFC 9110 §12.5.3), If-None-Match (§13.1.2), HEAD,
 // and nothing outside the folder. An in-process server with a fallback that only says
 // "deferred" shows which requests are left to Next.js.

@@ -5,7 +5,7 @@ import { appUrl } from "../helpers/browser";
 import { api, DEMO, signIn } from "../helpers/session";
 import { boxMesh, writeAsciiStl, writeBinaryStl } from "@/lib/geometry/generate";
 import { getEnv } from "@/lib/env";
-import { getS3 } from "@/lib/storage/s3";
+import { getS3 } from "@/adapters/storage/s3";
 import { makeOrder, makePart } from "../floor/fixtures";
 
 // Geometry upload against the running app, its S3 fake and its worker: checked before

@@ -3,7 +3,8 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type PgBoss from "pg-boss";
 import { sql } from "kysely";
-import { advanceBooking, listDueBookings, type AdvanceSource } from "@/db/queries/advance";
+import { advanceBooking, type AdvanceSource } from "@/db/advance/commands";
+import { listDueBookings } from "@/db/advance/reads";
 import type { AdvanceJob } from "@/lib/jobs/queues";
 import { recomputeScaleUp } from "@/worker/handlers/scale-up";
 import { createWorkerDb, insertBuild, insertRun, insertWash, startSender, unitStateEvents, type WorkerDb } from "./harness";

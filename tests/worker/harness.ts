@@ -10,7 +10,7 @@ import PgBoss from "pg-boss";
 import { createDb, type Database } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
 import { ALL_QUEUES } from "@/lib/jobs/queues";
-import { sendAdvance } from "@/lib/jobs/advance";
+import { sendAdvance } from "@/db/jobs/advance";
 import type { AdvanceJob } from "@/lib/jobs/queues";
 import type { Role } from "@/lib/auth/permissions";
 import { startMailCapture } from "../../scripts/fakes/mail-capture";

@@ -237,7 +237,7 @@ describe("worker processes", () => {
         .returning(["version"])
         .executeTakeFirstOrThrow();
       await trx.updateTable("builds").set({ state: "cancelled", version: sql`version + 1` }).where("id", "=", gone.id).execute();
-      const { sendAdvance } = await import("@/lib/jobs/advance");
+      const { sendAdvance } = await import("@/db/jobs/advance");
       await sendAdvance(boss, trx, { entity: "build", id: b.id, version: row.version, due_at: newEnd.toISOString() });
     });
 

@@ -1,7 +1,7 @@
 import type PgBoss from "pg-boss";
 import type { Job } from "pg-boss";
 import type { Database } from "@/db/client";
-import { advanceBooking, type AdvanceResult } from "@/db/queries/advance";
+import { advanceBooking, type AdvanceResult } from "@/db/advance/commands";
 import { advanceJobSchema, QUEUES } from "@/lib/jobs/queues";
 import { mapLimit } from "../limit";
 

@@ -1,12 +1,13 @@
 import { GetObjectCommand } from "@aws-sdk/client-s3";
 import type PgBoss from "pg-boss";
 import { getDb } from "@/db/client";
-import { findFileById, setFileStatus } from "@/db/queries/files";
+import { findFileById } from "@/db/files/reads";
+import { setFileStatus } from "@/db/files/commands";
 import { getEnv } from "@/lib/env";
 import { analyzeStl } from "@/lib/geometry/stl";
 import { ComputationError } from "@/lib/errors";
 import { geometryJobSchema } from "@/lib/jobs/queues";
-import { getS3 } from "@/lib/storage/s3";
+import { getS3 } from "@/adapters/storage/s3";
 
 // Measures an uploaded STL: volume, bounding box, area and the closed-mesh verdict, then
 // gives the part its finished volume when the mesh is closed (an open mesh has no volume to

@@ -1,8 +1,8 @@
 import type { Job } from "pg-boss";
 import type { Database } from "@/db/client";
-import { listDueOutboxIds } from "@/db/queries/outbox";
+import { listDueOutboxIds } from "@/db/outbox/reads";
 import { sendMailJobSchema } from "@/lib/jobs/queues";
-import { sendOutboxRow } from "@/lib/mail/send";
+import { sendOutboxRow } from "@/db/notifications/send";
 import { mapLimit } from "../limit";
 
 /**

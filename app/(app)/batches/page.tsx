@@ -1,7 +1,7 @@
 import { PageHeader } from "@/components/ui/page-header";
 import { BatchesBoard } from "@/components/batches/board";
 import { Cautions } from "@/components/safety/cautions";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Batches" };
 

@@ -1,10 +1,10 @@
 import { CapacityBoard } from "@/components/capacity/capacity-board";
 import { PageHeader } from "@/components/ui/page-header";
 import { getDb } from "@/db/client";
-import { loadShopClock } from "@/db/queries/capacity";
+import { loadShopClock } from "@/db/capacity/reads";
 import { defaultRange } from "@/lib/capacity/summary";
 import { formatLocalDate, localDateOf } from "@/lib/process/time-zone";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Capacity" };
 

@@ -3,7 +3,7 @@ import { OPENING_FETCH_SCRIPT } from "@/components/floor/opening-week";
 import { QueryProvider } from "@/components/floor/query-provider";
 import { PageHeader } from "@/components/ui/page-header";
 import { can } from "@/lib/auth/permissions";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Floor" };
 

@@ -1,5 +1,5 @@
 import { PageHeader } from "@/components/ui/page-header";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 import { MailViewer } from "./mail-viewer";
 
 export const metadata = { title: "Mail" };

@@ -1,12 +1,12 @@
 import { connection } from "next/server";
 import { getDb } from "@/db/client";
-import { listOrderOptions } from "@/db/queries/orders";
-import { listMaterialOptions } from "@/db/queries/parts";
+import { listOrderOptions } from "@/db/orders/reads";
+import { listMaterialOptions } from "@/db/parts/reads";
 import { QueryProvider } from "@/components/floor/query-provider";
 import { PartsWorkspace } from "@/components/parts/parts-workspace";
 import { PageHeader } from "@/components/ui/page-header";
 import { can } from "@/lib/auth/permissions";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Orders & parts" };
 

@@ -2,7 +2,7 @@ import { PageHeader } from "@/components/ui/page-header";
 import { SettingsForms } from "@/components/auth/settings-forms";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { MAIL_KINDS, MAIL_KIND_LABELS, PASSWORD_MIN } from "@/lib/auth/schemas";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "My settings" };
 

@@ -1,9 +1,9 @@
 import Link from "next/link";
 import { connection } from "next/server";
 import { getDb } from "@/db/client";
-import { listUsers } from "@/db/queries/users";
+import { listUsers } from "@/db/users/reads";
 import { PageHeader } from "@/components/ui/page-header";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Set-up" };
 

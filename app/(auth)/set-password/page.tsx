@@ -2,7 +2,7 @@ import Link from "next/link";
 import { connection } from "next/server";
 import { getDb } from "@/db/client";
 import { SetPasswordForm } from "@/components/auth/set-password-form";
-import { inspectToken } from "@/lib/auth/accounts";
+import { inspectToken } from "@/db/auth/accounts";
 import { PASSWORD_MIN } from "@/lib/auth/schemas";
 
 export const metadata = { title: "Choose a password" };

@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { insertBuild } from "@/db/queries/builds";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { insertBuild } from "@/db/builds/commands";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { createBuildSchema } from "@/lib/builds/schemas";
 
 // POST /api/builds – group planned units of one material into a draft build (technician, admin)

@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { listCalibrationMaterials } from "@/db/queries/calibration";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { listCalibrationMaterials } from "@/db/calibration/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/calibration – materials with their current shrinkage and how many inspections back it (every role)
 export async function GET() {

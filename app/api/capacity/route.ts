@@ -1,10 +1,10 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { loadCapacity, loadShopClock } from "@/db/queries/capacity";
-import { requireUser } from "@/lib/auth/session";
+import { loadCapacity, loadShopClock } from "@/db/capacity/reads";
+import { requireUser } from "@/app/_server/session";
 import { capacityQuerySchema } from "@/lib/capacity/schemas";
 import { defaultRange } from "@/lib/capacity/summary";
-import { toErrorResponse } from "@/lib/http/errors";
+import { toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/capacity?from=YYYY-MM-DD&to=YYYY-MM-DD – utilization, queue, work in progress, late orders, throughput (manager, admin)
 export async function GET(req: Request) {

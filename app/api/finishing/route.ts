@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { listFinishingQueue } from "@/db/queries/finishing";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { listFinishingQueue } from "@/db/finishing/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/finishing – units arriving from furnace runs, ready, in finishing, held, lately done (every role)
 export async function GET() {

@@ -1,12 +1,12 @@
 import { getDb } from "@/db/client";
-import { floorChangeStamp, floorWindowBody } from "@/db/queries/floor";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { floorChangeStamp, floorWindowBody } from "@/db/floor/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 import { floorWindowSchema } from "@/lib/floor/schemas";
 import { searchParams } from "@/app/api/builds/_helpers";
 
 // GET /api/floor?from&to – lanes (printers, wash stations, furnaces), bookings and maintenance in the visible window (every role)
-// The web server answers the plain signed-in case itself (lib/floor/window-direct.ts) from the
+// The web server answers the plain signed-in case itself (app/_server/floor-window-direct.ts) from the
 // same cache; this handler is the whole rule, and answers everything else.
 export async function GET(req: Request) {
   try {

@@ -1,11 +1,12 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { listLaneBookings, withBatchTransaction } from "@/db/queries/batches";
-import { createFurnaceRun } from "@/db/queries/furnace-runs";
-import { requireUser } from "@/lib/auth/session";
+import { listLaneBookings } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { createFurnaceRun } from "@/db/furnace-runs/commands";
+import { requireUser } from "@/app/_server/session";
 import { createFurnaceRunSchema } from "@/lib/batches/schemas";
 import { windowSchema } from "@/lib/batches/window";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/furnace-runs?from&to – booked furnace runs touching a window, for the furnace lanes (every role)
 export async function GET(req: Request) {

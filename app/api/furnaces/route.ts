@@ -1,5 +1,6 @@
-import { insertFurnace, listFurnaces } from "@/db/queries/equipment";
-import { collectionHandlers } from "@/lib/http/resource";
+import { insertFurnace } from "@/db/equipment/commands";
+import { listFurnaces } from "@/db/equipment/reads";
+import { collectionHandlers } from "@/app/_server/resource";
 import { furnaceSchema } from "@/lib/setup/schemas";
 
 // GET /api/furnaces – furnaces with the sinter profiles each runs (every role)

@@ -1,11 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { currentMigration } from "@/db/migrate";
-import { countLiveWorkers, findNewestHeartbeat, pingDatabase } from "@/db/queries/health";
-import { findLastSweep, listQueueStats } from "@/db/queries/jobs";
-import { summarizeOutbox } from "@/db/queries/outbox";
-import { checkSmtp } from "@/lib/mail/transport";
-import { checkBucket } from "@/lib/storage/s3";
+import { countLiveWorkers, findNewestHeartbeat, pingDatabase } from "@/db/health/reads";
+import { findLastSweep, listQueueStats } from "@/db/jobs/reads";
+import { summarizeOutbox } from "@/db/outbox/reads";
+import { checkSmtp } from "@/adapters/mail/transport";
+import { checkBucket } from "@/adapters/storage/s3";
 
 export const dynamic = "force-dynamic";
 

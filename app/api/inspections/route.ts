@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { insertInspection, listInspectionsForUnit } from "@/db/queries/inspections";
-import { requireUser } from "@/lib/auth/session";
+import { insertInspection } from "@/db/inspections/commands";
+import { listInspectionsForUnit } from "@/db/inspections/reads";
+import { requireUser } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
 import { createInspectionSchema } from "@/lib/finishing/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/inspections?unit_id= – a unit's inspections, newest first, with attachments (every role)
 export async function GET(req: Request) {

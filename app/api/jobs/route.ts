@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { findLastSweep, listFailedJobs, listQueueStats, listRecentSweeps, pgbossInstalled } from "@/db/queries/jobs";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { findLastSweep, listFailedJobs, listQueueStats, listRecentSweeps, pgbossInstalled } from "@/db/jobs/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 import { listJobsQuerySchema } from "@/lib/jobs/schemas";
 
 export const dynamic = "force-dynamic";

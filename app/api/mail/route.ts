@@ -1,10 +1,10 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { listOutbox, summarizeOutbox } from "@/db/queries/outbox";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { listOutbox, summarizeOutbox } from "@/db/outbox/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 import { AppError } from "@/lib/errors";
-import { fetchCapturedMessages } from "@/lib/mail/capture";
+import { fetchCapturedMessages } from "@/adapters/mail/capture";
 import { listMailQuerySchema } from "@/lib/mail/schemas";
 
 export const dynamic = "force-dynamic";

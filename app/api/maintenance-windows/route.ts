@@ -1,9 +1,10 @@
 import { NextResponse } from "next/server";
 import { z } from "zod";
 import { getDb } from "@/db/client";
-import { insertMaintenanceWindow, listMaintenanceWindows } from "@/db/queries/equipment";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { insertMaintenanceWindow } from "@/db/equipment/commands";
+import { listMaintenanceWindows } from "@/db/equipment/reads";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { maintenanceWindowSchema } from "@/lib/setup/schemas";
 
 const windowQuery = z

@@ -1,5 +1,6 @@
-import { insertMaterial, listMaterials } from "@/db/queries/materials";
-import { collectionHandlers } from "@/lib/http/resource";
+import { insertMaterial } from "@/db/materials/commands";
+import { listMaterials } from "@/db/materials/reads";
+import { collectionHandlers } from "@/app/_server/resource";
 import { materialSchema } from "@/lib/setup/schemas";
 
 // GET /api/materials – materials with their shrinkage, densities and wash constants (every role)

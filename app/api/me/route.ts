@@ -1,10 +1,10 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { updateOwnProfile } from "@/lib/auth/accounts";
+import { updateOwnProfile } from "@/db/auth/accounts";
 import { updateProfileSchema } from "@/lib/auth/schemas";
-import { getCurrentUser, requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
-import { findActiveUserById } from "@/db/queries/users";
+import { getCurrentUser, requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
+import { findActiveUserById } from "@/db/users/reads";
 
 function profile(u: { id: string; email: string; name: string; role: string; unit_pref: string; muted_mail: string[] }) {
   return { id: u.id, email: u.email, name: u.name, role: u.role, unit_pref: u.unit_pref, muted_mail: u.muted_mail };

@@ -1,8 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { insertOrder, listOrders } from "@/db/queries/orders";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { insertOrder } from "@/db/orders/commands";
+import { listOrders } from "@/db/orders/reads";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { createOrderSchema, listOrdersSchema } from "@/lib/parts/schemas";
 import { searchParams } from "@/app/api/builds/_helpers";
 

@@ -1,8 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { insertPart, listParts } from "@/db/queries/parts";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { insertPart } from "@/db/parts/commands";
+import { listParts } from "@/db/parts/reads";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { createPartSchema, listPartsSchema } from "@/lib/parts/schemas";
 import { searchParams } from "@/app/api/builds/_helpers";
 

@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { proposePrinterPlan } from "@/db/queries/builds";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { proposePrinterPlan } from "@/db/builds/commands";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { proposePlanSchema } from "@/lib/floor/schemas";
 
 // POST /api/plans – propose a printer plan for the unscheduled builds; nothing is booked until it is applied (technician, manager, admin)

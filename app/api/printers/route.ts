@@ -1,5 +1,6 @@
-import { insertPrinter, listPrinters } from "@/db/queries/equipment";
-import { collectionHandlers } from "@/lib/http/resource";
+import { insertPrinter } from "@/db/equipment/commands";
+import { listPrinters } from "@/db/equipment/reads";
+import { collectionHandlers } from "@/app/_server/resource";
 import { printerSchema } from "@/lib/setup/schemas";
 
 // GET /api/printers – printers with the materials each takes (every role)

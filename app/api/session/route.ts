@@ -1,12 +1,12 @@
 import { NextResponse } from "next/server";
 import { cookies } from "next/headers";
 import { getDb } from "@/db/client";
-import { recordSignOut, signInWithPassword } from "@/lib/auth/accounts";
+import { recordSignOut, signInWithPassword } from "@/db/auth/accounts";
 import { HOME } from "@/lib/auth/permissions";
 import { signInSchema } from "@/lib/auth/schemas";
-import { SESSION_COOKIE, endSession, getCurrentUser, requestAddress, startSession } from "@/lib/auth/session";
+import { SESSION_COOKIE, endSession, getCurrentUser, requestAddress, startSession } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 /** A 429 says when to come back, in the message and in Retry-After. */
 function withRetryAfter(err: unknown) {

@@ -1,8 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { getShopSettings, updateShopSettings } from "@/db/queries/settings";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { getShopSettings } from "@/db/settings/reads";
+import { updateShopSettings } from "@/db/settings/commands";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { shopSettingsSchema } from "@/lib/setup/schemas";
 
 // GET /api/shop-settings – the shop's name, time zone, staffed hours and planning margins (every role)

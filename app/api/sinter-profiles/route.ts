@@ -1,9 +1,10 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { createProfile, getProfileOrThrow, listMaterialsAndFurnaces, listProfilesForSetup } from "@/db/queries/sinter-profiles";
-import { requireUser } from "@/lib/auth/session";
+import { createProfile } from "@/db/sinter-profiles/commands";
+import { getProfileOrThrow, listMaterialsAndFurnaces, listProfilesForSetup } from "@/db/sinter-profiles/reads";
+import { requireUser } from "@/app/_server/session";
 import { createProfileSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/sinter-profiles – every profile revision with its segments, materials, furnaces and use (every role)
 export async function GET() {

@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { listUnits } from "@/db/queries/units";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { listUnits } from "@/db/units/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 import { listUnitsSchema } from "@/lib/parts/schemas";
 import { searchParams } from "@/app/api/builds/_helpers";
 

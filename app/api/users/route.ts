@@ -1,10 +1,10 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { listUsers } from "@/db/queries/users";
-import { createUserAndInvite } from "@/lib/auth/accounts";
+import { listUsers } from "@/db/users/reads";
+import { createUserAndInvite } from "@/db/auth/accounts";
 import { createUserSchema } from "@/lib/auth/schemas";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/users – every account with its role and state (admin)
 export async function GET() {

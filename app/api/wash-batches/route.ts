@@ -1,11 +1,12 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { listLaneBookings, withBatchTransaction } from "@/db/queries/batches";
-import { createWashBatch } from "@/db/queries/wash-batches";
-import { requireUser } from "@/lib/auth/session";
+import { listLaneBookings } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { createWashBatch } from "@/db/wash-batches/commands";
+import { requireUser } from "@/app/_server/session";
 import { createWashBatchSchema } from "@/lib/batches/schemas";
 import { windowSchema } from "@/lib/batches/window";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/wash-batches?from&to – booked wash batches touching a window, for the wash-station lanes (every role)
 export async function GET(req: Request) {

@@ -1,5 +1,6 @@
-import { insertWashStation, listWashStations } from "@/db/queries/equipment";
-import { collectionHandlers } from "@/lib/http/resource";
+import { insertWashStation } from "@/db/equipment/commands";
+import { listWashStations } from "@/db/equipment/reads";
+import { collectionHandlers } from "@/app/_server/resource";
 import { washStationSchema } from "@/lib/setup/schemas";
 
 // GET /api/wash-stations – wash stations (every role)

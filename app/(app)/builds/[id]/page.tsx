@@ -1,12 +1,12 @@
 import { notFound } from "next/navigation";
 import { connection } from "next/server";
 import { getDb } from "@/db/client";
-import { findBuildById } from "@/db/queries/builds";
+import { findBuildById } from "@/db/builds/reads";
 import { BuildView } from "@/components/builds/build-view";
 import { QueryProvider } from "@/components/floor/query-provider";
 import { PageHeader } from "@/components/ui/page-header";
 import { can } from "@/lib/auth/permissions";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Build" };
 

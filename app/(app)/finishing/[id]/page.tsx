@@ -3,9 +3,9 @@ import { DustCaution } from "@/components/finishing/dust-caution";
 import { FinishingUnit } from "@/components/finishing/finishing-unit";
 import { PageHeader } from "@/components/ui/page-header";
 import { getDb } from "@/db/client";
-import { loadShopClock } from "@/db/queries/capacity";
+import { loadShopClock } from "@/db/capacity/reads";
 import { can } from "@/lib/auth/permissions";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Finishing a unit" };
 

@@ -2,9 +2,9 @@ import { CalibrationView } from "@/components/calibration/calibration-view";
 import { FinishingTabs } from "@/components/finishing/finishing-tabs";
 import { PageHeader } from "@/components/ui/page-header";
 import { getDb } from "@/db/client";
-import { loadShopClock } from "@/db/queries/capacity";
+import { loadShopClock } from "@/db/capacity/reads";
 import { can } from "@/lib/auth/permissions";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Shrinkage calibration" };
 

@@ -4,8 +4,8 @@ import { PageHeader } from "@/components/ui/page-header";
 import { RunView } from "@/components/furnace/run-view";
 import { Cautions } from "@/components/safety/cautions";
 import { getDb } from "@/db/client";
-import { findRunCode } from "@/db/queries/furnace-runs";
-import { requirePageUser } from "@/lib/auth/session";
+import { findRunCode } from "@/db/furnace-runs/reads";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Furnace run" };
 

@@ -1,13 +1,13 @@
 import { notFound } from "next/navigation";
 import { connection } from "next/server";
 import { getDb } from "@/db/client";
-import { listOrderOptions } from "@/db/queries/orders";
-import { getPartOrThrow, listMaterialOptions } from "@/db/queries/parts";
+import { listOrderOptions } from "@/db/orders/reads";
+import { getPartOrThrow, listMaterialOptions } from "@/db/parts/reads";
 import { QueryProvider } from "@/components/floor/query-provider";
 import { PartDetailView } from "@/components/parts/part-detail";
 import { PageHeader } from "@/components/ui/page-header";
 import { can } from "@/lib/auth/permissions";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 import { getEnv } from "@/lib/env";
 
 export const metadata = { title: "Part" };

@@ -1,17 +1,18 @@
 import { getDb } from "@/db/client";
-import { listFurnaces, listMaintenanceWindows, listPrinters, listWashStations } from "@/db/queries/equipment";
-import { listMaterials, listProfileChoices } from "@/db/queries/materials";
-import { getShopSettings } from "@/db/queries/settings";
+import { listFurnaces, listMaintenanceWindows, listPrinters, listWashStations } from "@/db/equipment/reads";
+import { listMaterials, listProfileChoices } from "@/db/materials/reads";
+import { getShopSettings } from "@/db/settings/reads";
 import { PageHeader } from "@/components/ui/page-header";
 import { EquipmentTables } from "@/components/setup/equipment-tables";
 import { MaintenanceWindows } from "@/components/setup/maintenance-windows";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Equipment" };
 
 export default async function EquipmentPage() {
   await requirePageUser("setup:write");
   const db = getDb();
+  // eslint-disable-next-line react-hooks/purity -- a server component renders once per request
   const now = Date.now();
   const [printers, washStations, furnaces, materials, profiles, windows, settings] = await Promise.all([
     listPrinters(db), listWashStations(db), listFurnaces(db), listMaterials(db), listProfileChoices(db),

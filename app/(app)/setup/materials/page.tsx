@@ -1,8 +1,8 @@
 import { getDb } from "@/db/client";
-import { listMaterials, listProfileChoices } from "@/db/queries/materials";
+import { listMaterials, listProfileChoices } from "@/db/materials/reads";
 import { PageHeader } from "@/components/ui/page-header";
 import { MaterialTable } from "@/components/setup/material-table";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Materials" };
 

@@ -3,7 +3,7 @@ import { PageHeader } from "@/components/ui/page-header";
 import { ProfileEditor } from "@/components/furnace/profile-editor";
 import { Cautions } from "@/components/safety/cautions";
 import { can } from "@/lib/auth/permissions";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Sinter profiles" };
 

@@ -1,8 +1,8 @@
 import { getDb } from "@/db/client";
-import { getShopSettings } from "@/db/queries/settings";
+import { getShopSettings } from "@/db/settings/reads";
 import { PageHeader } from "@/components/ui/page-header";
 import { ShopSettingsForm } from "@/components/setup/shop-settings-form";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Shop settings" };
 

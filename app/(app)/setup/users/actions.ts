@@ -2,12 +2,12 @@
 
 import { revalidatePath } from "next/cache";
 import { getDb } from "@/db/client";
-import { findUserById } from "@/db/queries/users";
-import { createUserAndInvite, sendAccountLink, updateUserByAdmin } from "@/lib/auth/accounts";
+import { findUserById } from "@/db/users/reads";
+import { createUserAndInvite, sendAccountLink, updateUserByAdmin } from "@/db/auth/accounts";
 import { actionFailure, actionSuccess, type ActionState } from "@/lib/auth/action-state";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { createUserSchema, roleSchema, updateUserSchema } from "@/lib/auth/schemas";
-import { requireUser } from "@/lib/auth/session";
+import { requireUser } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
 import { z } from "zod";
 

@@ -1,7 +1,7 @@
 import Link from "next/link";
 import { PageHeader } from "@/components/ui/page-header";
 import { UsersAdmin } from "@/components/users/users-admin";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 import { changeRole, createUser, sendLink, setActive } from "./actions";
 
 export const metadata = { title: "Users" };

@@ -1,9 +1,9 @@
 import { UnitTrace } from "@/components/units/unit-trace";
 import { PageHeader } from "@/components/ui/page-header";
 import { getDb } from "@/db/client";
-import { loadShopClock } from "@/db/queries/capacity";
+import { loadShopClock } from "@/db/capacity/reads";
 import { can } from "@/lib/auth/permissions";
-import { requirePageUser } from "@/lib/auth/session";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Unit" };
 

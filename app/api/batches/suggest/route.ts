@@ -1,9 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { proposeBatches } from "@/db/queries/batches";
-import { requireUser } from "@/lib/auth/session";
+import { proposeBatches } from "@/db/batches/commands";
+import { requireUser } from "@/app/_server/session";
 import { suggestSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/batches/suggest – propose wash batches and furnace runs for the waiting units; books nothing (technician, furnace operator, admin)
 export async function POST(req: Request) {

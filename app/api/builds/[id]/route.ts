@@ -1,8 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { getBuildDetail, updateBuild } from "@/db/queries/builds";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { getBuildDetail } from "@/db/builds/reads";
+import { updateBuild } from "@/db/builds/commands";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { updateBuildSchema } from "@/lib/builds/schemas";
 import { readId, type IdContext } from "../_helpers";
 

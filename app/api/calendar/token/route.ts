@@ -1,9 +1,10 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { calendarTokenStatus, listResources, revokeCalendarToken, rotateCalendarToken } from "@/db/queries/capacity";
-import { requireUser } from "@/lib/auth/session";
+import { calendarTokenStatus, listResources } from "@/db/capacity/reads";
+import { revokeCalendarToken, rotateCalendarToken } from "@/db/capacity/commands";
+import { requireUser } from "@/app/_server/session";
 import { getEnv } from "@/lib/env";
-import { toErrorResponse } from "@/lib/http/errors";
+import { toErrorResponse } from "@/app/_server/errors";
 
 const feedUrls = (token: string, resources: Array<{ id: string; kind: string; name: string }>) =>
   resources.map((r) => ({ ...r, url: `${getEnv().APP_URL}/api/calendar/feeds/${token}/${r.id}.ics` }));

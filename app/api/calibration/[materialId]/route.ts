@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { loadMaterialCalibration } from "@/db/queries/calibration";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { loadMaterialCalibration } from "@/db/calibration/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/calibration/[materialId] – realized shrinkage points, mean, spread, count, suggested factors and history (every role)
 export async function GET(_req: Request, { params }: { params: Promise<{ materialId: string }> }) {

@@ -1,9 +1,9 @@
 import { getDb } from "@/db/client";
-import { loadCapacity } from "@/db/queries/capacity";
-import { requireUser } from "@/lib/auth/session";
+import { loadCapacity } from "@/db/capacity/reads";
+import { requireUser } from "@/app/_server/session";
 import { capacityCsv } from "@/lib/capacity/csv";
 import { capacityExportSchema } from "@/lib/capacity/schemas";
-import { toErrorResponse } from "@/lib/http/errors";
+import { toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/capacity/export?from&to&table=utilization-day|utilization-week|wip|queue|orders|throughput – one table as CSV (manager, admin)
 export async function GET(req: Request) {

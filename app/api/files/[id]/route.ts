@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { getFileOrThrow } from "@/db/queries/files";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { getFileOrThrow } from "@/db/files/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 import { readId, type IdContext } from "@/app/api/builds/_helpers";
 
 // GET /api/files/[id] – a stored file's status (queued, analysing, done, failed) and analysis (every role)

@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { applyFinishingAction, getFinishingCard } from "@/db/queries/finishing";
-import { listInspectionsForUnit } from "@/db/queries/inspections";
-import { requireUser } from "@/lib/auth/session";
+import { applyFinishingAction } from "@/db/finishing/commands";
+import { getFinishingCard } from "@/db/finishing/reads";
+import { listInspectionsForUnit } from "@/db/inspections/reads";
+import { requireUser } from "@/app/_server/session";
 import { finishingActionSchema } from "@/lib/finishing/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 type Ctx = { params: Promise<{ id: string }> };
 

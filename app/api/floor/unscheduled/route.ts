@@ -1,9 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { verdictsForBuilds } from "@/db/queries/builds";
-import { listUnscheduledBuilds } from "@/db/queries/floor";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { verdictsForBuilds } from "@/db/builds/reads";
+import { listUnscheduledBuilds } from "@/db/floor/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 import type { UnscheduledBuild } from "@/lib/floor/schemas";
 
 // GET /api/floor/unscheduled – draft builds with every printer's verdict and print time (every role)

@@ -1,9 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { loadShopContext, pathId } from "@/db/queries/batches";
-import { getRunDetail } from "@/db/queries/furnace-runs";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { loadShopContext, pathId } from "@/db/batches/reads";
+import { getRunDetail } from "@/db/furnace-runs/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/furnace-runs/[id] – a run with its profile curve, tray layout, checklist and unit outcomes (every role)
 export async function GET(_req: Request, { params }: { params: Promise<{ id: string }> }) {

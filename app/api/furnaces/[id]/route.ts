@@ -1,5 +1,5 @@
-import { updateFurnace } from "@/db/queries/equipment";
-import { versionedPatchHandler } from "@/lib/http/resource";
+import { updateFurnace } from "@/db/equipment/commands";
+import { versionedPatchHandler } from "@/app/_server/resource";
 import { updateFurnaceSchema } from "@/lib/setup/schemas";
 
 // PATCH /api/furnaces/[id] – change a furnace (admin)

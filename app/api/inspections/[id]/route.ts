@@ -1,10 +1,10 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { setCalibrationExclusion } from "@/db/queries/inspections";
-import { requireUser } from "@/lib/auth/session";
+import { setCalibrationExclusion } from "@/db/inspections/commands";
+import { requireUser } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
 import { excludeInspectionSchema } from "@/lib/finishing/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // PATCH /api/inspections/[id] – leave a measurement out of shrinkage calibration, or take it back in (admin)
 export async function PATCH(req: Request, { params }: { params: Promise<{ id: string }> }) {

@@ -1,10 +1,10 @@
 import { NextResponse } from "next/server";
 import { z } from "zod";
 import { getDb } from "@/db/client";
-import { deleteMaintenanceWindow } from "@/db/queries/equipment";
-import { requireUser } from "@/lib/auth/session";
+import { deleteMaintenanceWindow } from "@/db/equipment/commands";
+import { requireUser } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
-import { toErrorResponse } from "@/lib/http/errors";
+import { toErrorResponse } from "@/app/_server/errors";
 
 // DELETE /api/maintenance-windows/[id] – remove a maintenance window (admin)
 export async function DELETE(_req: Request, ctx: { params: Promise<{ id: string }> }) {

@@ -1,9 +1,9 @@
 import { NextResponse } from "next/server";
 import { z } from "zod";
 import { getDb } from "@/db/client";
-import { updateMaterial } from "@/db/queries/materials";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { updateMaterial } from "@/db/materials/commands";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { updateMaterialSchema } from "@/lib/setup/schemas";
 
 // PATCH /api/materials/[id] – change a material; builds already printed keep their factors (admin)

@@ -1,10 +1,10 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { changeOwnPassword } from "@/lib/auth/accounts";
+import { changeOwnPassword } from "@/db/auth/accounts";
 import { changePasswordSchema } from "@/lib/auth/schemas";
-import { requestAddress, requireUser, startSession } from "@/lib/auth/session";
+import { requestAddress, requireUser, startSession } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/me/password – change my password; ends my other sessions (any signed-in role)
 export async function POST(req: Request) {

@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { revokeOtherSessions } from "@/lib/auth/accounts";
-import { requireUser, startSession } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { revokeOtherSessions } from "@/db/auth/accounts";
+import { requireUser, startSession } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 
 // DELETE /api/me/sessions – sign out of every other browser and device (any signed-in role)
 export async function DELETE() {

@@ -1,9 +1,10 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { getOrderOrThrow, updateOrder } from "@/db/queries/orders";
+import { getOrderOrThrow } from "@/db/orders/reads";
+import { updateOrder } from "@/db/orders/commands";
 import { can } from "@/lib/auth/permissions";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { updateOrderSchema } from "@/lib/parts/schemas";
 import { readId, type IdContext } from "@/app/api/builds/_helpers";
 

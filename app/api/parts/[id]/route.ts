@@ -1,8 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { getPartDetail, updatePart } from "@/db/queries/parts";
-import { requireUser } from "@/lib/auth/session";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { getPartDetail } from "@/db/parts/reads";
+import { updatePart } from "@/db/parts/commands";
+import { requireUser } from "@/app/_server/session";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { updatePartSchema } from "@/lib/parts/schemas";
 import { readId, type IdContext } from "@/app/api/builds/_helpers";
 

@@ -1,10 +1,10 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { importPartRows } from "@/db/queries/parts";
+import { importPartRows } from "@/db/parts/commands";
 import { can } from "@/lib/auth/permissions";
-import { requireUser } from "@/lib/auth/session";
+import { requireUser } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { importSchema } from "@/lib/parts/schemas";
 
 // POST /api/parts/import – check (dry_run) or import CSV rows of orders and parts: all or nothing, or the valid rows only (technician, admin)

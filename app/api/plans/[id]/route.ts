@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { applyPlanProposal, getPlanProposal, refusePlanProposal } from "@/db/queries/builds";
-import { requireUser } from "@/lib/auth/session";
+import { applyPlanProposal, refusePlanProposal } from "@/db/builds/commands";
+import { getPlanProposal } from "@/db/builds/reads";
+import { requireUser } from "@/app/_server/session";
 import { floorWindowCache } from "@/lib/floor/window-cache";
 import { AppError } from "@/lib/errors";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { decidePlanSchema } from "@/lib/floor/schemas";
 import { readId, type IdContext } from "@/app/api/builds/_helpers";
 

@@ -1,5 +1,5 @@
-import { updatePrinter } from "@/db/queries/equipment";
-import { versionedPatchHandler } from "@/lib/http/resource";
+import { updatePrinter } from "@/db/equipment/commands";
+import { versionedPatchHandler } from "@/app/_server/resource";
 import { updatePrinterSchema } from "@/lib/setup/schemas";
 
 // PATCH /api/printers/[id] – change a printer (admin)

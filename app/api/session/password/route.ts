@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { setPasswordWithToken } from "@/lib/auth/accounts";
+import { setPasswordWithToken } from "@/db/auth/accounts";
 import { setPasswordSchema } from "@/lib/auth/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/session/password – set a password with an e-mailed link's token (public; the token is the key)
 export async function POST(req: Request) {

@@ -1,11 +1,11 @@
 import { NextResponse, after } from "next/server";
 import { getDb } from "@/db/client";
-import { FORGOT_ANSWER, requestPasswordReset } from "@/lib/auth/accounts";
+import { FORGOT_ANSWER, requestPasswordReset } from "@/db/auth/accounts";
 import { forgotPasswordSchema } from "@/lib/auth/schemas";
-import { requestAddress } from "@/lib/auth/session";
+import { requestAddress } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
-import { sendOutboxRow } from "@/lib/mail/send";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
+import { sendOutboxRow } from "@/db/notifications/send";
 
 // POST /api/session/reset-requests – e-mail a reset link (public; same answer for any address)
 export async function POST(req: Request) {

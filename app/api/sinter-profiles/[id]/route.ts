@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId } from "@/db/queries/batches";
-import { getProfileOrThrow, updateProfile } from "@/db/queries/sinter-profiles";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { getProfileOrThrow } from "@/db/sinter-profiles/reads";
+import { updateProfile } from "@/db/sinter-profiles/commands";
+import { requireUser } from "@/app/_server/session";
 import { updateProfileSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/sinter-profiles/[id] – one profile revision (every role)
 export async function GET(_req: Request, { params }: { params: Promise<{ id: string }> }) {

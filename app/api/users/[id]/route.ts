@@ -1,12 +1,12 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { listUserEvents } from "@/db/queries/auth";
-import { findUserById } from "@/db/queries/users";
-import { updateUserByAdmin } from "@/lib/auth/accounts";
+import { listUserEvents } from "@/db/auth/reads";
+import { findUserById } from "@/db/users/reads";
+import { updateUserByAdmin } from "@/db/auth/accounts";
 import { updateUserSchema } from "@/lib/auth/schemas";
-import { requireUser } from "@/lib/auth/session";
+import { requireUser } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 type Params = { params: Promise<{ id: string }> };
 

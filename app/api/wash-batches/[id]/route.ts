@@ -1,9 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { loadShopContext, pathId } from "@/db/queries/batches";
-import { getWashBatchDetail } from "@/db/queries/wash-batches";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { loadShopContext, pathId } from "@/db/batches/reads";
+import { getWashBatchDetail } from "@/db/wash-batches/reads";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 
 // GET /api/wash-batches/[id] – a wash batch with its units, weighings and mass-loss checks (every role)
 export async function GET(_req: Request, { params }: { params: Promise<{ id: string }> }) {

@@ -1,5 +1,5 @@
-import { updateWashStation } from "@/db/queries/equipment";
-import { versionedPatchHandler } from "@/lib/http/resource";
+import { updateWashStation } from "@/db/equipment/commands";
+import { versionedPatchHandler } from "@/app/_server/resource";
 import { updateWashStationSchema } from "@/lib/setup/schemas";
 
 // PATCH /api/wash-stations/[id] – change a wash station (admin)

@@ -4,9 +4,9 @@ import { PageHeader } from "@/components/ui/page-header";
 import { WashView } from "@/components/batches/wash-view";
 import { Cautions } from "@/components/safety/cautions";
 import { getDb } from "@/db/client";
-import { findWashCode } from "@/db/queries/wash-batches";
-import { findShopTimeZone } from "@/db/queries/batches";
-import { requirePageUser } from "@/lib/auth/session";
+import { findWashCode } from "@/db/wash-batches/reads";
+import { findShopTimeZone } from "@/db/batches/reads";
+import { requirePageUser } from "@/app/_server/session";
 
 export const metadata = { title: "Wash batch" };
 

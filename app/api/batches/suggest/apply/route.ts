@@ -1,12 +1,12 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { withBatchTransaction } from "@/db/queries/batches";
-import { applyProposal } from "@/db/queries/furnace-runs";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { applyProposal } from "@/db/furnace-runs/commands";
 import { can } from "@/lib/auth/permissions";
-import { requireUser } from "@/lib/auth/session";
+import { requireUser } from "@/app/_server/session";
 import { applyProposalSchema } from "@/lib/batches/schemas";
 import { AppError } from "@/lib/errors";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/batches/suggest/apply – book an accepted proposal as it was shown; 409 when stale (technician, furnace operator, admin; furnace runs need furnace:write)
 export async function POST(req: Request) {

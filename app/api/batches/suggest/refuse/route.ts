@@ -1,9 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { refuseProposal } from "@/db/queries/furnace-runs";
-import { requireUser } from "@/lib/auth/session";
+import { refuseProposal } from "@/db/furnace-runs/commands";
+import { requireUser } from "@/app/_server/session";
 import { refuseProposalSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/batches/suggest/refuse – set a proposal aside without booking it (technician, furnace operator, admin)
 export async function POST(req: Request) {

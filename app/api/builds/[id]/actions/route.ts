@@ -1,9 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { applyBuildAction } from "@/db/queries/builds";
-import { requireUser } from "@/lib/auth/session";
+import { applyBuildAction } from "@/db/builds/commands";
+import { requireUser } from "@/app/_server/session";
 import { floorWindowCache } from "@/lib/floor/window-cache";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { buildActionSchema } from "@/lib/builds/schemas";
 import { readId, type IdContext } from "../../_helpers";
 

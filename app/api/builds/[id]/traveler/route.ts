@@ -1,8 +1,8 @@
 import { getDb } from "@/db/client";
-import { getBuildDetail } from "@/db/queries/builds";
-import { requireUser } from "@/lib/auth/session";
+import { getBuildDetail } from "@/db/builds/reads";
+import { requireUser } from "@/app/_server/session";
 import { getEnv } from "@/lib/env";
-import { toErrorResponse } from "@/lib/http/errors";
+import { toErrorResponse } from "@/app/_server/errors";
 import { travelerPdf } from "@/lib/builds/traveler";
 import type { PlateLayout } from "@/lib/builds/plate";
 import { readId, type IdContext } from "../../_helpers";

@@ -1,9 +1,9 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { applyCalibration } from "@/db/queries/calibration";
-import { requireUser } from "@/lib/auth/session";
+import { applyCalibration } from "@/db/calibration/commands";
+import { requireUser } from "@/app/_server/session";
 import { applyCalibrationSchema } from "@/lib/finishing/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/calibration/[materialId]/apply – set the material's shrinkage to the measured means shown, at the material's version (admin)
 export async function POST(req: Request, { params }: { params: Promise<{ materialId: string }> }) {

@@ -1,10 +1,10 @@
 import { GetObjectCommand } from "@aws-sdk/client-s3";
 import { getDb } from "@/db/client";
-import { getFileOrThrow } from "@/db/queries/files";
-import { requireUser } from "@/lib/auth/session";
+import { getFileOrThrow } from "@/db/files/reads";
+import { requireUser } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
-import { toErrorResponse } from "@/lib/http/errors";
-import { getS3 } from "@/lib/storage/s3";
+import { toErrorResponse } from "@/app/_server/errors";
+import { getS3 } from "@/adapters/storage/s3";
 import { readId, type IdContext } from "@/app/api/builds/_helpers";
 
 // GET /api/files/[id]/content – the stored bytes (the 3-D preview reads the STL through this) (every role)

@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId, withBatchTransaction } from "@/db/queries/batches";
-import { cancelRun } from "@/db/queries/furnace-runs";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { cancelRun } from "@/db/furnace-runs/commands";
+import { requireUser } from "@/app/_server/session";
 import { cancelSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/furnace-runs/[id]/cancel – cancel a draft or scheduled run; its units wait again (furnace operator, admin)
 export async function POST(req: Request, { params }: { params: Promise<{ id: string }> }) {

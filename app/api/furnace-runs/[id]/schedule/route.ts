@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId, withBatchTransaction } from "@/db/queries/batches";
-import { scheduleRun } from "@/db/queries/furnace-runs";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { scheduleRun } from "@/db/furnace-runs/commands";
+import { requireUser } from "@/app/_server/session";
 import { scheduleFurnaceRunSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // PATCH /api/furnace-runs/[id]/schedule – book or move a run on a furnace lane; its length is the profile's cycle, a resize is refused (furnace operator, admin)
 export async function PATCH(req: Request, { params }: { params: Promise<{ id: string }> }) {

@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId, withBatchTransaction } from "@/db/queries/batches";
-import { startRun } from "@/db/queries/furnace-runs";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { startRun } from "@/db/furnace-runs/commands";
+import { requireUser } from "@/app/_server/session";
 import { startRunSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/furnace-runs/[id]/start – loading checklist ticked, the run starts now (inside staffed hours); units become sintering (furnace operator, admin)
 export async function POST(req: Request, { params }: { params: Promise<{ id: string }> }) {

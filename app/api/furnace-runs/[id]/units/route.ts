@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId, withBatchTransaction } from "@/db/queries/batches";
-import { addUnitToRun } from "@/db/queries/furnace-runs";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { addUnitToRun } from "@/db/furnace-runs/commands";
+import { requireUser } from "@/app/_server/session";
 import { addUnitSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/furnace-runs/[id]/units – put a brown unit on the run's trays; 422 with the rule it breaks (profile, height, load, room), 409 when stale (furnace operator, admin)
 export async function POST(req: Request, { params }: { params: Promise<{ id: string }> }) {

@@ -2,14 +2,15 @@ import { createHash, randomUUID } from "node:crypto";
 import { NextResponse } from "next/server";
 import { DeleteObjectCommand, PutObjectCommand } from "@aws-sdk/client-s3";
 import { getDb } from "@/db/client";
-import { findInspection, insertInspectionFile } from "@/db/queries/inspections";
-import { requireUser } from "@/lib/auth/session";
+import { findInspection } from "@/db/inspections/reads";
+import { insertInspectionFile } from "@/db/inspections/commands";
+import { requireUser } from "@/app/_server/session";
 import { getEnv } from "@/lib/env";
 import { AppError } from "@/lib/errors";
 import { checkAttachment, safeFilename } from "@/lib/finishing/attachments";
 import { ATTACHMENT_MAX_BYTES } from "@/lib/finishing/schemas";
-import { toErrorResponse } from "@/lib/http/errors";
-import { getS3 } from "@/lib/storage/s3";
+import { toErrorResponse } from "@/app/_server/errors";
+import { getS3 } from "@/adapters/storage/s3";
 
 // POST /api/inspections/[id]/files – attach a photo (JPEG, PNG, WebP) or a PDF report, multipart field "file" (machinist, admin)
 export async function POST(req: Request, { params }: { params: Promise<{ id: string }> }) {

@@ -3,15 +3,15 @@ import { DeleteObjectCommand, PutObjectCommand } from "@aws-sdk/client-s3";
 import { NextResponse } from "next/server";
 import { sql } from "kysely";
 import { getDb } from "@/db/client";
-import { getPartOrThrow } from "@/db/queries/parts";
-import { requireUser } from "@/lib/auth/session";
+import { getPartOrThrow } from "@/db/parts/reads";
+import { requireUser } from "@/app/_server/session";
 import { getEnv } from "@/lib/env";
 import { AppError } from "@/lib/errors";
 import { parseStl, StlError } from "@/lib/geometry/stl";
-import { toErrorResponse } from "@/lib/http/errors";
-import { getSender, inTrx } from "@/lib/jobs/boss";
+import { toErrorResponse } from "@/app/_server/errors";
+import { getSender, inTrx } from "@/db/jobs/boss";
 import { QUEUES } from "@/lib/jobs/queues";
-import { getS3 } from "@/lib/storage/s3";
+import { getS3 } from "@/adapters/storage/s3";
 import { readId, type IdContext } from "@/app/api/builds/_helpers";
 
 // A storage hiccup is retried; a file that cannot be parsed never reaches the queue.

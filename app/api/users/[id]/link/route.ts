@@ -1,8 +1,8 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { sendAccountLink } from "@/lib/auth/accounts";
-import { requireUser } from "@/lib/auth/session";
-import { toErrorResponse } from "@/lib/http/errors";
+import { sendAccountLink } from "@/db/auth/accounts";
+import { requireUser } from "@/app/_server/session";
+import { toErrorResponse } from "@/app/_server/errors";
 
 type Params = { params: Promise<{ id: string }> };
 

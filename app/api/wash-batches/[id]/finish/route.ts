@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId, withBatchTransaction } from "@/db/queries/batches";
-import { finishWash } from "@/db/queries/wash-batches";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { finishWash } from "@/db/wash-batches/commands";
+import { requireUser } from "@/app/_server/session";
 import { finishWashSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/wash-batches/[id]/finish – the basket is out: every unit weighed, units short of the mass-loss minimum are held with the reason (technician, furnace operator, admin)
 export async function POST(req: Request, { params }: { params: Promise<{ id: string }> }) {

@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId, withBatchTransaction } from "@/db/queries/batches";
-import { recordWashMasses } from "@/db/queries/wash-batches";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { recordWashMasses } from "@/db/wash-batches/commands";
+import { requireUser } from "@/app/_server/session";
 import { recordMassesSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // PUT /api/wash-batches/[id]/masses – record green and brown weighings; answers with each unit's mass loss against its material's minimum (technician, furnace operator, admin)
 export async function PUT(req: Request, { params }: { params: Promise<{ id: string }> }) {

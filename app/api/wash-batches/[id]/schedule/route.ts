@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId, withBatchTransaction } from "@/db/queries/batches";
-import { scheduleWash } from "@/db/queries/wash-batches";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { scheduleWash } from "@/db/wash-batches/commands";
+import { requireUser } from "@/app/_server/session";
 import { scheduleWashBatchSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // PATCH /api/wash-batches/[id]/schedule – book or move a wash batch on a station lane; 409 on a stale version or overlap (technician, furnace operator, admin)
 export async function PATCH(req: Request, { params }: { params: Promise<{ id: string }> }) {

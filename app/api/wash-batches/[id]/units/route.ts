@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId, withBatchTransaction } from "@/db/queries/batches";
-import { addUnitToWash } from "@/db/queries/wash-batches";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { addUnitToWash } from "@/db/wash-batches/commands";
+import { requireUser } from "@/app/_server/session";
 import { addUnitSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // POST /api/wash-batches/[id]/units – put a green unit into a wash batch; 422 with the rule it breaks, 409 when stale (technician, furnace operator, admin)
 export async function POST(req: Request, { params }: { params: Promise<{ id: string }> }) {

@@ -1,10 +1,10 @@
 import { getDb } from "@/db/client";
-import { findCalendarUser, findResource, listBookings, listMaintenance, loadShopClock } from "@/db/queries/capacity";
+import { findCalendarUser, findResource, listBookings, listMaintenance, loadShopClock } from "@/db/capacity/reads";
 import { can } from "@/lib/auth/permissions";
 import { resourceFeed } from "@/lib/capacity/ical";
 import { getEnv } from "@/lib/env";
 import { AppError } from "@/lib/errors";
-import { toErrorResponse } from "@/lib/http/errors";
+import { toErrorResponse } from "@/app/_server/errors";
 
 const DAY = 86_400_000;
 

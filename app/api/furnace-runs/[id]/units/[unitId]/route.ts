@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId, withBatchTransaction } from "@/db/queries/batches";
-import { removeUnitFromRun } from "@/db/queries/furnace-runs";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { removeUnitFromRun } from "@/db/furnace-runs/commands";
+import { requireUser } from "@/app/_server/session";
 import { removeUnitSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // DELETE /api/furnace-runs/[id]/units/[unitId] – take a unit off a draft or scheduled run; body or ?version= (furnace operator, admin)
 export async function DELETE(req: Request, { params }: { params: Promise<{ id: string; unitId: string }> }) {

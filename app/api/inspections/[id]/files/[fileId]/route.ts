@@ -1,10 +1,10 @@
 import { GetObjectCommand } from "@aws-sdk/client-s3";
 import { getDb } from "@/db/client";
-import { findInspectionFile } from "@/db/queries/inspections";
-import { requireUser } from "@/lib/auth/session";
+import { findInspectionFile } from "@/db/inspections/reads";
+import { requireUser } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
-import { toErrorResponse } from "@/lib/http/errors";
-import { getS3 } from "@/lib/storage/s3";
+import { toErrorResponse } from "@/app/_server/errors";
+import { getS3 } from "@/adapters/storage/s3";
 
 // GET /api/inspections/[id]/files/[fileId] – an inspection's attachment from object storage (every role)
 export async function GET(_req: Request, { params }: { params: Promise<{ id: string; fileId: string }> }) {

@@ -1,10 +1,11 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { pathId, withBatchTransaction } from "@/db/queries/batches";
-import { removeUnitFromWash } from "@/db/queries/wash-batches";
-import { requireUser } from "@/lib/auth/session";
+import { pathId } from "@/db/batches/reads";
+import { withBatchTransaction } from "@/db/batches/commands";
+import { removeUnitFromWash } from "@/db/wash-batches/commands";
+import { requireUser } from "@/app/_server/session";
 import { removeUnitSchema } from "@/lib/batches/schemas";
-import { readJson, toErrorResponse } from "@/lib/http/errors";
+import { readJson, toErrorResponse } from "@/app/_server/errors";
 
 // DELETE /api/wash-batches/[id]/units/[unitId] – take a unit out of a draft or scheduled wash batch; body or ?version= (technician, furnace operator, admin)
 export async function DELETE(req: Request, { params }: { params: Promise<{ id: string; unitId: string }> }) {

@@ -1,0 +1,130 @@
+import { sql } from "kysely";
+import type { Database } from "@/db/client";
+import type { Json } from "@/db/schema";
+import type { TokenKind } from "@/lib/auth/tokens";
+import { type Executor, listRecentFailures } from "./reads";
+
+// Sign-in attempts ----------------------------------------------------------------------------
+
+export async function insertSignInAttempt(db: Executor, row: { email: string; ip: string; succeeded: boolean }) {
+  await db.insertInto("sign_in_attempts").values({ email: row.email.trim().toLowerCase().slice(0, 254), ip: row.ip, succeeded: row.succeeded }).execute();
+}
+
+/** A provisional failure, written before the password is checked so that parallel guesses see each other. */
+export async function insertProvisionalFailure(db: Executor, email: string, ip: string) {
+  return db
+    .insertInto("sign_in_attempts")
+    .values({ email: email.trim().toLowerCase().slice(0, 254), ip, succeeded: false })
+    .returning(["id"])
+    .executeTakeFirstOrThrow();
+}
+
+export async function markAttemptSucceeded(db: Executor, id: number | string) {
+  await db.updateTable("sign_in_attempts").set({ succeeded: true }).where(sql<boolean>`id = ${Number(id)}`).execute();
+}
+
+/**
+ * Writes the provisional failure and reads the failures before it under per-account and
+ * per-address advisory locks, so parallel guesses are counted one after another: without
+ * them a guess could commit before an earlier id became visible and count one too few.
+ */
+export async function reserveSignInAttempt(db: Database, email: string, ip: string, since: Date) {
+  return db.transaction().execute(async (trx) => {
+    await sql`select pg_advisory_xact_lock(hashtext(${`sign-in:account:${email.trim().toLowerCase()}`}))`.execute(trx);
+    await sql`select pg_advisory_xact_lock(hashtext(${`sign-in:address:${ip}`}))`.execute(trx);
+    const attempt = await insertProvisionalFailure(trx, email, ip);
+    const failures = await listRecentFailures(trx, email, ip, since, attempt.id);
+    return { attempt, failures };
+  });
+}
+
+/** A throttled attempt was never checked, so it does not count as a failure. */
+export async function deleteAttempt(db: Executor, id: number | string) {
+  await db.deleteFrom("sign_in_attempts").where(sql<boolean>`id = ${Number(id)}`).execute();
+}
+
+// Audit events --------------------------------------------------------------------------------
+
+export type UserEventKind =
+  | "sign_in"
+  | "sign_in_failed"
+  | "sign_out"
+  | "role_change"
+  | "deactivated"
+  | "reactivated"
+  | "invited"
+  | "password_set"
+  | "password_reset_requested"
+  | "password_reset"
+  | "password_changed"
+  | "profile_change"
+  | "sessions_revoked";
+
+export async function insertUserEvent(
+  db: Executor,
+  ev: { user_id: string | null; kind: UserEventKind; actor_id: string | null; from_state?: string | null; to_state?: string | null; reason?: string | null; data?: Record<string, unknown> },
+) {
+  await db
+    .insertInto("events")
+    .values({
+      entity: "user",
+      entity_id: ev.user_id,
+      kind: ev.kind,
+      actor_id: ev.actor_id,
+      from_state: ev.from_state ?? null,
+      to_state: ev.to_state ?? null,
+      reason: ev.reason ?? null,
+      data: ev.data ? (JSON.stringify(ev.data) as unknown as Json) : null,
+    })
+    .execute();
+}
+
+// Set-password tokens -------------------------------------------------------------------------
+
+/**
+ * Issuing a new link makes the older open links of the same kind useless, and withdraws their
+ * e-mails still waiting in the outbox (a relay that was down must not deliver a dead link later).
+ */
+export async function revokeOpenTokens(db: Executor, userId: string, kind: TokenKind) {
+  const revoked = await db
+    .updateTable("auth_tokens")
+    .set({ used_at: sql`now()` })
+    .where("user_id", "=", userId)
+    .where("kind", "=", kind)
+    .where("used_at", "is", null)
+    .returning("id")
+    .execute();
+  if (revoked.length === 0) return;
+  await db
+    .updateTable("notification_outbox")
+    .set({ status: "failed", last_error: "withdrawn: a newer link replaced this one, or the account changed" })
+    .where("kind", "=", kind === "invite" ? "invite" : "password_reset")
+    .where("status", "=", "pending")
+    .where("subject_key", "in", revoked.map((r) => r.id))
+    .execute();
+}
+
+export async function insertAuthToken(db: Executor, row: { user_id: string; kind: TokenKind; token_hash: string; expires_at: Date; created_by: string | null }) {
+  return db.insertInto("auth_tokens").values(row).returning(["id", "expires_at"]).executeTakeFirstOrThrow();
+}
+
+/** Marks the token used if it is still open and unexpired; undefined when it was not. Atomic. */
+export async function consumeAuthToken(db: Executor, tokenHash: string) {
+  return db
+    .updateTable("auth_tokens")
+    .set({ used_at: sql`now()` })
+    .where("token_hash", "=", tokenHash)
+    .where("used_at", "is", null)
+    .where("expires_at", ">", sql<Date>`now()`)
+    .returning(["id", "user_id", "kind"])
+    .executeTakeFirst();
+}
+
+// Outbox rows for account mail ----------------------------------------------------------------
+
+export async function insertAccountMail(
+  db: Executor,
+  row: { kind: "invite" | "password_reset"; subject_key: string; recipient_id: string; recipient_email: string; subject: string; text_body: string; html_body: string },
+) {
+  return db.insertInto("notification_outbox").values(row).returning(["id"]).executeTakeFirstOrThrow();
+}

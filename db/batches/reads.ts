@@ -1,0 +1,493 @@
+import { sql, type Transaction } from "kysely";
+import type { Database } from "@/db/client";
+import type { DB } from "@/db/schema";
+import { AppError } from "@/lib/errors";
+import { profileLabel } from "@/lib/batches/rules";
+import { staffingOf, type Staffing } from "@/lib/batches/staffed";
+import type {
+Board,
+BoardActive,
+BoardFurnace,
+BoardFurnaceRun,
+BoardMaterial,
+BoardProfile,
+BoardStation,
+BoardUnit,
+BoardWashBatch,
+BookingState,
+UnitState,
+} from "@/lib/batches/types";
+import { furnaceCycle, type SinterProfile } from "@/lib/process/furnace-profile";
+import { projectionStatus, projectUnit, type StepState } from "@/lib/process/projection";
+import { washMinutes } from "@/lib/process/wash";
+import type { TrayRun } from "@/lib/packing/types";
+
+export type Db = Database | Transaction<DB>;
+
+const num = (v: unknown): number => Number(v);
+const numOrNull = (v: unknown): number | null => (v === null || v === undefined ? null : Number(v));
+const iso = (d: Date | string | null | undefined): string | null => (d ? new Date(d).toISOString() : null);
+
+/** Everything about the shop that the batching rules read: settings, profiles, equipment. */
+export interface ShopContext {
+  now: Date;
+  time_zone: string;
+  staffing: Staffing;
+  clearance_mm: number;
+  drying_minutes: number;
+  finishing_lead_minutes: number;
+  at_risk_margin_minutes: number;
+  profiles: BoardProfile[];
+  furnaces: BoardFurnace[];
+  stations: BoardStation[];
+  materials: BoardMaterial[];
+}
+
+export function profileForCycle(p: BoardProfile): SinterProfile {
+  return {
+    startTempC: p.start_temp_c,
+    segments: p.segments.map((s) => ({ rateCPerMin: s.rate_c_per_min, setpointC: s.setpoint_c, holdMin: s.hold_min })),
+    coolRateCPerMin: p.cool_rate_c_per_min,
+    coolToC: p.cool_to_c,
+  };
+}
+
+/** A run's cycle on a furnace, whole minutes (bookings line up on minutes). */
+export function cycleMinutesFor(p: BoardProfile, f?: Pick<BoardFurnace, "max_cool_rate_c_per_min">): number {
+  return Math.ceil(furnaceCycle(profileForCycle(p), f ? { maxCoolRateCPerMin: f.max_cool_rate_c_per_min } : undefined).totalMinutes);
+}
+
+export async function listProfiles(db: Db, opts: { includeRetired?: boolean; ids?: string[] } = {}): Promise<BoardProfile[]> {
+  let q = db
+    .selectFrom("sinter_profiles")
+    .select(["id", "code", "revision", "name", "atmosphere", "start_temp_c", "cool_rate_c_per_min", "cool_to_c", "retired"])
+    .orderBy("code")
+    .orderBy("revision");
+  if (!opts.includeRetired) q = q.where("retired", "=", false);
+  if (opts.ids) q = opts.ids.length ? q.where("id", "in", opts.ids) : q.where(sql<boolean>`false`);
+  const rows = await q.execute();
+  if (rows.length === 0) return [];
+  const ids = rows.map((r) => r.id);
+  const [segments, mats] = await Promise.all([
+    db.selectFrom("sinter_profile_segments").select(["profile_id", "position", "rate_c_per_min", "setpoint_c", "hold_min"]).where("profile_id", "in", ids).orderBy("position").execute(),
+    db.selectFrom("sinter_profile_materials").select(["profile_id", "material_id"]).where("profile_id", "in", ids).execute(),
+  ]);
+  return rows.map((r) => ({
+    id: r.id,
+    code: r.code,
+    revision: r.revision,
+    label: profileLabel(r),
+    name: r.name,
+    atmosphere: r.atmosphere,
+    start_temp_c: num(r.start_temp_c),
+    cool_rate_c_per_min: num(r.cool_rate_c_per_min),
+    cool_to_c: num(r.cool_to_c),
+    material_ids: mats.filter((m) => m.profile_id === r.id).map((m) => m.material_id),
+    segments: segments
+      .filter((s) => s.profile_id === r.id)
+      .map((s) => ({ position: s.position, rate_c_per_min: num(s.rate_c_per_min), setpoint_c: num(s.setpoint_c), hold_min: num(s.hold_min) })),
+  }));
+}
+
+export async function loadShopContext(db: Db, now = new Date()): Promise<ShopContext> {
+  const [settings, furnaces, links, stations, materials] = await Promise.all([
+    db.selectFrom("shop_settings").selectAll().where("id", "=", 1).executeTakeFirst(),
+    db.selectFrom("furnaces").selectAll().where("active", "=", true).orderBy("name").execute(),
+    db.selectFrom("furnace_profiles").select(["furnace_id", "profile_id"]).execute(),
+    db.selectFrom("wash_stations").selectAll().where("active", "=", true).orderBy("name").execute(),
+    db.selectFrom("materials").select(["id", "code", "name", "default_profile_id", "min_mass_loss"]).where("active", "=", true).orderBy("code").execute(),
+  ]);
+  // Runs already booked keep their (maybe retired) revision: load those too.
+  const used = await db.selectFrom("furnace_runs").select("profile_id").distinct().where("state", "in", ["draft", "scheduled", "running"]).execute();
+  const profiles = await listProfiles(db);
+  const missing = used.map((u) => u.profile_id).filter((pid) => !profiles.some((p) => p.id === pid));
+  if (missing.length) profiles.push(...(await listProfiles(db, { includeRetired: true, ids: missing })));
+  const timeZone = settings?.time_zone ?? "UTC";
+  return {
+    now,
+    time_zone: timeZone,
+    staffing: staffingOf(settings?.staffed_hours, timeZone),
+    clearance_mm: num(settings?.tray_clearance_mm ?? 5),
+    drying_minutes: num(settings?.drying_minutes ?? 0),
+    finishing_lead_minutes: num(settings?.finishing_lead_minutes ?? 0),
+    at_risk_margin_minutes: num(settings?.at_risk_margin_minutes ?? 0),
+    profiles,
+    furnaces: furnaces.map((f) => ({
+      id: f.id,
+      name: f.name,
+      tray_x_mm: num(f.tray_x_mm),
+      tray_y_mm: num(f.tray_y_mm),
+      tray_count: f.tray_count,
+      usable_height_mm: num(f.usable_height_mm),
+      max_load_g: num(f.max_load_g),
+      max_cool_rate_c_per_min: num(f.max_cool_rate_c_per_min),
+      profile_ids: links.filter((l) => l.furnace_id === f.id).map((l) => l.profile_id),
+    })),
+    stations: stations.map((s) => ({
+      id: s.id,
+      name: s.name,
+      solvent: s.solvent,
+      basket_x_mm: num(s.basket_x_mm),
+      basket_y_mm: num(s.basket_y_mm),
+      basket_z_mm: num(s.basket_z_mm),
+      capacity_units: s.capacity_units,
+      max_load_g: num(s.max_load_g),
+    })),
+    materials: materials.map((m) => ({ id: m.id, code: m.code, name: m.name, default_profile_id: m.default_profile_id, min_mass_loss: num(m.min_mass_loss) })),
+  };
+}
+
+/** Equipment rows the context skips because they are inactive, when a booking still names them. */
+export async function findFurnace(db: Db, ctx: ShopContext, id: string): Promise<BoardFurnace | undefined> {
+  const known = ctx.furnaces.find((f) => f.id === id);
+  if (known) return known;
+  const f = await db.selectFrom("furnaces").selectAll().where("id", "=", id).executeTakeFirst();
+  if (!f) return undefined;
+  const links = await db.selectFrom("furnace_profiles").select("profile_id").where("furnace_id", "=", id).execute();
+  return {
+    id: f.id, name: f.name, tray_x_mm: num(f.tray_x_mm), tray_y_mm: num(f.tray_y_mm), tray_count: f.tray_count,
+    usable_height_mm: num(f.usable_height_mm), max_load_g: num(f.max_load_g), max_cool_rate_c_per_min: num(f.max_cool_rate_c_per_min),
+    profile_ids: links.map((l) => l.profile_id),
+  };
+}
+
+export type UnitFilter =
+  | { kind: "ids"; ids: string[] }
+  | { kind: "wash_batch"; ids: string[] }
+  | { kind: "furnace_run"; ids: string[] }
+  | { kind: "waiting_wash" }
+  | { kind: "waiting_furnace"; horizon?: Date };
+
+function unitQuery(db: Db) {
+  return db
+    .selectFrom("units as u")
+    .innerJoin("parts as p", "p.id", "u.part_id")
+    .innerJoin("orders as o", "o.id", "p.order_id")
+    .innerJoin("materials as m", "m.id", "p.material_id")
+    .leftJoin("wash_batches as wb", "wb.id", "u.wash_batch_id")
+    .leftJoin("furnace_runs as fr", "fr.id", "u.furnace_run_id")
+    .leftJoin("builds as b", "b.id", "u.build_id")
+    .select([
+      "u.id", "u.serial", "u.version", "u.state", "u.green_mass_g", "u.brown_mass_g", "u.wash_passed", "u.hold_reason",
+      "u.wash_batch_id", "u.furnace_run_id", "u.state_changed_at",
+      "p.id as part_id", "p.part_number", "p.name as part_name", "p.thickest_wall_mm", "p.volume_mm3",
+      "p.green_x_mm", "p.green_y_mm", "p.green_z_mm", "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm",
+      "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm", "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm",
+      "o.code as order_code", "o.due_at", "o.priority",
+      "m.id as material_id", "m.code as material_code", "m.default_profile_id", "m.shrink_xy", "m.shrink_z",
+      "m.green_density_g_cm3", "m.wash_k_min_per_mm2", "m.wash_min_minutes", "m.min_mass_loss",
+      "wb.state as wb_state", "wb.starts_at as wb_starts_at", "wb.ends_at as wb_ends_at", "wb.finished_at as wb_finished_at",
+      "fr.state as fr_state", "fr.starts_at as fr_starts_at", "fr.ends_at as fr_ends_at",
+      "b.ends_at as build_ends_at",
+    ]);
+}
+
+type UnitRow = Awaited<ReturnType<ReturnType<typeof unitQuery>["execute"]>>[number];
+
+// A unit's projected completion depends on its steps, not on its due date, and the units on the
+// board share a handful of step chains (one per profile and wash time): project each chain once.
+const projectionMemo = new WeakMap<ShopContext, Map<string, Date | null>>();
+const cycleMemo = new WeakMap<ShopContext, Map<string, number>>();
+
+function profileCycle(ctx: ShopContext, p: BoardProfile): number {
+  let memo = cycleMemo.get(ctx);
+  if (!memo) cycleMemo.set(ctx, (memo = new Map()));
+  let m = memo.get(p.id);
+  if (m === undefined) {
+    try {
+      m = cycleMinutesFor(p);
+    } catch {
+      m = 0;
+    }
+    memo.set(p.id, m);
+  }
+  return m;
+}
+
+function projectedEnd(ctx: ShopContext, steps: Record<string, StepState>): Date | null {
+  let memo = projectionMemo.get(ctx);
+  if (!memo) projectionMemo.set(ctx, (memo = new Map()));
+  const key = JSON.stringify(steps);
+  if (memo.has(key)) return memo.get(key)!;
+  let end: Date | null = null;
+  try {
+    end = projectUnit({ now: ctx.now, dueAt: ctx.now, steps: steps as Parameters<typeof projectUnit>[0]["steps"], atRiskMarginMinutes: ctx.at_risk_margin_minutes, staffing: ctx.staffing ?? undefined }).projectedEnd;
+  } catch {
+    end = null;
+  }
+  memo.set(key, end);
+  return end;
+}
+
+function toBoardUnit(r: UnitRow, ctx: ShopContext): BoardUnit {
+  // The worker keeps parts' green sizes current; a part not scaled yet is scaled here the same way.
+  const sxy = num(r.shrink_xy);
+  const sz = num(r.shrink_z);
+  const gx = numOrNull(r.green_x_mm) ?? (num(r.nominal_x_mm) + num(r.stock_x_neg_mm) + num(r.stock_x_pos_mm)) / (1 - sxy);
+  const gy = numOrNull(r.green_y_mm) ?? (num(r.nominal_y_mm) + num(r.stock_y_neg_mm) + num(r.stock_y_pos_mm)) / (1 - sxy);
+  const gz = numOrNull(r.green_z_mm) ?? (num(r.nominal_z_mm) + num(r.stock_z_neg_mm) + num(r.stock_z_pos_mm)) / (1 - sz);
+  const green = numOrNull(r.green_mass_g);
+  const brown = numOrNull(r.brown_mass_g);
+  let mass: number;
+  let source: BoardUnit["mass_source"];
+  if (brown) {
+    mass = brown;
+    source = "brown";
+  } else if (green) {
+    mass = green;
+    source = "green";
+  } else {
+    // Finished volume scaled to green size; a part without geometry is taken as half its box.
+    const vol = numOrNull(r.volume_mm3);
+    const greenVol = vol ? vol * (gx / num(r.nominal_x_mm)) * (gy / num(r.nominal_y_mm)) * (gz / num(r.nominal_z_mm)) : gx * gy * gz * 0.5;
+    mass = Math.round((greenVol / 1000) * num(r.green_density_g_cm3) * 10) / 10;
+    source = "estimate";
+  }
+  const k = num(r.wash_k_min_per_mm2);
+  const tMin = num(r.wash_min_minutes);
+  const wall = num(r.thickest_wall_mm);
+  const wash = washMinutes({ thickestWallMm: wall, kMinPerMm2: k, minMinutes: tMin });
+  const state = r.state as UnitState;
+  const dryMs = ctx.drying_minutes * 60_000;
+  let readyAt: string | null = null;
+  if (state === "brown") readyAt = ctx.now.toISOString();
+  else if (state === "washing" && r.wb_ends_at) readyAt = new Date(Math.max(ctx.now.getTime(), new Date(r.wb_ends_at).getTime() + dryMs)).toISOString();
+
+  const profile = ctx.profiles.find((p) => p.id === r.default_profile_id);
+  const compatible = ctx.profiles.filter((p) => p.material_ids.includes(r.material_id)).map((p) => p.id);
+  const cycle = profile ? profileCycle(ctx, profile) : 0;
+  const booked = (s: Date | null, e: Date | null): StepState | null =>
+    s && e && new Date(s) < new Date(e) ? { status: "booked", start: new Date(s), end: new Date(e) } : null;
+  const washOpen = r.wb_state && ["scheduled", "running"].includes(r.wb_state) ? booked(r.wb_starts_at, r.wb_ends_at) : null;
+  const runOpen = r.fr_state && ["scheduled", "running"].includes(r.fr_state) ? booked(r.fr_starts_at, r.fr_ends_at) : null;
+  const afterWash = ["brown", "sintering", "sintered", "ready_for_finishing", "finishing", "done"].includes(state);
+  const steps = {
+    print: { status: "done", end: ctx.now } as StepState,
+    wash: afterWash ? ({ status: "done", end: ctx.now } as StepState) : (washOpen ?? ({ status: "unbooked", minutes: wash } as StepState)),
+    drying: afterWash ? ({ status: "done", end: ctx.now } as StepState) : ({ status: "unbooked", minutes: ctx.drying_minutes } as StepState),
+    furnace: runOpen ?? ({ status: "unbooked", minutes: cycle } as StepState),
+    finishing: { status: "unbooked", minutes: ctx.finishing_lead_minutes } as StepState,
+  };
+  const due = new Date(r.due_at);
+  let slack: number;
+  let status: BoardUnit["projection_status"];
+  const end = projectedEnd(ctx, steps);
+  if (end) {
+    slack = Math.round((due.getTime() - end.getTime()) / 60_000);
+    status = projectionStatus(end, due, ctx.at_risk_margin_minutes);
+  } else {
+    slack = Math.round((due.getTime() - ctx.now.getTime()) / 60_000);
+    status = slack < 0 ? "late" : "on_time";
+  }
+  return {
+    id: r.id,
+    serial: r.serial,
+    version: r.version,
+    state,
+    part_id: r.part_id,
+    part_number: r.part_number,
+    part_name: r.part_name,
+    order_code: r.order_code,
+    due_at: iso(r.due_at)!,
+    priority: r.priority,
+    material_id: r.material_id,
+    material_code: r.material_code,
+    profile_id: r.default_profile_id,
+    compatible_profile_ids: compatible,
+    green_x_mm: Math.round(gx * 100) / 100,
+    green_y_mm: Math.round(gy * 100) / 100,
+    green_z_mm: Math.round(gz * 100) / 100,
+    mass_g: mass,
+    mass_source: source,
+    green_mass_g: green,
+    brown_mass_g: brown,
+    wash_passed: r.wash_passed,
+    min_mass_loss: num(r.min_mass_loss),
+    thickest_wall_mm: wall,
+    wash_minutes: Math.round(wash),
+    wash_k_min_per_mm2: k,
+    wash_min_minutes: tMin,
+    wash_batch_id: r.wash_batch_id,
+    furnace_run_id: r.furnace_run_id,
+    ready_at: readyAt,
+    slack_minutes: slack,
+    projection_status: status,
+    hold_reason: r.hold_reason,
+  };
+}
+
+export async function listBoardUnits(db: Db, ctx: ShopContext, filter: UnitFilter): Promise<BoardUnit[]> {
+  let q = unitQuery(db);
+  switch (filter.kind) {
+    case "ids":
+      if (!filter.ids.length) return [];
+      q = q.where("u.id", "in", filter.ids);
+      break;
+    case "wash_batch":
+      if (!filter.ids.length) return [];
+      q = q.where("u.wash_batch_id", "in", filter.ids);
+      break;
+    case "furnace_run":
+      if (!filter.ids.length) return [];
+      q = q.where("u.furnace_run_id", "in", filter.ids);
+      break;
+    case "waiting_wash":
+      q = q
+        .where("u.state", "=", "green")
+        .where((eb) => eb.or([eb("u.wash_batch_id", "is", null), eb("wb.state", "in", ["complete", "cancelled"])]));
+      break;
+    case "waiting_furnace": {
+      const horizon = filter.horizon ?? new Date(ctx.now.getTime() + 48 * 3_600_000);
+      q = q
+        .where((eb) =>
+          eb.or([
+            eb("u.state", "=", "brown"),
+            eb.and([
+              eb("u.state", "=", "washing"),
+              eb.or([eb("u.wash_passed", "is", null), eb("u.wash_passed", "=", true)]),
+              eb("wb.ends_at", "<=", horizon),
+            ]),
+          ]),
+        )
+        .where((eb) => eb.or([eb("u.furnace_run_id", "is", null), eb("fr.state", "in", ["complete", "cancelled"])]));
+      break;
+    }
+  }
+  const rows = await q.orderBy("o.due_at").orderBy("u.serial").execute();
+  const units = rows.map((r) => toBoardUnit(r, ctx));
+  if (filter.kind === "waiting_wash" || filter.kind === "waiting_furnace") units.sort((a, b) => a.slack_minutes - b.slack_minutes || a.due_at.localeCompare(b.due_at) || a.serial.localeCompare(b.serial));
+  return units;
+}
+
+type WashRow = { id: string; code: string; state: BookingState; version: number; wash_station_id: string | null; starts_at: Date | null; ends_at: Date | null; est_minutes: unknown; started_at: Date | null; finished_at: Date | null };
+type RunRow = { id: string; code: string; state: BookingState; version: number; furnace_id: string | null; profile_id: string; starts_at: Date | null; ends_at: Date | null; cycle_minutes: unknown; tray_layout: unknown };
+
+export function toBoardWash(w: WashRow, units: BoardUnit[]): BoardWashBatch {
+  return {
+    id: w.id, code: w.code, state: w.state, version: w.version, wash_station_id: w.wash_station_id ?? "",
+    starts_at: iso(w.starts_at), ends_at: iso(w.ends_at), est_minutes: numOrNull(w.est_minutes),
+    started_at: iso(w.started_at), finished_at: iso(w.finished_at),
+    units: units.filter((u) => u.wash_batch_id === w.id),
+  };
+}
+
+export function toBoardRun(r: RunRow, units: BoardUnit[]): BoardFurnaceRun {
+  return {
+    id: r.id, code: r.code, state: r.state, version: r.version, furnace_id: r.furnace_id ?? "", profile_id: r.profile_id,
+    starts_at: iso(r.starts_at), ends_at: iso(r.ends_at), cycle_minutes: numOrNull(r.cycle_minutes),
+    tray_layout: (r.tray_layout as TrayRun | null) ?? null,
+    units: units.filter((u) => u.furnace_run_id === r.id),
+  };
+}
+
+const WASH_COLUMNS = ["id", "code", "state", "version", "wash_station_id", "starts_at", "ends_at", "est_minutes", "started_at", "finished_at"] as const;
+const RUN_COLUMNS = ["id", "code", "state", "version", "furnace_id", "profile_id", "starts_at", "ends_at", "cycle_minutes", "tray_layout"] as const;
+
+export async function listWashBatches(db: Db, ctx: ShopContext, opts: { states?: BookingState[]; ids?: string[] }): Promise<BoardWashBatch[]> {
+  let q = db.selectFrom("wash_batches").select([...WASH_COLUMNS]).orderBy("starts_at").orderBy("code");
+  if (opts.states) q = q.where("state", "in", opts.states);
+  if (opts.ids) {
+    if (!opts.ids.length) return [];
+    q = q.where("id", "in", opts.ids);
+  }
+  const rows = await q.execute();
+  const units = await listBoardUnits(db, ctx, { kind: "wash_batch", ids: rows.map((r) => r.id) });
+  return rows.map((r) => toBoardWash(r, units));
+}
+
+export async function listFurnaceRuns(db: Db, ctx: ShopContext, opts: { states?: BookingState[]; ids?: string[] }): Promise<BoardFurnaceRun[]> {
+  let q = db.selectFrom("furnace_runs").select([...RUN_COLUMNS]).orderBy("starts_at").orderBy("code");
+  if (opts.states) q = q.where("state", "in", opts.states);
+  if (opts.ids) {
+    if (!opts.ids.length) return [];
+    q = q.where("id", "in", opts.ids);
+  }
+  const rows = await q.execute();
+  const units = await listBoardUnits(db, ctx, { kind: "furnace_run", ids: rows.map((r) => r.id) });
+  return rows.map((r) => toBoardRun(r, units));
+}
+
+async function listActive(db: Db, now: Date): Promise<BoardActive[]> {
+  const weekAgo = new Date(now.getTime() - 7 * 86_400_000);
+  const [washes, runs] = await Promise.all([
+    db
+      .selectFrom("wash_batches as w")
+      .leftJoin("wash_stations as s", "s.id", "w.wash_station_id")
+      .select(["w.id", "w.code", "w.state", "w.starts_at", "w.ends_at", "s.name as resource_name", sql<number>`(select count(*) from units u where u.wash_batch_id = w.id)`.as("unit_count")])
+      .where("w.state", "=", "running")
+      .orderBy("w.ends_at")
+      .execute(),
+    db
+      .selectFrom("furnace_runs as r")
+      .leftJoin("furnaces as f", "f.id", "r.furnace_id")
+      .select(["r.id", "r.code", "r.state", "r.starts_at", "r.ends_at", "f.name as resource_name", sql<number>`(select count(*) from units u where u.furnace_run_id = r.id)`.as("unit_count")])
+      .where((eb) => eb.or([eb("r.state", "=", "running"), eb.and([eb("r.state", "=", "complete"), eb("r.unloaded_at", "is", null), eb("r.ends_at", ">", weekAgo)])]))
+      .orderBy("r.ends_at")
+      .execute(),
+  ]);
+  return [
+    ...washes.map((w) => ({ kind: "wash_batch" as const, id: w.id, code: w.code, state: w.state, resource_name: w.resource_name ?? "", starts_at: iso(w.starts_at), ends_at: iso(w.ends_at), unit_count: Number(w.unit_count), needs: "weighing" as const })),
+    ...runs.map((r) => ({
+      kind: "furnace_run" as const, id: r.id, code: r.code, state: r.state, resource_name: r.resource_name ?? "", starts_at: iso(r.starts_at), ends_at: iso(r.ends_at), unit_count: Number(r.unit_count),
+      needs: r.state === "complete" || (r.ends_at && new Date(r.ends_at) <= now) ? ("unload" as const) : null,
+    })),
+  ];
+}
+
+export async function loadBoard(db: Db, now = new Date()): Promise<Board> {
+  const ctx = await loadShopContext(db, now);
+  const [washWaiting, furnaceWaiting, washes, runs, active] = await Promise.all([
+    listBoardUnits(db, ctx, { kind: "waiting_wash" }),
+    listBoardUnits(db, ctx, { kind: "waiting_furnace" }),
+    listWashBatches(db, ctx, { states: ["draft", "scheduled"] }),
+    listFurnaceRuns(db, ctx, { states: ["draft", "scheduled"] }),
+    listActive(db, now),
+  ]);
+  return {
+    now: now.toISOString(),
+    time_zone: ctx.time_zone,
+    clearance_mm: ctx.clearance_mm,
+    drying_minutes: ctx.drying_minutes,
+    wash_waiting: washWaiting,
+    furnace_waiting: furnaceWaiting,
+    wash_batches: washes,
+    furnace_runs: runs,
+    active,
+    stations: ctx.stations,
+    furnaces: ctx.furnaces,
+    profiles: ctx.profiles,
+    materials: ctx.materials,
+  };
+}
+
+/** A path id that is not a uuid names nothing: 404, never a database error. */
+export function pathId(id: string, what: string): string {
+  if (!/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(id)) throw new AppError("not_found", `That ${what} does not exist.`);
+  return id;
+}
+
+/** Bookings of wash stations and furnaces that touch a window, for the floor's lanes. */
+export async function listLaneBookings(db: Db, kind: "wash" | "furnace", from: Date, to: Date) {
+  if (kind === "wash") {
+    return db
+      .selectFrom("wash_batches as w")
+      .select(["w.id", "w.code", "w.state", "w.version", "w.wash_station_id as resource_id", "w.starts_at", "w.ends_at", "w.est_minutes as minutes", sql<number>`(select count(*) from units u where u.wash_batch_id = w.id)`.as("unit_count")])
+      .where("w.state", "in", ["scheduled", "running", "complete"])
+      .where(sql<boolean>`tstzrange(w.starts_at, w.ends_at) && tstzrange(${from}::timestamptz, ${to}::timestamptz)`)
+      .orderBy("w.starts_at")
+      .execute();
+  }
+  return db
+    .selectFrom("furnace_runs as r")
+    .innerJoin("sinter_profiles as p", "p.id", "r.profile_id")
+    .select(["r.id", "r.code", "r.state", "r.version", "r.furnace_id as resource_id", "r.starts_at", "r.ends_at", "r.cycle_minutes as minutes", "p.code as profile_code", "p.revision as profile_revision", sql<number>`(select count(*) from units u where u.furnace_run_id = r.id)`.as("unit_count")])
+    .where("r.state", "in", ["scheduled", "running", "complete"])
+    .where(sql<boolean>`tstzrange(r.starts_at, r.ends_at) && tstzrange(${from}::timestamptz, ${to}::timestamptz)`)
+    .orderBy("r.starts_at")
+    .execute();
+}
+
+export async function findShopTimeZone(db: Db): Promise<string> {
+  const row = await db.selectFrom("shop_settings").select("time_zone").where("id", "=", 1).executeTakeFirst();
+  return row?.time_zone ?? "UTC";
+}

@@ -1,0 +1,18 @@
+import type { Database } from "@/db/client";
+import { AppError } from "@/lib/errors";
+
+export async function findFileById(db: Database, id: string) {
+  if (!/^[0-9a-f-]{36}$/i.test(id)) return undefined;
+  return db.selectFrom("files").selectAll().where("id", "=", id).executeTakeFirst();
+}
+
+export async function getFileOrThrow(db: Database, id: string) {
+  const f = await findFileById(db, id);
+  if (!f) throw new AppError("not_found", "That file does not exist.");
+  return f;
+}
+
+/** The part a geometry file belongs to (the part points at its current file). */
+export async function findPartForFile(db: Database, fileId: string) {
+  return db.selectFrom("parts").select(["id", "part_number", "version", "volume_mm3"]).where("geometry_file_id", "=", fileId).executeTakeFirst();
+}

@@ -1,0 +1,103 @@
+import { sql, type Transaction } from "kysely";
+import type { Database } from "@/db/client";
+import type { DB } from "@/db/schema";
+import type { Role } from "@/lib/auth/permissions";
+
+export type Executor = Database | Transaction<DB>;
+
+export type CurrentUser = {
+  id: string;
+  email: string;
+  name: string;
+  role: Role;
+  unit_pref: "mm" | "in";
+  muted_mail: string[];
+  sessions_valid_after: Date | number | null; // -infinity arrives as a number
+};
+
+const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+export const isUuid = (id: string) => UUID.test(id);
+
+export async function findActiveUserById(db: Executor, id: string): Promise<CurrentUser | undefined> {
+  if (!isUuid(id)) return undefined;
+  return db
+    .selectFrom("users")
+    .select(["id", "email", "name", "role", "unit_pref", "muted_mail", "sessions_valid_after"])
+    .where("id", "=", id)
+    .where("active", "=", true)
+    .executeTakeFirst();
+}
+
+export async function findUserByEmail(db: Executor, email: string) {
+  return db
+    .selectFrom("users")
+    .select(["id", "email", "name", "role", "active", "password_hash"])
+    .where((eb) => eb(eb.fn("lower", ["email"]), "=", email.trim().toLowerCase()))
+    .executeTakeFirst();
+}
+
+/** The columns an admin sees; never the password hash, only whether one is set. */
+const adminColumns = [
+  "users.id",
+  "users.email",
+  "users.name",
+  "users.role",
+  "users.unit_pref",
+  "users.active",
+  "users.last_sign_in_at",
+  "users.created_at",
+  "users.updated_at",
+  "users.version",
+] as const;
+
+export type AdminUserRow = {
+  id: string;
+  email: string;
+  name: string;
+  role: Role;
+  unit_pref: "mm" | "in";
+  active: boolean;
+  last_sign_in_at: Date | null;
+  created_at: Date;
+  updated_at: Date;
+  version: number;
+  has_password: boolean;
+  open_invite_expires_at: Date | null;
+};
+
+function adminUsers(db: Executor) {
+  return db
+    .selectFrom("users")
+    .select(adminColumns)
+    .select((eb) => [
+      eb("users.password_hash", "is not", null).as("has_password"),
+      eb
+        .selectFrom("auth_tokens")
+        .select((e) => e.fn.max("auth_tokens.expires_at").as("x"))
+        .whereRef("auth_tokens.user_id", "=", "users.id")
+        .where("auth_tokens.kind", "=", "invite")
+        .where("auth_tokens.used_at", "is", null)
+        .where("auth_tokens.expires_at", ">", sql<Date>`now()`)
+        .as("open_invite_expires_at"),
+    ]);
+}
+
+export async function listUsers(db: Executor): Promise<AdminUserRow[]> {
+  return (await adminUsers(db).orderBy("users.active", "desc").orderBy("users.name").execute()) as AdminUserRow[];
+}
+
+export async function findUserById(db: Executor, id: string): Promise<AdminUserRow | undefined> {
+  if (!isUuid(id)) return undefined;
+  return (await adminUsers(db).where("users.id", "=", id).executeTakeFirst()) as AdminUserRow | undefined;
+}
+
+/** Active admins other than the given user (the caller serialises admin changes). */
+export async function countOtherActiveAdmins(trx: Transaction<DB>, exceptId: string): Promise<number> {
+  const rows = await trx.selectFrom("users").select("id").where("role", "=", "admin").where("active", "=", true).where("id", "!=", exceptId).execute();
+  return rows.length;
+}
+
+export async function findPasswordHash(db: Executor, id: string): Promise<string | null> {
+  const row = await db.selectFrom("users").select("password_hash").where("id", "=", id).executeTakeFirst();
+  return row?.password_hash ?? null;
+}
