@@ -213,6 +213,9 @@ export function reduceRuns(pm: ProfileModel, start: RunState[], opts: RunSearchO
       best = next;
       attempt = 0;
     } else {
+      // A failed attempt is charged its whole share, even one that gave up at once (no furnace
+      // left for a pooled unit), so the loop always ends.
+      ctx.work = Math.max(ctx.work, share);
       attempt++;
     }
   }

@@ -57,6 +57,8 @@ export interface PrinterPlanResult {
   lowerBound: PrinterLowerBound;
   /** Local-search moves applied. */
   moves: number;
+  /** The lateness pass stopped at `budgetMs` rather than because no move helped. */
+  timed_out: boolean;
 }
 
 export interface PrinterPlanOptions {
@@ -570,6 +572,7 @@ export function planPrinters(
   timeAll();
   const baseline = metricsOf(model, starts);
   let moves = 0;
+  let timedOut = false;
   if (options.improve !== false && model.builds.length > 0) {
     const cap = (baseline.max_lateness_min ?? 0) * MINUTE_MS;
     const bound = model.now + lowerBound.makespan_min * MINUTE_MS;
@@ -579,7 +582,7 @@ export function planPrinters(
     const finishCap = Math.max(...model.builds.map((b) => starts[b.idx] + b.p));
     const clock = options.clock ?? (() => Date.now());
     const t0 = clock();
-    const outOfTime = () => options.budgetMs !== undefined && clock() - t0 > options.budgetMs;
+    const outOfTime = () => (timedOut ||= options.budgetMs !== undefined && clock() - t0 > options.budgetMs);
     moves += improveLateness(model, seqs, finishCap, Math.max(0, maxMoves - moves), outOfTime);
     timeAll();
   }
@@ -596,5 +599,5 @@ export function planPrinters(
     }
   });
   assignments.sort((a, b) => (a.printer < b.printer ? -1 : a.printer > b.printer ? 1 : a.start < b.start ? -1 : 1));
-  return { assignments, unplaced: model.unplaced, metrics: metricsOf(model, starts), baseline, lowerBound, moves };
+  return { assignments, unplaced: model.unplaced, metrics: metricsOf(model, starts), baseline, lowerBound, moves, timed_out: timedOut };
 }
