@@ -4,7 +4,9 @@ import { greenVolumeOf } from "@/db/floor/reads";
 import { AppError } from "@/lib/errors";
 import { estimateDraw, type DrawEstimate } from "@/lib/inventory/consumption";
 import { drawRefusal, type LotState } from "@/lib/inventory/lots";
-import { projectOnHand, type Projection } from "@/lib/inventory/projection";
+import { projectOnHand } from "@/lib/inventory/projection";
+import type { LotRow, MaterialProjection, MaterialStock } from "@/lib/inventory/types";
+export type { LotRow, MaterialProjection, MaterialStock };
 import { bathState, gasShortfalls, runGasLitres, type BathState, type GasWarning } from "@/lib/inventory/consumables";
 
 const num = (v: unknown) => (v === null || v === undefined ? null : Number(v));
@@ -20,11 +22,6 @@ export async function findShopZone(db: Database): Promise<string> {
   return row?.time_zone ?? "UTC";
 }
 
-export type LotRow = {
-  id: string; code: string; material_id: string; material_code: string; material_name: string; supplier: string; supplier_lot: string;
-  form: string | null; form_id: string | null; received_on: string; expires_on: string | null; quantity_g: number; remaining_g: number; storage_notes: string;
-  certificate_file_id: string | null; state: LotState; state_reason: string | null; recalled_at: Date | null; recall_reason: string | null; version: number; builds: number;
-};
 
 const lotColumns = [
   "l.id", "l.code", "l.material_id", "m.code as material_code", "m.name as material_name", "l.supplier", "l.supplier_lot", "f.name as form", "l.form_id",
@@ -73,10 +70,6 @@ export async function listForms(db: Database) {
   return db.selectFrom("feedstock_forms").select(["id", "name"]).orderBy("name").execute();
 }
 
-export type MaterialStock = {
-  id: string; code: string; name: string; version: number; support_allowance: number; purge_g: number; reorder_point_g: number; lead_time_days: number;
-  feedstock_density_g_cm3: number; reorder_alerted_at: Date | null;
-};
 
 export async function listMaterialStock(db: Database): Promise<MaterialStock[]> {
   const rows = await db
@@ -126,7 +119,6 @@ export async function estimateBuildDraws(db: Database, filter: { buildIds?: stri
   return out;
 }
 
-export type MaterialProjection = MaterialStock & { quarantine_g: number; projection: Projection };
 
 /** On hand, committed and projected per material over `days`, from the live schedule. */
 export async function projectStock(db: Database, opts: { days: number; now?: Date; materialId?: string }): Promise<{ today: string; time_zone: string; materials: MaterialProjection[] }> {
