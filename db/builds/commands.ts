@@ -9,6 +9,7 @@ import { planFloor, staffedHoursFor } from "@/lib/floor/plan";
 import { getShopPlanning, listPrinterSpecs, listUnscheduledBuilds, printerBlockedFrom, unitSpecsForBuilds } from "@/db/floor/reads";
 import { verdictsForBuilds } from "./reads";
 import { assertLotFitsBuild, correctDraws, drawForBuild } from "@/db/inventory/commands";
+import { shortAmongProposed } from "@/db/inventory/reads";
 import { lockRowOrThrow, recordEvents, requireVersion, type EventRow } from "@/db/versioned";
 
 type Trx = Transaction<DB>;
@@ -301,6 +302,8 @@ export async function applyBuildAction(trx: Trx, id: string, input: BuildAction,
 // Printer-plan proposals ------------------------------------------------------------------------
 
 export type PlanProposalItem = {
+  /** Set when the build's material will not be on the shelf on its proposed day. */
+  feedstock_short?: string;
   build_id: string;
   build_version: number;
   code: string;
@@ -350,6 +353,9 @@ export async function proposePrinterPlan(db: Database, opts: { build_ids?: strin
     const reasons = (verdicts.get(u.build_id)?.verdicts ?? []).filter((v) => !v.ok).map((v) => v.reason);
     return { build_id: u.build_id, code: b.code, build_version: b.version, reason: u.reason, printer_reasons: reasons };
   });
+  // Flagged, not refused: the technician may receive a lot before the build starts.
+  const short = await shortAmongProposed(db, items, now);
+  for (const item of items) if (short.has(item.build_id)) item.feedstock_short = short.get(item.build_id)!;
   const metrics = { ...result.metrics, plan_ms: Math.round(planMs * 10) / 10 };
   const row = await db
     .insertInto("plan_proposals")

@@ -279,3 +279,46 @@ export async function gasOutlook(db: Database): Promise<{ supplies: Array<{ gas:
 }
 
 export { drawRefusal };
+
+/**
+ * Which of these tentatively placed builds would find too little feedstock, when they are added
+ * to what is already scheduled: for a planning proposal before anything is booked.
+ */
+export async function shortAmongProposed(db: Database, proposed: Array<{ build_id: string; code: string; starts_at: string }>, now = new Date()): Promise<Map<string, string>> {
+  const out = new Map<string, string>();
+  if (!proposed.length) return out;
+  const zone = await findShopZone(db);
+  const today = shopDay(now, zone);
+  const last = proposed.reduce((m, p) => (p.starts_at > m ? p.starts_at : m), now.toISOString());
+  const days = Math.min(400, Math.ceil((new Date(last).getTime() - now.getTime()) / 86_400_000) + 2);
+  const ids = proposed.map((p) => p.build_id);
+  const [materials, lots, scheduled] = await Promise.all([
+    listMaterialStock(db),
+    db
+      .selectFrom("feedstock_lots")
+      .select(["material_id", "remaining_g", sql<string | null>`to_char(expires_on, 'YYYY-MM-DD')`.as("expires_on")])
+      .where("state", "=", "released")
+      .where("remaining_g", ">", 0)
+      .execute(),
+    db.selectFrom("builds").select(["id", "code", "material_id", "starts_at"]).where("state", "=", "scheduled").where("starts_at", "is not", null).where("id", "not in", ids).execute(),
+  ]);
+  const draws = await estimateBuildDraws(db, { buildIds: [...scheduled.map((b) => b.id), ...ids] });
+  const tracked = new Set((await db.selectFrom("feedstock_lots").select("material_id").distinct().execute()).map((r) => r.material_id));
+  for (const m of materials) {
+    if (!tracked.has(m.id)) continue;
+    const mineProposed = proposed.filter((p) => draws.get(p.build_id)?.material_id === m.id);
+    if (!mineProposed.length) continue;
+    const projection = projectOnHand({
+      today,
+      horizon_days: days,
+      reorder_point_g: 0,
+      lots: lots.filter((l) => l.material_id === m.id).map((l) => ({ remaining_g: Number(l.remaining_g), expires_on: l.expires_on, usable: !(l.expires_on && l.expires_on < today) })),
+      builds: [
+        ...scheduled.filter((b) => b.material_id === m.id).map((b) => ({ id: b.id, code: b.code, day: shopDay(new Date(b.starts_at!), zone), grams: draws.get(b.id)?.total_g ?? 0 })),
+        ...mineProposed.map((p) => ({ id: p.build_id, code: p.code, day: shopDay(new Date(p.starts_at), zone), grams: draws.get(p.build_id)?.total_g ?? 0 })),
+      ],
+    });
+    for (const id of projection.short_builds) if (ids.includes(id)) out.set(id, `${m.code} feedstock runs short on ${projection.first_short_day}`);
+  }
+  return out;
+}

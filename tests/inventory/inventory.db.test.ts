@@ -318,3 +318,25 @@ describe("consumables", () => {
     expect((await api(`/api/inventory/baths/${station.id}`, { method: "POST", cookie: tech, body: { version: station.version, note: "" } })).status).toBe(409);
   });
 });
+
+describe("planning with the shelf in view", () => {
+  it("flags proposed builds whose feedstock will not be there, and leaves the others alone", async () => {
+    const m = await ownMaterial();
+    const order = await makeOrder(tech);
+    const part = await makePart(tech, db, { order_id: order.id, material: m.code, quantity: 2 });
+    const units = await unitsOf(db, part.id);
+    const first = await makeBuild(tech, [units[0].id]);
+    const second = await makeBuild(tech, [units[1].id]);
+    const one = await expectedDrawG(part.id, 1, Number(m.green_density_g_cm3));
+    // enough for one of the two builds
+    const lot = await receive(m.id, { quantity_kg: Math.round(one * 1.5) / 1000 });
+    await release(lot.id);
+    const res = await api("/api/plans", { method: "POST", cookie: tech, body: { build_ids: [first.id, second.id] } });
+    expect(res.status, JSON.stringify(res.body)).toBe(201);
+    const items = res.body.proposal.items as Array<{ build_id: string; starts_at: string; feedstock_short?: string }>;
+    expect(items).toHaveLength(2);
+    const [earlier, later] = [...items].sort((a, b) => a.starts_at.localeCompare(b.starts_at));
+    expect(earlier.feedstock_short).toBeUndefined();
+    expect(later.feedstock_short).toMatch(new RegExp(`${m.code} feedstock runs short on \\d{4}-\\d{2}-\\d{2}`));
+  });
+});
