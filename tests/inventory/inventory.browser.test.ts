@@ -79,7 +79,9 @@ describe("feedstock in the browser", () => {
     const left = ((4000 - drawn) / 1000).toLocaleString("en-GB", { minimumFractionDigits: 1, maximumFractionDigits: 1 });
     expect(await row.textContent()).toContain(`${left} kg of 4.0 kg`);
     await page.getByRole("button", { name: code }).click();
-    await page.locator(".recharts-line").first().waitFor();
+    // a flat projection draws a line of no height, which Playwright counts as hidden: attached is enough
+    await page.locator(".recharts-line-curve").first().waitFor({ state: "attached" });
+    expect(await page.getByRole("img", { name: new RegExp(`Projected ${code} on hand`) }).count()).toBe(1);
     await screenshot(page, "inventory-after-draw");
     await page.close();
 
@@ -87,6 +89,7 @@ describe("feedstock in the browser", () => {
     const phone = await browser.newPage({ viewport: { width: 390, height: 844 }, isMobile: true, hasTouch: true });
     await signInAs(phone, DEMO.manager);
     await phone.goto(`${appUrl()}/inventory/${lot.id}`);
+    await screenshot(phone, "inventory-lot-phone");
     phone.once("dialog", (d) => void d.accept());
     await phone.getByLabel(/Recall: the reason/).fill("supplier notice 88");
     await phone.getByRole("button", { name: "Recall this lot" }).click();
