@@ -2,6 +2,7 @@ import { notFound } from "next/navigation";
 import { connection } from "next/server";
 import { getDb } from "@/db/client";
 import { findBuildById } from "@/db/builds/reads";
+import { findShopTimeZone } from "@/db/batches/reads";
 import { BuildView } from "@/components/builds/build-view";
 import { BuildFeedstock } from "@/components/inventory/build-feedstock";
 import { estimateBuildDraws, listDrawsForBuild, listLots } from "@/db/inventory/reads";
@@ -17,7 +18,7 @@ export default async function BuildPage({ params }: { params: Promise<{ id: stri
   await connection();
   const { id } = await params;
   if (!/^[0-9a-f-]{36}$/i.test(id)) notFound();
-  const build = await findBuildById(getDb(), id);
+  const [build, timeZone] = await Promise.all([findBuildById(getDb(), id), findShopTimeZone(getDb())]);
   if (!build) notFound();
   const db = getDb();
   const [draws, estimates, lots] = await Promise.all([
@@ -29,7 +30,7 @@ export default async function BuildPage({ params }: { params: Promise<{ id: stri
     <>
       <PageHeader title={`Build ${build.code}`} lead="Units of one material on one plate: the layout, the print time on each printer, the material lot and the traveler that goes with it." />
       <QueryProvider>
-        <BuildView buildId={build.id} canWrite={can(user.role, "builds:write")} />
+        <BuildView buildId={build.id} canWrite={can(user.role, "builds:write")} timeZone={timeZone} />
       </QueryProvider>
       <BuildFeedstock
         buildId={build.id}
