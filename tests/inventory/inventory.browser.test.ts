@@ -26,7 +26,8 @@ async function signInAs(page: Page, email: string) {
   await page.getByLabel("E-mail").fill(email);
   await page.getByLabel("Password").fill("hearth-demo");
   await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL(/\/inventory$/, { timeout: 60_000 });
+  // the sign-in address itself ends in "/inventory" (?next=): wait for the page, not the query
+  await page.waitForURL((u) => u.pathname === "/inventory", { timeout: 60_000 });
 }
 
 describe("feedstock in the browser", () => {
@@ -89,7 +90,6 @@ describe("feedstock in the browser", () => {
     const phone = await browser.newPage({ viewport: { width: 390, height: 844 }, isMobile: true, hasTouch: true });
     await signInAs(phone, DEMO.manager);
     await phone.goto(`${appUrl()}/inventory/${lot.id}`);
-    await screenshot(phone, "inventory-lot-phone");
     phone.once("dialog", (d) => void d.accept());
     await phone.getByLabel(/Recall: the reason/).fill("supplier notice 88");
     await phone.getByRole("button", { name: "Recall this lot" }).click();
