@@ -500,6 +500,8 @@ async function seedFeedstock(trx: Transaction<DB>, ctx: { now: Date; materialIds
     await trx.insertInto("feedstock_draws").values({ lot_id: lot.id, build_id: b.id, estimated_g: est.total_g, drawn_g: est.total_g, created_by: ctx.userId }).execute();
     await trx.updateTable("builds").set({ feedstock_lot_id: lot.id }).where("id", "=", b.id).execute();
   }
+  // the baths were last changed a fortnight ago, so the washes since show on the gauges
+  await trx.updateTable("wash_stations").set({ bath_changed_at: new Date(ctx.now.getTime() - 14 * DAY), bath_binder_limit_g: 1500 }).execute();
   await trx
     .insertInto("gas_supplies")
     .values([
