@@ -98,7 +98,7 @@ export async function estimateBuildDraws(db: Database, filter: { buildIds?: stri
     .innerJoin("parts as p", "p.id", "u.part_id")
     .innerJoin("materials as m", "m.id", "b.material_id")
     .select([
-      "u.build_id", "b.material_id", "p.volume_mm3", "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm", "p.green_x_mm", "p.green_y_mm", "p.green_z_mm",
+      "u.build_id", "b.material_id", "p.id as part_id", "p.volume_mm3", "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm", "p.green_x_mm", "p.green_y_mm", "p.green_z_mm",
       "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm", "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm",
       "m.shrink_xy", "m.shrink_z", "m.green_density_g_cm3", "m.support_allowance", "m.purge_g",
       sql<number>`count(*)::int`.as("units"),
@@ -109,10 +109,21 @@ export async function estimateBuildDraws(db: Database, filter: { buildIds?: stri
   if (filter.scheduledOnly) q = q.where("b.state", "=", "scheduled").where("b.starts_at", "is not", null);
   const rows = await q.execute();
   const byBuild = new Map<string, typeof rows>();
-  for (const r of rows) byBuild.set(r.build_id!, [...(byBuild.get(r.build_id!) ?? []), r]);
+  for (const r of rows) {
+    const list = byBuild.get(r.build_id!);
+    if (list) list.push(r);
+    else byBuild.set(r.build_id!, [r]);
+  }
+  // A part's printed volume is the same in every build: worked out once per part.
+  const volumeOf = new Map<string, number>();
+  const partVolume = (p: (typeof rows)[number]) => {
+    let v = volumeOf.get(p.part_id);
+    if (v === undefined) volumeOf.set(p.part_id, (v = greenVolumeOf(p)));
+    return v;
+  };
   for (const [buildId, parts] of byBuild) {
     const m = parts[0];
-    const units = parts.flatMap((p) => Array.from({ length: Number(p.units) }, () => ({ green_volume_mm3: greenVolumeOf(p) })));
+    const units = parts.flatMap((p) => Array.from({ length: Number(p.units) }, () => ({ green_volume_mm3: partVolume(p) })));
     const est = estimateDraw(units, { feedstock_density_g_cm3: Number(m.green_density_g_cm3), support_allowance: Number(m.support_allowance), purge_g: Number(m.purge_g) });
     out.set(buildId, { ...est, material_id: m.material_id });
   }
