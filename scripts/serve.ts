@@ -12,6 +12,7 @@ import next from "next";
 import { closeDb, getDb } from "@/db/client";
 import { answerFloorWindow } from "@/app/_server/floor-window-direct";
 import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
+import { liveHub } from "@/app/_server/live-hub";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const port = Number(process.env.PORT ?? 3000);
@@ -51,16 +52,24 @@ async function main() {
   // Off the request path (the reads and gzip run on libuv's pool): the first page load then
   // finds its scripts ready too.
   void assets.warm().catch((err: unknown) => console.error("[app] static files not preloaded:", err));
+  // Live updates (app/api/events): listening from the start also keeps the floor's window cache
+  // in step with changes made by other instances and the worker.
+  liveHub().start();
 
   let stopping = false;
   const stop = async (signal: string) => {
     if (stopping) return;
     stopping = true;
     console.log(`[app] ${signal}: closing`);
+    // Open event streams never finish by themselves: end them now, and the browsers reconnect
+    // to another instance (or to this one once it is back).
+    const live = liveHub().shutdown();
     // Requests in flight may finish (five seconds at most); idle keep-alive connections go now.
     await new Promise<void>((resolve) => {
       server.close(() => resolve());
       server.closeIdleConnections();
+      // The ended streams' connections turn idle a moment later.
+      void live.then(() => setTimeout(() => server.closeIdleConnections(), 50));
       setTimeout(() => {
         server.closeAllConnections();
         resolve();

@@ -25,6 +25,7 @@ import type { Board, BoardActive, BoardFurnaceRun, BoardUnit, BoardWashBatch } f
 import { shopTime } from "./format";
 import { ApiError, getJson, sendJson } from "./client";
 import { BatchesQueryProvider } from "./query-provider";
+import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { SuggestPanel } from "./suggest-panel";
 import { RunTarget, WashTarget, type HoverVerdict } from "./targets";
 import { UnitCard, UnitCardBody, type DragData } from "./unit-card";
@@ -89,7 +90,8 @@ function WaitingColumn({ lane, children, count }: { lane: Lane; children: React.
 
 function BoardInner({ role, unitPref }: BatchesBoardProps) {
   const qc = useQueryClient();
-  const board = useQuery({ queryKey: ["batches-board"], queryFn: () => getJson<Board>("/api/batches"), refetchInterval: 20_000 });
+  const poll = useLivePoll();
+  const board = useQuery({ queryKey: ["batches-board"], queryFn: () => getJson<Board>("/api/batches"), refetchInterval: poll(20_000) });
   const [lane, setLane] = useState<Lane>(role === "technician" ? "wash" : "furnace");
   const [flash, setFlash] = useState<Flash>(null);
   const [hover, setHover] = useState<HoverVerdict | null>(null);
@@ -287,6 +289,7 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
             </button>
           ))}
         </div>
+        <LiveIndicator />
         <div className="flex flex-wrap items-end gap-2 text-2xs text-soot-600">
           <label>
             Material
