@@ -51,7 +51,7 @@ const pct = (xs: number[], p: number) => {
 };
 const r1 = (x: number) => Math.round(x * 10) / 10;
 
-export async function freshDatabase(): Promise<{ url: string; drop: () => Promise<void> }> {
+export async function freshDatabase(dbName = DB_NAME): Promise<{ url: string; drop: () => Promise<void> }> {
   const base = new URL(process.env.DATABASE_URL ?? "postgres://postgres@127.0.0.1:54329/hearth");
   const admin = new URL(base);
   admin.pathname = "/postgres";
@@ -64,11 +64,11 @@ export async function freshDatabase(): Promise<{ url: string; drop: () => Promis
       await c.end();
     }
   };
-  await run(`drop database if exists "${DB_NAME}" with (force)`);
-  await run(`create database "${DB_NAME}"`);
+  await run(`drop database if exists "${dbName}" with (force)`);
+  await run(`create database "${dbName}"`);
   const url = new URL(base);
-  url.pathname = `/${DB_NAME}`;
-  return { url: url.toString(), drop: () => run(`drop database if exists "${DB_NAME}" with (force)`) };
+  url.pathname = `/${dbName}`;
+  return { url: url.toString(), drop: () => run(`drop database if exists "${dbName}" with (force)`) };
 }
 
 /** Start of the current week (Sunday 00:00 UTC, as the floor's week view in a UTC browser). */
@@ -78,7 +78,7 @@ function weekStart(t: number): number {
   return d.getTime() - d.getUTCDay() * 24 * HOUR;
 }
 
-export async function seedFloor(db: Database): Promise<{ from: number; printers: number; builds: number }> {
+export async function seedFloor(db: Database, nBuilds = N_BUILDS): Promise<{ from: number; printers: number; builds: number }> {
   await seedDemoShop(db);
   const rand = rng(5);
   const materials = await db.selectFrom("materials").select("id").execute();
@@ -97,7 +97,7 @@ export async function seedFloor(db: Database): Promise<{ from: number; printers:
   const now = Date.now();
   const from = weekStart(now) - 10 * WEEK;
   const span = WEEKS * WEEK;
-  const perLane = (N_BUILDS - existing.rows[0].n) / lanes.length;
+  const perLane = (nBuilds - existing.rows[0].n) / lanes.length;
   const meanSlot = span / perLane;
   const cursor = new Map(lanes.map((l) => [l.id, from + rand() * meanSlot]));
   // The seed's own bookings sit around now on its four printers; keep the bench's clear of them.
@@ -105,7 +105,7 @@ export async function seedFloor(db: Database): Promise<{ from: number; printers:
   const clash = (pid: string, s: number, e: number) => seeded.some((b) => b.printer_id === pid && b.starts_at!.getTime() < e && b.ends_at!.getTime() > s);
   const rows: Array<Record<string, unknown>> = [];
   let seq = 0;
-  while (rows.length < N_BUILDS - existing.rows[0].n) {
+  while (rows.length < nBuilds - existing.rows[0].n) {
     let lane = lanes[0].id;
     for (const l of lanes) if (cursor.get(l.id)! < cursor.get(lane)!) lane = l.id;
     const start = Math.round(cursor.get(lane)! / 60_000) * 60_000;
@@ -139,7 +139,7 @@ export async function seedFloor(db: Database): Promise<{ from: number; printers:
   return { from, printers: lanes.length, builds: total.rows[0].n };
 }
 
-function ensureBuild(): string {
+export function ensureBuild(): string {
   const given = process.env.HEARTH_BENCH_NEXT_DIR;
   if (given && fs.existsSync(path.join(given, "BUILD_ID"))) return given;
   const dir = ".next-bench";

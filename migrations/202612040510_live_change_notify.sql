@@ -46,3 +46,29 @@ create trigger printer_materials_notify after insert or update or delete on prin
 create trigger wash_stations_notify after insert or update or delete on wash_stations for each statement execute function notify_hearth_table_change('equipment');
 create trigger furnaces_notify after insert or update or delete on furnaces for each statement execute function notify_hearth_table_change('equipment');
 create trigger furnace_profiles_notify after insert or update or delete on furnace_profiles for each statement execute function notify_hearth_table_change('equipment');
+
+-- The batching board's counterpart of floor_change_seq (migration 202612012302): it moves on
+-- every change to what the board shows, so one load of the board serves every open board until
+-- then. Builds are left out: a booked or moved build changes nothing on the board (its units
+-- reach the board when they turn green, a change to units).
+create sequence board_change_seq;
+
+create function bump_board_change() returns trigger language plpgsql as $$
+begin
+  perform nextval('board_change_seq');
+  return null;
+end
+$$;
+
+create trigger units_board_change after insert or update or delete on units for each statement execute function bump_board_change();
+create trigger wash_batches_board_change after insert or update or delete on wash_batches for each statement execute function bump_board_change();
+create trigger furnace_runs_board_change after insert or update or delete on furnace_runs for each statement execute function bump_board_change();
+create trigger orders_board_change after insert or update or delete on orders for each statement execute function bump_board_change();
+create trigger parts_board_change after insert or update or delete on parts for each statement execute function bump_board_change();
+create trigger wash_stations_board_change after insert or update or delete on wash_stations for each statement execute function bump_board_change();
+create trigger furnaces_board_change after insert or update or delete on furnaces for each statement execute function bump_board_change();
+create trigger furnace_profiles_board_change after insert or update or delete on furnace_profiles for each statement execute function bump_board_change();
+create trigger sinter_profiles_board_change after insert or update or delete on sinter_profiles for each statement execute function bump_board_change();
+create trigger materials_board_change after insert or update or delete on materials for each statement execute function bump_board_change();
+create trigger shop_settings_board_change after insert or update or delete on shop_settings for each statement execute function bump_board_change();
+create trigger maintenance_windows_board_change after insert or update or delete on maintenance_windows for each statement execute function bump_board_change();

@@ -4,8 +4,9 @@
 // Next.js bundled separately (app/api/events/route.ts) load this module apart and must share it.
 import { randomBytes } from "node:crypto";
 import { getEnv } from "@/lib/env";
-import { ChangeBatcher, FLOOR_ENTITIES, ReplayLog, parseChange, sseFrame, type Change } from "@/lib/live/changes";
+import { BOARD_ENTITIES, ChangeBatcher, FLOOR_ENTITIES, ReplayLog, parseChange, sseFrame, type Change } from "@/lib/live/changes";
 import { floorWindowCache } from "@/lib/floor/window-cache";
+import { boardCache } from "@/lib/batches/board-cache";
 import { ChangeListener, type ListenerState } from "@/db/live/listener";
 
 /** Browsers wait this long before reconnecting a dropped stream. */
@@ -24,6 +25,11 @@ type Stream = { send: (frame: string) => void; close: () => void; openedAt: numb
 
 const encoder = new TextEncoder();
 
+function forget(change: Change): void {
+  if (FLOOR_ENTITIES.has(change.e)) floorWindowCache().clear();
+  if (BOARD_ENTITIES.has(change.e)) boardCache().clear();
+}
+
 export class LiveHub {
   private streams = new Set<Stream>();
   private listener: ChangeListener | null = null;
@@ -41,7 +47,11 @@ export class LiveHub {
       onPayload: (payload) => {
         this.stats.notifications += 1;
         const change = parseChange(payload);
-        if (change) this.batcher.push(change);
+        if (!change) return;
+        // At once, before any page hears of it: a refetch that follows must not get the old
+        // window or board back from this process's caches.
+        forget(change);
+        this.batcher.push(change);
       },
       onState: (state, { resumed, error }) => {
         if (state === "down") console.warn(`[live] listen connection down: ${error}`);
@@ -73,8 +83,6 @@ export class LiveHub {
   }
 
   private publish(changes: Change[]): void {
-    // Before the pages hear of it: a refetch that follows must not get the old window back.
-    if (changes.some((c) => FLOOR_ENTITIES.has(c.e))) floorWindowCache().clear();
     this.stats.groups += 1;
     const data = JSON.stringify({ changes });
     let frame = "";
@@ -84,6 +92,7 @@ export class LiveHub {
 
   private resync(): void {
     floorWindowCache().clear();
+    boardCache().clear();
     this.broadcast(sseFrame({ id: this.log.lastId, event: "resync", data: "{}" }));
   }
 

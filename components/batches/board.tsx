@@ -70,7 +70,7 @@ export function BatchesBoard(props: BatchesBoardProps) {
   );
 }
 
-function WaitingColumn({ lane, children, count }: { lane: Lane; children: React.ReactNode; count: number }) {
+function WaitingColumn({ lane, children, count, listed, total }: { lane: Lane; children: React.ReactNode; count: number; listed: number; total: number }) {
   const { setNodeRef, isOver } = useDroppable({ id: `waiting:${lane}` });
   return (
     <section
@@ -83,6 +83,11 @@ function WaitingColumn({ lane, children, count }: { lane: Lane; children: React.
         {lane === "furnace" ? "Waiting for a furnace" : "Waiting for a wash"} <span className="font-normal text-soot-500">({count})</span>
       </h2>
       <p className="mb-2 text-2xs text-soot-500">Most at risk first. Drop a unit back here to take it out of its {lane === "furnace" ? "run" : "batch"}.</p>
+      {total > listed ? (
+        <p className="mb-2 text-2xs text-soot-600" data-testid={`waiting-${lane}-more`}>
+          Listed: the {listed} most at risk of {total} waiting. Suggestions consider them all.
+        </p>
+      ) : null}
       <div className="flex max-h-[70vh] flex-col gap-1.5 overflow-y-auto pr-1">{children}</div>
     </section>
   );
@@ -371,7 +376,12 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
         }}
       >
         <div className="grid gap-4 lg:grid-cols-[minmax(16rem,22rem)_1fr]">
-          <WaitingColumn lane={lane} count={waiting.length}>
+          <WaitingColumn
+            lane={lane}
+            count={waiting.length}
+            listed={lane === "furnace" ? data.furnace_waiting.length : data.wash_waiting.length}
+            total={lane === "furnace" ? data.furnace_waiting_total : data.wash_waiting_total}
+          >
             {waiting.length === 0 ? <p className="text-xs text-soot-500">Nothing waiting{filters.material || filters.profile || filters.due ? " that matches the filters" : ""}.</p> : null}
             {waiting.map((u) => (
               <UnitCard key={u.id} unit={u} from={{ kind: "waiting" }} lane={lane} timeZone={data.time_zone} unitPref={unitPref} profileLabel={profileName(u.profile_id)} disabled={!canLane} />

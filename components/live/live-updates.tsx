@@ -14,26 +14,41 @@ import { queryHears } from "./query-map";
 export function LiveUpdates() {
   const qc = useQueryClient();
   useEffect(() => {
-    let held: { query: Query; timer: ReturnType<typeof setTimeout> }[] = [];
+    const held = new Map<Query, ReturnType<typeof setTimeout>>();
+    // One refetch per query at a time, and one more after it when changes arrived meanwhile:
+    // cancelling the one under way on every event would, in a burst, never let one finish.
+    const running = new Map<Query, { again: boolean }>();
     const refetch = (query: Query) => {
       const hold = (query.meta as { liveHold?: () => boolean } | undefined)?.liveHold;
       if (hold?.()) {
-        if (held.some((h) => h.query === query)) return;
-        const entry = { query, timer: setTimeout(() => {
-          held = held.filter((h) => h !== entry);
-          refetch(query);
-        }, 500) };
-        held.push(entry);
+        if (!held.has(query))
+          held.set(query, setTimeout(() => {
+            held.delete(query);
+            refetch(query);
+          }, 500));
         return;
       }
-      void qc.invalidateQueries({ queryKey: query.queryKey, exact: true });
+      const run = running.get(query);
+      if (run) {
+        run.again = true;
+        return;
+      }
+      const state = { again: false };
+      running.set(query, state);
+      void (async () => {
+        // A fetch already under way (a poll, a mutation's own refetch) began before this change.
+        if (query.state.fetchStatus === "fetching") await query.promise?.catch(() => undefined);
+        await qc.invalidateQueries({ queryKey: query.queryKey, exact: true }, { cancelRefetch: false }).catch(() => undefined);
+        running.delete(query);
+        if (state.again) refetch(query);
+      })();
     };
     const stop = subscribeLive((m) => {
       for (const query of matching(qc, m.kind === "resync" ? null : m.changes)) refetch(query);
     });
     return () => {
       stop();
-      for (const h of held) clearTimeout(h.timer);
+      for (const t of held.values()) clearTimeout(t);
     };
   }, [qc]);
   return null;

@@ -6,7 +6,8 @@ import type { Change, ChangeEntity } from "@/lib/live/changes";
 type Rule = { entities: ReadonlySet<ChangeEntity>; detail?: boolean };
 
 const FLOOR = new Set<ChangeEntity>(["build", "wash_batch", "furnace_run", "maintenance", "equipment"]);
-const BOARD = new Set<ChangeEntity>(["build", "wash_batch", "furnace_run", "unit", "equipment"]);
+// A booked or moved build changes nothing on the board: its units arrive there as unit changes.
+const BOARD = new Set<ChangeEntity>(["wash_batch", "furnace_run", "unit", "maintenance", "equipment"]);
 const ALL = new Set<ChangeEntity>(["build", "wash_batch", "furnace_run", "unit", "inspection", "maintenance", "equipment"]);
 
 /** The first element of a query key → what it listens to. Keys not named here never refetch. */

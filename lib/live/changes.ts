@@ -30,6 +30,9 @@ export function parseChange(payload: string | undefined): Change | null {
 /** Changes that move something on the floor's calendar (its window cache must forget). */
 export const FLOOR_ENTITIES: ReadonlySet<ChangeEntity> = new Set(["build", "wash_batch", "furnace_run", "maintenance", "equipment"]);
 
+/** Changes to what the batching board shows (its cache must forget); a booked build is not one. */
+export const BOARD_ENTITIES: ReadonlySet<ChangeEntity> = new Set(["unit", "wash_batch", "furnace_run", "maintenance", "equipment"]);
+
 /**
  * Collects changes for a short window and hands them over as one group, one entry per row
  * (the highest version seen): a proposal applied to forty units is one message, not forty.

@@ -3,6 +3,7 @@ import { getDb } from "@/db/client";
 import { floorWindowBody } from "@/db/floor/reads";
 import { SESSION_COOKIE, forbidden, renewIfDue, sessionOptions } from "@/app/_server/session";
 import { toErrorResponse } from "@/app/_server/errors";
+import { cachedBody } from "@/app/_server/cached-body";
 import { FLOOR_PERMISSION, authorizeFloorRead } from "@/app/_server/floor-access";
 import { AppError } from "@/lib/errors";
 import { floorWindowSchema } from "@/lib/floor/schemas";
@@ -25,18 +26,8 @@ export async function GET(req: Request) {
     const w = floorWindowSchema.parse(searchParams(req));
     // Plain bytes: Next.js compresses a handler's response itself (and would do it twice).
     const { bytes, headers } = (await floorWindowBody(db, w, access.stamp)).encoded(false);
-    return new Response(once(bytes), { headers });
+    return new Response(cachedBody(bytes), { headers });
   } catch (err) {
     return toErrorResponse(err);
   }
-}
-
-/** A body over the cached bytes themselves: a Uint8Array body would be copied per response. */
-function once(bytes: Uint8Array): ReadableStream<Uint8Array> {
-  return new ReadableStream({
-    start(controller) {
-      controller.enqueue(bytes);
-      controller.close();
-    },
-  });
 }
