@@ -264,8 +264,25 @@ export const section: BenchSection = {
         detail: { load_average_1m: r1(os.loadavg()[0]), p50_ms: r1(pct(plain.times, 50)), p99_ms: r1(pct(plain.times, 99)), req_per_s: r1(plain.res.requests.average), non2xx: plain.res.non2xx, errors: plain.res.errors },
       });
 
+      // The same first render with the static files left to Next.js: does the web server's own
+      // static-file path (app/_server/static-assets.ts) still earn its place?
+      await stopProcs(procs);
+      procs = [startApp(PORT, { ...env, HEARTH_STATIC_FROM_MEMORY: "0" }, true)];
+      await waitFor(`${base}/sign-in`, 90_000, (s) => s === 200);
+      const plainRender = await firstRender(base, cookie);
+      await stopProcs(procs);
+      procs = [startApp(PORT, env, true)];
+      await waitFor(`${base}/sign-in`, 90_000, (s) => s === 200);
+
       const render = await firstRender(base, cookie);
       const median = pct(render.ms, 50);
+      rows.push({
+        section: "floor",
+        name: `first render of /floor week view, static files served by Next.js (HEARTH_STATIC_FROM_MEMORY=0), for comparison`,
+        metric: `ms to all events drawn (median of ${RENDER_RUNS})`,
+        value: Math.round(pct(plainRender.ms, 50)),
+        detail: { load_average_1m: r1(os.loadavg()[0]), runs_ms: plainRender.ms.map(Math.round), data_in_hand_ms: plainRender.dataMs.map(Math.round) },
+      });
       rows.push({
         section: "floor",
         name: `first render of /floor week view (${render.events} events), headless Chromium`,

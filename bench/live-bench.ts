@@ -28,6 +28,7 @@ const MOVERS = 5;
 const LATENCY_S = Number(process.env.HEARTH_BENCH_LIVE_LATENCY_SECONDS ?? 10);
 const SHIFT_S = Number(process.env.HEARTH_BENCH_LIVE_SHIFT_SECONDS ?? 60);
 const MEMORY_STREAMS = 500;
+const RAMP_S = 10;
 const HOUR = 3_600_000;
 
 const pct = (xs: number[], p: number) => {
@@ -192,7 +193,7 @@ export const section: BenchSection = {
       procs = [startApp(PORT, env, true)];
       await waitFor(`${base}/sign-in`, 90_000, (s) => s === 200);
       const pid = procs[0].child.pid!;
-      const [viewer, tech] = [await signIn(base, "manager@demo.hearth.test"), await signIn(base, "technician@demo.hearth.test")];
+      const [viewer, tech, admin] = [await signIn(base, "manager@demo.hearth.test"), await signIn(base, "technician@demo.hearth.test"), await signIn(base, "admin@demo.hearth.test")];
       // Three move builds (the floor hears them), two move wash batches (the floor and the board).
       const movers = [...(await makeMovers(base, tech, db, MOVERS - 2)), await makeWashMover(base, tech, db, 0), await makeWashMover(base, tech, db, 1)];
       // The window every floor shows: the week from half a day ago; the moves land inside it.
@@ -271,9 +272,16 @@ export const section: BenchSection = {
           tabs.push({ stream: boardS, queries: [new SimQuery(["batches-board"], () => rec.get(base, "/api/batches", cookie, "GET /api/batches"))] });
           tabs.push({ stream: unitS, queries: [new SimQuery(["trace", u], () => rec.get(base, `/api/units/${u}/trace`, cookie, "GET /api/units/:id/trace"))] });
         }
-        // Every page loads once, as it opens.
-        for (const t of tabs) for (const q of t.queries) q.refetch();
-        const seen = new Map<Tab, number>(tabs.map((t) => [t, 0]));
+        // Every page loads once, as it opens: people arrive over RAMP_S seconds (a shift does not
+        // open 150 pages in the same millisecond), and the figures start once all are in.
+        for (let i = 0; i < tabs.length; i++) {
+          for (const q of tabs[i].queries) q.refetch();
+          await sleep((RAMP_S * 1000) / tabs.length);
+        }
+        await sleep(2_000);
+        rec.times.clear();
+        rec.errors.clear();
+        const seen = new Map<Tab, number>(tabs.map((t) => [t, t.stream.events.length]));
         const ticker = setInterval(() => {
           for (const t of tabs) {
             const events = t.stream.events;
@@ -305,7 +313,7 @@ export const section: BenchSection = {
         const elapsed = (performance.now() - t0) / 1000;
         await sleep(1_000);
         clearInterval(ticker);
-        const live = (await rec.get(base, "/api/health", tech, "health")) as { live?: { open_streams: number } } | null;
+        const live = (await rec.get(base, "/api/health", admin, "health")) as { live?: { open_streams: number } } | null;
         for (const s of streams) s.close();
         streams.length = 0;
         rec.times.set("PATCH …/schedule (builds, wash batches)", moveTimes);
@@ -332,7 +340,7 @@ export const section: BenchSection = {
         streams.push(...many);
         await sleep(1_000);
         const after = rssKb(pid);
-        const health = (await (await fetch(`${base}/api/health`, { headers: { cookie: tech } })).json()) as { live?: { open_streams: number } };
+        const health = (await (await fetch(`${base}/api/health`, { headers: { cookie: admin } })).json()) as { live?: { open_streams: number } };
         for (const s of many) s.close();
         streams.length = 0;
         rows.push({ section: "live", name: `open streams held by one app instance (${MEMORY_STREAMS} opened)`, metric: "streams", value: health.live?.open_streams ?? null, ok: (health.live?.open_streams ?? 0) >= MEMORY_STREAMS, target: `≥ ${MEMORY_STREAMS}` });
