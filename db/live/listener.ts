@@ -14,6 +14,8 @@ export type ListenerOptions = {
   onState?: (state: ListenerState, info: { resumed: boolean; error?: string }) => void;
   minDelayMs?: number;
   maxDelayMs?: number;
+  /** Names the connection in pg_stat_activity. */
+  applicationName?: string;
 };
 
 export class ChangeListener {
@@ -42,7 +44,7 @@ export class ChangeListener {
   private async connect(): Promise<void> {
     if (this.stopped) return;
     this.setState("connecting");
-    const client = new pg.Client({ connectionString: this.opts.connectionString, keepAlive: true, application_name: "hearth-live" });
+    const client = new pg.Client({ connectionString: this.opts.connectionString, keepAlive: true, application_name: this.opts.applicationName ?? "hearth-live" });
     this.client = client;
     let failed = false;
     const fail = (err: unknown) => {
