@@ -20,6 +20,7 @@ type UnitLine,
 import { massLossCheck } from "@/lib/process/wash";
 import { findMailContext, listRecipients } from "@/db/notifications/reads";
 import { type BookingEntity } from "./reads";
+import { recordEvents } from "@/db/versioned";
 
 export type AdvanceSource = { via: "job"; job: AdvanceJob; job_id?: string } | { via: "sweep"; worker_id?: string };
 
@@ -80,10 +81,7 @@ async function applyUnitChanges(trx: Trx, changes: UnitChange[], reason: string,
 }
 
 async function bookingEvent(trx: Trx, entity: BookingEntity, id: string, from: string, to: string, reason: string, data: Record<string, unknown>) {
-  await trx
-    .insertInto("events")
-    .values({ entity, entity_id: id, kind: "state", from_state: from, to_state: to, actor_id: null, reason, data: JSON.stringify(data) })
-    .execute();
+  await recordEvents(trx, [{ entity, entity_id: id, kind: "state", from_state: from, to_state: to, actor_id: null, reason, data: data }]);
 }
 
 function sourceData(source: AdvanceSource): Record<string, unknown> {

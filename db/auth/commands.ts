@@ -1,8 +1,8 @@
 import { sql } from "kysely";
 import type { Database } from "@/db/client";
-import type { Json } from "@/db/schema";
 import type { TokenKind } from "@/lib/auth/tokens";
 import { type Executor, listRecentFailures } from "./reads";
+import { recordEvents } from "@/db/versioned";
 
 // Sign-in attempts ----------------------------------------------------------------------------
 
@@ -64,9 +64,7 @@ export async function insertUserEvent(
   db: Executor,
   ev: { user_id: string | null; kind: UserEventKind; actor_id: string | null; from_state?: string | null; to_state?: string | null; reason?: string | null; data?: Record<string, unknown> },
 ) {
-  await db
-    .insertInto("events")
-    .values({
+  await recordEvents(db, [{
       entity: "user",
       entity_id: ev.user_id,
       kind: ev.kind,
@@ -74,9 +72,8 @@ export async function insertUserEvent(
       from_state: ev.from_state ?? null,
       to_state: ev.to_state ?? null,
       reason: ev.reason ?? null,
-      data: ev.data ? (JSON.stringify(ev.data) as unknown as Json) : null,
-    })
-    .execute();
+      data: ev.data,
+    }]);
 }
 
 // Set-password tokens -------------------------------------------------------------------------

@@ -7,17 +7,6 @@ BoardUnit
 import { suggestBatches, type Busy, type SuggestResult } from "@/lib/batches/suggest";
 import { type Db, type ShopContext, loadShopContext, listBoardUnits } from "./reads";
 
-export async function insertEvents(
-  db: Db,
-  rows: { entity: string; entity_id: string; kind: string; from_state?: string | null; to_state?: string | null; actor_id: string | null; reason?: string | null; data?: unknown }[],
-) {
-  if (!rows.length) return;
-  await db
-    .insertInto("events")
-    .values(rows.map((r) => ({ ...r, from_state: r.from_state ?? null, to_state: r.to_state ?? null, reason: r.reason ?? null, data: r.data === undefined ? null : JSON.stringify(r.data) })))
-    .execute();
-}
-
 // Proposals ------------------------------------------------------------------------------------
 
 async function busyIntervals(db: Db, now: Date): Promise<Busy[]> {

@@ -8,37 +8,18 @@ import { scheduleAdvance } from "@/db/jobs/advance";
 import { planFloor, staffedHoursFor } from "@/lib/floor/plan";
 import { getShopPlanning, listPrinterSpecs, listUnscheduledBuilds, printerBlockedFrom, unitSpecsForBuilds } from "@/db/floor/reads";
 import { verdictsForBuilds } from "./reads";
+import { lockRowOrThrow, recordEvents, requireVersion, type EventRow } from "@/db/versioned";
 
 type Trx = Transaction<DB>;
 const fmt = (d: Date) => d.toISOString().slice(0, 16).replace("T", " ") + " UTC";
 
 export async function lockBuildOrThrow(trx: Trx, id: string) {
-  const row = await trx.selectFrom("builds").selectAll().where("id", "=", id).forUpdate().executeTakeFirst();
-  if (!row) throw new AppError("not_found", "That build does not exist (it may have been deleted).");
-  return row;
+  return lockRowOrThrow(trx, "builds", id, "That build does not exist (it may have been deleted).");
 }
 
-function checkVersion(row: { version: number; code: string }, version: number) {
-  if (row.version !== version) {
-    throw new AppError("conflict", `${row.code} was changed by someone else (now version ${row.version}); the floor has been reloaded, try again.`, undefined, { current_version: row.version });
-  }
-}
+const checkVersion = (row: { version: number; code: string }, version: number) => requireVersion(row.code, row.version, version);
 
-async function writeEvent(trx: Trx, e: { entity_id: string; kind: string; from_state?: string | null; to_state?: string | null; actor_id: string | null; reason?: string | null; data?: unknown; entity?: string }) {
-  await trx
-    .insertInto("events")
-    .values({
-      entity: e.entity ?? "build",
-      entity_id: e.entity_id,
-      kind: e.kind,
-      from_state: e.from_state ?? null,
-      to_state: e.to_state ?? null,
-      actor_id: e.actor_id,
-      reason: e.reason ?? null,
-      data: e.data === undefined ? null : JSON.stringify(e.data),
-    })
-    .execute();
-}
+const writeEvent = (trx: Trx, e: Omit<EventRow, "entity"> & { entity?: string }) => recordEvents(trx, [{ ...e, entity: e.entity ?? "build" }]);
 
 /** Units become a build: all planned, none on another build, one material. */
 export async function insertBuild(trx: Trx, input: CreateBuild, actorId: string) {

@@ -6,6 +6,7 @@ import { QUEUES } from "@/lib/jobs/queues";
 import { MIN_SAMPLES_TO_APPLY, sameSuggestion, summarizeCalibration } from "@/lib/finishing/calibration";
 import type { ApplyCalibrationInput } from "@/lib/finishing/schemas";
 import { calibrationRows } from "./reads";
+import { recordEvents } from "@/db/versioned";
 
 /** Stored to 1e-5 (0.001 % linear): far below what a caliper or CMM resolves on a part. */
 const roundShrinkage = (s: number) => Math.round(s * 1e5) / 1e5;
@@ -54,17 +55,14 @@ export async function applyCalibration(db: Database, materialId: string, input: 
         return [axis, c ? { count: c.count, mean: c.meanShrinkage, std_dev: c.stdDev ?? null, interval: c.interval?.shrinkage ?? null, factor: c.suggestedFactor } : null];
       }),
     );
-    await trx
-      .insertInto("events")
-      .values({
+    await recordEvents(trx, [{
         entity: "material",
         entity_id: materialId,
         kind: "calibration_applied",
         actor_id: actorId,
         reason: `shrinkage set from ${summary.inspections.xy} (XY) and ${summary.inspections.z} (Z) inspections`,
-        data: JSON.stringify({ axes: input.axes, from: before, to: after, stats }),
-      })
-      .execute();
+        data: { axes: input.axes, from: before, to: after, stats },
+      }]);
     // Parts not yet printed get their green size from the new factors; builds keep their snapshot.
     const boss = await getSender();
     await boss.send(QUEUES.scaleUp, { material_id: materialId }, { db: inTrx(trx), retryLimit: 5, retryBackoff: true });

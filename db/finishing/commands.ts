@@ -4,6 +4,8 @@ import { AppError } from "@/lib/errors";
 import { planFinishingChange, type UnitState } from "@/lib/finishing/transitions";
 import type { FinishingAction as Action, FinishingActionInput } from "@/lib/finishing/schemas";
 import { type Trx, getFinishingCard, latestInspection } from "./reads";
+import { requireVersion } from "@/db/versioned";
+import { recordEvents } from "@/db/versioned";
 
 /** Locks the unit and checks the version the person saw; the caller holds the transaction. */
 export async function lockUnitAtVersion(trx: Trx, unitId: string, version: number) {
@@ -15,14 +17,7 @@ export async function lockUnitAtVersion(trx: Trx, unitId: string, version: numbe
     .forUpdate()
     .executeTakeFirst();
   if (!unit) throw new AppError("not_found", "Unit not found.");
-  if (unit.version !== version) {
-    throw new AppError(
-      "conflict",
-      `Unit ${unit.serial} was changed by someone else (now ${unit.state.replaceAll("_", " ")}, version ${unit.version}); reload to see it.`,
-      undefined,
-      { current_version: unit.version, current_state: unit.state },
-    );
-  }
+  requireVersion(`Unit ${unit.serial}`, unit.version, version, { current_state: unit.state });
   return unit;
 }
 
@@ -50,9 +45,7 @@ export async function applyFinishingAction(db: Database, unitId: string, input: 
       })
       .where("id", "=", unitId)
       .execute();
-    await trx
-      .insertInto("events")
-      .values({
+    await recordEvents(trx, [{
         entity: "unit",
         entity_id: unitId,
         kind: "state",
@@ -60,9 +53,8 @@ export async function applyFinishingAction(db: Database, unitId: string, input: 
         to_state: change.to,
         actor_id: actorId,
         reason: change.reason,
-        data: JSON.stringify({ action: input.action, ...(releasing ? { held_from: unit.held_from } : {}) }),
-      })
-      .execute();
+        data: { action: input.action, ...(releasing ? { held_from: unit.held_from } : {}) },
+      }]);
   });
   return getFinishingCard(db, unitId);
 }

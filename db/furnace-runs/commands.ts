@@ -6,7 +6,7 @@ import { checkFurnaceAdd, currentLayout, emptyLayout, layoutWithout, packFurnace
 import type { BookingState } from "@/lib/batches/types";
 import type { TrayRun } from "@/lib/packing/types";
 import { cycleMinutesFor, listBoardUnits, type Db, type ShopContext } from "@/db/batches/reads";
-import { insertEvents } from "@/db/batches/commands";
+import { lockRowOrThrow, recordEvents, type EventRow } from "@/db/versioned";
 import { assertVersion, checkBookingStart, lockUnit } from "@/db/wash-batches/commands";
 import { refuse, getRun, profileOf, furnaceOf } from "./reads";
 
@@ -14,9 +14,7 @@ type Trx = Transaction<DB>;
 const MIN = 60_000;
 
 export async function lockFurnaceRun(trx: Trx, id: string) {
-  const row = await trx.selectFrom("furnace_runs").selectAll().where("id", "=", id).forUpdate().executeTakeFirst();
-  if (!row) throw new AppError("not_found", "That furnace run does not exist.");
-  return row;
+  return lockRowOrThrow(trx, "furnace_runs", id, "That furnace run does not exist.");
 }
 
 async function bumpRun(
@@ -57,7 +55,7 @@ export async function createFurnaceRun(trx: Trx, ctx: ShopContext, input: { furn
     })
     .returning(["id"])
     .executeTakeFirstOrThrow();
-  await insertEvents(trx, [{ entity: "furnace_run", entity_id: row.id, kind: "state", to_state: "draft", actor_id: actorId, reason: `created on ${furnace.name} with ${profile.label}` }]);
+  await recordEvents(trx, [{ entity: "furnace_run", entity_id: row.id, kind: "state", to_state: "draft", actor_id: actorId, reason: `created on ${furnace.name} with ${profile.label}` }]);
   return getRun(trx, ctx, row.id);
 }
 
@@ -70,7 +68,7 @@ async function detachFromOpenRun(trx: Trx, ctx: ShopContext, unit: { id: string;
   const rest = (await listBoardUnits(trx, ctx, { kind: "furnace_run", ids: [other.id] })).filter((u) => u.id !== unit.id);
   const stored = (other.tray_layout as TrayRun | null) ?? emptyLayout(packFurnace(furnace, ctx.profiles), profile.label);
   await bumpRun(trx, other, { tray_layout: layoutWithout(stored, unit.id, rest, furnace, profile, ctx.profiles) });
-  await insertEvents(trx, [{ entity: "furnace_run", entity_id: other.id, kind: "unit_removed", actor_id: actorId, data: { unit_id: unit.id, moved_to: exceptId } }]);
+  await recordEvents(trx, [{ entity: "furnace_run", entity_id: other.id, kind: "unit_removed", actor_id: actorId, data: { unit_id: unit.id, moved_to: exceptId } }]);
 }
 
 export async function addUnitToRun(
@@ -98,7 +96,7 @@ export async function addUnitToRun(
   await detachFromOpenRun(trx, ctx, unitRow, row.id, actorId);
   await trx.updateTable("units").set({ furnace_run_id: row.id, version: unitRow.version + 1, updated_at: new Date() }).where("id", "=", unitRow.id).execute();
   await bumpRun(trx, row, { tray_layout: verdict.layout });
-  await insertEvents(trx, [{ entity: "furnace_run", entity_id: row.id, kind: "unit_added", actor_id: actorId, data: { unit_id: unitRow.id, serial: unitRow.serial, repacked: verdict.repacked } }]);
+  await recordEvents(trx, [{ entity: "furnace_run", entity_id: row.id, kind: "unit_added", actor_id: actorId, data: { unit_id: unitRow.id, serial: unitRow.serial, repacked: verdict.repacked } }]);
   return getRun(trx, ctx, row.id);
 }
 
@@ -119,7 +117,7 @@ export async function removeUnitFromRun(
   const rest = await listBoardUnits(trx, ctx, { kind: "furnace_run", ids: [row.id] });
   const stored = (row.tray_layout as TrayRun | null) ?? emptyLayout(packFurnace(furnace, ctx.profiles), profile.label);
   await bumpRun(trx, row, { tray_layout: layoutWithout(stored, unitRow.id, rest, furnace, profile, ctx.profiles) });
-  await insertEvents(trx, [{ entity: "furnace_run", entity_id: row.id, kind: "unit_removed", actor_id: actorId, data: { unit_id: unitRow.id, serial: unitRow.serial } }]);
+  await recordEvents(trx, [{ entity: "furnace_run", entity_id: row.id, kind: "unit_removed", actor_id: actorId, data: { unit_id: unitRow.id, serial: unitRow.serial } }]);
   return getRun(trx, ctx, row.id);
 }
 
@@ -150,7 +148,7 @@ export async function scheduleRun(
   if (!layout.ok) throw refuse(layout.code, `${row.code} does not fit ${furnace.name}: ${layout.reason}`, "furnace_id");
   await checkBookingStart(trx, ctx, "furnace", furnace.id, start, end);
   await bumpRun(trx, row, { state: "scheduled", furnace_id: furnace.id, starts_at: start, ends_at: end, cycle_minutes: cycle, tray_layout: layout.layout });
-  await insertEvents(trx, [
+  await recordEvents(trx, [
     {
       entity: "furnace_run", entity_id: row.id, kind: "schedule", from_state: row.state, to_state: "scheduled", actor_id: actorId,
       data: { furnace_id: furnace.id, starts_at: start.toISOString(), ends_at: end.toISOString(), previous: { furnace_id: row.furnace_id, starts_at: row.starts_at } },
@@ -184,7 +182,7 @@ export async function startRun(trx: Trx, ctx: ShopContext, input: { runId: strin
     state: "running", starts_at: now, ends_at: end, cycle_minutes: cycle, loaded_at: now, started_by: actorId,
     checklist: { ...input.checklist, confirmed_at: now.toISOString(), confirmed_by: actorId }, tray_layout: layout.layout,
   });
-  await insertEvents(trx, [
+  await recordEvents(trx, [
     { entity: "furnace_run", entity_id: row.id, kind: "state", from_state: row.state, to_state: "running", actor_id: actorId, data: { ends_at: end.toISOString(), checklist: input.checklist } },
     ...units.map((u) => ({ entity: "unit", entity_id: u.id, kind: "state", from_state: "brown", to_state: "sintering", actor_id: actorId, reason: `furnace run ${row.code} started` })),
   ]);
@@ -219,7 +217,7 @@ export async function unloadRun(
     if (!present.some((u) => u.id === o.unit_id)) errors[`outcomes.${i}.unit_id`] = ["that unit is not waiting to be unloaded from this run"];
   });
   if (Object.keys(errors).length) throw new AppError("invalid", Object.values(errors)[0][0], errors);
-  const events: Parameters<typeof insertEvents>[1] = [];
+  const events: EventRow[] = [];
   for (const o of input.outcomes) {
     const u = present.find((x) => x.id === o.unit_id)!;
     const unit = await lockUnit(trx, u.id);
@@ -243,7 +241,7 @@ export async function unloadRun(
     entity: "furnace_run", entity_id: row.id, kind: row.state === "running" ? "state" : "unload", from_state: row.state, to_state: "complete", actor_id: actorId,
     data: { sintered: input.outcomes.filter((o) => o.outcome === "sintered").length, scrapped: input.outcomes.filter((o) => o.outcome === "scrapped").length },
   });
-  await insertEvents(trx, events);
+  await recordEvents(trx, events);
   return getRun(trx, ctx, row.id);
 }
 
@@ -253,7 +251,7 @@ export async function cancelRun(trx: Trx, ctx: ShopContext, input: { runId: stri
   if (!["draft", "scheduled"].includes(row.state)) throw refuse("state", `Run ${row.code} is ${row.state}; only a draft or scheduled run can be cancelled.`, "state");
   await trx.updateTable("units").set({ furnace_run_id: null, version: sql<number>`version + 1`, updated_at: new Date() }).where("furnace_run_id", "=", row.id).execute();
   await trx.updateTable("furnace_runs").set({ state: "cancelled", version: row.version + 1, updated_at: new Date() }).where("id", "=", row.id).execute();
-  await insertEvents(trx, [{ entity: "furnace_run", entity_id: row.id, kind: "state", from_state: row.state, to_state: "cancelled", actor_id: actorId, reason: input.reason || null }]);
+  await recordEvents(trx, [{ entity: "furnace_run", entity_id: row.id, kind: "state", from_state: row.state, to_state: "cancelled", actor_id: actorId, reason: input.reason || null }]);
   return getRun(trx, ctx, row.id);
 }
 
@@ -305,7 +303,7 @@ export async function applyProposal(trx: Trx, ctx: ShopContext, proposalId: stri
       .executeTakeFirstOrThrow();
     await trx.updateTable("units").set({ wash_batch_id: row.id, version: sql<number>`version + 1`, updated_at: new Date() }).where("id", "in", w.units.map((u) => u.id)).execute();
     await scheduleAdvance(trx, { entity: "wash_batch", id: row.id, version: row.version, due_at: end.toISOString() });
-    await insertEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "schedule", to_state: "scheduled", actor_id: actorId, reason: "accepted proposal", data: { proposal_id: p.id, units: w.units.length } }]);
+    await recordEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "schedule", to_state: "scheduled", actor_id: actorId, reason: "accepted proposal", data: { proposal_id: p.id, units: w.units.length } }]);
     created.wash_batches.push(row.id);
   }
   for (const r of runs) {
@@ -333,7 +331,7 @@ export async function applyProposal(trx: Trx, ctx: ShopContext, proposalId: stri
       .executeTakeFirstOrThrow();
     await trx.updateTable("units").set({ furnace_run_id: row.id, version: sql<number>`version + 1`, updated_at: new Date() }).where("id", "in", r.units.map((u) => u.id)).execute();
     await scheduleAdvance(trx, { entity: "furnace_run", id: row.id, version: row.version, due_at: end.toISOString() });
-    await insertEvents(trx, [{ entity: "furnace_run", entity_id: row.id, kind: "schedule", to_state: "scheduled", actor_id: actorId, reason: "accepted proposal", data: { proposal_id: p.id, units: r.units.length } }]);
+    await recordEvents(trx, [{ entity: "furnace_run", entity_id: row.id, kind: "schedule", to_state: "scheduled", actor_id: actorId, reason: "accepted proposal", data: { proposal_id: p.id, units: r.units.length } }]);
     created.furnace_runs.push(row.id);
   }
   await trx.updateTable("batch_proposals").set({ status: "applied", decided_by: actorId, decided_at: new Date() }).where("id", "=", p.id).execute();

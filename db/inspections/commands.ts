@@ -7,6 +7,7 @@ import { plannedGreen, runoutStockCheck, toStoredReadings, type PartForFinishing
 import { AXES, type CreateInspection } from "@/lib/finishing/schemas";
 import { lockUnitAtVersion } from "@/db/finishing/commands";
 import { num } from "./reads";
+import { recordEvents } from "@/db/versioned";
 
 // Inspection records: the readings in mm and µm, the runout-against-stock check as it was
 // shown, attachments in object storage, and whether calibration may use the record.
@@ -88,17 +89,14 @@ export async function insertInspection(db: Database, input: CreateInspection, in
       .where("id", "=", unit.id)
       .returning("version")
       .executeTakeFirstOrThrow();
-    await trx
-      .insertInto("events")
-      .values({
+    await recordEvents(trx, [{
         entity: "unit",
         entity_id: unit.id,
         kind: "inspection",
         actor_id: inspectorId,
         reason: input.passed ? "inspection passed" : `inspection failed: ${input.reason}`,
-        data: JSON.stringify({ inspection_id: row.id, passed: input.passed, stock_warning: stockCheck?.status === "warning" ? stockCheck.message : undefined }),
-      })
-      .execute();
+        data: { inspection_id: row.id, passed: input.passed, stock_warning: stockCheck?.status === "warning" ? stockCheck.message : undefined },
+      }]);
     return { id: row.id, unit_version: bumped.version, stock_check: stockCheck };
   });
 }
@@ -118,10 +116,7 @@ export async function insertInspectionFile(
       .executeTakeFirstOrThrow();
     await trx.insertInto("inspection_files").values({ inspection_id: inspectionId, file_id: row.id }).execute();
     const unit = await trx.selectFrom("inspections").select("unit_id").where("id", "=", inspectionId).executeTakeFirstOrThrow();
-    await trx
-      .insertInto("events")
-      .values({ entity: "unit", entity_id: unit.unit_id, kind: "attachment", actor_id: uploadedBy, reason: `attached ${file.filename}`, data: JSON.stringify({ inspection_id: inspectionId, file_id: row.id }) })
-      .execute();
+    await recordEvents(trx, [{ entity: "unit", entity_id: unit.unit_id, kind: "attachment", actor_id: uploadedBy, reason: `attached ${file.filename}`, data: { inspection_id: inspectionId, file_id: row.id } }]);
     return { ...row, size_bytes: Number(row.size_bytes), url: `/api/inspections/${inspectionId}/files/${row.id}` };
   });
 }
@@ -136,17 +131,14 @@ export async function setCalibrationExclusion(db: Database, id: string, excluded
       .returning(["id", "unit_id", "excluded_from_calibration", "exclusion_reason"])
       .executeTakeFirst();
     if (!row) throw new AppError("not_found", "Inspection not found.");
-    await trx
-      .insertInto("events")
-      .values({
+    await recordEvents(trx, [{
         entity: "unit",
         entity_id: row.unit_id,
         kind: excluded ? "calibration_excluded" : "calibration_included",
         actor_id: actorId,
         reason: excluded ? reason : "measurement taken back into calibration",
-        data: JSON.stringify({ inspection_id: id }),
-      })
-      .execute();
+        data: { inspection_id: id },
+      }]);
     return row;
   });
 }

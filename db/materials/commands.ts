@@ -4,6 +4,7 @@ import type { MaterialInput } from "@/lib/setup/schemas";
 import { getSender, inTrx } from "@/db/jobs/boss";
 import { QUEUES } from "@/lib/jobs/queues";
 import { throwStaleOrMissing } from "@/db/versioned";
+import { recordEvents } from "@/db/versioned";
 
 export async function insertMaterial(db: Database, input: MaterialInput) {
   return db.insertInto("materials").values(input).returningAll().executeTakeFirstOrThrow();
@@ -25,10 +26,7 @@ export async function updateMaterial(db: Database, id: string, version: number, 
       .executeTakeFirst();
     if (!row || !before) return throwStaleOrMissing(trx, "materials", id, "Material");
     if (before.shrink_xy !== row.shrink_xy || before.shrink_z !== row.shrink_z) {
-      await trx
-        .insertInto("events")
-        .values({ entity: "material", entity_id: id, kind: "shrinkage_change", actor_id: actorId, data: JSON.stringify({ from: before, to: { shrink_xy: row.shrink_xy, shrink_z: row.shrink_z } }) })
-        .execute();
+      await recordEvents(trx, [{ entity: "material", entity_id: id, kind: "shrinkage_change", actor_id: actorId, data: { from: before, to: { shrink_xy: row.shrink_xy, shrink_z: row.shrink_z } } }]);
       const boss = await getSender();
       await boss.send(QUEUES.scaleUp, { material_id: id }, { db: inTrx(trx), retryLimit: 5, retryBackoff: true });
     }

@@ -3,7 +3,7 @@ import type { DB } from "@/db/schema";
 import { AppError } from "@/lib/errors";
 import type { ProfileInput } from "@/lib/batches/schemas";
 import { cycleMinutesFor, listProfiles } from "@/db/batches/reads";
-import { insertEvents } from "@/db/batches/commands";
+import { recordEvents } from "@/db/versioned";
 
 type Trx = Transaction<DB>;
 
@@ -47,7 +47,7 @@ export async function createProfile(trx: Trx, input: ProfileInput, actorId: stri
     .returning("id")
     .executeTakeFirstOrThrow();
   await writeChildren(trx, row.id, input);
-  await insertEvents(trx, [{ entity: "sinter_profile", entity_id: row.id, kind: "created", actor_id: actorId, data: { code: input.code, revision: 1 } }]);
+  await recordEvents(trx, [{ entity: "sinter_profile", entity_id: row.id, kind: "created", actor_id: actorId, data: { code: input.code, revision: 1 } }]);
   return row.id;
 }
 
@@ -87,7 +87,7 @@ export async function updateProfile(trx: Trx, id: string, input: ProfileInput & 
     await writeChildren(trx, id, input);
     // Draft runs carry no times, but their cycle estimate follows the profile.
     await refreshDraftCycles(trx, id);
-    await insertEvents(trx, [{ entity: "sinter_profile", entity_id: id, kind: "updated", actor_id: actorId, data: { revision: row.revision } }]);
+    await recordEvents(trx, [{ entity: "sinter_profile", entity_id: id, kind: "updated", actor_id: actorId, data: { revision: row.revision } }]);
     return { id, revised: false };
   }
   if (input.code !== row.code) {
@@ -106,7 +106,7 @@ export async function updateProfile(trx: Trx, id: string, input: ProfileInput & 
   await trx.updateTable("materials").set({ default_profile_id: created.id, version: sql<number>`version + 1`, updated_at: new Date() }).where("default_profile_id", "=", id).execute();
   await trx.updateTable("furnace_runs").set({ profile_id: created.id, version: sql<number>`version + 1`, updated_at: new Date() }).where("profile_id", "=", id).where("state", "=", "draft").execute();
   await refreshDraftCycles(trx, created.id);
-  await insertEvents(trx, [
+  await recordEvents(trx, [
     { entity: "sinter_profile", entity_id: created.id, kind: "revised", actor_id: actorId, reason: `${booked.n} booked run(s) keep revision ${row.revision}`, data: { supersedes_id: id, revision: row.revision + 1 } },
     { entity: "sinter_profile", entity_id: id, kind: "retired", actor_id: actorId, data: { superseded_by: created.id } },
   ]);

@@ -1,6 +1,7 @@
 import { type Transaction } from "kysely";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
+import { recordEvents } from "@/db/versioned";
 
 type Trx = Transaction<DB>;
 
@@ -19,9 +20,6 @@ export async function insertUnitsForPart(trx: Trx | Database, part: { id: string
     .values(serials.map((serial) => ({ part_id: part.id, serial, state: "planned" as const })))
     .returning(["id", "serial"])
     .execute();
-  await trx
-    .insertInto("events")
-    .values(rows.map((r) => ({ entity: "unit", entity_id: r.id, kind: "state", from_state: null, to_state: "planned", actor_id: actorId, reason: "created from order" })))
-    .execute();
+  await recordEvents(trx, rows.map((r) => ({ entity: "unit", entity_id: r.id, kind: "state", from_state: null, to_state: "planned", actor_id: actorId, reason: "created from order" })));
   return rows;
 }

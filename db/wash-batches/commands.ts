@@ -6,7 +6,7 @@ import { checkWashAdd, fitsBasket, washMinutesOf } from "@/lib/batches/rules";
 import { formatShopTime, isStaffedAt, nextStaffed } from "@/lib/batches/staffed";
 import type { BoardUnit, BookingState } from "@/lib/batches/types";
 import { massLossCheck } from "@/lib/process/wash";
-import { insertEvents } from "@/db/batches/commands";
+import { lockRowOrThrow, recordEvents, requireVersion } from "@/db/versioned";
 import { listBoardUnits, type Db, type ShopContext } from "@/db/batches/reads";
 import { getWash, massResults } from "./reads";
 
@@ -16,27 +16,15 @@ const MIN = 60_000;
 const PAST_SLACK_MS = 2 * MIN;
 
 export async function lockWashBatch(trx: Trx, id: string) {
-  const row = await trx.selectFrom("wash_batches").selectAll().where("id", "=", id).forUpdate().executeTakeFirst();
-  if (!row) throw new AppError("not_found", "That wash batch does not exist.");
-  return row;
+  return lockRowOrThrow(trx, "wash_batches", id, "That wash batch does not exist.");
 }
 
-export function assertVersion(kind: string, code: string, current: number, given: number) {
-  if (current !== given) {
-    throw new AppError("conflict", `${kind} ${code} was changed by someone else (you had version ${given}, it is now ${current}); reload to see the change.`, undefined, {
-      current_version: current,
-    });
-  }
-}
+export const assertVersion = (kind: string, code: string, current: number, given: number) => requireVersion(`${kind} ${code}`, current, given);
 
 export async function lockUnit(trx: Trx, id: string, version?: number) {
   const row = await trx.selectFrom("units").select(["id", "serial", "state", "version", "wash_batch_id", "furnace_run_id"]).where("id", "=", id).forUpdate().executeTakeFirst();
   if (!row) throw new AppError("not_found", "That unit does not exist.");
-  if (version !== undefined && row.version !== version) {
-    throw new AppError("conflict", `Unit ${row.serial} was changed by someone else (you had version ${version}, it is now ${row.version}); reload to see the change.`, undefined, {
-      current_version: row.version,
-    });
-  }
+  requireVersion(`Unit ${row.serial}`, row.version, version);
   return row;
 }
 
@@ -111,7 +99,7 @@ export async function createWashBatch(trx: Trx, ctx: ShopContext, input: { wash_
     .values({ code: sql<string>`'W-' || nextval('wash_batch_code_seq')`, wash_station_id: station.id, notes: input.notes, created_by: actorId })
     .returning(["id", "code"])
     .executeTakeFirstOrThrow();
-  await insertEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "state", to_state: "draft", actor_id: actorId, reason: `created on ${station.name}` }]);
+  await recordEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "state", to_state: "draft", actor_id: actorId, reason: `created on ${station.name}` }]);
   return getWash(trx, ctx, row.id);
 }
 
@@ -122,7 +110,7 @@ async function detachFromOpenWash(trx: Trx, ctx: ShopContext, unit: { id: string
   if (!["draft", "scheduled"].includes(other.state)) return;
   const rest = (await listBoardUnits(trx, ctx, { kind: "wash_batch", ids: [other.id] })).filter((u) => u.id !== unit.id);
   await bumpWash(trx, ctx, other, rest);
-  await insertEvents(trx, [{ entity: "wash_batch", entity_id: other.id, kind: "unit_removed", actor_id: actorId, data: { unit_id: unit.id, moved_to: exceptId } }]);
+  await recordEvents(trx, [{ entity: "wash_batch", entity_id: other.id, kind: "unit_removed", actor_id: actorId, data: { unit_id: unit.id, moved_to: exceptId } }]);
 }
 
 export async function addUnitToWash(
@@ -143,7 +131,7 @@ export async function addUnitToWash(
   await detachFromOpenWash(trx, ctx, unitRow, row.id, actorId);
   await trx.updateTable("units").set({ wash_batch_id: row.id, version: unitRow.version + 1, updated_at: new Date() }).where("id", "=", unitRow.id).execute();
   await bumpWash(trx, ctx, row, [...batchUnits, unit]);
-  await insertEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "unit_added", actor_id: actorId, data: { unit_id: unitRow.id, serial: unitRow.serial } }]);
+  await recordEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "unit_added", actor_id: actorId, data: { unit_id: unitRow.id, serial: unitRow.serial } }]);
   return getWash(trx, ctx, row.id);
 }
 
@@ -161,7 +149,7 @@ export async function removeUnitFromWash(
   await trx.updateTable("units").set({ wash_batch_id: null, version: unitRow.version + 1, updated_at: new Date() }).where("id", "=", unitRow.id).execute();
   const rest = await listBoardUnits(trx, ctx, { kind: "wash_batch", ids: [row.id] });
   await bumpWash(trx, ctx, row, rest);
-  await insertEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "unit_removed", actor_id: actorId, data: { unit_id: unitRow.id, serial: unitRow.serial } }]);
+  await recordEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "unit_removed", actor_id: actorId, data: { unit_id: unitRow.id, serial: unitRow.serial } }]);
   return getWash(trx, ctx, row.id);
 }
 
@@ -191,7 +179,7 @@ export async function scheduleWash(
   const end = new Date(start.getTime() + minutes * MIN);
   await checkBookingStart(trx, ctx, "wash", station.id, start, end);
   await bumpWash(trx, ctx, row, units, { state: "scheduled", starts_at: start, ends_at: end, wash_station_id: station.id });
-  await insertEvents(trx, [
+  await recordEvents(trx, [
     {
       entity: "wash_batch", entity_id: row.id, kind: "schedule", from_state: row.state, to_state: "scheduled", actor_id: actorId,
       data: { wash_station_id: station.id, starts_at: start.toISOString(), ends_at: end.toISOString(), previous: { wash_station_id: row.wash_station_id, starts_at: row.starts_at } },
@@ -218,7 +206,7 @@ export async function startWash(trx: Trx, ctx: ShopContext, input: { batchId: st
     .where("id", "in", units.map((u) => u.id))
     .execute();
   await bumpWash(trx, ctx, row, units, { state: "running", starts_at: now, ends_at: end, started_at: now });
-  await insertEvents(trx, [
+  await recordEvents(trx, [
     { entity: "wash_batch", entity_id: row.id, kind: "state", from_state: row.state, to_state: "running", actor_id: actorId, data: { ends_at: end.toISOString() } },
     ...units.map((u) => ({ entity: "unit", entity_id: u.id, kind: "state", from_state: "green", to_state: "washing", actor_id: actorId, reason: `wash ${row.code} started` })),
   ]);
@@ -267,7 +255,7 @@ export async function recordWashMasses(
   const units = await listBoardUnits(trx, ctx, { kind: "wash_batch", ids: [row.id] });
   massErrors(units, input.masses);
   await writeMasses(trx, units, input.masses, row.state === "running" || row.state === "complete");
-  await insertEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "masses", actor_id: actorId, data: { masses: input.masses } }]);
+  await recordEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "masses", actor_id: actorId, data: { masses: input.masses } }]);
   const after = await listBoardUnits(trx, ctx, { kind: "wash_batch", ids: [row.id] });
   return { batch: await getWash(trx, ctx, row.id), masses: massResults(after) };
 }
@@ -301,7 +289,7 @@ export async function finishWash(
   }
   const now = ctx.now;
   const results = massResults(units);
-  const events: Parameters<typeof insertEvents>[1] = [];
+  const events: Parameters<typeof recordEvents>[1] = [];
   const material = (u: BoardUnit) => u.material_code;
   for (const u of units) {
     if (u.state !== "washing") continue;
@@ -331,7 +319,7 @@ export async function finishWash(
   const endsAt = row.ends_at && now < new Date(row.ends_at) ? new Date(Math.max(now.getTime(), new Date(row.starts_at!).getTime() + MIN)) : row.ends_at;
   await bumpWash(trx, ctx, row, units, { state: "complete", finished_at: now, ends_at: endsAt });
   events.push({ entity: "wash_batch", entity_id: row.id, kind: "state", from_state: "running", to_state: "complete", actor_id: actorId, data: { passed: results.filter((r) => r.passed).length, held: results.filter((r) => r.passed === false).length } });
-  await insertEvents(trx, events);
+  await recordEvents(trx, events);
   return { batch: await getWash(trx, ctx, row.id), masses: results };
 }
 
@@ -341,6 +329,6 @@ export async function cancelWash(trx: Trx, ctx: ShopContext, input: { batchId: s
   if (!["draft", "scheduled"].includes(row.state)) throw refuse("state", `Wash batch ${row.code} is ${row.state}; only a draft or scheduled batch can be cancelled.`, "state");
   await trx.updateTable("units").set({ wash_batch_id: null, version: sql<number>`version + 1`, updated_at: new Date() }).where("wash_batch_id", "=", row.id).execute();
   await trx.updateTable("wash_batches").set({ state: "cancelled", version: row.version + 1, updated_at: new Date() }).where("id", "=", row.id).execute();
-  await insertEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "state", from_state: row.state, to_state: "cancelled", actor_id: actorId, reason: input.reason || null }]);
+  await recordEvents(trx, [{ entity: "wash_batch", entity_id: row.id, kind: "state", from_state: row.state, to_state: "cancelled", actor_id: actorId, reason: input.reason || null }]);
   return getWash(trx, ctx, row.id);
 }

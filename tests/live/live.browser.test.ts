@@ -16,6 +16,7 @@ const contexts: BrowserContext[] = [];
 let tech: string;
 let manager: string;
 let lane: { id: string; name: string };
+let shopZone: string;
 
 async function contextFor(cookie: string): Promise<BrowserContext> {
   const ctx = await browser.newContext({ viewport: { width: 1400, height: 1000 } });
@@ -36,7 +37,7 @@ async function openFloor(ctx: BrowserContext, block = false): Promise<Page> {
 
 /** A slot inside the week the floor opens on, an hour or more from now. */
 function slotThisWeek(offsetHours: number): Date {
-  const week = openingWeek();
+  const week = openingWeek(shopZone);
   const start = new Date(Math.max(Date.now() + 3_600_000, Date.parse(week.from)) + offsetHours * 3_600_000);
   start.setUTCMinutes(0, 0, 0);
   return start;
@@ -56,6 +57,7 @@ async function bookFrom(page: Page, build: { id: string; version: number }, star
 beforeAll(async () => {
   [tech, manager] = await Promise.all([signIn(DEMO.technician), signIn(DEMO.manager)]);
   lane = await makePrinter(db, { materials: ["17-4PH"], build: [330, 330, 330], rate: 40, name: `AB-${Date.now().toString(36)}` });
+  shopZone = (await db.selectFrom("shop_settings").select("time_zone").where("id", "=", 1).executeTakeFirstOrThrow()).time_zone;
   browser = await launchBrowser();
 });
 
@@ -80,7 +82,7 @@ describe("live updates in the browser", () => {
     // On the other screen: off the unscheduled list and onto the printer's lane.
     await b.waitForSelector(`[data-testid="unscheduled-${build.code}"]`, { state: "detached", timeout: 5_000 });
     const listGone = performance.now() - booked;
-    const inLane = Date.parse(openingWeek().to) > at.getTime();
+    const inLane = Date.parse(openingWeek(shopZone).to) > at.getTime();
     if (inLane) await b.waitForSelector(`.fc-timeline-lane[data-resource-id="${lane.id}"] [data-event-id="${build.id}"]`, { timeout: 5_000 });
     const onLane = performance.now() - booked;
     await screenshot(b, "live-floor-other-screen");
