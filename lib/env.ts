@@ -23,7 +23,7 @@ const envSchema = z.object({
   // as it streams to disk and measured by the worker from the store.
   UPLOAD_PARSE_MAX_BYTES: z.coerce.number().int().positive().default(16 * 1024 * 1024),
   S3_CONNECT_TIMEOUT_MS: z.coerce.number().int().positive().default(3_000),
-  S3_REQUEST_TIMEOUT_MS: z.coerce.number().int().positive().default(15_000),
+  S3_IDLE_TIMEOUT_MS: z.coerce.number().int().positive().default(15_000),
   DB_CONNECT_TIMEOUT_MS: z.coerce.number().int().positive().default(5_000),
   DB_POOL_MAX: z.coerce.number().int().positive().default(10),
   NODE_ENV: z.string().default("development"),

@@ -23,18 +23,21 @@ const instance = process.env.HEARTH_INSTANCE || `${hostname}:${port}`;
 const graceMs = Number(process.env.HEARTH_STOP_GRACE_MS ?? 10_000);
 
 /**
- * An answer given before the request's body was read to its end (a 413 for an upload over the
- * limit, a 401 before the upload) closes the connection: otherwise Node reads and discards the
- * rest of the body and keeps the connection, and a client that stopped sending waits on it
- * until the server's timeouts. The answer says "Connection: close" and the socket goes after it.
+ * Answers that must end their connection: one given before the request's body was read to its
+ * end (a 413 for an upload over the limit, a 401 before the upload) — otherwise Node reads and
+ * discards the rest of the body and keeps the connection, and a client that stopped sending
+ * waits on it until the server's timeouts — and any answer while the server stops. The answer
+ * says "Connection: close"; after an unread body the socket goes once the answer is out.
  */
-function closeIfBodyUnread(req: http.IncomingMessage, res: http.ServerResponse) {
+function closeWhenDue(req: http.IncomingMessage, res: http.ServerResponse, stopping: () => boolean) {
   const writeHead = res.writeHead;
   res.writeHead = function (this: http.ServerResponse, ...args: Parameters<typeof writeHead>) {
     const hasBody = req.headers["transfer-encoding"] !== undefined || Number(req.headers["content-length"] ?? 0) > 0;
     if (hasBody && !req.complete) {
       res.shouldKeepAlive = false;
       res.once("finish", () => req.socket.destroy());
+    } else if (stopping()) {
+      res.shouldKeepAlive = false;
     }
     return writeHead.apply(this, args);
   } as typeof res.writeHead;
@@ -51,9 +54,7 @@ async function main() {
   let stopping = false;
   const server = http.createServer((req, res) => {
     res.setHeader("x-hearth-instance", instance);
-    // While stopping, each answer ends its connection, so that none stays open idle.
-    if (stopping) res.shouldKeepAlive = false;
-    closeIfBodyUnread(req, res);
+    closeWhenDue(req, res, () => stopping);
     const direct = req.url?.startsWith(STATIC_PREFIX)
       ? assets.answer(req, res)
       : secret

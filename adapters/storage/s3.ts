@@ -4,10 +4,11 @@ import { getEnv } from "@/lib/env";
 
 let client: S3Client | undefined;
 
-// A store that accepts connections and never answers must not hold a request (and its
-// database connection) for ever: connecting is refused after S3_CONNECT_TIMEOUT_MS, a socket
-// silent for S3_REQUEST_TIMEOUT_MS is given up (@smithy/node-http-handler: connectionTimeout,
-// requestTimeout), and the SDK tries twice at most.
+// A store that accepts connections and never answers must not hold a request for ever:
+// connecting is given up after S3_CONNECT_TIMEOUT_MS, a request whose socket stays silent for
+// S3_IDLE_TIMEOUT_MS fails (@smithy/node-http-handler's connectionTimeout and socketTimeout;
+// its requestTimeout would bound the whole transfer, which a large upload on a slow link may
+// rightly exceed), and the SDK tries twice at most.
 export const HEALTH_CHECK_MS = 3_000;
 
 /** S3 client for the configured endpoint: the local s3rver fake, or any S3-compatible store. */
@@ -25,7 +26,7 @@ export function getS3(): S3Client {
       // (the local fake among them) store as it came, framing and all.
       requestChecksumCalculation: "WHEN_REQUIRED",
       responseChecksumValidation: "WHEN_REQUIRED",
-      requestHandler: new NodeHttpHandler({ connectionTimeout: env.S3_CONNECT_TIMEOUT_MS, requestTimeout: env.S3_REQUEST_TIMEOUT_MS }),
+      requestHandler: new NodeHttpHandler({ connectionTimeout: env.S3_CONNECT_TIMEOUT_MS, socketTimeout: env.S3_IDLE_TIMEOUT_MS }),
     });
   }
   return client;

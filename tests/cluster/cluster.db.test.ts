@@ -25,6 +25,7 @@ let cookie: string;
 beforeAll(async () => {
   w = await createWorkerDb("cluster");
   await w.db.updateTable("users").set({ password_hash: await hashPassword(PASSWORD) }).where("id", "=", w.shop.users.technician.id).execute();
+  await w.db.insertInto("printer_materials").values(w.shop.printer_ids.map((printer_id) => ({ printer_id, material_id: w.shop.material_id }))).execute();
   boss = await startSender(w.url);
   dir = await mkdtemp(path.join(os.tmpdir(), "hearth-nginx-"));
   cluster = await startCluster({

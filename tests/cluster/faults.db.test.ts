@@ -53,7 +53,7 @@ beforeAll(async () => {
     startOwnApp(HUNG_APP, {
       S3_ENDPOINT: `http://127.0.0.1:${HUNG_STORE}`,
       S3_CONNECT_TIMEOUT_MS: "1000",
-      S3_REQUEST_TIMEOUT_MS: "2000",
+      S3_IDLE_TIMEOUT_MS: "2000",
       UPLOAD_MAX_BYTES: String(1024 * 1024),
       DB_POOL_MAX: "10",
       HEARTH_STOP_GRACE_MS: "10000",
@@ -74,15 +74,18 @@ describe("an object store that never answers", () => {
     const cookie = await signInAt(HUNG_APP);
     const part = await newPart();
     const stl = writeBinaryStl(boxMesh(10, 10, 10));
+    // Warm: the first answer of a route in a fresh process loads its code.
+    expect((await fetch(`http://127.0.0.1:${HUNG_APP}/api/orders`, { headers: { cookie } })).status).toBe(200);
     const started = Date.now();
     const uploads = Array.from({ length: 12 }, () =>
-      fetch(`http://127.0.0.1:${HUNG_APP}/api/parts/${part.id}/geometry`, { method: "POST", headers: { cookie, "content-type": "application/octet-stream", "x-filename": "part.stl" }, body: stl, signal: AbortSignal.timeout(30_000) }).then(async (r) => ({ status: r.status, retry: r.headers.get("retry-after"), body: await r.json(), ms: Date.now() - started })),
+      fetch(`http://127.0.0.1:${HUNG_APP}/api/parts/${part.id}/geometry`, { method: "POST", headers: { cookie, "content-type": "application/octet-stream", "x-filename": "part.stl" }, body: stl as BodyInit, signal: AbortSignal.timeout(30_000) }).then(async (r) => ({ status: r.status, retry: r.headers.get("retry-after"), body: await r.json(), ms: Date.now() - started })),
     );
     await new Promise((r) => setTimeout(r, 500));
     const t0 = Date.now();
     const orders = await fetch(`http://127.0.0.1:${HUNG_APP}/api/orders`, { headers: { cookie }, signal: AbortSignal.timeout(10_000) });
     expect(orders.status).toBe(200);
-    expect(Date.now() - t0).toBeLessThan(3_000);
+    // Held connections would leave it waiting for the pool (DB_CONNECT_TIMEOUT_MS, then a 503).
+    expect(Date.now() - t0).toBeLessThan(4_500);
     const t1 = Date.now();
     const health = await fetch(`http://127.0.0.1:${HUNG_APP}/api/health`, { signal: AbortSignal.timeout(15_000) });
     expect(health.status).toBe(503);
@@ -138,7 +141,7 @@ describe("an upload over the limit sent in chunks", () => {
 });
 
 describe("a large upload", () => {
-  it("streams to the store: a 40 MB STL four times the parse buffer is stored whole while the app's peak memory rises far less than the file", async () => {
+  it("streams to the store: a 95 MB STL, twenty-four times the parse buffer, is stored whole while the app's peak memory rises by less than half the file", async () => {
     const cookie = await signInAt(ROOMY_APP);
     const part = await newPart();
     const pid = roomyApp.child.pid!;
@@ -147,7 +150,7 @@ describe("a large upload", () => {
     await writeFile(`/proc/${pid}/clear_refs`, "5");
     const before = await peakKb();
     const perChunk = 20_000;
-    const chunks = 40;
+    const chunks = 100;
     const triangles = perChunk * chunks;
     const facet = writeBinaryStl(boxMesh(10, 10, 10)).subarray(84, 134);
     const chunk = Buffer.alloc(50 * perChunk);
@@ -180,13 +183,15 @@ describe("a large upload", () => {
     expect(risenMb).toBeLessThan(size / 1024 / 1024 / 2);
     const stored = await fetch(`http://127.0.0.1:${ROOMY_APP}/api/files/${file.id}/content`, { headers: { cookie } });
     expect(stored.status).toBe(200);
-    expect(Number(stored.headers.get("content-length") ?? (await stored.arrayBuffer()).byteLength)).toBe(size);
-    await stored.body?.cancel();
+    let got = 0;
+    for await (const part of stored.body!) got += part.byteLength;
+    expect(got).toBe(size);
   });
 });
 
 describe("a graceful stop", () => {
-  it("with no request in flight stops at once, far inside the ten-second grace, even with an idle kept-alive connection", async () => {
+  it("closes idle kept-alive connections at once and stops as soon as the request in flight is answered, far inside the ten-second grace", async () => {
+    // One idle kept-alive connection...
     const agent = new http.Agent({ keepAlive: true });
     await new Promise<void>((resolve, reject) => {
       http.get({ host: "127.0.0.1", port: HUNG_APP, path: "/api/orders", agent }, (r) => {
@@ -194,13 +199,27 @@ describe("a graceful stop", () => {
         r.on("end", resolve);
       }).on("error", reject);
     });
+    // ...and one request whose body is still arriving when the stop begins.
+    const body = "{ this is not JSON }";
+    const socket = net.connect(HUNG_APP, "127.0.0.1");
+    socket.on("error", () => {});
+    let answer = "";
+    socket.on("data", (d: Buffer) => (answer += d.toString("latin1")));
+    await new Promise((r) => socket.once("connect", r));
+    socket.write(`POST /api/session HTTP/1.1\r\nHost: 127.0.0.1\r\nContent-Type: application/json\r\nContent-Length: ${body.length}\r\nConnection: keep-alive\r\n\r\n${body.slice(0, 5)}`);
+    await new Promise((r) => setTimeout(r, 200));
     const t0 = Date.now();
     hungApp.child.kill("SIGTERM");
+    await new Promise((r) => setTimeout(r, 300));
+    socket.write(body.slice(5));
     const code = await hungApp.exited;
     const ms = Date.now() - t0;
     agent.destroy();
+    socket.destroy();
     console.log(`[faults] the app stopped in ${ms} ms`);
+    expect(answer).toMatch(/^HTTP\/1\.1 400 /);
+    expect(answer.toLowerCase()).toContain("connection: close");
     expect(code).toBe(0);
-    expect(ms).toBeLessThan(3_000);
+    expect(ms).toBeLessThan(4_000);
   });
 });
