@@ -40,7 +40,7 @@ beforeAll(async () => {
   const res = await fetch(`${cluster.url}/api/session`, { method: "POST", headers: { "content-type": "application/json" }, body: JSON.stringify({ email: w.shop.users.technician.email, password: PASSWORD }) });
   expect(res.status, await res.clone().text()).toBe(200);
   cookie = res.headers.getSetCookie().find((c) => c.startsWith("hearth_session="))!.split(";")[0];
-}, 180_000);
+}, 240_000);
 
 afterAll(async () => {
   await cluster?.stop();
