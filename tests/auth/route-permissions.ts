@@ -39,6 +39,22 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/users/[id]": { GET: "users:admin", PATCH: "users:admin" },
   "/api/users/[id]/link": { POST: "users:admin" },
 
+  // feedstock and consumables
+  "/api/inventory/lots": { GET: "shop:read", POST: "inventory:write" },
+  "/api/inventory/lots/import": { POST: "inventory:write" },
+  "/api/inventory/lots/[id]": { GET: "shop:read", PATCH: "inventory:write" },
+  "/api/inventory/lots/[id]/recall": { POST: "inventory:recall" },
+  "/api/inventory/lots/[id]/genealogy": { GET: "shop:read" },
+  "/api/inventory/lots/[id]/label": { GET: "shop:read" },
+  "/api/inventory/projection": { GET: "shop:read" },
+  "/api/inventory/shortfalls": { GET: "shop:read" },
+  "/api/inventory/forms": { GET: "shop:read", POST: "inventory:write" },
+  "/api/inventory/materials/[id]": { PATCH: "inventory:write" },
+  "/api/inventory/consumables": { GET: "shop:read" },
+  "/api/inventory/gas": { POST: "consumables:write" },
+  "/api/inventory/baths/[id]": { POST: "consumables:write" },
+  "/api/units/[id]/origin": { GET: "shop:read" },
+
   // set-up
   "/api/furnaces": { GET: "shop:read", POST: "setup:write" },
   "/api/furnaces/[id]": { PATCH: "setup:write" },
