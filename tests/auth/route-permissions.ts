@@ -23,6 +23,8 @@ export type RouteCheck =
       /** A body instead of the default "not JSON" text; `null` for none. */
       body?: string | Record<string, unknown> | null;
       note?: string;
+      /** The answer is a stream that stays open: judge the status and headers, then hang up. */
+      stream?: boolean;
     };
 
 /** Keyed by the route's URL pattern: the file path without app/, route groups and /route.ts. */
@@ -38,6 +40,8 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/users": { GET: "users:admin", POST: "users:admin" },
   "/api/users/[id]": { GET: "users:admin", PATCH: "users:admin" },
   "/api/users/[id]/link": { POST: "users:admin" },
+
+  "/api/events": { GET: { gate: "shop:read", stream: true, note: "server-sent events: an open stream once allowed" } },
 
   // feedstock and consumables
   "/api/inventory/lots": { GET: "shop:read", POST: "inventory:write" },
