@@ -6,6 +6,7 @@ import { listDueBookings } from "@/db/advance/reads";
 import { recomputeScaleUp } from "./handlers/scale-up";
 import { drainOutbox } from "./handlers/send-mail";
 import { shuffled } from "./limit";
+import { expireQuotes } from "@/db/quotes/commands";
 
 export type SweepResult = { advanced: number; rescaled: number; mail_sent: number; errors: string[]; ms: number };
 
@@ -35,6 +36,11 @@ export async function runSweep(db: Database, boss: PgBoss, workerId: string, opt
       rescaled = (await recomputeScaleUp(db, { stale: 200 })).changed;
     } catch (err) {
       errors.push(`scale-up: ${err instanceof Error ? err.message : String(err)}`);
+    }
+    try {
+      await expireQuotes(db);
+    } catch (err) {
+      errors.push(`quotes: ${err instanceof Error ? err.message : String(err)}`);
     }
     mailSent = (await drainOutbox(db, 200)).sent;
   } catch (err) {

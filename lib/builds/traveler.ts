@@ -33,7 +33,7 @@ const CLAY = rgb(0.659, 0.31, 0.165);
 const LINE = rgb(0.827, 0.804, 0.769);
 
 /** Standard PDF fonts only know WinAnsi; anything else would throw while drawing. */
-function safe(text: string): string {
+export function safe(text: string): string {
   return text
     .replace(/[≤]/g, "<=")
     .replace(/[≥]/g, ">=")
@@ -69,7 +69,7 @@ function drawQr(page: PDFPage, text: string, x: number, y: number, size: number)
   }
 }
 
-function fit(font: PDFFont, text: string, size: number, width: number): string {
+export function fit(font: PDFFont, text: string, size: number, width: number): string {
   let t = safe(text);
   if (font.widthOfTextAtSize(t, size) <= width) return t;
   while (t.length > 1 && font.widthOfTextAtSize(`${t}…`, size) > width) t = t.slice(0, -1);
