@@ -159,12 +159,27 @@ function plateCapacity(spec: BuildUnitSpec, printer: PrinterSpec, clearance: num
   return lo;
 }
 
+// Laying out a plate is the costly part of a plan and its answer depends only on these numbers,
+// so it is remembered across plans (a quote page, the reverse search and the bench repeat them).
+const plateMemo = new Map<string, number | null>();
+const PLATE_MEMO_MAX = 5000;
+
 function printMinutes(spec: BuildUnitSpec, printer: PrinterSpec, clearance: number, k: number, cache: Map<string, number | null>): number | null {
   const key = `${printer.id}:${k}`;
   if (cache.has(key)) return cache.get(key)!;
-  const units = Array.from({ length: k }, (_, i) => ({ ...spec, unit_id: `u${i}`, serial: `u${i}` }));
-  const v = judgePrinter(units, spec.material_id, printer, clearance);
-  const m = v.ok ? v.est_minutes : null;
+  const takes = printer.active && printer.material_ids.includes(spec.material_id);
+  const memoKey = [
+    takes, printer.build_x_mm, printer.build_y_mm, printer.build_z_mm, printer.deposition_cm3_per_h, printer.layer_height_mm, printer.layer_overhead_s,
+    spec.green_x_mm, spec.green_y_mm, spec.green_z_mm, spec.green_volume_mm3, clearance, k,
+  ].join("|");
+  let m = plateMemo.get(memoKey);
+  if (m === undefined) {
+    const units = Array.from({ length: k }, (_, i) => ({ ...spec, unit_id: `u${i}`, serial: `u${i}` }));
+    const v = judgePrinter(units, spec.material_id, printer, clearance);
+    m = v.ok ? v.est_minutes : null;
+    if (plateMemo.size >= PLATE_MEMO_MAX) plateMemo.clear();
+    plateMemo.set(memoKey, m);
+  }
   cache.set(key, m);
   return m;
 }

@@ -23,7 +23,8 @@ export function wilsonInterval(successes: number, trials: number, z = Z95): Wils
   const denom = 1 + z2 / n;
   const center = (p + z2 / (2 * n)) / denom;
   const half = (z / denom) * Math.sqrt((p * (1 - p)) / n + z2 / (4 * n * n));
-  return { low: Math.max(0, center - half), high: Math.min(1, center + half), center };
+  // At k = 0 and k = n the bound is exactly 0 or 1; floating point would leave 1 − 1e-16.
+  return { low: successes === 0 ? 0 : Math.max(0, center - half), high: successes === n ? 1 : Math.min(1, center + half), center };
 }
 
 export type MaterialYield = {
