@@ -90,7 +90,10 @@ export type EvaluatedQuote = {
 
 export function lineUnit(line: QuoteLineSpec, m: QuoteMaterial, rates: Pick<CostRates, "finishing_min_per_cm2">): LineUnit {
   const s = scaleUp({ nominal: line.nominal, stock: line.stock, shrink: { xy: m.shrink_xy, z: m.shrink_z } });
-  const green = { x: s.x.green, y: s.y.green, z: s.z.green };
+  // Kept to the micrometre, as a part stores its green size (db/parts scaleFields), so the plan
+  // a quote makes and the bookings its order gets estimate the same print time.
+  const um = (x: number) => Math.round(x * 1000) / 1000;
+  const green = { x: um(s.x.green), y: um(s.y.green), z: um(s.z.green) };
   const grow = (green.x / line.nominal.x) * (green.y / line.nominal.y) * (green.z / line.nominal.z);
   const estimated = !(line.volume_mm3 && line.volume_mm3 > 0);
   // Without geometry: half the bounding box, as the build estimate does (lib/builds/estimate).
