@@ -6,7 +6,7 @@ export type CostTableProps = { figures: CostFigure[]; currency: string; minorDig
 /** Each figure with its formula and inputs behind a details element (keyboard and touch open it). */
 export function CostTable({ figures, currency, minorDigits }: CostTableProps) {
   return (
-    <ul className="divide-y divide-soot-100 text-sm" data-testid="cost-figures">
+    <ul className="min-w-0 divide-y divide-soot-100 text-sm" data-testid="cost-figures">
       {figures.map((f) => {
         const strong = f.key === "subtotal" || f.key === "total";
         return (
@@ -20,12 +20,12 @@ export function CostTable({ figures, currency, minorDigits }: CostTableProps) {
                 <span className={`tabular ${strong ? "font-semibold" : ""}`} data-minor={f.minor}>{formatMoney(f.minor, currency, minorDigits)}</span>
               </summary>
               <div className="mt-1 space-y-1 rounded-md bg-soot-50 px-3 py-2 text-xs text-soot-700">
-                <p className="font-mono">{f.formula}</p>
+                <p className="break-words font-mono">{f.formula}</p>
                 {Object.keys(f.inputs).length ? (
-                  <dl className="grid grid-cols-[minmax(8rem,auto)_1fr] gap-x-3 gap-y-0.5">
+                  <dl className="grid grid-cols-[minmax(0,9rem)_minmax(0,1fr)] gap-x-3 gap-y-0.5">
                     {Object.entries(f.inputs).map(([k, v]) => (
                       <div key={k} className="contents">
-                        <dt className="text-soot-500">{k.replaceAll("_", " ")}</dt>
+                        <dt className="break-words text-soot-500">{k.replaceAll("_", " ")}</dt>
                         <dd className="tabular break-words">{String(v)}</dd>
                       </div>
                     ))}

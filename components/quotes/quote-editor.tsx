@@ -126,7 +126,7 @@ export function QuoteEditor({ id, canWrite, maxUploadBytes }: QuoteEditorProps) 
       <section className="rounded-card border border-soot-200 bg-white p-4 shadow-card" aria-labelledby="summary-h">
         <h2 id="summary-h" className="font-display text-base font-semibold text-soot-900">Price and promise {draft ? "(as the schedule stands now)" : "(as sent)"}</h2>
         {ev ? (
-          <dl className="mt-2 grid gap-2 text-sm sm:grid-cols-3">
+          <dl className="mt-2 grid grid-cols-1 gap-2 text-sm sm:grid-cols-3">
             <div><dt className="text-2xs text-soot-500">Total</dt><dd className="tabular text-lg font-semibold" data-testid="quote-total">{ev.total_minor === null ? "cannot be planned" : money(ev.total_minor)}</dd></div>
             <div><dt className="text-2xs text-soot-500">Earliest completion</dt><dd className="tabular font-semibold" data-testid="quote-promise">{when(ev.completion, tz)}</dd></div>
             <div><dt className="text-2xs text-soot-500">9 in 10 chance by (P90)</dt><dd className="tabular font-semibold">{when(ev.p90, tz)}</dd></div>
@@ -148,13 +148,13 @@ export function QuoteEditor({ id, canWrite, maxUploadBytes }: QuoteEditorProps) 
                 <button type="button" className="text-sm text-oxide-700 underline" onClick={() => act(() => sendJson(`/api/quotes/${id}/lines/${line.id}`, "DELETE", { version: q.version }))}>Remove</button>
               ) : null}
             </div>
-            <div className="mt-3 grid gap-4 lg:grid-cols-2">
-              <div>
+            <div className="mt-3 grid grid-cols-1 gap-4 lg:grid-cols-2">
+              <div className="min-w-0">
                 <h4 className="text-xs font-semibold text-soot-600">Cost</h4>
                 {l.cost ? <CostTable figures={l.cost.figures} currency={q.currency} minorDigits={q.minor_digits} /> : <p className="text-sm text-soot-500">No cost: the line cannot be planned.</p>}
                 {l.unit.volume_estimated ? <p className="mt-1 text-xs text-brass-700">No closed mesh volume: the green volume is taken as half the bounding box.</p> : null}
               </div>
-              <div>
+              <div className="min-w-0">
                 <h4 className="text-xs font-semibold text-soot-600">Plan (tentative, nothing booked)</h4>
                 {l.promise.feasible ? (
                   <>
@@ -177,7 +177,7 @@ export function QuoteEditor({ id, canWrite, maxUploadBytes }: QuoteEditorProps) 
                         </tbody>
                       </table>
                     </div>
-                    <p className="mt-1 text-2xs text-soot-500">● critical path. P90 from actual ÷ planned durations: {(["print", "wash", "furnace", "finishing"] as const).map((k) => `${k} ×${l.promise.feasible ? l.promise.p90_basis[k].p90_ratio.toFixed(2) : "?"} (${l.promise.feasible && l.promise.p90_basis[k].source === "history" ? `${l.promise.p90_basis[k].samples} records` : "fallback, no history"})`).join(", ")}.</p>
+                    <p className="mt-1 break-words text-2xs text-soot-500">● critical path. P90 from actual ÷ planned durations: {(["print", "wash", "furnace", "finishing"] as const).map((k) => `${k} ×${l.promise.feasible ? l.promise.p90_basis[k].p90_ratio.toFixed(2) : "?"} (${l.promise.feasible && l.promise.p90_basis[k].source === "history" ? `${l.promise.p90_basis[k].samples} records` : "fallback, no history"})`).join(", ")}.</p>
                   </>
                 ) : (
                   <p className="rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700" data-testid="line-infeasible">{l.promise.reason}</p>

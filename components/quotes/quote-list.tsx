@@ -48,7 +48,7 @@ export function QuoteList({ canWrite }: QuoteListProps) {
       {canWrite ? (
         <form onSubmit={create} className="rounded-card border border-soot-200 bg-white p-4 shadow-card" aria-labelledby="new-quote" data-testid="new-quote">
           <h2 id="new-quote" className="font-display text-base font-semibold text-soot-900">New quote</h2>
-          <div className="mt-3 grid gap-3 sm:grid-cols-3">
+          <div className="mt-3 grid grid-cols-1 gap-3 sm:grid-cols-3">
             <label className="block text-sm">
               <span className="block text-2xs text-soot-500">Customer</span>
               <input name="customer" required maxLength={200} className="w-full rounded-md border border-soot-300 px-2 py-2" aria-invalid={!!fieldErrors.customer} />

@@ -58,7 +58,13 @@ describe("quotes in a browser", () => {
     await page.locator('[data-figure="feedstock"] summary').click();
     expect(await page.locator('[data-figure="feedstock"]').textContent()).toContain("ρ_feed");
     // nothing overflows sideways on a phone
-    expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
+    const wide = await page.evaluate(() =>
+      [...document.querySelectorAll("body *")]
+        .filter((el) => el.getBoundingClientRect().right > 391 && !el.closest(".overflow-x-auto"))
+        .slice(0, 5)
+        .map((el) => `${el.tagName.toLowerCase()}.${String(el.className).slice(0, 60)} → ${Math.round(el.getBoundingClientRect().right)}`),
+    );
+    expect(await page.evaluate(() => document.documentElement.scrollWidth), wide.join("\n")).toBeLessThanOrEqual(390);
     await screenshot(page, "quote-draft-390");
 
     await page.getByRole("button", { name: "Send to customer" }).click();
