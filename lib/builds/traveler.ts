@@ -54,7 +54,7 @@ function duration(minutes: number | null): string {
   return h ? `${h} h ${String(m).padStart(2, "0")} min` : `${m} min`;
 }
 
-function drawQr(page: PDFPage, text: string, x: number, y: number, size: number) {
+export function drawQr(page: PDFPage, text: string, x: number, y: number, size: number) {
   const qr = QRCode.create(text, { errorCorrectionLevel: "M" });
   const n = qr.modules.size;
   const quiet = 2;
