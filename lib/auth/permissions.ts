@@ -32,6 +32,8 @@ export const PERMISSIONS = {
   "finishing:write": ["admin", "machinist"],
   "inspections:write": ["admin", "machinist"],
   "capacity:read": ["admin", "manager"],
+  "quotes:read": ["admin", "manager", "technician"],
+  "quotes:write": ["admin", "manager"],
   "calibration:apply": ["admin"],
   "setup:write": ["admin"],
   "users:admin": ["admin"],
@@ -60,6 +62,7 @@ export const NAV: NavItem[] = [
   { href: "/finishing", label: "Finishing", permission: "shop:read", hint: "Arriving and ready parts, inspection" },
   { href: "/inventory", label: "Feedstock", permission: "shop:read", hint: "Lots on hand, projection, genealogy, solvent and gas" },
   { href: "/capacity", label: "Capacity", permission: "capacity:read", hint: "Utilization, work in progress, late orders" },
+  { href: "/quotes", label: "Quotes", permission: "quotes:read", hint: "Prices and promise dates for customers" },
   { href: "/setup", label: "Set-up", permission: "setup:write", hint: "Users, equipment, materials, profiles" },
   { href: "/mail", label: "Mail", permission: "mail:read", hint: "Messages captured by the local mail server" },
 ];

@@ -25,7 +25,7 @@ export const stockMm = z.preprocess(
   (v) => toNumber(v) ?? 0,
   z.number({ error: NUMBER }).finite(NUMBER).min(0, "stock cannot be negative").max(25, "more than 25 mm of stock: check the value"),
 );
-const optionalPositive = (label: string, max: number) =>
+export const optionalPositive = (label: string, max: number) =>
   z.preprocess(toNullableNumber, z.number({ error: NUMBER }).finite(NUMBER).positive(`${label} must be greater than 0`).max(max).nullable());
 
 const text = (max: number) => z.string().trim().max(max, `at most ${max} characters`);

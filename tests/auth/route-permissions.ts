@@ -138,6 +138,18 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/calendar/feeds/[token]/[resource]": { GET: { gate: "public", note: "the secret in the address is the credential; an unknown one is a 404" } },
   "/api/mail": { GET: "mail:read" },
   "/api/jobs": { GET: "jobs:read" },
+  // quotes
+  "/api/quotes": { GET: "quotes:read", POST: "quotes:write" },
+  "/api/quotes/[id]": { GET: "quotes:read", PATCH: "quotes:write" },
+  "/api/quotes/[id]/lines": { POST: "quotes:write" },
+  "/api/quotes/[id]/lines/[lineId]": { DELETE: "quotes:write" },
+  "/api/quotes/[id]/actions": { POST: "quotes:write" },
+  "/api/quotes/[id]/pdf": { GET: "quotes:read" },
+  "/api/quotes/[id]/capable": { GET: "quotes:read" },
+  "/api/quotes/geometry": { POST: { gate: "quotes:write", body: null, note: "an empty upload is refused after the gate" } },
+  "/api/quotes/learning": { GET: "capacity:read" },
+  "/api/quote-settings": { GET: "quotes:read", PUT: "setup:write" },
+  "/api/quote-settings/materials": { PUT: "setup:write" },
 };
 
 /**

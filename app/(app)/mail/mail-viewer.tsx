@@ -3,7 +3,7 @@
 import { useMemo, useState } from "react";
 import { QueryClient, QueryClientProvider, useQuery } from "@tanstack/react-query";
 
-type Message = { id: string; received_at: string; from: string; to: string[]; subject: string; text: string; html: string; message_id: string | null };
+type Message = { id: string; received_at: string; from: string; to: string[]; subject: string; text: string; html: string; message_id: string | null; attachments?: { filename: string; content_type: string; size: number }[] };
 type OutboxRow = {
   id: string;
   kind: string;
@@ -148,6 +148,12 @@ function MailViewerInner() {
                   <dd>{when(current.received_at)}</dd>
                   <dt className="text-soot-500">Message-ID</dt>
                   <dd className="break-all font-mono">{current.message_id ?? "—"}</dd>
+                  {current.attachments?.length ? (
+                    <>
+                      <dt className="text-soot-500">Attached</dt>
+                      <dd data-testid="mail-attachments">{current.attachments.map((a) => `${a.filename} (${a.content_type}, ${Math.ceil(a.size / 1024)} KB)`).join(", ")}</dd>
+                    </>
+                  ) : null}
                 </dl>
                 <div className="mt-3 inline-flex rounded-md border border-soot-200 text-xs font-semibold" role="group" aria-label="Show as">
                   {(["html", "text"] as const).map((v) => (

@@ -14,12 +14,10 @@ import { QUEUES } from "@/lib/jobs/queues";
 import { deleteObjectQuietly, getS3 } from "@/adapters/storage/s3";
 import { spoolUpload, type SpooledUpload } from "@/app/_server/spool-upload";
 import { readId, type IdContext } from "@/app/api/builds/_helpers";
+import { STL_TYPES } from "@/app/_server/stl-upload";
 
 // A storage hiccup is retried; a file that cannot be parsed never reaches the queue.
 const GEOMETRY_RETRY_LIMIT = 3;
-
-// Browsers and CAD tools label STL files in many ways; none of these can carry anything else.
-const STL_TYPES = new Set(["", "application/octet-stream", "model/stl", "model/x.stl-binary", "model/x.stl-ascii", "application/sla", "application/vnd.ms-pki.stl", "text/plain"]);
 
 // POST /api/parts/[id]/geometry – upload the part's STL (raw body, name in x-filename); checked before anything is stored, analysed by the worker (technician, admin)
 export async function POST(req: Request, ctx: IdContext) {
