@@ -12,6 +12,7 @@ import next from "next";
 import { closeDb, getDb } from "@/db/client";
 import { answerFloorWindow } from "@/app/_server/floor-window-direct";
 import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
+import { withRequestLog } from "@/app/_server/request-log";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const port = Number(process.env.PORT ?? 3000);
@@ -25,7 +26,7 @@ async function main() {
   // Without a usable secret nothing can be answered directly; Next.js then reports the set-up error.
   const secret = process.env.SESSION_SECRET && process.env.SESSION_SECRET.length >= 32 ? process.env.SESSION_SECRET : null;
 
-  const server = http.createServer((req, res) => {
+  const server = http.createServer((req, res) => withRequestLog(req, res, () => {
     const direct = req.url?.startsWith(STATIC_PREFIX)
       ? assets.answer(req, res)
       : secret
@@ -43,7 +44,7 @@ async function main() {
         if (!res.headersSent) res.writeHead(500, { "content-type": "text/plain" });
         res.end();
       });
-  });
+  }));
   // Longer than a reverse proxy's usual idle timeout, so that the proxy closes first.
   server.keepAliveTimeout = 65_000;
   server.headersTimeout = 66_000;

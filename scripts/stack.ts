@@ -65,12 +65,22 @@ export function startApp(port: number, env: NodeJS.ProcessEnv, quiet = false): P
   return startProc("app", process.execPath, ["--import", "tsx", "scripts/serve.ts"], { ...env, PORT: String(port), HOSTNAME: "127.0.0.1" }, quiet);
 }
 
+/**
+ * How to start each process of a running Hearth: the fakes, one worker and the web server. The
+ * worker runs as one node process (not tsx's wrapper), so that a signal reaches it directly.
+ */
+export function stackSpecs({ port, env, quiet }: StackOptions): ProcSpec[] {
+  return [
+    { name: "fakes", start: () => startProc("fakes", process.execPath, ["--import", "tsx", "scripts/fakes.ts"], env, quiet) },
+    { name: "worker", start: () => startProc("worker", process.execPath, ["--import", "tsx", "worker/index.ts"], env, quiet) },
+    { name: "app", start: () => startApp(port, env, quiet) },
+  ];
+}
+
 /** The fakes, the web server and one worker; resolves when the app answers its health check. */
-export async function startStack({ port, env, quiet }: StackOptions): Promise<Proc[]> {
-  const procs: Proc[] = [];
-  procs.push(startProc("fakes", bin("tsx"), ["scripts/fakes.ts"], env, quiet));
-  procs.push(startProc("worker", bin("tsx"), ["worker/index.ts"], env, quiet));
-  procs.push(startApp(port, env, quiet));
+export async function startStack(options: StackOptions): Promise<Proc[]> {
+  const procs = stackSpecs(options).map((s) => s.start());
+  const { port } = options;
   try {
     await waitFor(`http://127.0.0.1:${port}/api/health`, 90_000, (s) => s === 200);
   } catch (err) {
@@ -78,4 +88,71 @@ export async function startStack({ port, env, quiet }: StackOptions): Promise<Pr
     throw err;
   }
   return procs;
+}
+
+export type ProcSpec = { name: string; start: () => Proc };
+
+export type SupervisorOptions = {
+  /** first wait before a restart; it doubles with each crash up to maxDelayMs */
+  baseDelayMs?: number;
+  maxDelayMs?: number;
+  /** a process that ran this long before it stopped starts again after baseDelayMs */
+  healthyMs?: number;
+  log?: (line: string) => void;
+};
+
+/**
+ * Keeps each process running: one that stops without being asked to starts again after a wait
+ * that doubles with every crash in a row (1 s, 2 s, 4 s … 30 s) and falls back to the first
+ * after a minute of healthy running, so that a crash loop neither spins nor gives up.
+ */
+export class Supervisor {
+  readonly procs = new Map<string, Proc>();
+  private readonly delays = new Map<string, number>();
+  private readonly timers = new Set<NodeJS.Timeout>();
+  private stopping = false;
+  private readonly base: number;
+  private readonly max: number;
+  private readonly healthy: number;
+  private readonly log: (line: string) => void;
+
+  constructor(
+    private readonly specs: ProcSpec[],
+    opts: SupervisorOptions = {},
+  ) {
+    this.base = opts.baseDelayMs ?? 1_000;
+    this.max = opts.maxDelayMs ?? 30_000;
+    this.healthy = opts.healthyMs ?? 60_000;
+    this.log = opts.log ?? ((line) => console.error(line));
+  }
+
+  start(): void {
+    for (const spec of this.specs) this.launch(spec);
+  }
+
+  private launch(spec: ProcSpec): void {
+    const proc = spec.start();
+    const startedAt = Date.now();
+    this.procs.set(spec.name, proc);
+    proc.child.on("exit", (code, signal) => {
+      if (this.stopping) return;
+      const ranMs = Date.now() - startedAt;
+      const previous = this.delays.get(spec.name);
+      const delay = previous === undefined || ranMs >= this.healthy ? this.base : Math.min(previous * 2, this.max);
+      this.delays.set(spec.name, delay);
+      this.log(`[hearth] ${spec.name} stopped (${signal ?? `exit ${code}`}) after ${Math.round(ranMs / 1000)} s; starting it again in ${delay / 1000} s`);
+      const timer = setTimeout(() => {
+        this.timers.delete(timer);
+        if (!this.stopping) this.launch(spec);
+      }, delay);
+      this.timers.add(timer);
+    });
+  }
+
+  async stop(graceMs?: number): Promise<void> {
+    this.stopping = true;
+    for (const t of this.timers) clearTimeout(t);
+    this.timers.clear();
+    await stopProcs([...this.procs.values()], graceMs);
+  }
 }

@@ -12,6 +12,7 @@ export type { CurrentUser };
 
 import { SESSION_COOKIE, SESSION_IDLE_SECONDS, renewalDue, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
 import { unsealSession } from "@/lib/auth/seal-cache";
+import { noteUser } from "./request-context";
 
 export { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
 
@@ -99,6 +100,7 @@ async function renewIfDue(now = Date.now()): Promise<void> {
 export async function requireUser(permission?: Permission): Promise<CurrentUser> {
   const user = await getCurrentUser();
   if (!user) throw new AppError("unauthenticated", "Sign in to continue.");
+  noteUser(user.id);
   if (permission && !can(user.role, permission)) {
     throw new AppError("forbidden", `Your role (${user.role.replace("_", " ")}) may not do this: it needs "${permission}".`);
   }
@@ -114,6 +116,7 @@ export async function requirePageUser(permission?: Permission): Promise<CurrentU
     const back = h.get("x-hearth-path") ?? "/";
     redirect(`/sign-in?next=${encodeURIComponent(back)}`);
   }
+  noteUser(user.id);
   if (permission && !can(user.role, permission)) redirect(`/forbidden?need=${encodeURIComponent(permission)}`);
   return user;
 }
