@@ -1,14 +1,25 @@
 // Starts and stops the processes of a running Hearth: the local fakes, the web app, the worker.
 import { spawn, type ChildProcess } from "node:child_process";
+import fs from "node:fs";
 import path from "node:path";
 
 export type Proc = { name: string; child: ChildProcess; exited: Promise<number | null> };
 
 const COLORS: Record<string, string> = { app: "38;5;173", worker: "38;5;108", fakes: "38;5;110" };
 
-export function startProc(name: string, command: string, args: string[], env: NodeJS.ProcessEnv = process.env, quiet = false): Proc {
+/**
+ * Spawns one process of the stack; its lines go to the terminal with a coloured prefix (unless
+ * quiet) and, when logDir is given, unprefixed to logDir/<name>.log as well (the tests read them).
+ */
+export function startProc(name: string, command: string, args: string[], env: NodeJS.ProcessEnv = process.env, quiet = false, logDir?: string): Proc {
   const child = spawn(command, args, { env, stdio: ["ignore", "pipe", "pipe"], detached: false });
   const prefix = `\x1b[${COLORS[name] ?? "37"}m[${name}]\x1b[0m `;
+  let file: fs.WriteStream | undefined;
+  if (logDir) {
+    fs.mkdirSync(logDir, { recursive: true });
+    file = fs.createWriteStream(path.join(logDir, `${name}.log`), { flags: "a" });
+    child.on("exit", () => file?.end());
+  }
   const pipe = (stream: NodeJS.ReadableStream | null, out: NodeJS.WriteStream) => {
     if (!stream) return;
     let buf = "";
@@ -16,7 +27,10 @@ export function startProc(name: string, command: string, args: string[], env: No
       buf += chunk.toString();
       const lines = buf.split("\n");
       buf = lines.pop() ?? "";
-      if (!quiet) for (const line of lines) out.write(prefix + line + "\n");
+      for (const line of lines) {
+        if (!quiet) out.write(prefix + line + "\n");
+        file?.write(line + "\n");
+      }
     });
   };
   pipe(child.stdout, process.stdout);
@@ -55,25 +69,25 @@ export async function stopProcs(procs: Proc[], graceMs = 10_000) {
   );
 }
 
-export type StackOptions = { port: number; env: NodeJS.ProcessEnv; quiet?: boolean };
+export type StackOptions = { port: number; env: NodeJS.ProcessEnv; quiet?: boolean; logDir?: string };
 
 /**
  * The built app's web server (scripts/serve.ts) in one process, so that a signal reaches it
  * directly; PORT says where it listens.
  */
-export function startApp(port: number, env: NodeJS.ProcessEnv, quiet = false): Proc {
-  return startProc("app", process.execPath, ["--import", "tsx", "scripts/serve.ts"], { ...env, PORT: String(port), HOSTNAME: "127.0.0.1" }, quiet);
+export function startApp(port: number, env: NodeJS.ProcessEnv, quiet = false, logDir?: string): Proc {
+  return startProc("app", process.execPath, ["--import", "tsx", "scripts/serve.ts"], { ...env, PORT: String(port), HOSTNAME: "127.0.0.1" }, quiet, logDir);
 }
 
 /**
  * How to start each process of a running Hearth: the fakes, one worker and the web server. The
  * worker runs as one node process (not tsx's wrapper), so that a signal reaches it directly.
  */
-export function stackSpecs({ port, env, quiet }: StackOptions): ProcSpec[] {
+export function stackSpecs({ port, env, quiet, logDir }: StackOptions): ProcSpec[] {
   return [
-    { name: "fakes", start: () => startProc("fakes", process.execPath, ["--import", "tsx", "scripts/fakes.ts"], env, quiet) },
-    { name: "worker", start: () => startProc("worker", process.execPath, ["--import", "tsx", "worker/index.ts"], env, quiet) },
-    { name: "app", start: () => startApp(port, env, quiet) },
+    { name: "fakes", start: () => startProc("fakes", process.execPath, ["--import", "tsx", "scripts/fakes.ts"], env, quiet, logDir) },
+    { name: "worker", start: () => startProc("worker", process.execPath, ["--import", "tsx", "worker/index.ts"], env, quiet, logDir) },
+    { name: "app", start: () => startApp(port, env, quiet, logDir) },
   ];
 }
 

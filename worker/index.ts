@@ -6,6 +6,7 @@ import { getEnv } from "@/lib/env";
 import { ALL_QUEUES, QUEUES } from "@/lib/jobs/queues";
 import { handleGeometry } from "./handlers/geometry";
 import { startWorkerJobs } from "./jobs";
+import { logJobs } from "./job-log";
 
 const workerId = `${os.hostname()}:${process.pid}:${Date.now().toString(36)}`;
 const BEAT_MS = 15_000;
@@ -28,10 +29,13 @@ async function main() {
   await boss.start();
   for (const name of ALL_QUEUES) await boss.createQueue(name);
 
-  await boss.work(QUEUES.geometry, { includeMetadata: true, batchSize: 1 }, handleGeometry);
-  await boss.work(QUEUES.heartbeat, async () => {
-    await beat(true);
-  });
+  await boss.work(QUEUES.geometry, { includeMetadata: true, batchSize: 1 }, logJobs(QUEUES.geometry, handleGeometry));
+  await boss.work(
+    QUEUES.heartbeat,
+    logJobs(QUEUES.heartbeat, async () => {
+      await beat(true);
+    }),
+  );
   // Cron in pg-boss is minute-grained; the heartbeat job proves the queue is being worked.
   await boss.schedule(QUEUES.heartbeat, "* * * * *", {}, { singletonKey: "heartbeat" });
   await boss.send(QUEUES.heartbeat, {});

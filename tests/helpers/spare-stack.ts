@@ -1,6 +1,10 @@
 // A second Hearth beside the test run's own: ports moved by `offset` inside the slot's range
 // (scripts/test.sh gives each slot twenty), so that it never meets the run's stack or another slot.
 import { spawn, type ChildProcess } from "node:child_process";
+import path from "node:path";
+
+/** Where the test run's own stack writes its processes' output (tests/helpers/global-setup.ts). */
+export const stackLogDir = () => path.resolve(process.env.HEARTH_DATA_DIR ?? ".data/test", "logs");
 
 export function spareStackEnv(offset: number): Record<string, string> {
   const from = (name: string, fallback: number) => String(Number(process.env[name] ?? fallback) + offset);

@@ -73,4 +73,12 @@ it("starts a SIGKILLed worker again while the app keeps answering", async () => 
   const health = await (await fetch(`${base}/api/health`)).json();
   expect(health.checks.worker.ok).toBe(true);
   expect(workerPids(stack.output()).length).toBe(2);
+  // the workers' jobs are logged one JSON line each (the heartbeat job runs at start)
+  const jobs = stack
+    .output()
+    .split("\n")
+    .map((l) => l.slice(l.indexOf("{")))
+    .filter((l) => l.includes('"msg":"job"'))
+    .map((l) => JSON.parse(l));
+  expect(jobs.find((j) => j.queue === "heartbeat")).toMatchObject({ outcome: "completed", job_id: expect.any(String), ms: expect.any(Number) });
 });
