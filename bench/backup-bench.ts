@@ -2,7 +2,7 @@
 // the floor bench's 24 printers and 10,000 builds (bench/floor-bench.ts seedFloor), with
 // HEARTH_BENCH_BACKUP_OBJECTS (20) stored files of 1 MiB. Uses DATABASE_URL's server (databases
 // hearth_bench_backup and hearth_bench_restore) and two s3rver stores on S3_PORT+1 and S3_PORT+2.
-import { spawnSync } from "node:child_process";
+import { spawn } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import fs from "node:fs";
 import os from "node:os";
@@ -26,10 +26,12 @@ async function store(port: number, bucket: boolean) {
   return { server, endpoint: `http://127.0.0.1:${port}` };
 }
 
-function timed(script: string, args: string[], env: Record<string, string>): number {
+// Asynchronous: the stores run in this process and must keep answering meanwhile.
+async function timed(script: string, args: string[], env: Record<string, string>): Promise<number> {
   const t = performance.now();
-  const r = spawnSync(process.execPath, ["--import", "tsx", script, ...args], { env: { ...process.env, ...env }, stdio: "inherit" });
-  if (r.status !== 0) throw new Error(`${script} exited with ${r.status}`);
+  const child = spawn(process.execPath, ["--import", "tsx", script, ...args], { env: { ...process.env, ...env }, stdio: "inherit" });
+  const code = await new Promise<number | null>((resolve) => child.on("exit", resolve));
+  if (code !== 0) throw new Error(`${script} exited with ${code}`);
   return Math.round(performance.now() - t);
 }
 
@@ -54,10 +56,10 @@ await c.query(`drop database if exists hearth_bench_restore with (force)`);
 await c.query(`create database hearth_bench_restore`);
 
 const dir = path.join(work, "archives");
-const backupMs = timed("scripts/backup.ts", ["--dir", dir], { DATABASE_URL: source.url, S3_ENDPOINT: a.endpoint });
+const backupMs = await timed("scripts/backup.ts", ["--dir", dir], { DATABASE_URL: source.url, S3_ENDPOINT: a.endpoint });
 const archive = path.join(dir, fs.readdirSync(dir)[0]);
 const bytes = fs.statSync(archive).size;
-const restoreMs = timed("scripts/restore.ts", [archive], { DATABASE_URL: targetUrl.toString(), S3_ENDPOINT: b.endpoint });
+const restoreMs = await timed("scripts/restore.ts", [archive], { DATABASE_URL: targetUrl.toString(), S3_ENDPOINT: b.endpoint });
 const size = await c.query<{ s: string }>(`select pg_size_pretty(pg_database_size('${source.url.split("/").pop()}')) as s`);
 
 console.log(

@@ -2,7 +2,6 @@
 // Restores a `npm run backup` archive into the database of DATABASE_URL and the bucket of the S3_*
 // settings. Both must be empty unless --force (which first empties them). An archive taken by a
 // newer Hearth (a migration this code does not know) is refused: upgrade first, then restore.
-import { createReadStream } from "node:fs";
 import fs from "node:fs/promises";
 import os from "node:os";
 import path from "node:path";
@@ -80,7 +79,9 @@ export async function restore(archive: string, opts: { force?: boolean } = {}): 
         new PutObjectCommand({
           Bucket: bucket,
           Key: o.key,
-          Body: createReadStream(objectPath(staging, o.key)),
+          // Whole bytes, not a stream: the SDK sends a stream with aws-chunked encoding, which
+          // not every S3-compatible store understands (s3rver stores the chunk framing).
+          Body: await fs.readFile(objectPath(staging, o.key)),
           ContentLength: o.bytes,
           ContentType: o.content_type ?? undefined,
         }),

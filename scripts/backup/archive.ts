@@ -60,7 +60,10 @@ export function storeClient(): { s3: S3Client; bucket: string } {
     endpoint: env.S3_ENDPOINT,
     forcePathStyle: env.S3_FORCE_PATH_STYLE === "true",
     credentials: { accessKeyId: env.S3_ACCESS_KEY_ID, secretAccessKey: env.S3_SECRET_ACCESS_KEY },
-    requestHandler: { connectionTimeout: 5_000, requestTimeout: 120_000 },
+    requestHandler: { connectionTimeout: 5_000, requestTimeout: 120_000, throwOnRequestTimeout: true },
+    // checksums only where S3 requires them: stores other than AWS may not speak the newer ones
+    requestChecksumCalculation: "WHEN_REQUIRED",
+    responseChecksumValidation: "WHEN_REQUIRED",
     maxAttempts: 3,
   });
   return { s3, bucket: env.S3_BUCKET };
