@@ -6,7 +6,7 @@ import { getEnv } from "@/lib/env";
 import { ALL_QUEUES, QUEUES } from "@/lib/jobs/queues";
 import { handleGeometry } from "./handlers/geometry";
 import { startWorkerJobs } from "./jobs";
-import { logJobs } from "./job-log";
+import { logJobs, trackFailures } from "./job-log";
 
 const workerId = `${os.hostname()}:${process.pid}:${Date.now().toString(36)}`;
 const BEAT_MS = 15_000;
@@ -26,6 +26,7 @@ async function main() {
   // Failed jobs stay in pgboss.job for a week so that /setup/jobs can show them.
   const boss = new PgBoss({ connectionString: getEnv().DATABASE_URL, max: 5, archiveFailedAfterSeconds: 7 * 24 * 3600 });
   boss.on("error", (err) => console.error("[worker] pg-boss error", err.message));
+  trackFailures(boss);
   await boss.start();
   for (const name of ALL_QUEUES) await boss.createQueue(name);
 

@@ -62,7 +62,9 @@ it("starts a SIGKILLed worker again while the app keeps answering", async () => 
       250,
     );
     expect(beat.pid).not.toBe(first);
-    expect(Date.now() - killedAt).toBeLessThan(15_000);
+    const ms = Date.now() - killedAt;
+    console.log(`[supervise] a new worker beat ${ms} ms after the SIGKILL; the app answered ${answers} health checks meanwhile`);
+    expect(ms).toBeLessThan(15_000);
   } finally {
     await db.destroy();
   }
