@@ -58,13 +58,14 @@ it("starts a SIGKILLed worker again while the app keeps answering", async () => 
         }
         return db.selectFrom("worker_heartbeats").select(["pid", "beat_at"]).where("pid", "!=", first).executeTakeFirst();
       },
-      15_000,
+      60_000,
       250,
     );
     expect(beat.pid).not.toBe(first);
     const ms = Date.now() - killedAt;
     console.log(`[supervise] a new worker beat ${ms} ms after the SIGKILL; the app answered ${answers} health checks meanwhile`);
-    expect(ms).toBeLessThan(15_000);
+    // 1 s of back-off plus the worker's own start-up (a few seconds; far more on a loaded machine)
+    expect(ms).toBeLessThan(60_000);
   } finally {
     await db.destroy();
   }
