@@ -25,14 +25,14 @@ let stack: Spawned | undefined;
 let clusterHomes: string[] = [];
 
 // A plain login environment: nothing of the test run's own database, build or ports leaks in.
-const cloneEnv = () =>
-  ({
-    PATH: process.env.PATH,
-    HOME: process.env.HOME,
-    LANG: process.env.LANG ?? "C.UTF-8",
-    ...ports,
-    HEARTH_PG_PORT: pgPort,
-  }) as NodeJS.ProcessEnv;
+const cloneEnv = (): NodeJS.ProcessEnv => ({
+  PATH: process.env.PATH,
+  HOME: process.env.HOME,
+  LANG: process.env.LANG ?? "C.UTF-8",
+  NODE_ENV: "production", // as npm start sets it
+  ...ports,
+  HEARTH_PG_PORT: pgPort,
+});
 
 afterAll(async () => {
   await stack?.stop(30_000);
