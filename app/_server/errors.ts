@@ -1,8 +1,11 @@
 import { NextResponse } from "next/server";
 import { ZodError, z } from "zod";
-import { AppError } from "@/lib/errors";
+import { AppError, isUnavailableError } from "@/lib/errors";
 import { logger } from "@/adapters/log/logger";
 import { currentRequest } from "./request-context";
+
+// Seconds a client (or a load balancer) is asked to wait before trying again after a 503.
+export const RETRY_AFTER_SECONDS = 5;
 
 export type ErrorBody = {
   error: { code: string; message: string; fieldErrors?: Record<string, string[]>; details?: unknown; request_id?: string };
@@ -18,10 +21,10 @@ type Mapped = { status: number; error: ErrorBody["error"] };
 export function toErrorResponse(err: unknown): NextResponse<ErrorBody> {
   const id = currentRequest()?.id;
   const { status, error } = mapError(err, id);
-  return NextResponse.json(
-    { error: id ? { ...error, request_id: id } : error },
-    { status, headers: id ? { "x-request-id": id } : undefined },
-  );
+  const headers: Record<string, string> = {};
+  if (id) headers["x-request-id"] = id;
+  if (status === 503) headers["retry-after"] = String(RETRY_AFTER_SECONDS);
+  return NextResponse.json({ error: id ? { ...error, request_id: id } : error }, { status, headers });
 }
 
 function mapError(err: unknown, requestId: string | undefined): Mapped {
@@ -41,6 +44,15 @@ function mapError(err: unknown, requestId: string | undefined): Mapped {
   }
   if (err instanceof AppError) {
     return { status: err.status, error: { code: err.code, message: err.message, fieldErrors: err.fieldErrors, details: err.details } };
+  }
+  // The database is down, restarting or out of connections: the request was fine, so a 503
+  // that says when to try again, not a 500.
+  if (isUnavailableError(err)) {
+    logger.error({ req_id: requestId, err: err instanceof Error ? err.message : String(err) }, "a service is unavailable");
+    return {
+      status: 503,
+      error: { code: "unavailable", message: "The database cannot be reached just now; nothing was changed. Try again in a moment." },
+    };
   }
   const pgCode = (err as { code?: string } | null)?.code;
   if (pgCode === "23P01") {

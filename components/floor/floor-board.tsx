@@ -15,6 +15,7 @@ import { PlanPanel, type Proposal } from "./plan-panel";
 import { ScheduleForm } from "./schedule-form";
 import { formatDay, formatSlot, minutesLabel } from "./format";
 import { FLOOR_DATA_MARK, floorUrl, openingWeek, takeOpeningFetch, type FloorRange } from "./opening-week";
+import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { laneEditable, laneMoveRefusal, moveLaneBooking, type LaneEventProps, type LanePermissions } from "@/components/furnace/lane-interactions";
 
 export type FloorBoardProps = {
@@ -77,7 +78,7 @@ function el(tag: string, className: string, text?: string | null, data: Record<s
  */
 const isHistory = (e: Pick<FloorEvent, "state" | "failed">) => e.state === "complete" && !e.failed;
 
-function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
+function toEvent(e: FloorEvent, lanes: LanePermissions, short: ReadonlyMap<string, string> = new Map()): EventInput {
   const lane = e.kind !== "build";
   const c = e.failed ? COLORS.failed : e.kind === "build" ? (COLORS[e.state] ?? COLORS.scheduled) : COLORS[e.kind];
   const history = isHistory(e);
@@ -94,8 +95,8 @@ function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
     backgroundColor: c.bg,
     borderColor: c.border,
     textColor: c.text,
-    classNames: [`hearth-${e.kind}`, `hearth-state-${e.state}`, ...(history ? ["hearth-history"] : [])],
-    extendedProps: { ...e, build_id: e.kind === "build" ? e.id : undefined },
+    classNames: [`hearth-${e.kind}`, `hearth-state-${e.state}`, ...(history ? ["hearth-history"] : []), ...(short.has(e.id) ? ["hearth-feedstock-short"] : [])],
+    extendedProps: { ...e, build_id: e.kind === "build" ? e.id : undefined, feedstock_short: short.get(e.id) },
   };
 }
 
@@ -112,6 +113,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
   const listRef = useRef<HTMLUListElement>(null);
   const calendarRef = useRef<FullCalendar>(null);
 
+  const poll = useLivePoll();
   const floorKey = useMemo(() => ["floor", range?.from, range?.to] as const, [range]);
   const floor = useQuery({
     queryKey: floorKey,
@@ -124,14 +126,27 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
     },
     enabled: range !== null,
     placeholderData: keepPreviousData,
-    // Someone else's change shows up within seconds; never while a drag is in the air.
-    refetchInterval: () => (dragging.current ? false : 10_000),
+    // Someone else's change arrives live (components/live); the old polling only while the
+    // stream is down. Never while a drag is in the air.
+    refetchInterval: () => (dragging.current ? false : poll(10_000)),
+    meta: { liveHold: () => dragging.current },
   });
   const unscheduled = useQuery({
     queryKey: ["unscheduled"],
     queryFn: ({ signal }) => apiJson<{ builds: UnscheduledBuild[] }>("/api/floor/unscheduled", { signal }),
-    refetchInterval: () => (dragging.current ? false : 15_000),
+    refetchInterval: () => (dragging.current ? false : poll(15_000)),
+    meta: { liveHold: () => dragging.current },
   });
+  // Scheduled builds whose feedstock will not be on the shelf when they start (the projection).
+  const shortfalls = useQuery({
+    queryKey: ["feedstock-shortfalls"],
+    queryFn: ({ signal }) => apiJson<{ builds: { build_id: string; material_code: string; first_short_day: string }[] }>("/api/inventory/shortfalls", { signal }),
+    refetchInterval: 60_000,
+  });
+  const short = useMemo(
+    () => new Map((shortfalls.data?.builds ?? []).map((b) => [b.build_id, `no ${b.material_code} feedstock from ${b.first_short_day}`])),
+    [shortfalls.data],
+  );
   const drafts = useMemo(() => unscheduled.data?.builds ?? [], [unscheduled.data]);
   const draftsRef = useRef(drafts);
   useEffect(() => {
@@ -150,7 +165,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
   const printerName = useCallback((id: string | null) => (id ? (resourceById.get(id)?.title ?? "a printer") : "nothing"), [resourceById]);
 
   const events = useMemo<EventInput[]>(() => {
-    const list: EventInput[] = (floor.data?.events ?? []).map((e) => toEvent(e, { wash: canWash, furnace: canFurnace }));
+    const list: EventInput[] = (floor.data?.events ?? []).map((e) => toEvent(e, { wash: canWash, furnace: canFurnace }, short));
     for (const b of floor.data?.blocks ?? []) {
       list.push({ id: `mw-${b.id}`, resourceId: b.resource_id, start: b.start, end: b.end, display: "background", backgroundColor: "#8d8273", classNames: ["hearth-maintenance"], title: `Maintenance: ${b.reason || "no reason given"}` });
     }
@@ -160,7 +175,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
       }
     }
     return list;
-  }, [floor.data, proposal, canWash, canFurnace]);
+  }, [floor.data, proposal, canWash, canFurnace, short]);
 
   const hint = useCallback((text: string | null) => {
     const el = hintRef.current;
@@ -329,10 +344,11 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
       return { domNodes: [el("div", "truncate px-1 pt-0.5 text-2xs italic text-soot-800", arg.event.title, { testid: "maintenance-block" })] };
     }
     const state = p.failed ? "failed" : p.state && p.kind ? (STATE_WORDS[p.kind][p.state] ?? p.state) : arg.event.classNames.includes("hearth-proposed") ? "proposed" : "";
-    const detail = [state, p.unit_count ? `${p.unit_count} u` : ""].filter(Boolean).join(" · ");
+    const feedstock = (p as { feedstock_short?: string }).feedstock_short;
+    const detail = [state, p.unit_count ? `${p.unit_count} u` : "", feedstock ? "no feedstock" : ""].filter(Boolean).join(" · ");
     const box = el("div", "hearth-booking", arg.event.title, { testid: "floor-event", eventId: arg.event.id, detail });
     // The bar is often narrower than its words: the whole line on hover.
-    box.title = detail ? `${arg.event.title} (${detail})` : arg.event.title;
+    box.title = detail ? `${arg.event.title} (${[state, p.unit_count ? `${p.unit_count} u` : "", feedstock].filter(Boolean).join(" · ")})` : arg.event.title;
     return { domNodes: [box] };
   }, []);
 
@@ -453,6 +469,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
       </section>
 
       <aside className="flex w-full shrink-0 flex-col gap-4 xl:w-80" aria-label="Scheduling">
+        <LiveIndicator className="self-start" />
         {message ? (
           <div role={message.tone === "danger" ? "alert" : "status"} data-testid="floor-message" data-tone={message.tone}
             className={`rounded-card border px-3 py-2 text-sm ${message.tone === "danger" ? "border-oxide-500/40 bg-oxide-100 text-oxide-700" : message.tone === "success" ? "border-verdigris-400/40 bg-verdigris-100 text-verdigris-700" : "border-slate2-400/40 bg-slate2-100 text-slate2-600"}`}>
