@@ -15,6 +15,7 @@ import { closeDb, getDb } from "@/db/client";
 import { answerFloorWindow } from "@/app/_server/floor-window-direct";
 import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
 import { liveHub } from "@/app/_server/live-hub";
+import { withRequestLog } from "@/app/_server/request-log";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const port = Number(process.env.PORT ?? 3000);
@@ -54,7 +55,7 @@ async function main() {
   const secret = process.env.SESSION_SECRET && process.env.SESSION_SECRET.length >= 32 ? process.env.SESSION_SECRET : null;
 
   let stopping = false;
-  const server = http.createServer((req, res) => {
+  const server = http.createServer((req, res) => withRequestLog(req, res, () => {
     res.setHeader("x-hearth-instance", instance);
     closeWhenDue(req, res, () => stopping);
     const direct = assets && req.url?.startsWith(STATIC_PREFIX)
@@ -74,7 +75,7 @@ async function main() {
         if (!res.headersSent) res.writeHead(500, { "content-type": "text/plain" });
         res.end();
       });
-  });
+  }));
   // Longer than a reverse proxy's usual idle timeout, so that the proxy closes first.
   server.keepAliveTimeout = 65_000;
   server.headersTimeout = 66_000;

@@ -6,6 +6,7 @@ import { advanceHandler } from "./handlers/advance";
 import { scaleUpHandler } from "./handlers/scale-up";
 import { drainOutbox, sendMailHandler } from "./handlers/send-mail";
 import { runSweep } from "./sweep";
+import { logJobs } from "./job-log";
 import { sweepOrphanObjects } from "./orphans";
 
 /** Runs `fn` every `seconds`, never two at once; resolves the returned stop() when the last run ends. */
@@ -43,10 +44,10 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
 
   const work = { batchSize: cfg.batchSize, pollingIntervalSeconds: cfg.pollSeconds };
   for (let i = 0; i < cfg.concurrency; i++) {
-    await boss.work(QUEUES.advance, work, advanceHandler(db, boss, { quiet: cfg.quiet }));
-    await boss.work(QUEUES.sendMail, work, sendMailHandler(db));
+    await boss.work(QUEUES.advance, work, logJobs(QUEUES.advance, advanceHandler(db, boss, { quiet: cfg.quiet })));
+    await boss.work(QUEUES.sendMail, work, logJobs(QUEUES.sendMail, sendMailHandler(db)));
   }
-  await boss.work(QUEUES.scaleUp, { batchSize: 5, pollingIntervalSeconds: cfg.pollSeconds }, scaleUpHandler(db));
+  await boss.work(QUEUES.scaleUp, { batchSize: 5, pollingIntervalSeconds: cfg.pollSeconds }, logJobs(QUEUES.scaleUp, scaleUpHandler(db)));
 
   const stopSweep = every(cfg.sweepSeconds, "sweep", async () => {
     const r = await runSweep(db, boss, workerId, { limit: cfg.sweepLimit });

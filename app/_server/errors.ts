@@ -1,14 +1,33 @@
 import { NextResponse } from "next/server";
 import { ZodError, z } from "zod";
 import { AppError, isUnavailableError } from "@/lib/errors";
+import { logger } from "@/adapters/log/logger";
+import { currentRequest } from "./request-context";
 
 // Seconds a client (or a load balancer) is asked to wait before trying again after a 503.
 export const RETRY_AFTER_SECONDS = 5;
 
-export type ErrorBody = { error: { code: string; message: string; fieldErrors?: Record<string, string[]>; details?: unknown } };
+export type ErrorBody = {
+  error: { code: string; message: string; fieldErrors?: Record<string, string[]>; details?: unknown; request_id?: string };
+};
 
-/** One place that turns a thrown error into the API's error body and status. */
+type Mapped = { status: number; error: ErrorBody["error"] };
+
+/**
+ * One place that turns a thrown error into the API's error body and status. The body carries the
+ * request's id (also its X-Request-Id header and its log line), so that a user's "something went
+ * wrong" leads an operator to the log.
+ */
 export function toErrorResponse(err: unknown): NextResponse<ErrorBody> {
+  const id = currentRequest()?.id;
+  const { status, error } = mapError(err, id);
+  const headers: Record<string, string> = {};
+  if (id) headers["x-request-id"] = id;
+  if (status === 503) headers["retry-after"] = String(RETRY_AFTER_SECONDS);
+  return NextResponse.json({ error: id ? { ...error, request_id: id } : error }, { status, headers });
+}
+
+function mapError(err: unknown, requestId: string | undefined): Mapped {
   if (err instanceof ZodError) {
     const flat = z.flattenError(err);
     const fieldErrors: Record<string, string[]> = {};
@@ -18,35 +37,32 @@ export function toErrorResponse(err: unknown): NextResponse<ErrorBody> {
     }
     const first = err.issues[0];
     const where = first?.path.length ? `${first.path.join(".")}: ` : "";
-    return NextResponse.json(
-      { error: { code: "invalid", message: `${where}${first?.message ?? "invalid input"}`, fieldErrors, details: flat.formErrors.length ? { formErrors: flat.formErrors } : undefined } },
-      { status: 422 },
-    );
+    return {
+      status: 422,
+      error: { code: "invalid", message: `${where}${first?.message ?? "invalid input"}`, fieldErrors, details: flat.formErrors.length ? { formErrors: flat.formErrors } : undefined },
+    };
   }
   if (err instanceof AppError) {
-    return NextResponse.json(
-      { error: { code: err.code, message: err.message, fieldErrors: err.fieldErrors, details: err.details } },
-      { status: err.status, headers: err.status === 503 ? { "retry-after": String(RETRY_AFTER_SECONDS) } : undefined },
-    );
+    return { status: err.status, error: { code: err.code, message: err.message, fieldErrors: err.fieldErrors, details: err.details } };
   }
   // The database is down, restarting or out of connections: the request was fine, so a 503
   // that says when to try again, not a 500.
   if (isUnavailableError(err)) {
-    console.error("[api] a service is unavailable:", err instanceof Error ? err.message : err);
-    return NextResponse.json(
-      { error: { code: "unavailable", message: "The database cannot be reached just now; nothing was changed. Try again in a moment." } },
-      { status: 503, headers: { "retry-after": String(RETRY_AFTER_SECONDS) } },
-    );
+    logger.error({ req_id: requestId, err: err instanceof Error ? err.message : String(err) }, "a service is unavailable");
+    return {
+      status: 503,
+      error: { code: "unavailable", message: "The database cannot be reached just now; nothing was changed. Try again in a moment." },
+    };
   }
   const pgCode = (err as { code?: string } | null)?.code;
   if (pgCode === "23P01") {
-    return NextResponse.json({ error: { code: "conflict", message: "That time is already booked on this resource." } }, { status: 409 });
+    return { status: 409, error: { code: "conflict", message: "That time is already booked on this resource." } };
   }
   if (pgCode === "40001" || pgCode === "40P01") {
-    return NextResponse.json({ error: { code: "conflict", message: "Someone else changed this at the same moment; reload and try again." } }, { status: 409 });
+    return { status: 409, error: { code: "conflict", message: "Someone else changed this at the same moment; reload and try again." } };
   }
-  console.error("[api] unexpected error", err);
-  return NextResponse.json({ error: { code: "internal", message: "Something went wrong on our side; nothing was changed." } }, { status: 500 });
+  logger.error({ req_id: requestId, err }, "unexpected error");
+  return { status: 500, error: { code: "internal", message: "Something went wrong on our side; nothing was changed." } };
 }
 
 /** Reads a JSON body; a body that is not JSON is a 400, never a 500. */

@@ -12,6 +12,7 @@ export type { CurrentUser };
 
 import { SESSION_COOKIE, SESSION_IDLE_SECONDS, renewalDue, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
 import { unsealSession } from "@/lib/auth/seal-cache";
+import { noteUser } from "./request-context";
 
 export { SESSION_COOKIE, SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
 
@@ -104,6 +105,7 @@ export function forbidden(role: Role, permission: Permission): AppError {
 export async function requireUser(permission?: Permission): Promise<CurrentUser> {
   const user = await getCurrentUser();
   if (!user) throw new AppError("unauthenticated", "Sign in to continue.");
+  noteUser(user.id);
   if (permission && !can(user.role, permission)) throw forbidden(user.role, permission);
   await renewIfDue();
   return user;
@@ -117,6 +119,7 @@ export async function requirePageUser(permission?: Permission): Promise<CurrentU
     const back = h.get("x-hearth-path") ?? "/";
     redirect(`/sign-in?next=${encodeURIComponent(back)}`);
   }
+  noteUser(user.id);
   if (permission && !can(user.role, permission)) redirect(`/forbidden?need=${encodeURIComponent(permission)}`);
   return user;
 }
