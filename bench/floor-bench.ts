@@ -139,7 +139,7 @@ export async function seedFloor(db: Database): Promise<{ from: number; printers:
   return { from, printers: lanes.length, builds: total.rows[0].n };
 }
 
-function ensureBuild(): string {
+export function ensureBuild(): string {
   const given = process.env.HEARTH_BENCH_NEXT_DIR;
   if (given && fs.existsSync(path.join(given, "BUILD_ID"))) return given;
   const dir = ".next-bench";

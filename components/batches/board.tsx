@@ -5,7 +5,8 @@ import {
   DndContext,
   DragOverlay,
   KeyboardSensor,
-  PointerSensor,
+  MouseSensor,
+  TouchSensor,
   pointerWithin,
   rectIntersection,
   useDroppable,
@@ -76,13 +77,13 @@ function WaitingColumn({ lane, children, count }: { lane: Lane; children: React.
       ref={setNodeRef}
       aria-label={lane === "furnace" ? "Brown units waiting for a furnace run" : "Green units waiting for a wash"}
       data-testid={`waiting-${lane}`}
-      className={`rounded-card border bg-soot-50/60 p-3 ${isOver ? "border-clay-400" : "border-soot-200"}`}
+      className={`rounded-card border bg-soot-50/60 p-3 md:sticky md:top-2 md:self-start ${isOver ? "border-clay-400" : "border-soot-200"}`}
     >
       <h2 className="text-sm font-semibold text-soot-800">
         {lane === "furnace" ? "Waiting for a furnace" : "Waiting for a wash"} <span className="font-normal text-soot-500">({count})</span>
       </h2>
       <p className="mb-2 text-2xs text-soot-500">Most at risk first. Drop a unit back here to take it out of its {lane === "furnace" ? "run" : "batch"}.</p>
-      <div className="flex max-h-[70vh] flex-col gap-1.5 overflow-y-auto pr-1">{children}</div>
+      <div className="flex max-h-[70vh] flex-col gap-1.5 overflow-y-auto pr-1" role="region" aria-label={lane === "furnace" ? "Brown units" : "Green units"} tabIndex={0}>{children}</div>
     </section>
   );
 }
@@ -97,7 +98,13 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
   const [filters, setFilters] = useState({ material: "", profile: "", due: "" });
   const [busy, setBusy] = useState(false);
   const [showSuggest, setShowSuggest] = useState(false);
-  const sensors = useSensors(useSensor(PointerSensor, { activationConstraint: { distance: 4 } }), useSensor(KeyboardSensor, { coordinateGetter: jumpBetweenTargets }));
+  // Mouse and touch apart (dnd-kit's sensors guide): a finger must press and hold a card for a
+  // quarter second before it lifts, so that a swipe still scrolls the list on a phone.
+  const sensors = useSensors(
+    useSensor(MouseSensor, { activationConstraint: { distance: 4 } }),
+    useSensor(TouchSensor, { activationConstraint: { delay: 250, tolerance: 5 } }),
+    useSensor(KeyboardSensor, { coordinateGetter: jumpBetweenTargets }),
+  );
 
   const canFurnace = can(role, "furnace:write");
   const canWash = can(role, "wash:write");
@@ -355,6 +362,9 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
 
       <DndContext sensors={sensors} collisionDetection={collision} onDragStart={onDragStart} onDragOver={onDragOver} onDragEnd={onDragEnd} onDragCancel={() => (setDragging(null), setHover(null))}
         accessibility={{
+          screenReaderInstructions: {
+            draggable: "To move a unit: press space or enter to pick it up, arrow keys to go from one batch or run to the next, space or enter to drop it, escape to put it back. On a touch screen, press and hold the card, then drag it.",
+          },
           announcements: {
             onDragStart: ({ active }) => `Picked up ${(active.data.current as DragData).unit.serial}.`,
             onDragOver: ({ active, over }) => {
@@ -367,7 +377,7 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
           },
         }}
       >
-        <div className="grid gap-4 lg:grid-cols-[minmax(16rem,22rem)_1fr]">
+        <div className="grid gap-4 md:grid-cols-[minmax(14rem,18rem)_minmax(0,1fr)] lg:grid-cols-[minmax(16rem,22rem)_minmax(0,1fr)]">
           <WaitingColumn lane={lane} count={waiting.length}>
             {waiting.length === 0 ? <p className="text-xs text-soot-500">Nothing waiting{filters.material || filters.profile || filters.due ? " that matches the filters" : ""}.</p> : null}
             {waiting.map((u) => (

@@ -158,7 +158,7 @@ function WashViewInner({ batchId, role, timeZone }: WashViewProps) {
                         <span className="rounded bg-oxide-100 px-1 text-oxide-700">Short by {check.shortByG.toFixed(1)} g</span>
                       )
                     ) : (
-                      <span className="text-soot-400">{u.state.replace(/_/g, " ")}</span>
+                      <span className="text-soot-500">{u.state.replace(/_/g, " ")}</span>
                     )}
                   </td>
                 </tr>

@@ -192,7 +192,7 @@ function MaterialPanel({ materialId, canApply, timeZone }: { materialId: string;
             <div className="rounded-md border border-soot-200 p-3">
               <div className="flex flex-wrap gap-4 text-sm">
                 {(["xy", "z"] as const).map((a) => (
-                  <label key={a} className={`flex items-center gap-1.5 ${v.applicable[a] === undefined ? "text-soot-400" : ""}`}>
+                  <label key={a} className={`flex items-center gap-1.5 ${v.applicable[a] === undefined ? "text-soot-500" : ""}`}>
                     <input type="checkbox" checked={axes[a] && v.applicable[a] !== undefined} disabled={v.applicable[a] === undefined} onChange={(e) => setAxes({ ...axes, [a]: e.target.checked })} />
                     {a.toUpperCase()} → {pct(v.applicable[a], 3)}
                   </label>

@@ -7,7 +7,7 @@ import type { CalendarOptions, DateSpanApi, DatesSetArg, EventApi, EventContentA
 import { keepPreviousData, useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useRouter } from "next/navigation";
-import { useCallback, useEffect, useMemo, useRef, useState } from "react";
+import { useCallback, useEffect, useMemo, useRef, useState, useSyncExternalStore } from "react";
 import type { FloorData, FloorEvent, FloorResource, UnscheduledBuild } from "@/lib/floor/schemas";
 import { ApiError, apiJson } from "./api";
 import { PlanPanel, type Proposal } from "./plan-panel";
@@ -44,12 +44,36 @@ const STATE_WORDS: Record<FloorEvent["kind"], Record<string, string>> = {
 // or in memos, never inline.
 const PLUGINS = [resourceTimelinePlugin, interactionPlugin];
 const HEADER = { left: "prev,today,next", center: "title", right: "resourceTimelineDay,resourceTimelineWeek" };
-const BUTTONS = { today: "Now", resourceTimelineDay: "Day", resourceTimelineWeek: "Week" };
+// Worded arrows instead of FullCalendar's icon font: its icons are role="img" spans without a
+// name (axe-core role-img-alt), and words read aloud and on a phone alike.
+const BUTTONS = { today: "Now", prev: "‹ Earlier", next: "Later ›", resourceTimelineDay: "Day", resourceTimelineWeek: "Week" };
 const VIEWS: CalendarOptions["views"] = {
   resourceTimelineDay: { slotDuration: { hours: 1 }, slotLabelFormat: { hour: "2-digit", minute: "2-digit", hour12: false } },
   resourceTimelineWeek: { slotDuration: { hours: 6 }, slotLabelFormat: [{ weekday: "short", day: "numeric" }, { hour: "2-digit", hour12: false }] },
 };
 const SNAP = { minutes: 15 };
+/** Press-and-hold before a finger drags a booking, so that a swipe still scrolls the timeline. */
+const LONG_PRESS_MS = 250;
+const PHONE_QUERY = "(max-width: 767px)";
+const LANE_GROUPS = [
+  ["printer", "Printers"],
+  ["wash_station", "Wash stations"],
+  ["furnace", "Furnaces"],
+] as const;
+type LaneGroup = (typeof LANE_GROUPS)[number][0];
+
+/** Below the md breakpoint the floor shows one day and one group of lanes at a time. */
+function usePhone(): boolean {
+  return useSyncExternalStore(
+    (cb) => {
+      const m = window.matchMedia(PHONE_QUERY);
+      m.addEventListener("change", cb);
+      return () => m.removeEventListener("change", cb);
+    },
+    () => window.matchMedia(PHONE_QUERY).matches,
+    () => false,
+  );
+}
 const CALENDAR_STYLE = {
   "--fc-border-color": "#e9e6e1", "--fc-today-bg-color": "rgba(242,106,18,0.06)", "--fc-now-indicator-color": "#d0520a", "--fc-neutral-bg-color": "#f6f5f3",
   "--fc-button-bg-color": "#403a33", "--fc-button-border-color": "#403a33", "--fc-button-hover-bg-color": "#2b2723", "--fc-button-hover-border-color": "#2b2723",
@@ -142,6 +166,9 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
     // eslint-disable-next-line react-hooks/exhaustive-deps
     [laneKey],
   );
+  const phone = usePhone();
+  const [laneGroup, setLaneGroup] = useState<LaneGroup>("printer");
+  const shownResources = useMemo(() => (phone ? calendarResources.filter((r) => r.kind === laneGroup) : calendarResources), [phone, laneGroup, calendarResources]);
   const printerName = useCallback((id: string | null) => (id ? (resourceById.get(id)?.title ?? "a printer") : "nothing"), [resourceById]);
 
   const events = useMemo<EventInput[]>(() => {
@@ -219,6 +246,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
     if (!canSchedule || !listRef.current) return;
     const d = new Draggable(listRef.current, {
       itemSelector: "[data-build-id]",
+      longPressDelay: LONG_PRESS_MS,
       eventData: (el) => {
         const b = draftsRef.current.find((x) => x.id === (el as HTMLElement).dataset.buildId);
         const ok = (b?.printers ?? []).filter((p) => p.ok && p.est_minutes);
@@ -391,8 +419,18 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
   const ready = floor.isSuccess && !floor.isPlaceholderData;
 
   return (
-    <div className="flex flex-col gap-4 px-6 py-5 xl:flex-row" data-testid="floor-board" data-ready={ready ? "true" : "false"} data-event-count={floor.data?.events.length ?? 0}>
-      <section className="min-w-0 flex-1 rounded-card border border-soot-200 bg-white p-3 shadow-card" aria-label="Floor timeline">
+    <div className="flex flex-col gap-4 px-3 py-4 md:px-6 md:py-5 xl:flex-row" data-testid="floor-board" data-ready={ready ? "true" : "false"} data-event-count={floor.data?.events.length ?? 0}>
+      <section className="min-w-0 flex-1 rounded-card border border-soot-200 bg-white p-2 shadow-card md:p-3" aria-label="Floor timeline">
+        {phone ? (
+          <div role="group" aria-label="Lanes shown" className="mb-2 flex gap-1" data-testid="lane-groups">
+            {LANE_GROUPS.map(([key, label]) => (
+              <button key={key} type="button" aria-pressed={laneGroup === key} onClick={() => setLaneGroup(key)}
+                className={`flex-1 rounded-md border px-2 py-1.5 text-sm font-semibold ${laneGroup === key ? "border-soot-900 bg-soot-900 text-soot-50" : "border-soot-200 bg-white text-soot-700"}`}>
+                {label}
+              </button>
+            ))}
+          </div>
+        ) : null}
         <div
           className="hearth-floor"
           style={CALENDAR_STYLE}
@@ -404,20 +442,23 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
             ref={calendarRef}
             plugins={PLUGINS}
             schedulerLicenseKey="GPL-My-Project-Is-Open-Source"
-            initialView="resourceTimelineWeek"
+            initialView={phone ? "resourceTimelineDay" : "resourceTimelineWeek"}
             timeZone="local"
             height="auto"
             nowIndicator
             scrollTime="00:00:00"
             headerToolbar={HEADER}
             buttonText={BUTTONS}
+            buttonIcons={false}
             views={VIEWS}
-            resourceAreaWidth="150px"
+            resourceAreaWidth={phone ? "92px" : "150px"}
+            longPressDelay={LONG_PRESS_MS}
+            eventLongPressDelay={LONG_PRESS_MS}
             slotMinWidth={22}
             resourceAreaHeaderContent="Lane"
             resourceGroupField="group"
             resourceOrder="kindOrder,title"
-            resources={calendarResources}
+            resources={shownResources}
             resourceLabelContent={renderResourceLabel}
             events={events}
             eventContent={renderEvent}

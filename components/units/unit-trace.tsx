@@ -9,11 +9,14 @@ import { formatWhen } from "@/components/finishing/format";
 import { InspectionList } from "@/components/finishing/inspection-list";
 import { ShopQueryProvider } from "@/components/finishing/query-provider";
 import { StateBadge } from "@/components/finishing/state-badge";
+import { NextStepCard } from "@/components/scan/next-step-card";
+import type { Role } from "@/lib/auth/permissions";
+import { unitNextStep } from "@/lib/scan/next-step";
 
 // Where a unit came from and what happened to it: lot and build, wash and masses, furnace run
 // and profile, inspections, and every event of the unit and its bookings on one timeline.
 
-export type UnitTraceProps = { unitId: string; units: UnitSystem; timeZone: string; canAttach: boolean };
+export type UnitTraceProps = { unitId: string; units: UnitSystem; timeZone: string; canAttach: boolean; role: Role };
 
 export function UnitTrace(props: UnitTraceProps) {
   return (
@@ -46,7 +49,7 @@ const Row = ({ k, children }: { k: string; children: React.ReactNode }) => (
   </>
 );
 
-function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
+function Inner({ unitId, units, timeZone, canAttach, role }: UnitTraceProps) {
   const trace = useQuery({ queryKey: ["trace", unitId], queryFn: () => getJson<Trace>(`/api/units/${unitId}/trace`) });
   if (trace.isPending) return <p className="text-sm text-soot-500">Loading the unit&rsquo;s history…</p>;
   if (trace.isError) return <p className="text-sm text-oxide-700">{trace.error.message}</p>;
@@ -59,6 +62,12 @@ function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
 
   return (
     <div className="space-y-6">
+      <NextStepCard
+        title={t.unit.serial}
+        subtitle={`${t.part.part_number} rev ${t.part.revision} · ${t.part.name} · ${t.material.code} · order ${t.order.code}`}
+        step={unitNextStep(role, t.unit, t.build, t.wash, t.furnace_run)}
+        onDone={() => void trace.refetch()}
+      />
       <header className="flex flex-wrap items-center gap-3">
         <h2 className="font-mono text-xl font-semibold text-soot-900" data-testid="trace-serial">{t.unit.serial}</h2>
         <StateBadge state={t.unit.state} />
