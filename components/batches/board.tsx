@@ -216,7 +216,11 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
     setDragging(null);
     setHover(null);
     if (!e.over) return;
-    const targetId = String(e.over.id);
+    dropOn(drag, String(e.over.id));
+  };
+
+  /** A drop, from a drag (mouse, finger or keyboard) or from the "Move to…" menu: the same checks and calls. */
+  const dropOn = (drag: DragData, targetId: string) => {
     const [kind, id] = targetId.split(":");
     if (kind === "waiting") {
       if (drag.from.kind !== "waiting") removeUnit(drag.unit, drag.from);
@@ -275,6 +279,10 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
   };
 
   const waiting = lane === "furnace" ? filtered.furnace : filtered.wash;
+  const moveTargets =
+    lane === "furnace"
+      ? data.furnace_runs.filter((r) => r.state === "draft" || r.state === "scheduled").map((r) => ({ id: `run:${r.id}`, label: r.code }))
+      : data.wash_batches.filter((w) => w.state === "draft" || w.state === "scheduled").map((w) => ({ id: `wash:${w.id}`, label: w.code }));
   const canLane = lane === "furnace" ? canFurnace : canWash;
 
   return (
@@ -377,18 +385,29 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
           },
         }}
       >
-        <div className="grid gap-4 md:grid-cols-[minmax(14rem,18rem)_minmax(0,1fr)] lg:grid-cols-[minmax(16rem,22rem)_minmax(0,1fr)]">
+        <div className="grid grid-cols-1 gap-4 md:grid-cols-[minmax(14rem,18rem)_minmax(0,1fr)] lg:grid-cols-[minmax(16rem,22rem)_minmax(0,1fr)]">
           <WaitingColumn lane={lane} count={waiting.length}>
             {waiting.length === 0 ? <p className="text-xs text-soot-500">Nothing waiting{filters.material || filters.profile || filters.due ? " that matches the filters" : ""}.</p> : null}
             {waiting.map((u) => (
-              <UnitCard key={u.id} unit={u} from={{ kind: "waiting" }} lane={lane} timeZone={data.time_zone} unitPref={unitPref} profileLabel={profileName(u.profile_id)} disabled={!canLane} />
+              <UnitCard
+                key={u.id}
+                unit={u}
+                from={{ kind: "waiting" }}
+                lane={lane}
+                timeZone={data.time_zone}
+                unitPref={unitPref}
+                profileLabel={profileName(u.profile_id)}
+                disabled={!canLane}
+                moveTargets={moveTargets}
+                onMove={(targetId) => dropOn({ unit: u, from: { kind: "waiting" }, lane }, targetId)}
+              />
             ))}
           </WaitingColumn>
           <div className="space-y-3">
             {lane === "furnace" ? (
               <>
                 {canFurnace ? <NewRunForm board={data} busy={busy} onCreate={(body) => change.mutate({ url: "/api/furnace-runs", method: "POST", body, done: "New draft run opened." })} /> : null}
-                <div className="grid gap-3 xl:grid-cols-2" data-testid="run-targets">
+                <div className="grid grid-cols-1 gap-3 xl:grid-cols-2" data-testid="run-targets">
                   {data.furnace_runs.length === 0 ? <p className="text-sm text-soot-500">No open furnace runs. Open one, or let Hearth suggest them.</p> : null}
                   {data.furnace_runs.map((r) => (
                     <RunTarget
@@ -416,7 +435,7 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
             ) : (
               <>
                 {canWash ? <NewWashForm board={data} busy={busy} onCreate={(body) => change.mutate({ url: "/api/wash-batches", method: "POST", body, done: "New draft wash batch opened." })} /> : null}
-                <div className="grid gap-3 xl:grid-cols-2" data-testid="wash-targets">
+                <div className="grid grid-cols-1 gap-3 xl:grid-cols-2" data-testid="wash-targets">
                   {data.wash_batches.length === 0 ? <p className="text-sm text-soot-500">No open wash batches. Open one, or let Hearth suggest them.</p> : null}
                   {data.wash_batches.map((w) => (
                     <WashTarget

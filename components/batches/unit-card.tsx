@@ -26,6 +26,9 @@ export type UnitCardProps = {
   disabled?: boolean;
   compact?: boolean;
   onRemove?: () => void;
+  /** The batches or runs it could go to: a "Move to…" menu beside the card, the way without a drag on a touch screen. */
+  moveTargets?: { id: string; label: string }[];
+  onMove?: (targetId: string) => void;
 };
 
 export function UnitCardBody({ unit, timeZone, unitPref, profileLabel, compact }: Omit<UnitCardProps, "from" | "lane">) {
@@ -91,6 +94,27 @@ export function UnitCard(props: UnitCardProps) {
       <UnitCardBody {...props} />
     </div>
   );
+  if (moveTargets?.length && onMove && !disabled) {
+    return (
+      <div className="flex items-stretch gap-1">
+        <div className="min-w-0 flex-1">{card}</div>
+        <select
+          aria-label={`Move ${unit.serial} to…`}
+          value=""
+          onChange={(e) => e.target.value && onMove(e.target.value)}
+          className="hidden w-24 shrink-0 rounded-md border border-soot-300 bg-white px-1 text-xs text-soot-800 pointer-coarse:block"
+          data-testid="move-to"
+        >
+          <option value="">Move to…</option>
+          {moveTargets.map((t) => (
+            <option key={t.id} value={t.id}>
+              {t.label}
+            </option>
+          ))}
+        </select>
+      </div>
+    );
+  }
   if (!onRemove || disabled) return card;
   return (
     <span className="inline-flex items-center gap-0.5">

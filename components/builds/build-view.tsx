@@ -75,7 +75,7 @@ export function BuildView({ buildId, canWrite, role }: BuildViewProps) {
 
   const button = "rounded-md px-3 py-1.5 text-sm font-semibold disabled:opacity-50";
   return (
-    <div className="grid gap-5 px-4 md:px-8 py-6 xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]" data-testid="build-view" data-state={build.state}>
+    <div className="grid grid-cols-1 gap-5 px-4 md:px-8 py-6 xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]" data-testid="build-view" data-state={build.state}>
       <section className="space-y-4">
         <NextStepCard
           title={build.code}

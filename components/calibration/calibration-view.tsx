@@ -1,5 +1,6 @@
 "use client";
 
+import { ScrollRegion } from "@/components/ui/scroll-region";
 import Link from "next/link";
 import { useState } from "react";
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
@@ -214,10 +215,10 @@ function MaterialPanel({ materialId, canApply, timeZone }: { materialId: string;
         </section>
       </div>
 
-      <div className="grid gap-5 xl:grid-cols-2">
+      <div className="grid grid-cols-1 gap-5 xl:grid-cols-2">
         <section className="rounded-card border border-soot-200 bg-white p-4" aria-label="Latest measurements">
           <h3 className="text-sm font-semibold text-soot-800">Latest measurements</h3>
-          <table className="tabular mt-2 w-full text-sm" data-testid="calibration-recent">
+          <ScrollRegion label="Recent inspections"><table className="tabular mt-2 w-full text-sm" data-testid="calibration-recent">
             <thead className="text-left text-2xs uppercase tracking-wide text-soot-500">
               <tr>
                 <th className="py-1">Unit</th>
@@ -258,7 +259,7 @@ function MaterialPanel({ materialId, canApply, timeZone }: { materialId: string;
                 );
               })}
             </tbody>
-          </table>
+          </table></ScrollRegion>
           {v.excluded.length ? (
             <div className="mt-3 text-xs text-soot-600">
               <h4 className="font-semibold">Left out</h4>
@@ -316,7 +317,7 @@ function StatsTable({ v }: { v: MaterialCalibrationView }) {
     { key: "z", label: "Z", cal: v.calibration.z, current: v.material.shrink_z },
   ];
   return (
-    <table className="tabular w-full whitespace-nowrap text-xs" data-testid="calibration-stats">
+    <ScrollRegion label="Shrinkage per material"><table className="tabular w-full whitespace-nowrap text-xs" data-testid="calibration-stats">
       <thead className="text-left text-2xs uppercase tracking-wide text-soot-500">
         <tr>
           <th className="py-1 pr-2">Axis</th>
@@ -344,6 +345,6 @@ function StatsTable({ v }: { v: MaterialCalibrationView }) {
           </tr>
         ))}
       </tbody>
-    </table>
+    </table></ScrollRegion>
   );
 }

@@ -82,7 +82,7 @@ function Inner({ unitId, units, timeZone, canAttach, role }: UnitTraceProps) {
         ) : null}
       </header>
 
-      <div className="grid gap-4 md:grid-cols-2 2xl:grid-cols-4">
+      <div className="grid grid-cols-1 gap-4 md:grid-cols-2 2xl:grid-cols-4">
         <Card title="Material and print" testId="trace-build">
           <Row k="Material">{t.material.name} ({t.material.code})</Row>
           <Row k="Lot">{t.build?.material_lot || "not recorded"}</Row>
@@ -163,7 +163,7 @@ function Inner({ unitId, units, timeZone, canAttach, role }: UnitTraceProps) {
         </Card>
       </div>
 
-      <div className="grid gap-6 xl:grid-cols-[minmax(0,1.2fr)_minmax(0,1fr)]">
+      <div className="grid grid-cols-1 gap-6 xl:grid-cols-[minmax(0,1.2fr)_minmax(0,1fr)]">
         <section aria-label="Timeline">
           <h2 className="mb-3 font-display text-lg font-semibold text-soot-900">Timeline</h2>
           <ol className="relative space-y-3 border-l border-soot-200 pl-5" data-testid="trace-timeline">

@@ -23,7 +23,7 @@ beforeAll(async () => {
     if (row) ids[key] = row.id;
   };
   await Promise.all([
-    one(db.selectFrom("units").select("id").where("state", "=", "brown").orderBy("serial").executeTakeFirst(), "unit"),
+    one(db.selectFrom("units").select("id").where("state", "=", "brown").where("serial", "like", "WO-%").orderBy("serial").executeTakeFirst(), "unit"),
     one(db.selectFrom("units").select("id").where("state", "in", ["ready_for_finishing", "finishing"]).orderBy("serial").executeTakeFirst(), "finishing_unit"),
     one(db.selectFrom("builds").select("id").where("state", "=", "scheduled").orderBy("code").executeTakeFirst(), "build"),
     one(db.selectFrom("furnace_runs").select("id").orderBy("code").executeTakeFirst(), "run"),
@@ -51,7 +51,7 @@ function pagesFor(role: Role): string[] {
 
 /** Waits until the page's client data has arrived: the network quiet and no "Loading" line left. */
 async function settle(page: Page) {
-  await page.waitForLoadState("networkidle", { timeout: 15_000 }).catch(() => undefined);
+  await page.waitForLoadState("networkidle", { timeout: 8_000 }).catch(() => undefined);
   await page
     .waitForFunction(() => ![...document.querySelectorAll("main p, main div")].some((n) => n.childElementCount === 0 && /^Loading/.test(n.textContent ?? "")), undefined, { timeout: 15_000 })
     .catch(() => undefined);

@@ -130,11 +130,15 @@ describe("at the machines, on a phone", () => {
     expect(await tally(page, "missing")).toBe("2");
 
     const enter = async (code: string) => {
-      const before = await page.getByTestId("load-last").textContent().catch(() => null);
+      const last = page.getByTestId("load-last");
+      const scansBefore = await page.evaluate((key) => (JSON.parse(sessionStorage.getItem(key) ?? "{}").scans ?? []).length, `hearth:load-run:${run.id}`);
       await page.getByTestId("code-input").fill(code);
       await page.getByRole("button", { name: "Load" }).click();
-      await expect.poll(async () => page.getByTestId("load-last").textContent().catch(() => null), { timeout: 20_000 }).not.toBe(before);
-      return page.getByTestId("load-last").textContent();
+      await expect
+        .poll(async () => page.evaluate((key) => (JSON.parse(sessionStorage.getItem(key) ?? "{}").scans ?? []).length, `hearth:load-run:${run.id}`), { timeout: 20_000 })
+        .toBeGreaterThan(scansBefore);
+      await expect.poll(async () => page.getByRole("button", { name: "Load" }).isDisabled(), { timeout: 20_000 }).toBe(true); // empty field again
+      return last.textContent();
     };
 
     expect(await enter(a.serial)).toContain(`${a.serial} ticked off`);
@@ -175,6 +179,7 @@ describe("touch on the batching board", () => {
     const target = page.locator(`[data-target-id="run:${run.id}"]`);
     await target.waitFor();
     await target.scrollIntoViewIfNeeded();
+    await screenshot(page, "tablet-furnace-operator-board");
     // Beside the list at this width: the waiting list stays in view while the targets scroll.
     const a = (await card.boundingBox())!;
     const b = (await target.boundingBox())!;
