@@ -76,7 +76,7 @@ export function UnitCardBody({ unit, timeZone, unitPref, profileLabel, compact }
  * button is nested in another.
  */
 export function UnitCard(props: UnitCardProps) {
-  const { unit, from, lane, disabled, onRemove, compact } = props;
+  const { unit, from, lane, disabled, onRemove, compact, moveTargets, onMove } = props;
   const id = `${lane}:${from.kind === "waiting" ? "waiting" : from.id}:${unit.id}`;
   const { attributes, listeners, setNodeRef, isDragging } = useDraggable({ id, data: { unit, from, lane } satisfies DragData, disabled });
   const card = (

@@ -10,6 +10,7 @@ import { useRouter } from "next/navigation";
 import { useCallback, useEffect, useMemo, useRef, useState, useSyncExternalStore } from "react";
 import type { FloorData, FloorEvent, FloorResource, UnscheduledBuild } from "@/lib/floor/schemas";
 import { ApiError, apiJson } from "./api";
+import { useCalendarA11y } from "./calendar-a11y";
 import { PlanPanel, type Proposal } from "./plan-panel";
 import { ScheduleForm } from "./schedule-form";
 import { formatSlot, minutesLabel } from "./format";
@@ -167,6 +168,8 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
     [laneKey],
   );
   const phone = usePhone();
+  const calendarBox = useRef<HTMLDivElement>(null);
+  useCalendarA11y(calendarBox);
   const [laneGroup, setLaneGroup] = useState<LaneGroup>("printer");
   const shownResources = useMemo(() => (phone ? calendarResources.filter((r) => r.kind === laneGroup) : calendarResources), [phone, laneGroup, calendarResources]);
   const printerName = useCallback((id: string | null) => (id ? (resourceById.get(id)?.title ?? "a printer") : "nothing"), [resourceById]);
@@ -432,6 +435,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
           </div>
         ) : null}
         <div
+          ref={calendarBox}
           className="hearth-floor"
           style={CALENDAR_STYLE}
         >

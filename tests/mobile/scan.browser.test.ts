@@ -132,12 +132,18 @@ describe("at the machines, on a phone", () => {
     const enter = async (code: string) => {
       const last = page.getByTestId("load-last");
       const scansBefore = await page.evaluate((key) => (JSON.parse(sessionStorage.getItem(key) ?? "{}").scans ?? []).length, `hearth:load-run:${run.id}`);
-      await page.getByTestId("code-input").fill(code);
-      await page.getByRole("button", { name: "Load" }).click();
+      const button = page.getByRole("button", { name: "Load", exact: true });
+      await expect
+        .poll(async () => {
+          await page.getByTestId("code-input").fill(code);
+          return button.isEnabled();
+        }, { timeout: 20_000 })
+        .toBe(true);
+      await button.click();
       await expect
         .poll(async () => page.evaluate((key) => (JSON.parse(sessionStorage.getItem(key) ?? "{}").scans ?? []).length, `hearth:load-run:${run.id}`), { timeout: 20_000 })
         .toBeGreaterThan(scansBefore);
-      await expect.poll(async () => page.getByRole("button", { name: "Load" }).isDisabled(), { timeout: 20_000 }).toBe(true); // empty field again
+      await expect.poll(async () => button.isDisabled(), { timeout: 20_000 }).toBe(true); // empty field again
       return last.textContent();
     };
 
