@@ -514,9 +514,9 @@ function NewRunForm({ board, busy, onCreate }: { board: Board; busy: boolean; on
       }}
     >
       <span className="text-sm font-semibold text-soot-800">New furnace run</span>
-      <label className="text-2xs text-soot-600">
+      <label className="min-w-0 max-w-full text-2xs text-soot-600">
         Furnace
-        <select aria-label="Furnace for the new run" value={furnaceId} onChange={(e) => setFurnaceId(e.target.value)} className="mt-0.5 block rounded border border-soot-200 px-1.5 py-1 text-xs">
+        <select aria-label="Furnace for the new run" value={furnaceId} onChange={(e) => setFurnaceId(e.target.value)} className="mt-0.5 block w-full max-w-full rounded border border-soot-200 px-1.5 py-1 text-xs">
           {board.furnaces.map((f) => (
             <option key={f.id} value={f.id}>
               {f.name} ({f.tray_count} × {f.tray_x_mm}×{f.tray_y_mm} mm, {f.usable_height_mm} mm high)
@@ -524,9 +524,9 @@ function NewRunForm({ board, busy, onCreate }: { board: Board; busy: boolean; on
           ))}
         </select>
       </label>
-      <label className="text-2xs text-soot-600">
+      <label className="min-w-0 max-w-full text-2xs text-soot-600">
         Sinter profile
-        <select aria-label="Sinter profile for the new run" value={chosen} onChange={(e) => setProfileId(e.target.value)} className="mt-0.5 block rounded border border-soot-200 px-1.5 py-1 text-xs">
+        <select aria-label="Sinter profile for the new run" value={chosen} onChange={(e) => setProfileId(e.target.value)} className="mt-0.5 block w-full max-w-full rounded border border-soot-200 px-1.5 py-1 text-xs">
           {profiles.map((p) => (
             <option key={p.id} value={p.id}>
               {p.label} · {p.name}
@@ -552,9 +552,9 @@ function NewWashForm({ board, busy, onCreate }: { board: Board; busy: boolean; o
       }}
     >
       <span className="text-sm font-semibold text-soot-800">New wash batch</span>
-      <label className="text-2xs text-soot-600">
+      <label className="min-w-0 max-w-full text-2xs text-soot-600">
         Wash station
-        <select aria-label="Wash station for the new batch" value={stationId} onChange={(e) => setStationId(e.target.value)} className="mt-0.5 block rounded border border-soot-200 px-1.5 py-1 text-xs">
+        <select aria-label="Wash station for the new batch" value={stationId} onChange={(e) => setStationId(e.target.value)} className="mt-0.5 block w-full max-w-full rounded border border-soot-200 px-1.5 py-1 text-xs">
           {board.stations.map((s) => (
             <option key={s.id} value={s.id}>
               {s.name} ({s.capacity_units} units, {s.basket_x_mm}×{s.basket_y_mm}×{s.basket_z_mm} mm)
