@@ -184,8 +184,8 @@ describe("touch on the batching board", () => {
     await card.waitFor();
     const target = page.locator(`[data-target-id="run:${run.id}"]`);
     await target.waitFor();
-    await target.scrollIntoViewIfNeeded();
     await screenshot(page, "tablet-furnace-operator-board");
+    await target.scrollIntoViewIfNeeded();
     // Beside the list at this width: the waiting list stays in view while the targets scroll.
     const a = (await card.boundingBox())!;
     const b = (await target.boundingBox())!;
@@ -202,9 +202,10 @@ describe("touch on the batching board", () => {
     for (let i = 1; i <= 15; i++) await touch("touchMove", from.x + ((to.x - from.x) * i) / 15, from.y + ((to.y - from.y) * i) / 15);
     await target.getByTestId("drop-verdict").waitFor({ timeout: 10_000 });
     expect(await target.getByTestId("drop-verdict").textContent()).toContain("fits here");
-    await screenshot(page, "tablet-furnace-operator-touch-drag");
+    // No full-page screenshot mid-drag: it resizes the window, and a resize cancels a drag.
     await touch("touchEnd", to.x, to.y);
     await expect.poll(async () => (await db.selectFrom("units").select("furnace_run_id").where("id", "=", u.id).executeTakeFirstOrThrow()).furnace_run_id, { timeout: 15_000 }).toBe(run.id);
+    await screenshot(page, "tablet-furnace-operator-touch-drop");
     await ctx.close();
   });
 
