@@ -8,7 +8,7 @@ export type Proposal = {
   id: string;
   status: string;
   planned_from: string;
-  items: Array<{ build_id: string; code: string; material_code: string; printer_id: string; printer_name: string; starts_at: string; ends_at: string; due_at: string | null; lateness_min: number }>;
+  items: Array<{ build_id: string; code: string; material_code: string; printer_id: string; printer_name: string; starts_at: string; ends_at: string; due_at: string | null; lateness_min: number; feedstock_short?: string }>;
   unplaced: Array<{ build_id: string; code: string; reason: string; printer_reasons: (string | null)[] }>;
   metrics: { builds: number; placed: number; makespan_min: number; makespan_lower_bound_min: number; max_lateness_min: number; total_lateness_min: number; late_count: number; plan_ms: number };
 };
@@ -94,7 +94,10 @@ export function PlanPanel({ proposal, setProposal, canApply, timeZone, onApplied
               <tbody>
                 {proposal.items.map((i) => (
                   <tr key={i.build_id} className="border-t border-soot-100 align-top">
-                    <td className="py-1 pr-1 font-semibold text-verdigris-700">+ {i.code}</td>
+                    <td className="py-1 pr-1 font-semibold text-verdigris-700">
+                      + {i.code}
+                      {i.feedstock_short ? <span className="block text-2xs font-semibold text-oxide-700">No feedstock: {i.feedstock_short}</span> : null}
+                    </td>
                     <td className="pr-1">{i.printer_name}</td>
                     <td className="tabular pr-1">{formatWhen(i.starts_at, timeZone)} → {formatWhen(i.ends_at, timeZone)}</td>
                     <td className={`tabular ${i.lateness_min > 0 ? "font-semibold text-oxide-700" : "text-soot-500"}`}>{i.lateness_min > 0 ? minutesLabel(i.lateness_min) : "on time"}</td>
