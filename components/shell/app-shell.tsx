@@ -12,7 +12,6 @@ export type AppShellProps = { nav: NavItem[]; user: ShellUser; userSlot?: React.
 export function AppShell({ nav, user, userSlot, children }: AppShellProps) {
   return (
     <div className="min-h-screen md:flex">
-      <MenuDrawer items={nav.map(({ href, label, hint }) => ({ href, label, hint }))} userSlot={userSlot ?? <UserSummary user={user} />} />
       <aside className="no-print hidden w-56 shrink-0 flex-col bg-soot-900 text-soot-100 md:flex">
         <Link href="/" className="flex items-center gap-2.5 px-5 pb-6 pt-5 text-clay-300 hover:text-clay-200">
           <BrandMark />
@@ -23,6 +22,8 @@ export function AppShell({ nav, user, userSlot, children }: AppShellProps) {
           {userSlot ?? <UserSummary user={user} />}
         </div>
       </aside>
+      {/* After the sidebar, which it replaces below md: the desktop finds the sidebar first. */}
+      <MenuDrawer items={nav.map(({ href, label, hint }) => ({ href, label, hint }))} userSlot={userSlot ?? <UserSummary user={user} />} />
       <main className="min-w-0 flex-1">{children}</main>
     </div>
   );

@@ -21,7 +21,6 @@ export function MenuDrawer({ items, userSlot }: MenuDrawerProps) {
   const pathname = usePathname();
   const button = useRef<HTMLButtonElement>(null);
   const panel = useRef<HTMLDivElement>(null);
-  const current = items.find((i) => pathname === i.href || pathname.startsWith(`${i.href}/`));
 
   // A followed link closes the drawer.
   const [seenPath, setSeenPath] = useState(pathname);
@@ -84,7 +83,6 @@ export function MenuDrawer({ items, userSlot }: MenuDrawerProps) {
           <BrandMark className="h-6 w-6" />
           <span className="font-display text-lg font-semibold text-soot-50">Hearth</span>
         </Link>
-        {current ? <span className="ml-auto truncate text-sm text-soot-200">{current.label}</span> : null}
       </div>
       {open ? (
         <div className="fixed inset-0 z-50 flex">
