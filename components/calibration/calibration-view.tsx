@@ -122,7 +122,7 @@ function MaterialPanel({ materialId, canApply, timeZone }: { materialId: string;
 
   return (
     <div className="space-y-5" data-testid="calibration-panel" data-material={v.material.code}>
-      <div className="grid items-start gap-5 xl:grid-cols-[minmax(0,1.35fr)_minmax(0,1fr)]">
+      <div className="grid grid-cols-1 items-start gap-5 xl:grid-cols-[minmax(0,1.35fr)_minmax(0,1fr)]">
         <section className="rounded-card border border-soot-200 bg-white p-4 shadow-card" aria-label="Realized shrinkage over time">
           <h2 className="font-display text-lg font-semibold text-soot-900">
             {v.material.name}: realized shrinkage over time
