@@ -6,8 +6,8 @@ import { useEffect, type RefObject } from "react";
  * FullCalendar 6's timeline draws its slot and lane tables with aria-hidden="true", yet the
  * bookings inside them take focus (they open their build), which hides focusable content from
  * screen readers (axe-core aria-hidden-focus). The tables only lay things out, so they become
- * role="presentation" instead; and the calendar's scrolling boxes get a name and a tab stop, so
- * that a keyboard can scroll them (axe-core scrollable-region-focusable). Redone whenever the
+ * role="presentation" instead; and the calendar's scrolling boxes get a tab stop, so that a
+ * keyboard can scroll them (axe-core scrollable-region-focusable). Redone whenever the
  * calendar redraws its tables.
  */
 export function useCalendarA11y(root: RefObject<HTMLElement | null>) {
@@ -21,11 +21,9 @@ export function useCalendarA11y(root: RefObject<HTMLElement | null>) {
       }
       for (const s of el.querySelectorAll<HTMLElement>(".fc-scroller")) {
         const scrolls = s.scrollWidth > s.clientWidth + 1 || s.scrollHeight > s.clientHeight + 1;
-        if (scrolls && !s.hasAttribute("tabindex")) {
-          s.tabIndex = 0;
-          s.setAttribute("role", "region");
-          s.setAttribute("aria-label", s.closest(".fc-timeline-header, .fc-datagrid-header") ? "Timeline header" : "Timeline lanes");
-        }
+        // A tab stop only: a named region role here would break the grid's table roles
+        // (axe-core aria-required-children).
+        if (scrolls && !s.hasAttribute("tabindex")) s.tabIndex = 0;
       }
     };
     fix();

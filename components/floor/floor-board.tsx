@@ -531,7 +531,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
               const ok = b.printers.filter((p) => p.ok);
               return (
                 <li key={b.id} data-build-id={b.id} data-testid={`unscheduled-${b.code}`}
-                  className={`rounded-md border border-clay-300 bg-clay-50 px-2.5 py-1.5 text-sm ${canSchedule && ok.length ? "cursor-grab" : "opacity-70"}`}
+                  className={`rounded-md border border-clay-300 bg-clay-50 px-2.5 py-1.5 text-sm ${canSchedule && ok.length ? "cursor-grab" : ""}`}
                   title={ok.length ? "Drag onto a printer" : "No printer can take this build"}>
                   <div className="flex items-baseline justify-between gap-2">
                     <Link href={`/builds/${b.id}`} className="font-semibold text-clay-800 hover:underline">{b.code}</Link>
