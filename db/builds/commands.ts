@@ -317,7 +317,7 @@ export type PlanProposalItem = {
 };
 
 /** Runs the planner over the draft builds and keeps the proposal so it can be applied as shown. */
-export async function proposePrinterPlan(db: Database, opts: { build_ids?: string[]; from?: string }, actorId: string) {
+export async function proposePrinterPlan(db: Database, opts: { build_ids?: string[]; from?: string; budget_ms?: number }, actorId: string) {
   const now = opts.from ? new Date(opts.from) : new Date();
   // Plans start on the next whole five minutes: a slot that begins 14:03:27 reads badly on a traveler.
   now.setUTCSeconds(0, 0);
@@ -329,6 +329,7 @@ export async function proposePrinterPlan(db: Database, opts: { build_ids?: strin
   const result = planFloor({
     now: now.getTime(),
     staffed: staffedHoursFor(shop.staffed_hours, shop.time_zone),
+    budget_ms: opts.budget_ms,
     printers: printers.map((p) => ({ id: p.id, blocked: blocked.get(p.id) ?? [] })),
     builds: drafts.map((b) => ({
       id: b.id,
