@@ -113,7 +113,7 @@ export function GeometryUpload({ partId, uploadUrl, onFile, maxBytes, current, o
             STEPS.map((s, i) => {
               const reached = STEPS.indexOf(state as (typeof STEPS)[number]) >= i;
               return (
-                <li key={s} className={`flex items-center gap-1 ${reached ? "font-semibold text-verdigris-700" : "text-soot-400"}`}>
+                <li key={s} className={`flex items-center gap-1 ${reached ? "font-semibold text-verdigris-700" : "text-soot-500"}`}>
                   <span className={`inline-block h-2 w-2 rounded-full ${reached ? "bg-verdigris-500" : "bg-soot-300"}`} />
                   {s}
                   {i < STEPS.length - 1 ? <span className="text-soot-300">→</span> : null}

@@ -94,7 +94,7 @@ function UsersAdminInner({ currentUserId, actions }: UsersAdminProps) {
 
       {showNew ? <NewUserForm action={actions.createUser} onDone={(s) => { done(s); if (s.ok) setShowNew(false); }} /> : null}
 
-      <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card">
+      <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Users" tabIndex={0}>
         <table className="min-w-full text-sm">
           <thead className="border-b border-soot-200 bg-soot-50 text-left text-xs uppercase tracking-wide text-soot-500">
             <tr>
@@ -147,7 +147,7 @@ function NewUserForm({ action, onDone }: { action: UserAction; onDone: (s: Actio
   const [state, formAction, pending] = useActionDone(action, onDone);
   const err = (k: string) => (state.ok ? undefined : state.fieldErrors?.[k]?.[0]);
   return (
-    <form action={formAction} className="grid gap-4 rounded-card border border-soot-200 bg-white p-5 shadow-card sm:grid-cols-2 lg:grid-cols-5" aria-label="New user" noValidate>
+    <form action={formAction} className="grid grid-cols-1 gap-4 rounded-card border border-soot-200 bg-white p-5 shadow-card sm:grid-cols-2 lg:grid-cols-5" aria-label="New user" noValidate>
       <label className="text-sm font-medium text-soot-700 lg:col-span-2">
         Name
         <input name="name" required className={inputCls} aria-invalid={!!err("name")} autoComplete="off" />

@@ -43,6 +43,8 @@ export const PERMISSIONS = {
   "inventory:recall": ["admin", "manager"],
   "consumables:write": ["admin", "technician", "furnace_operator"],
   "self:write": everyone,
+  /** The scan page: the roles that work at the machines with a phone or tablet. */
+  "floor:scan": ["admin", "technician", "furnace_operator", "machinist"],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Permission = keyof typeof PERMISSIONS;
@@ -59,6 +61,7 @@ export const NAV: NavItem[] = [
   { href: "/floor", label: "Floor", permission: "shop:read", hint: "Printers, wash stations and furnaces on one timeline" },
   { href: "/parts", label: "Orders & parts", permission: "shop:read", hint: "Orders, parts, units and geometry" },
   { href: "/batches", label: "Batches", permission: "shop:read", hint: "Fill wash batches and furnace runs" },
+  { href: "/scan", label: "Scan", permission: "floor:scan", hint: "Scan a traveler's QR code or type its code" },
   { href: "/finishing", label: "Finishing", permission: "shop:read", hint: "Arriving and ready parts, inspection" },
   { href: "/inventory", label: "Feedstock", permission: "shop:read", hint: "Lots on hand, projection, genealogy, solvent and gas" },
   { href: "/capacity", label: "Capacity", permission: "capacity:read", hint: "Utilization, work in progress, late orders" },

@@ -83,6 +83,7 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/parts/import": { POST: "parts:write" },
   "/api/units": { GET: "shop:read" },
   "/api/units/[id]/trace": { GET: "shop:read" },
+  "/api/scan": { GET: { gate: "shop:read", path: "/api/scan?code=NO-SUCH-CODE" } },
   "/api/files/[id]": { GET: "shop:read" },
   "/api/files/[id]/content": { GET: "shop:read" },
 

@@ -11,7 +11,7 @@ export default async function SettingsPage() {
   return (
     <>
       <PageHeader title="My settings" lead={`${user.email} · ${ROLE_LABELS[user.role]}. Your role is set by an admin.`} />
-      <div className="px-8 py-6">
+      <div className="px-4 md:px-8 py-6">
         <SettingsForms
           user={{ name: user.name, unit_pref: user.unit_pref, muted_mail: user.muted_mail }}
           mailKinds={MAIL_KINDS.map((k) => ({ kind: k, label: MAIL_KIND_LABELS[k] }))}

@@ -33,7 +33,7 @@ export default async function SetupPage() {
   return (
     <>
       <PageHeader title="Set-up" lead="Users, equipment, materials, sinter profiles and shop settings: what the planner works from." />
-      <div className="grid gap-4 px-8 py-6 sm:grid-cols-2 xl:grid-cols-3">
+      <div className="grid grid-cols-1 gap-4 px-4 md:px-8 py-6 sm:grid-cols-2 xl:grid-cols-3">
         {SECTIONS.map((s) =>
           s.href ? (
             <Link key={s.title} href={s.href} className="group rounded-card border border-soot-200 bg-white p-5 shadow-card hover:border-clay-300">

@@ -35,7 +35,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
           <ul className="space-y-0.5 font-mono">
             {DEMO_USERS.map((u) => (
               <li key={u.email}>
-                {u.email} <span className="font-sans text-soot-400">· {ROLE_LABELS[u.role]}</span>
+                {u.email} <span className="font-sans text-soot-500">· {ROLE_LABELS[u.role]}</span>
               </li>
             ))}
           </ul>

@@ -19,7 +19,7 @@ export default async function UsersPage() {
           </Link>
         }
       />
-      <div className="px-8 py-6">
+      <div className="px-4 md:px-8 py-6">
         <UsersAdmin currentUserId={user.id} actions={{ createUser, changeRole, setActive, sendLink }} />
       </div>
     </>
