@@ -41,6 +41,13 @@ ensure_postgres_binaries() {
   fi
 }
 
+# nginx for the multi-instance arrangement (npm run start:cluster and its test).
+ensure_nginx() {
+  if [ -z "${HEARTH_NGINX:-}" ] && [ ! -x /usr/sbin/nginx ] && [ ! -x /usr/bin/nginx ]; then
+    apt_install nginx-light
+  fi
+}
+
 ensure_chromium() {
   if [ -z "${HEARTH_CHROMIUM:-}" ] && [ ! -x /usr/bin/chromium ]; then
     apt_install chromium

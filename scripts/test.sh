@@ -8,6 +8,7 @@ cd "$ROOT"
 slot="${HEARTH_TEST_SLOT:-0}"
 ensure_node_modules
 ensure_chromium
+ensure_nginx
 # CI audits the production dependencies (npm run audit): a high or critical advisory fails the
 # run; a registry that does not answer is reported and the tests go on.
 if [ "${CI:-}" = "true" ]; then

@@ -6,7 +6,7 @@ import { useEffect, type RefObject } from "react";
  * FullCalendar 6's timeline draws its slot and lane tables with aria-hidden="true", yet the
  * bookings inside them take focus (they open their build), which hides focusable content from
  * screen readers (axe-core aria-hidden-focus). The tables only lay things out, so they become
- * role="presentation" instead; and the calendar's scrolling boxes get a tab stop, so that a
+ * role="presentation" instead (the outer grid too); and the calendar's scrolling boxes get a tab stop, so that a
  * keyboard can scroll them (axe-core scrollable-region-focusable). Redone whenever the
  * calendar redraws its tables.
  */
@@ -19,6 +19,10 @@ export function useCalendarA11y(root: RefObject<HTMLElement | null>) {
         t.removeAttribute("aria-hidden");
         t.setAttribute("role", "presentation");
       }
+      // The outer scroll grid's role="grid" demands rows and cells as its only children; a
+      // scrolling box with a tab stop inside it breaks that (axe-core aria-required-children).
+      // It is a layout grid for the lanes and the time axis, not a data grid: presentation too.
+      for (const g of el.querySelectorAll('table[role="grid"]')) g.setAttribute("role", "presentation");
       for (const s of el.querySelectorAll<HTMLElement>(".fc-scroller")) {
         const scrolls = s.scrollWidth > s.clientWidth + 1 || s.scrollHeight > s.clientHeight + 1;
         // A tab stop only: a named region role here would break the grid's table roles
