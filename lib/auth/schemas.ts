@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { ROLES } from "./permissions";
+import { NOTIFICATION_KINDS } from "@/lib/notifications/kinds";
 
 const email = z.string().trim().min(1, "Enter an e-mail address").max(254).email("That is not an e-mail address");
 const name = z.string().trim().min(1, "Enter a name").max(120, "Keep the name under 120 characters");
@@ -49,7 +50,7 @@ export const setPasswordSchema = z
   .refine((v) => v.password === v.confirm, { message: "The two passwords differ", path: ["confirm"] });
 
 /** The e-mails a person may turn off for themselves; account mail (invites, resets) always goes. */
-export const MAIL_KINDS = ["furnace_run_finished", "ready_for_finishing", "wash_done", "build_finished", "build_failed"] as const;
+export const MAIL_KINDS = NOTIFICATION_KINDS;
 export type MailKind = (typeof MAIL_KINDS)[number];
 export const MAIL_KIND_LABELS: Record<MailKind, string> = {
   furnace_run_finished: "A furnace run has finished",
@@ -57,6 +58,8 @@ export const MAIL_KIND_LABELS: Record<MailKind, string> = {
   wash_done: "A wash batch is done",
   build_finished: "A build has finished printing",
   build_failed: "A build has failed",
+  feedstock_reorder: "A material's feedstock falls below its reorder point",
+  bath_change_due: "A solvent bath is due for a change",
 };
 
 export const updateProfileSchema = z
