@@ -1,4 +1,5 @@
 import type { Metadata } from "next";
+import { headers } from "next/headers";
 import localFont from "next/font/local";
 import "./globals.css";
 
@@ -11,7 +12,10 @@ export const metadata: Metadata = {
   description: "Plans print, wash, sinter and finishing for a bound-metal additive-manufacturing shop.",
 };
 
-export default function RootLayout({ children }: { children: React.ReactNode }) {
+export default async function RootLayout({ children }: { children: React.ReactNode }) {
+  // Every page is rendered per request: proxy.ts gives each response a fresh CSP nonce, and
+  // Next.js can put it on its scripts only while rendering (a page built ahead has no request).
+  await headers();
   return (
     <html lang="en" className={`${manrope.variable} ${fraunces.variable} ${jetbrains.variable}`}>
       <body>{children}</body>

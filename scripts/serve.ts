@@ -12,6 +12,8 @@ import next from "next";
 import { closeDb, getDb } from "@/db/client";
 import { answerFloorWindow } from "@/app/_server/floor-window-direct";
 import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
+import { PEER_HEADER } from "@/lib/http/client-address";
+import { baseSecurityHeaders } from "@/lib/http/security-headers";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const port = Number(process.env.PORT ?? 3000);
@@ -25,7 +27,13 @@ async function main() {
   // Without a usable secret nothing can be answered directly; Next.js then reports the set-up error.
   const secret = process.env.SESSION_SECRET && process.env.SESSION_SECRET.length >= 32 ? process.env.SESSION_SECRET : null;
 
+  const securityHeaders = Object.entries(baseSecurityHeaders(process.env.APP_URL));
   const server = http.createServer((req, res) => {
+    // Every answer, direct or Next.js's, carries the security headers; the page's CSP is proxy.ts's.
+    for (const [name, value] of securityHeaders) res.setHeader(name, value);
+    // The socket's address for app/_server/session.ts, never a value the client sent.
+    delete req.headers[PEER_HEADER];
+    if (req.socket.remoteAddress) req.headers[PEER_HEADER] = req.socket.remoteAddress;
     const direct = req.url?.startsWith(STATIC_PREFIX)
       ? assets.answer(req, res)
       : secret

@@ -1,8 +1,18 @@
 import { NextResponse } from "next/server";
 import { ZodError, z } from "zod";
 import { AppError } from "@/lib/errors";
+import { appErrorFromDatabase } from "@/lib/db-errors";
+import { getEnv } from "@/lib/env";
+import { checkJsonShape, isJsonContentType } from "@/lib/http/json-body";
 
 export type ErrorBody = { error: { code: string; message: string; fieldErrors?: Record<string, string[]>; details?: unknown } };
+
+function appErrorResponse(err: AppError): NextResponse<ErrorBody> {
+  return NextResponse.json(
+    { error: { code: err.code, message: err.message, fieldErrors: err.fieldErrors, details: err.details } },
+    { status: err.status },
+  );
+}
 
 /** One place that turns a thrown error into the API's error body and status. */
 export function toErrorResponse(err: unknown): NextResponse<ErrorBody> {
@@ -20,30 +30,57 @@ export function toErrorResponse(err: unknown): NextResponse<ErrorBody> {
       { status: 422 },
     );
   }
-  if (err instanceof AppError) {
-    return NextResponse.json(
-      { error: { code: err.code, message: err.message, fieldErrors: err.fieldErrors, details: err.details } },
-      { status: err.status },
-    );
-  }
-  const pgCode = (err as { code?: string } | null)?.code;
-  if (pgCode === "23P01") {
-    return NextResponse.json({ error: { code: "conflict", message: "That time is already booked on this resource." } }, { status: 409 });
-  }
-  if (pgCode === "40001" || pgCode === "40P01") {
-    return NextResponse.json({ error: { code: "conflict", message: "Someone else changed this at the same moment; reload and try again." } }, { status: 409 });
-  }
+  if (err instanceof AppError) return appErrorResponse(err);
+  // Next.js decodes a dynamic path segment when the handler awaits its params; a malformed
+  // percent-escape ("%E0%A4%A") throws URIError there. The address is the client's mistake.
+  if (err instanceof URIError) return appErrorResponse(new AppError("bad_request", "The address contains a malformed %-escape."));
+  // Unique names, out-of-range numbers and dates, NUL bytes: the database refusing a value the
+  // request sent is the request's fault (lib/db-errors.ts says which field).
+  const fromDb = appErrorFromDatabase(err);
+  if (fromDb) return appErrorResponse(fromDb);
   console.error("[api] unexpected error", err);
   return NextResponse.json({ error: { code: "internal", message: "Something went wrong on our side; nothing was changed." } }, { status: 500 });
 }
 
-/** Reads a JSON body; a body that is not JSON is a 400, never a 500. */
-export async function readJson(req: Request): Promise<unknown> {
-  const text = await req.text();
+/** Reads the body's bytes, refusing more than `max` before reading the rest (413). */
+async function readCapped(req: Request, max: number): Promise<string> {
+  const tooLarge = () => new AppError("payload_too_large", `The request body is larger than ${max} bytes.`, undefined, { max_bytes: max });
+  const declared = Number(req.headers.get("content-length"));
+  if (Number.isFinite(declared) && declared > max) throw tooLarge();
+  if (!req.body) return "";
+  const reader = req.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let size = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    size += value.byteLength;
+    if (size > max) {
+      await reader.cancel().catch(() => undefined);
+      throw tooLarge();
+    }
+    chunks.push(value);
+  }
+  return new TextDecoder().decode(Buffer.concat(chunks));
+}
+
+/**
+ * Reads a JSON body: application/json only (415), at most JSON_MAX_BYTES (413), valid JSON (400),
+ * no deeper than a form could send and no NUL byte in any text (422). Never a 500.
+ */
+export async function readJson(req: Request, opts: { maxBytes?: number } = {}): Promise<unknown> {
+  const text = await readCapped(req, opts.maxBytes ?? getEnv().JSON_MAX_BYTES);
   if (!text.trim()) return {};
+  if (!isJsonContentType(req.headers.get("content-type"))) {
+    throw new AppError("unsupported_media_type", "Send the body as JSON with Content-Type: application/json.", undefined, { expected: "application/json" });
+  }
+  let value: unknown;
   try {
-    return JSON.parse(text);
+    value = JSON.parse(text);
   } catch {
     throw new AppError("bad_request", "The request body is not valid JSON.");
   }
+  const problem = checkJsonShape(value);
+  if (problem) throw new AppError(problem.code, problem.message, problem.field ? { [problem.field]: [problem.reason] } : undefined);
+  return value;
 }

@@ -36,8 +36,8 @@ export async function answerFloorWindow(req: IncomingMessage, res: ServerRespons
   const w = floorWindowSchema.safeParse(Object.fromEntries(new URLSearchParams(q < 0 ? "" : req.url.slice(q + 1))));
   if (!w.success) return false;
 
-  const { viewer, stamp } = await floorViewerAndStamp(db, session.userId);
-  if (!viewer || !sessionIsLive(session, viewer.sessions_valid_after, now) || !can(viewer.role, "shop:read")) return false;
+  const { viewer, stamp } = await floorViewerAndStamp(db, session.userId, session.sid);
+  if (!viewer || !sessionIsLive(session, viewer.sessions_valid_after, now, viewer.session_open) || !can(viewer.role, "shop:read")) return false;
 
   const { bytes, headers } = (await floorWindowBody(db, w.data, stamp)).encoded(acceptsGzip(req.headers["accept-encoding"]));
   res.writeHead(200, headers);

@@ -8,7 +8,8 @@ let procs: Proc[] = [];
 export async function setup() {
   if (process.env.HEARTH_TEST_NO_STACK) return;
   const port = Number(process.env.PORT ?? 3100);
-  procs = await startStack({ port, env: { ...process.env }, quiet: !process.env.HEARTH_TEST_VERBOSE });
+  // The tests stand in for a reverse proxy: they name client addresses in X-Forwarded-For.
+  procs = await startStack({ port, env: { TRUSTED_PROXIES: "127.0.0.1, ::1", ...process.env }, quiet: !process.env.HEARTH_TEST_VERBOSE });
 }
 
 export async function teardown() {

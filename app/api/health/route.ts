@@ -6,6 +6,8 @@ import { findLastSweep, listQueueStats } from "@/db/jobs/reads";
 import { summarizeOutbox } from "@/db/outbox/reads";
 import { checkSmtp } from "@/adapters/mail/transport";
 import { checkBucket } from "@/adapters/storage/s3";
+import { getCurrentUser } from "@/app/_server/session";
+import { can } from "@/lib/auth/permissions";
 
 export const dynamic = "force-dynamic";
 
@@ -26,7 +28,16 @@ async function timed<T>(fn: () => Promise<T>): Promise<{ ok: true; ms: number; v
   }
 }
 
-// GET /api/health – reachability of the database, the worker and the mail and file stores (public)
+/**
+ * Who may read the checks themselves (worker ids, queue counts, migration names): a signed-in
+ * admin. API tokens with a monitoring scope will be the second way in; their check goes here.
+ */
+async function mayReadHealthDetail(): Promise<boolean> {
+  const viewer = await getCurrentUser().catch(() => null);
+  return !!viewer && can(viewer.role, "jobs:read");
+}
+
+// GET /api/health – public: {status: "up" | "down"} (503 when down); an admin also gets every check's detail
 export async function GET() {
   const db = getDb();
   const [database, migration, worker, smtp, s3, jobs] = await Promise.all([
@@ -76,5 +87,7 @@ export async function GET() {
       : { ok: false, error: jobs.error },
   };
   const ok = Object.values(checks).every((c) => c.ok);
-  return NextResponse.json({ ok, checked_at: new Date().toISOString(), checks }, { status: ok ? 200 : 503, headers: { "cache-control": "no-store" } });
+  const status = ok ? "up" : "down";
+  const body = (await mayReadHealthDetail()) ? { status, ok, checked_at: new Date().toISOString(), checks } : { status };
+  return NextResponse.json(body, { status: ok ? 200 : 503, headers: { "cache-control": "no-store" } });
 }
