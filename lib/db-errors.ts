@@ -20,7 +20,7 @@ const DATA_EXCEPTIONS: Record<string, string> = {
 
 /** The columns a unique or foreign-key violation is about: from "Key (a, b)=(…)" or the constraint name. */
 export function violatedFields(err: PgError): string[] {
-  const detail = typeof err.detail === "string" ? /^Key \(([^)]+)\)=/.exec(err.detail) : null;
+  const detail = typeof err.detail === "string" ? /^Key \((.+?)\)=\(/.exec(err.detail) : null;
   if (detail) return detail[1].split(",").map((c) => c.trim().replace(/^lower\((.*)\)$/, "$1"));
   if (typeof err.constraint === "string") {
     const table = typeof err.table === "string" ? `${err.table}_` : "";
