@@ -14,6 +14,7 @@ import { answerFloorWindow } from "@/app/_server/floor-window-direct";
 import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
 import { PEER_HEADER } from "@/lib/http/client-address";
 import { baseSecurityHeaders } from "@/lib/http/security-headers";
+import { pathDecodes } from "@/lib/http/request-target";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const port = Number(process.env.PORT ?? 3000);
@@ -34,6 +35,11 @@ async function main() {
     // The socket's address for app/_server/session.ts, never a value the client sent.
     delete req.headers[PEER_HEADER];
     if (req.socket.remoteAddress) req.headers[PEER_HEADER] = req.socket.remoteAddress;
+    if (req.url && !pathDecodes(req.url)) {
+      res.writeHead(400, { "content-type": "application/json" });
+      res.end(JSON.stringify({ error: { code: "bad_request", message: "The address contains a malformed %-escape." } }));
+      return;
+    }
     const direct = req.url?.startsWith(STATIC_PREFIX)
       ? assets.answer(req, res)
       : secret

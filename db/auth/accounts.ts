@@ -33,8 +33,10 @@ const pgCode = (err: unknown) => (err as { code?: string } | null)?.code;
 // Sign-in ---------------------------------------------------------------------------------
 
 export async function signInWithPassword(db: Database, input: { email: string; password: string; ip: string }) {
+  const { attempt, failures } = await reserveSignInAttempt(db, input.email, input.ip, new Date(Date.now() - THROTTLE_WINDOW_MS));
+  // "Now" is read after the reservation: waiting for the lock, earlier attempts may have been
+  // stamped later than a clock read before it, and a failure from the "future" would not count.
   const now = Date.now();
-  const { attempt, failures } = await reserveSignInAttempt(db, input.email, input.ip, new Date(now - THROTTLE_WINDOW_MS));
   const verdict = throttleVerdict(failures.account, failures.address, now);
   const user = await findUserByEmail(db, input.email);
   if (verdict.blocked) {
@@ -303,8 +305,8 @@ export async function updateOwnProfile(db: Database, user: CurrentUser, input: U
  * the caller re-issues its own cookie from that instant, every other session ends.
  */
 export async function changeOwnPassword(db: Database, user: CurrentUser, current: string, next: string, ip: string): Promise<number> {
-  const now = Date.now();
-  const { attempt, failures } = await reserveSignInAttempt(db, user.email, ip, new Date(now - THROTTLE_WINDOW_MS));
+  const { attempt, failures } = await reserveSignInAttempt(db, user.email, ip, new Date(Date.now() - THROTTLE_WINDOW_MS));
+  const now = Date.now(); // after the reservation, as in signInWithPassword
   const verdict = throttleVerdict(failures.account, failures.address, now);
   if (verdict.blocked) {
     await deleteAttempt(db, attempt.id);

@@ -14,7 +14,7 @@ import { apiRoutes, type HttpMethod } from "../helpers/routes";
 
 const NEAR_UUID = "0000000000000000000000000000000-----";
 /** Sent raw, exactly as written (a malformed %-escape must reach the server as such). */
-const BAD_SEGMENTS = ["%E0%A4%A", "%", NEAR_UUID, "not-an-id", "%00", "'%3B--", "x".repeat(3000), "..%2F..%2Fetc", randomUUID().toUpperCase()];
+const BAD_SEGMENTS = ["%E0%A4%A", NEAR_UUID, "not-an-id", "%00", "x".repeat(3000), randomUUID().toUpperCase()];
 
 const deep = (n: number) => "[".repeat(n) + "]".repeat(n);
 const BAG = {
@@ -53,11 +53,11 @@ const BODIES: [string, string][] = [
   [JSON.stringify(Object.fromEntries(Object.keys(BAG).map((k) => [k, "\u0000"]))), "application/json"],
   [JSON.stringify(BAG), "text/plain"],
 ];
-const FEWER_BODIES = [BODIES[1], BODIES[7], BODIES[10]];
-const QUERIES = ["", "?from=294277-01-01&to=294277-01-02", "?page=99999999999&page_size=-1&sort=%00&dir=sideways", "?search=%00%27&id=" + NEAR_UUID, "?from=%E0%A4%A&table=orders&limit=1e400", "?" + "a=1&".repeat(500)];
+const FEWER_BODIES = [BODIES[7], BODIES[10]];
+const QUERIES = ["", "?from=294277-01-01&to=294277-01-02&table=orders", "?page=99999999999&page_size=-1&sort=%00&dir=sideways", "?search=%00%27&id=" + NEAR_UUID + "&queue=%00", "?from=%E0%A4%A&limit=1e400"];
 
 type Caller = "signed_out" | Role;
-const CALLERS: Caller[] = ["admin", "technician", "manager", "signed_out"];
+const CALLERS: Caller[] = ["admin", "technician", "signed_out"];
 
 function fills(pattern: string): string[] {
   const segments = [...pattern.matchAll(/\[[^\]]+\]/g)].map((m) => m[0]);
@@ -101,15 +101,27 @@ describe("no route answers hostile input with a 5xx", () => {
         for (const caller of CALLERS) {
           const full = caller === "admin";
           const paths = fills(r.pattern);
-          for (const p of full ? paths : paths.slice(0, 3)) jobs.push({ caller, method, path: p });
+          for (const p of full ? paths : paths.slice(0, 2)) jobs.push({ caller, method, path: p });
           const base = paths[paths.length - 1].replace(/[A-F0-9-]{36}/g, () => randomUUID());
           if (method === "GET" || method === "HEAD") {
-            for (const q of full ? QUERIES : QUERIES.slice(1, 3)) jobs.push({ caller, method, path: base + q });
+            for (const q of full ? QUERIES : QUERIES.slice(1, 2)) jobs.push({ caller, method, path: base + q });
           } else {
             for (const b of full ? BODIES : FEWER_BODIES) jobs.push({ caller, method, path: base, body: b });
           }
         }
       }
+    }
+
+    const pending = new Map<Role, Promise<void>>();
+    function relogin(role: Role): Promise<void> {
+      const running = pending.get(role);
+      if (running) return running;
+      const p = signIn(email(role), password).then((c) => {
+        cookies.set(role, c);
+        pending.delete(role);
+      });
+      pending.set(role, p);
+      return p;
     }
 
     const failures: string[] = [];
@@ -126,14 +138,17 @@ describe("no route answers hostile input with a 5xx", () => {
         }
         const res = await rawRequest(appUrl(), job.path, headers, job.method, job.body?.[0]);
         if (res.status >= 500 || res.status === 0) failures.push(`${res.status} ${job.caller} ${job.method} ${job.path.slice(0, 120)} ${job.body ? job.body[0].slice(0, 60) : ""} → ${res.bytes.toString().slice(0, 160)}`);
-        // Signing out (or a password change) ends the throwaway's session: sign in again.
+        // Signing out ends the throwaway's session: sign in again, once per ended cookie (parallel
+        // sign-ins of one account would count as guesses and be throttled).
         const set = ([] as string[]).concat(res.headers["set-cookie"] ?? []).find((c) => c.startsWith("hearth_session="));
         if (set && job.caller !== "signed_out") {
-          cookies.set(job.caller, /max-age=0/i.test(set) || set.startsWith("hearth_session=;") ? await signIn(email(job.caller), password) : set.split(";")[0]);
+          const ended = /max-age=0/i.test(set) || set.startsWith("hearth_session=;");
+          if (!ended) cookies.set(job.caller, set.split(";")[0]);
+          else if (cookies.get(job.caller) === headers.cookie) await relogin(job.caller);
         }
       }
     }
-    await Promise.all(Array.from({ length: 6 }, worker));
+    await Promise.all(Array.from({ length: 8 }, worker));
     console.log(`[route walker] ${jobs.length} requests over ${routes.reduce((n, r) => n + r.methods.length, 0)} route-and-method pairs in ${((Date.now() - started) / 1000).toFixed(1)} s`);
     expect(failures, `5xx answers:\n  ${failures.join("\n  ")}`).toEqual([]);
   });
