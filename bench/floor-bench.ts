@@ -23,7 +23,7 @@ import { bin, startApp, stopProcs, waitFor, type Proc } from "../scripts/stack";
 import { launchChromium } from "../scripts/chromium";
 import type { BenchRow, BenchSection } from "./types";
 import { mulberry32 } from "@/lib/random";
-import { FLOOR_DATA_MARK } from "@/components/floor/opening-week";
+import { FLOOR_DATA_MARK, floorUrl, openingWeek } from "@/components/floor/opening-week";
 
 const N_BUILDS = Number(process.env.HEARTH_BENCH_FLOOR_BUILDS ?? 10_000);
 const EXTRA_PRINTERS = 24;
@@ -71,15 +71,12 @@ export async function freshDatabase(): Promise<{ url: string; drop: () => Promis
   return { url: url.toString(), drop: () => run(`drop database if exists "${DB_NAME}" with (force)`) };
 }
 
-/** Start of the current week (Sunday 00:00 UTC, as the floor's week view in a UTC browser). */
-function weekStart(t: number): number {
-  const d = new Date(t);
-  d.setUTCHours(0, 0, 0, 0);
-  return d.getTime() - d.getUTCDay() * 24 * HOUR;
-}
+/** The floor's week around an instant: Sunday to Sunday in the shop's zone, as its week view shows it. */
+const weekAround = (t: number, timeZone: string) => openingWeek(timeZone, new Date(t));
 
-export async function seedFloor(db: Database): Promise<{ from: number; printers: number; builds: number }> {
+export async function seedFloor(db: Database): Promise<{ from: number; timeZone: string; printers: number; builds: number }> {
   await seedDemoShop(db);
+  const { time_zone: timeZone } = await db.selectFrom("shop_settings").select("time_zone").where("id", "=", 1).executeTakeFirstOrThrow();
   const rand = rng(5);
   const materials = await db.selectFrom("materials").select("id").execute();
   const printerRows = await db
@@ -95,7 +92,7 @@ export async function seedFloor(db: Database): Promise<{ from: number; printers:
   // Lanes filled back to back (with short gaps) from ten weeks ago, the emptiest lane first,
   // so that every week of the twenty holds about the same number of bookings.
   const now = Date.now();
-  const from = weekStart(now) - 10 * WEEK;
+  const from = Date.parse(weekAround(now - 10 * WEEK, timeZone).from);
   const span = WEEKS * WEEK;
   const perLane = (N_BUILDS - existing.rows[0].n) / lanes.length;
   const meanSlot = span / perLane;
@@ -136,7 +133,7 @@ export async function seedFloor(db: Database): Promise<{ from: number; printers:
   }
   await sql`analyze`.execute(db);
   const total = await sql<{ n: number }>`select count(*)::int as n from builds`.execute(db);
-  return { from, printers: lanes.length, builds: total.rows[0].n };
+  return { from, timeZone, printers: lanes.length, builds: total.rows[0].n };
 }
 
 function ensureBuild(): string {
@@ -233,8 +230,9 @@ export const section: BenchSection = {
       await waitFor(`${base}/sign-in`, 90_000, (s) => s === 200);
       const cookie = await signIn(base);
 
-      const weeks = Array.from({ length: WEEKS }, (_, k) => seeded.from + k * WEEK);
-      const paths = weeks.map((w) => `/api/floor?from=${new Date(w).toISOString()}&to=${new Date(w + WEEK).toISOString()}`);
+      // Mid-week instants, so that a daylight-saving change cannot land one in the wrong week.
+      const weeks = Array.from({ length: WEEKS }, (_, k) => weekAround(seeded.from + k * WEEK + 3 * 24 * HOUR, seeded.timeZone));
+      const paths = weeks.map(floorUrl);
       const sample = await (await fetch(`${base}${paths[10]}`, { headers: { cookie } })).json();
       const perWeek = sample.events.length;
       const encoding = (await fetch(`${base}${paths[10]}`, { headers: { cookie, "accept-encoding": BROWSER_ACCEPT_ENCODING } })).headers.get("content-encoding");

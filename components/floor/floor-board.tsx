@@ -1,6 +1,7 @@
 "use client";
 
 import FullCalendar from "@fullcalendar/react";
+import luxonPlugin from "@fullcalendar/luxon3";
 import interactionPlugin, { Draggable, type DateClickArg, type EventReceiveArg } from "@fullcalendar/interaction";
 import resourceTimelinePlugin from "@fullcalendar/resource-timeline";
 import type { CalendarOptions, DateSpanApi, DatesSetArg, EventApi, EventContentArg, EventDropArg, EventInput } from "@fullcalendar/core";
@@ -12,11 +13,14 @@ import type { FloorData, FloorEvent, FloorResource, UnscheduledBuild } from "@/l
 import { ApiError, apiJson } from "./api";
 import { PlanPanel, type Proposal } from "./plan-panel";
 import { ScheduleForm } from "./schedule-form";
-import { formatSlot, minutesLabel } from "./format";
+import { formatDay, formatSlot, minutesLabel } from "./format";
 import { FLOOR_DATA_MARK, floorUrl, openingWeek, takeOpeningFetch, type FloorRange } from "./opening-week";
 import { laneEditable, laneMoveRefusal, moveLaneBooking, type LaneEventProps, type LanePermissions } from "@/components/furnace/lane-interactions";
 
-export type FloorBoardProps = { canSchedule: boolean; canPropose: boolean; canApply: boolean; canWash?: boolean; canFurnace?: boolean };
+export type FloorBoardProps = {
+  /** The shop's IANA time zone: the timeline, its labels, drops and the now line all read it. */
+  timeZone: string;
+  canSchedule: boolean; canPropose: boolean; canApply: boolean; canWash?: boolean; canFurnace?: boolean };
 
 type Message = { tone: "success" | "danger" | "info"; text: string } | null;
 type Slot = { printer_id: string | null; starts_at: string | null };
@@ -41,8 +45,9 @@ const STATE_WORDS: Record<FloorEvent["kind"], Record<string, string>> = {
 };
 
 // FullCalendar re-renders every event when an option's identity changes, so options live here
-// or in memos, never inline.
-const PLUGINS = [resourceTimelinePlugin, interactionPlugin];
+// or in memos, never inline. The Luxon plugin gives FullCalendar real named time zones: without
+// it a named zone is "UTC-coercion", and the Date objects of drops and clicks are not instants.
+const PLUGINS = [resourceTimelinePlugin, interactionPlugin, luxonPlugin];
 const HEADER = { left: "prev,today,next", center: "title", right: "resourceTimelineDay,resourceTimelineWeek" };
 const BUTTONS = { today: "Now", resourceTimelineDay: "Day", resourceTimelineWeek: "Week" };
 const VIEWS: CalendarOptions["views"] = {
@@ -94,10 +99,10 @@ function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
   };
 }
 
-export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false, canFurnace = false }: FloorBoardProps) {
+export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWash = false, canFurnace = false }: FloorBoardProps) {
   const qc = useQueryClient();
   const router = useRouter();
-  const [range, setRange] = useState<FloorRange | null>(() => openingWeek());
+  const [range, setRange] = useState<FloorRange | null>(() => openingWeek(timeZone));
   const [message, setMessage] = useState<Message>(null);
   const [lastMove, setLastMove] = useState<LastMove | null>(null);
   const [proposal, setProposal] = useState<Proposal | null>(null);
@@ -197,7 +202,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
         setMessage({
           tone: "success",
           text: nb.printer_id
-            ? `${opts.undo ? "Undone: " : ""}${nb.code} is booked on ${printerName(nb.printer_id)}, ${formatSlot(nb.starts_at!, nb.ends_at!)}.`
+            ? `${opts.undo ? "Undone: " : ""}${nb.code} is booked on ${printerName(nb.printer_id)}, ${formatSlot(nb.starts_at!, nb.ends_at!, timeZone)}.`
             : `${opts.undo ? "Undone: " : ""}${nb.code} is off the floor and waits in the unscheduled list.`,
         });
         return true;
@@ -211,7 +216,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
         await Promise.all([qc.invalidateQueries({ queryKey: ["floor"] }), qc.invalidateQueries({ queryKey: ["unscheduled"] })]);
       }
     },
-    [qc, floorKey, printerName],
+    [qc, floorKey, printerName, timeZone],
   );
 
   // The unscheduled list becomes a source of drags onto the timeline.
@@ -278,7 +283,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
       const oldResource = info.oldEvent.getResources()[0]?.id ?? props.resource_id;
       const newResource = info.newResource?.id ?? oldResource;
       if (props.kind !== "build") {
-        const r = await moveLaneBooking(props, newResource, e.start!.toISOString(), e.end?.toISOString());
+        const r = await moveLaneBooking(props, newResource, e.start!.toISOString(), e.end?.toISOString(), timeZone);
         setMessage({ tone: r.ok ? "success" : "danger", text: r.text });
         if (!r.ok) info.revert();
         await qc.invalidateQueries({ queryKey: ["floor"] });
@@ -291,7 +296,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
       );
       if (!ok) info.revert();
     },
-    [hint, move, qc],
+    [hint, move, qc, timeZone],
   );
 
   const onEventReceive = useCallback(
@@ -405,7 +410,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
             plugins={PLUGINS}
             schedulerLicenseKey="GPL-My-Project-Is-Open-Source"
             initialView="resourceTimelineWeek"
-            timeZone="local"
+            timeZone={timeZone}
             height="auto"
             nowIndicator
             scrollTime="00:00:00"
@@ -477,7 +482,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
                     <span className="text-xs text-soot-600">{b.material_code} · {b.unit_count} unit{b.unit_count === 1 ? "" : "s"}</span>
                   </div>
                   <div className="text-2xs text-soot-500">
-                    {b.due_at ? `due ${new Date(b.due_at).toLocaleDateString(undefined, { day: "numeric", month: "short" })}` : "no due date"} ·{" "}
+                    {b.due_at ? `due ${formatDay(b.due_at, timeZone)}` : "no due date"} ·{" "}
                     {ok.length ? `${ok.length} printer${ok.length === 1 ? "" : "s"}, ${minutesLabel(Math.min(...ok.map((p) => p.est_minutes ?? Infinity)))} or more` : "no printer can take it"}
                   </div>
                 </li>
@@ -491,6 +496,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
             drafts={drafts}
             scheduled={scheduledInWindow}
             printers={printers}
+            timeZone={timeZone}
             busy={busy}
             onSubmit={(b, to, before) => move(b, to, before)}
           />
@@ -500,6 +506,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
           <PlanPanel
             proposal={proposal}
             setProposal={setProposal}
+            timeZone={timeZone}
             canApply={canApply}
             onApplied={async (text) => {
               setMessage({ tone: "success", text });

@@ -17,12 +17,14 @@ export type PlanPanelProps = {
   proposal: Proposal | null;
   setProposal: (p: Proposal | null) => void;
   canApply: boolean;
+  /** The shop's time zone, as on the floor. */
+  timeZone: string;
   onApplied: (message: string) => void | Promise<void>;
   onError: (message: string) => void;
 };
 
 /** Propose plan: the planner's bookings as a diff against today's floor; nothing changes until Apply. */
-export function PlanPanel({ proposal, setProposal, canApply, onApplied, onError }: PlanPanelProps) {
+export function PlanPanel({ proposal, setProposal, canApply, timeZone, onApplied, onError }: PlanPanelProps) {
   const [busy, setBusy] = useState(false);
 
   async function propose() {
@@ -94,7 +96,7 @@ export function PlanPanel({ proposal, setProposal, canApply, onApplied, onError 
                   <tr key={i.build_id} className="border-t border-soot-100 align-top">
                     <td className="py-1 pr-1 font-semibold text-verdigris-700">+ {i.code}</td>
                     <td className="pr-1">{i.printer_name}</td>
-                    <td className="tabular pr-1">{formatWhen(i.starts_at)} → {formatWhen(i.ends_at)}</td>
+                    <td className="tabular pr-1">{formatWhen(i.starts_at, timeZone)} → {formatWhen(i.ends_at, timeZone)}</td>
                     <td className={`tabular ${i.lateness_min > 0 ? "font-semibold text-oxide-700" : "text-soot-500"}`}>{i.lateness_min > 0 ? minutesLabel(i.lateness_min) : "on time"}</td>
                   </tr>
                 ))}

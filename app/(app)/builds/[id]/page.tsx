@@ -2,6 +2,7 @@ import { notFound } from "next/navigation";
 import { connection } from "next/server";
 import { getDb } from "@/db/client";
 import { findBuildById } from "@/db/builds/reads";
+import { findShopTimeZone } from "@/db/batches/reads";
 import { BuildView } from "@/components/builds/build-view";
 import { QueryProvider } from "@/components/floor/query-provider";
 import { PageHeader } from "@/components/ui/page-header";
@@ -15,13 +16,13 @@ export default async function BuildPage({ params }: { params: Promise<{ id: stri
   await connection();
   const { id } = await params;
   if (!/^[0-9a-f-]{36}$/i.test(id)) notFound();
-  const build = await findBuildById(getDb(), id);
+  const [build, timeZone] = await Promise.all([findBuildById(getDb(), id), findShopTimeZone(getDb())]);
   if (!build) notFound();
   return (
     <>
       <PageHeader title={`Build ${build.code}`} lead="Units of one material on one plate: the layout, the print time on each printer, the material lot and the traveler that goes with it." />
       <QueryProvider>
-        <BuildView buildId={build.id} canWrite={can(user.role, "builds:write")} />
+        <BuildView buildId={build.id} canWrite={can(user.role, "builds:write")} timeZone={timeZone} />
       </QueryProvider>
     </>
   );
