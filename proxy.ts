@@ -2,7 +2,6 @@ import { NextResponse, type NextRequest } from "next/server";
 import { getIronSession } from "iron-session";
 import { unsealSession } from "@/lib/auth/seal-cache";
 import { SESSION_COOKIE, SESSION_IDLE_SECONDS, renewalDue, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
-import { crossSiteRefusal } from "@/lib/http/cross-site";
 import { contentSecurityPolicy } from "@/lib/http/security-headers";
 
 function isHttps(req: NextRequest) {
@@ -10,31 +9,15 @@ function isHttps(req: NextRequest) {
   return proto ? proto.split(",")[0].trim() === "https" : req.nextUrl.protocol === "https:";
 }
 
-function appOrigin(): string | null {
-  try {
-    return process.env.APP_URL ? new URL(process.env.APP_URL).origin : null;
-  } catch {
-    return null;
-  }
-}
-
 /**
- * Three jobs, all before any page or handler runs:
- * - refuses a state-changing request from another site (403), for route handlers and for server
- *   actions alike (both are POSTs to this site; the matcher brings API requests here only when
- *   they carry an Origin or a cross-site Sec-Fetch-Site header, so a same-origin poll skips it);
+ * Two jobs, before any page runs (cross-site requests are refused earlier, by the web server,
+ * scripts/serve.ts: a proxy would buffer every upload's body to run at all):
  * - gives each page a fresh nonce and its Content-Security-Policy (Next.js reads the nonce back
  *   from the request's policy header and puts it on its own scripts);
  * - optimistically: tells pages where the visitor was (for the way back after sign-in) and
  *   slides the session's idle lifetime. Every page and handler still checks the user itself.
  */
 export async function proxy(req: NextRequest) {
-  const refusal = crossSiteRefusal(req.method, req.headers, appOrigin());
-  if (refusal) {
-    return NextResponse.json({ error: { code: "forbidden", message: `${refusal} Changes are only accepted from Hearth's own pages.` } }, { status: 403 });
-  }
-  if (req.nextUrl.pathname.startsWith("/api/")) return NextResponse.next();
-
   const nonce = btoa(crypto.randomUUID());
   const csp = contentSecurityPolicy(nonce, { dev: process.env.NODE_ENV === "development" });
   const path = req.nextUrl.pathname + req.nextUrl.search;
@@ -67,9 +50,5 @@ export async function proxy(req: NextRequest) {
 }
 
 export const config = {
-  matcher: [
-    "/((?!api/|_next/static|_next/image|favicon.ico|fonts/).*)",
-    { source: "/api/:path*", has: [{ type: "header", key: "origin" }] },
-    { source: "/api/:path*", has: [{ type: "header", key: "sec-fetch-site", value: "cross-site" }] },
-  ],
+  matcher: ["/((?!api/|_next/static|_next/image|favicon.ico|fonts/).*)"],
 };

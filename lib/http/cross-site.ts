@@ -1,4 +1,4 @@
-// Cross-site request refusal for every state-changing request (proxy.ts). A browser sends Origin
+// Cross-site request refusal for every state-changing request (scripts/serve.ts). A browser sends Origin
 // with every POST, PUT, PATCH and DELETE, and Sec-Fetch-Site with every request (Fetch Metadata,
 // W3C); a form or fetch from another site carries that site's origin. SameSite=Lax cookies
 // already stop most of it, but not a same-site sibling host nor an older browser, and a
