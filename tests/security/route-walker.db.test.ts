@@ -14,7 +14,7 @@ import { apiRoutes, type HttpMethod } from "../helpers/routes";
 
 const NEAR_UUID = "0000000000000000000000000000000-----";
 /** Sent raw, exactly as written (a malformed %-escape must reach the server as such). */
-const BAD_SEGMENTS = ["%E0%A4%A", NEAR_UUID, "not-an-id", "%00", "x".repeat(3000), randomUUID().toUpperCase()];
+const BAD_SEGMENTS = ["%E0%A4%A", NEAR_UUID, "%00x", "x".repeat(3000)];
 
 const deep = (n: number) => "[".repeat(n) + "]".repeat(n);
 const BAG = {
@@ -45,7 +45,6 @@ const BODIES: [string, string][] = [
   ["{not json", "application/json"],
   ["[]", "application/json"],
   ["null", "application/json"],
-  ['"text"', "application/json"],
   ["12345678901234567890123456789", "application/json"],
   [deep(5000), "application/json"],
   [JSON.stringify(BAG), "application/json"],
