@@ -77,7 +77,7 @@ function el(tag: string, className: string, text?: string | null, data: Record<s
  */
 const isHistory = (e: Pick<FloorEvent, "state" | "failed">) => e.state === "complete" && !e.failed;
 
-function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
+function toEvent(e: FloorEvent, lanes: LanePermissions, short: ReadonlyMap<string, string> = new Map()): EventInput {
   const lane = e.kind !== "build";
   const c = e.failed ? COLORS.failed : e.kind === "build" ? (COLORS[e.state] ?? COLORS.scheduled) : COLORS[e.kind];
   const history = isHistory(e);
@@ -94,8 +94,8 @@ function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
     backgroundColor: c.bg,
     borderColor: c.border,
     textColor: c.text,
-    classNames: [`hearth-${e.kind}`, `hearth-state-${e.state}`, ...(history ? ["hearth-history"] : [])],
-    extendedProps: { ...e, build_id: e.kind === "build" ? e.id : undefined },
+    classNames: [`hearth-${e.kind}`, `hearth-state-${e.state}`, ...(history ? ["hearth-history"] : []), ...(short.has(e.id) ? ["hearth-feedstock-short"] : [])],
+    extendedProps: { ...e, build_id: e.kind === "build" ? e.id : undefined, feedstock_short: short.get(e.id) },
   };
 }
 
@@ -132,6 +132,16 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
     queryFn: ({ signal }) => apiJson<{ builds: UnscheduledBuild[] }>("/api/floor/unscheduled", { signal }),
     refetchInterval: () => (dragging.current ? false : 15_000),
   });
+  // Scheduled builds whose feedstock will not be on the shelf when they start (the projection).
+  const shortfalls = useQuery({
+    queryKey: ["feedstock-shortfalls"],
+    queryFn: ({ signal }) => apiJson<{ builds: { build_id: string; material_code: string; first_short_day: string }[] }>("/api/inventory/shortfalls", { signal }),
+    refetchInterval: 60_000,
+  });
+  const short = useMemo(
+    () => new Map((shortfalls.data?.builds ?? []).map((b) => [b.build_id, `no ${b.material_code} feedstock from ${b.first_short_day}`])),
+    [shortfalls.data],
+  );
   const drafts = useMemo(() => unscheduled.data?.builds ?? [], [unscheduled.data]);
   const draftsRef = useRef(drafts);
   useEffect(() => {
@@ -150,7 +160,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
   const printerName = useCallback((id: string | null) => (id ? (resourceById.get(id)?.title ?? "a printer") : "nothing"), [resourceById]);
 
   const events = useMemo<EventInput[]>(() => {
-    const list: EventInput[] = (floor.data?.events ?? []).map((e) => toEvent(e, { wash: canWash, furnace: canFurnace }));
+    const list: EventInput[] = (floor.data?.events ?? []).map((e) => toEvent(e, { wash: canWash, furnace: canFurnace }, short));
     for (const b of floor.data?.blocks ?? []) {
       list.push({ id: `mw-${b.id}`, resourceId: b.resource_id, start: b.start, end: b.end, display: "background", backgroundColor: "#8d8273", classNames: ["hearth-maintenance"], title: `Maintenance: ${b.reason || "no reason given"}` });
     }
@@ -160,7 +170,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
       }
     }
     return list;
-  }, [floor.data, proposal, canWash, canFurnace]);
+  }, [floor.data, proposal, canWash, canFurnace, short]);
 
   const hint = useCallback((text: string | null) => {
     const el = hintRef.current;
@@ -329,10 +339,11 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
       return { domNodes: [el("div", "truncate px-1 pt-0.5 text-2xs italic text-soot-800", arg.event.title, { testid: "maintenance-block" })] };
     }
     const state = p.failed ? "failed" : p.state && p.kind ? (STATE_WORDS[p.kind][p.state] ?? p.state) : arg.event.classNames.includes("hearth-proposed") ? "proposed" : "";
-    const detail = [state, p.unit_count ? `${p.unit_count} u` : ""].filter(Boolean).join(" · ");
+    const feedstock = (p as { feedstock_short?: string }).feedstock_short;
+    const detail = [state, p.unit_count ? `${p.unit_count} u` : "", feedstock ? "no feedstock" : ""].filter(Boolean).join(" · ");
     const box = el("div", "hearth-booking", arg.event.title, { testid: "floor-event", eventId: arg.event.id, detail });
     // The bar is often narrower than its words: the whole line on hover.
-    box.title = detail ? `${arg.event.title} (${detail})` : arg.event.title;
+    box.title = detail ? `${arg.event.title} (${[state, p.unit_count ? `${p.unit_count} u` : "", feedstock].filter(Boolean).join(" · ")})` : arg.event.title;
     return { domNodes: [box] };
   }, []);
 

@@ -76,7 +76,16 @@ function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
       <div className="grid gap-4 md:grid-cols-2 2xl:grid-cols-4">
         <Card title="Material and print" testId="trace-build">
           <Row k="Material">{t.material.name} ({t.material.code})</Row>
-          <Row k="Lot">{t.build?.material_lot || "not recorded"}</Row>
+          <Row k="Feedstock lot">
+            {t.build?.feedstock_lots.length
+              ? t.build.feedstock_lots.map((l, i) => (
+                  <span key={l.id}>
+                    {i ? ", " : ""}
+                    <Link href={`/inventory/${l.id}`} className="font-mono text-clay-700 hover:underline">{l.code}</Link> ({l.supplier} {l.supplier_lot})
+                  </span>
+                ))
+              : t.build?.material_lot || "not recorded"}
+          </Row>
           <Row k="Build">{t.build ? <Link href={`/builds/${t.build.id}`} className="text-clay-700 hover:underline">{t.build.code}</Link> : "not in a build yet"}</Row>
           {t.build ? (
             <>
