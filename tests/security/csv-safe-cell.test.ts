@@ -52,3 +52,14 @@ describe("CSV cells", () => {
     expect(capacityCsv(data, "wip").csv).toBe(`state,units\r\n"'=cmd",2`);
   });
 });
+
+describe("the inventory exports use the same guard", () => {
+  it("neutralises a multi-line formula in a genealogy customer", async () => {
+    const { genealogyCsv } = await import("@/lib/inventory/csv");
+    const csv = genealogyCsv([
+      { serial: "S-1", state: "done", build_code: "B-1", printer: null, wash_batch_code: null, furnace_run_code: null, profile_code: null, inspections: 2, passed: true, part_number: "P-1", order_code: "WO-1", customer: "=1+1\nmore" },
+    ]);
+    expect(csv).toContain(`"'=1+1\nmore"`);
+    expect(csv).toContain(",2,true");
+  });
+});
