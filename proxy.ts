@@ -34,7 +34,7 @@ export async function proxy(req: NextRequest) {
     // The cached read first: the cookie is re-sealed only when a live session's renewal is due.
     const seen = await unsealSession(req.cookies.get(SESSION_COOKIE)!.value, secret);
     const now = Date.now();
-    if (!sessionIsLive(seen, null, now) || !renewalDue(seen, now)) return res;
+    if (!sessionIsLive(seen, null, now, "unchecked") || !renewalDue(seen, now)) return res;
     const session = await getIronSession<SessionData>(req, res, {
       password: secret,
       cookieName: SESSION_COOKIE,

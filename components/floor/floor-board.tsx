@@ -15,6 +15,7 @@ import { PlanPanel, type Proposal } from "./plan-panel";
 import { ScheduleForm } from "./schedule-form";
 import { formatDay, formatSlot, minutesLabel } from "./format";
 import { FLOOR_DATA_MARK, floorUrl, openingWeek, takeOpeningFetch, type FloorRange } from "./opening-week";
+import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { laneEditable, laneMoveRefusal, moveLaneBooking, type LaneEventProps, type LanePermissions } from "@/components/furnace/lane-interactions";
 
 export type FloorBoardProps = {
@@ -112,6 +113,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
   const listRef = useRef<HTMLUListElement>(null);
   const calendarRef = useRef<FullCalendar>(null);
 
+  const poll = useLivePoll();
   const floorKey = useMemo(() => ["floor", range?.from, range?.to] as const, [range]);
   const floor = useQuery({
     queryKey: floorKey,
@@ -124,13 +126,16 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
     },
     enabled: range !== null,
     placeholderData: keepPreviousData,
-    // Someone else's change shows up within seconds; never while a drag is in the air.
-    refetchInterval: () => (dragging.current ? false : 10_000),
+    // Someone else's change arrives live (components/live); the old polling only while the
+    // stream is down. Never while a drag is in the air.
+    refetchInterval: () => (dragging.current ? false : poll(10_000)),
+    meta: { liveHold: () => dragging.current },
   });
   const unscheduled = useQuery({
     queryKey: ["unscheduled"],
     queryFn: ({ signal }) => apiJson<{ builds: UnscheduledBuild[] }>("/api/floor/unscheduled", { signal }),
-    refetchInterval: () => (dragging.current ? false : 15_000),
+    refetchInterval: () => (dragging.current ? false : poll(15_000)),
+    meta: { liveHold: () => dragging.current },
   });
   // Scheduled builds whose feedstock will not be on the shelf when they start (the projection).
   const shortfalls = useQuery({
@@ -464,6 +469,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
       </section>
 
       <aside className="flex w-full shrink-0 flex-col gap-4 xl:w-80" aria-label="Scheduling">
+        <LiveIndicator className="self-start" />
         {message ? (
           <div role={message.tone === "danger" ? "alert" : "status"} data-testid="floor-message" data-tone={message.tone}
             className={`rounded-card border px-3 py-2 text-sm ${message.tone === "danger" ? "border-oxide-500/40 bg-oxide-100 text-oxide-700" : message.tone === "success" ? "border-verdigris-400/40 bg-verdigris-100 text-verdigris-700" : "border-slate2-400/40 bg-slate2-100 text-slate2-600"}`}>

@@ -19,11 +19,11 @@ export const SESSION_RENEW_SECONDS = 5 * 60;
  * The one rule for "is this cookie still a session", for every door that checks one
  * (app/_server/session.ts for pages, handlers and actions; app/_server/floor-window-direct.ts for
  * the web server's direct floor answer). `sessionOpen` is whether the cookie's user_sessions row
- * is still open, read in the same query as the user (db/users/reads.ts sessionOpenSql); proxy.ts
- * leaves it out, as its check is only optimistic.
+ * is still open, read in the same query as the user (db/users/reads.ts sessionOpenSql); only
+ * proxy.ts, whose check is optimistic, passes "unchecked".
  * pg returns the column's default '-infinity' as the number -Infinity, not a Date.
  */
-export function sessionIsLive(data: SessionData, validAfter: Date | number | null, now = Date.now(), sessionOpen?: boolean): boolean {
+export function sessionIsLive(data: SessionData, validAfter: Date | number | null, now: number, sessionOpen: boolean | "unchecked"): boolean {
   if (!data.userId || !data.issuedAt || !data.seenAt) return false;
   if (sessionOpen === false) return false;
   if (now - data.issuedAt > SESSION_MAX_SECONDS * 1000) return false;

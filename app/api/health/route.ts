@@ -7,6 +7,7 @@ import { summarizeOutbox } from "@/db/outbox/reads";
 import { checkSmtp } from "@/adapters/mail/transport";
 import { checkBucket } from "@/adapters/storage/s3";
 import { getCurrentUser } from "@/app/_server/session";
+import { liveHub } from "@/app/_server/live-hub";
 import { can } from "@/lib/auth/permissions";
 
 export const dynamic = "force-dynamic";
@@ -88,6 +89,9 @@ export async function GET() {
   };
   const ok = Object.values(checks).every((c) => c.ok);
   const status = ok ? "up" : "down";
-  const body = (await mayReadHealthDetail()) ? { status, ok, checked_at: new Date().toISOString(), checks } : { status };
+  // The checks, and this process's live-update streams and LISTEN connection, for an admin only.
+  const body = (await mayReadHealthDetail())
+    ? { status, ok, checked_at: new Date().toISOString(), checks, live: { pid: process.pid, ...liveHub().detail() } }
+    : { status };
   return NextResponse.json(body, { status: ok ? 200 : 503, headers: { "cache-control": "no-store" } });
 }
