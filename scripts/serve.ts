@@ -5,6 +5,8 @@
 // cache (app/_server/floor-window-direct.ts), and the build's hashed static files from memory, gzipped
 // once (app/_server/static-assets.ts). Everything else is Next.js's, unchanged.
 // PORT (3000) and HOSTNAME (127.0.0.1) say where it listens; the build is NEXT_DIST_DIR (.next).
+// Every answer names the instance in X-Hearth-Instance (HEARTH_INSTANCE, else host:port), so
+// that behind a proxy one can see which instance answered.
 import http from "node:http";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
@@ -21,6 +23,30 @@ import { liveHub } from "@/app/_server/live-hub";
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const port = Number(process.env.PORT ?? 3000);
 const hostname = process.env.HOSTNAME ?? "127.0.0.1";
+const instance = process.env.HEARTH_INSTANCE || `${hostname}:${port}`;
+// How long a stop waits for requests in flight before it closes their connections.
+const graceMs = Number(process.env.HEARTH_STOP_GRACE_MS ?? 10_000);
+
+/**
+ * Answers that must end their connection: one given before the request's body was read to its
+ * end (a 413 for an upload over the limit, a 401 before the upload) — otherwise Node reads and
+ * discards the rest of the body and keeps the connection, and a client that stopped sending
+ * waits on it until the server's timeouts — and any answer while the server stops. The answer
+ * says "Connection: close"; after an unread body the socket goes once the answer is out.
+ */
+function closeWhenDue(req: http.IncomingMessage, res: http.ServerResponse, stopping: () => boolean) {
+  const writeHead = res.writeHead;
+  res.writeHead = function (this: http.ServerResponse, ...args: Parameters<typeof writeHead>) {
+    const hasBody = req.headers["transfer-encoding"] !== undefined || Number(req.headers["content-length"] ?? 0) > 0;
+    if (hasBody && !req.complete) {
+      res.shouldKeepAlive = false;
+      res.once("finish", () => req.socket.destroy());
+    } else if (stopping()) {
+      res.shouldKeepAlive = false;
+    }
+    return writeHead.apply(this, args);
+  } as typeof res.writeHead;
+}
 
 async function main() {
   const app = next({ dev: false, dir: root, hostname, port });
@@ -33,7 +59,10 @@ async function main() {
 
   const securityHeaders = Object.entries(baseSecurityHeaders(process.env.APP_URL));
   const appOrigin = URL.canParse(process.env.APP_URL ?? "") ? new URL(process.env.APP_URL!).origin : null;
+  let stopping = false;
   const server = http.createServer((req, res) => {
+    res.setHeader("x-hearth-instance", instance);
+    closeWhenDue(req, res, () => stopping);
     // Every answer, direct or Next.js's, carries the security headers; the page's CSP is proxy.ts's.
     for (const [name, value] of securityHeaders) res.setHeader(name, value);
     // The socket's address for app/_server/session.ts, never a value the client sent.
@@ -81,25 +110,28 @@ async function main() {
   // in step with changes made by other instances and the worker.
   liveHub().start();
 
-  let stopping = false;
   const stop = async (signal: string) => {
     if (stopping) return;
     stopping = true;
+    const started = Date.now();
     console.log(`[app] ${signal}: closing`);
     // Open event streams never finish by themselves: end them now, and the browsers reconnect
     // to another instance (or to this one once it is back).
-    const live = liveHub().shutdown();
-    // Requests in flight may finish (five seconds at most); idle keep-alive connections go now.
+    void liveHub().shutdown();
+    // Idle keep-alive connections go now, and each one that falls idle after its answer goes
+    // too (the ended streams' connections among them); the server stops as soon as the requests
+    // in flight are answered, or after the grace.
     await new Promise<void>((resolve) => {
       server.close(() => resolve());
       server.closeIdleConnections();
-      // The ended streams' connections turn idle a moment later.
-      void live.then(() => setTimeout(() => server.closeIdleConnections(), 50));
+      const sweep = setInterval(() => server.closeIdleConnections(), 50);
+      sweep.unref();
       setTimeout(() => {
         server.closeAllConnections();
         resolve();
-      }, 5_000).unref();
+      }, graceMs).unref();
     });
+    console.log(`[app] connections closed in ${Date.now() - started} ms`);
     await app.close().catch(() => undefined);
     await closeDb().catch(() => undefined);
     process.exit(0);

@@ -6,6 +6,7 @@ import { advanceHandler } from "./handlers/advance";
 import { scaleUpHandler } from "./handlers/scale-up";
 import { drainOutbox, sendMailHandler } from "./handlers/send-mail";
 import { runSweep } from "./sweep";
+import { sweepOrphanObjects } from "./orphans";
 
 /** Runs `fn` every `seconds`, never two at once; resolves the returned stop() when the last run ends. */
 function every(seconds: number, name: string, fn: () => Promise<void>) {
@@ -56,10 +57,14 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
   const stopPump = every(cfg.mailPumpSeconds, "outbox", async () => {
     await drainOutbox(db, 200);
   });
+  const stopOrphans = every(cfg.orphanSweepSeconds, "orphan sweep", async () => {
+    const r = await sweepOrphanObjects(db, { minAgeSeconds: cfg.orphanMinAgeSeconds });
+    if (r.deleted.length) console.log(`[worker] orphan sweep: deleted ${r.deleted.length} of ${r.listed} stored objects that no file names`);
+  });
   console.log(
     `[worker] sweep every ${cfg.sweepSeconds} s, outbox every ${cfg.mailPumpSeconds} s, polling ${cfg.pollSeconds} s, batch ${cfg.batchSize} × ${cfg.concurrency}`,
   );
   return async () => {
-    await Promise.all([stopSweep(), stopPump()]);
+    await Promise.all([stopSweep(), stopPump(), stopOrphans()]);
   };
 }

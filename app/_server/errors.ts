@@ -1,16 +1,19 @@
 import { NextResponse } from "next/server";
 import { ZodError, z } from "zod";
-import { AppError } from "@/lib/errors";
+import { AppError, isUnavailableError } from "@/lib/errors";
 import { appErrorFromDatabase } from "@/lib/db-errors";
 import { getEnv } from "@/lib/env";
 import { checkJsonShape, isJsonContentType } from "@/lib/http/json-body";
+
+// Seconds a client (or a load balancer) is asked to wait before trying again after a 503.
+export const RETRY_AFTER_SECONDS = 5;
 
 export type ErrorBody = { error: { code: string; message: string; fieldErrors?: Record<string, string[]>; details?: unknown } };
 
 function appErrorResponse(err: AppError): NextResponse<ErrorBody> {
   return NextResponse.json(
     { error: { code: err.code, message: err.message, fieldErrors: err.fieldErrors, details: err.details } },
-    { status: err.status },
+    { status: err.status, headers: err.status === 503 ? { "retry-after": String(RETRY_AFTER_SECONDS) } : undefined },
   );
 }
 
@@ -31,6 +34,15 @@ export function toErrorResponse(err: unknown): NextResponse<ErrorBody> {
     );
   }
   if (err instanceof AppError) return appErrorResponse(err);
+  // The database is down, restarting or out of connections: the request was fine, so a 503
+  // that says when to try again, not a 500.
+  if (isUnavailableError(err)) {
+    console.error("[api] a service is unavailable:", err instanceof Error ? err.message : err);
+    return NextResponse.json(
+      { error: { code: "unavailable", message: "The database cannot be reached just now; nothing was changed. Try again in a moment." } },
+      { status: 503, headers: { "retry-after": String(RETRY_AFTER_SECONDS) } },
+    );
+  }
   // Next.js decodes a dynamic path segment when the handler awaits its params; a malformed
   // percent-escape ("%E0%A4%A") throws URIError there. The address is the client's mistake.
   if (err instanceof URIError) return appErrorResponse(new AppError("bad_request", "The address contains a malformed %-escape."));

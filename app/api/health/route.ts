@@ -19,13 +19,25 @@ const WORKER_STALE_SECONDS = 45;
 // The sweep runs every minute; five minutes without one means no worker is sweeping.
 const SWEEP_STALE_SECONDS = 300;
 
+// A load balancer's check must be answered whatever hangs behind it: each check gives up
+// after this long and counts as failed.
+const CHECK_TIMEOUT_MS = 4_000;
+
 async function timed<T>(fn: () => Promise<T>): Promise<{ ok: true; ms: number; value: T } | { ok: false; ms: number; error: string }> {
   const started = performance.now();
+  let timer: NodeJS.Timeout | undefined;
   try {
-    const value = await fn();
+    const value = await Promise.race([
+      fn(),
+      new Promise<never>((_, reject) => {
+        timer = setTimeout(() => reject(new Error(`no answer within ${CHECK_TIMEOUT_MS} ms`)), CHECK_TIMEOUT_MS);
+      }),
+    ]);
     return { ok: true, ms: Math.round(performance.now() - started), value };
   } catch (err) {
     return { ok: false, ms: Math.round(performance.now() - started), error: err instanceof Error ? err.message : String(err) };
+  } finally {
+    clearTimeout(timer);
   }
 }
 
@@ -93,5 +105,5 @@ export async function GET() {
   const body = (await mayReadHealthDetail())
     ? { status, ok, checked_at: new Date().toISOString(), checks, live: { pid: process.pid, ...liveHub().detail() } }
     : { status };
-  return NextResponse.json(body, { status: ok ? 200 : 503, headers: { "cache-control": "no-store" } });
+  return NextResponse.json(body, { status: ok ? 200 : 503, headers: { "cache-control": "no-store", ...(ok ? {} : { "retry-after": "5" }) } });
 }
