@@ -569,6 +569,17 @@ export interface Units {
   wash_passed: boolean | null;
 }
 
+export interface UserSessions {
+  created_at: Generated<Timestamp>;
+  id: Generated<string>;
+  ip: string | null;
+  last_seen_at: Generated<Timestamp>;
+  revoked_at: Timestamp | null;
+  revoked_reason: string | null;
+  user_agent: string | null;
+  user_id: string;
+}
+
 export interface Users {
   active: Generated<boolean>;
   calendar_token: string | null;
@@ -675,6 +686,7 @@ export interface DB {
   sinter_profile_segments: SinterProfileSegments;
   sinter_profiles: SinterProfiles;
   units: Units;
+  user_sessions: UserSessions;
   users: Users;
   wash_batches: WashBatches;
   wash_stations: WashStations;

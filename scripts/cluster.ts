@@ -92,7 +92,8 @@ export async function startCluster(o: ClusterOptions): Promise<Cluster> {
   try {
     if (o.fakes) others.push(startProc("fakes", bin("tsx"), ["scripts/fakes.ts"], o.env, o.quiet));
     for (let i = 0; i < o.workers; i++) workers.push(startProc(`worker`, process.execPath, ["--import", "tsx", "worker/index.ts"], o.env, o.quiet));
-    o.appPorts.forEach((port, i) => apps.push(startApp(port, { ...o.env, HEARTH_INSTANCE: `app-${i + 1}` }, o.quiet)));
+    // nginx on this machine is the one proxy whose X-Forwarded-For the apps believe.
+    o.appPorts.forEach((port, i) => apps.push(startApp(port, { TRUSTED_PROXIES: "127.0.0.1, ::1", ...o.env, HEARTH_INSTANCE: `app-${i + 1}` }, o.quiet)));
     // Two apps and two workers starting at once on a busy machine may take a while.
     await Promise.all(o.appPorts.map((port) => waitFor(`http://127.0.0.1:${port}/api/health`, 170_000, (s) => s === 200)));
     const conf = await writeNginxConf({ dir: o.dir, listen: o.proxyPort, upstreams: o.appPorts.map((p) => `127.0.0.1:${p}`) });

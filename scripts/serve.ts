@@ -14,6 +14,10 @@ import next from "next";
 import { closeDb, getDb } from "@/db/client";
 import { answerFloorWindow } from "@/app/_server/floor-window-direct";
 import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
+import { PEER_HEADER } from "@/lib/http/client-address";
+import { baseSecurityHeaders } from "@/lib/http/security-headers";
+import { pathDecodes } from "@/lib/http/request-target";
+import { crossSiteRefusal } from "@/lib/http/cross-site";
 import { liveHub } from "@/app/_server/live-hub";
 import { withRequestLog } from "@/app/_server/request-log";
 
@@ -54,10 +58,30 @@ async function main() {
   // Without a usable secret nothing can be answered directly; Next.js then reports the set-up error.
   const secret = process.env.SESSION_SECRET && process.env.SESSION_SECRET.length >= 32 ? process.env.SESSION_SECRET : null;
 
+  const securityHeaders = Object.entries(baseSecurityHeaders(process.env.APP_URL));
+  const appOrigin = URL.canParse(process.env.APP_URL ?? "") ? new URL(process.env.APP_URL!).origin : null;
   let stopping = false;
   const server = http.createServer((req, res) => withRequestLog(req, res, () => {
     res.setHeader("x-hearth-instance", instance);
     closeWhenDue(req, res, () => stopping);
+    // Every answer, direct or Next.js's, carries the security headers; the page's CSP is proxy.ts's.
+    for (const [name, value] of securityHeaders) res.setHeader(name, value);
+    // The socket's address for app/_server/session.ts, never a value the client sent.
+    delete req.headers[PEER_HEADER];
+    if (req.socket.remoteAddress) req.headers[PEER_HEADER] = req.socket.remoteAddress;
+    // A state-changing request from another site (route handlers and server actions alike) ends
+    // here, before Next.js reads its body (lib/http/cross-site.ts).
+    const refusal = crossSiteRefusal(req.method ?? "GET", { get: (name) => [req.headers[name] ?? []].flat().join(", ") || null }, appOrigin);
+    if (refusal) {
+      res.writeHead(403, { "content-type": "application/json" });
+      res.end(JSON.stringify({ error: { code: "forbidden", message: `${refusal} Changes are only accepted from Hearth's own pages.` } }));
+      return;
+    }
+    if (req.url && !pathDecodes(req.url)) {
+      res.writeHead(400, { "content-type": "application/json" });
+      res.end(JSON.stringify({ error: { code: "bad_request", message: "The address contains a malformed %-escape." } }));
+      return;
+    }
     const direct = assets && req.url?.startsWith(STATIC_PREFIX)
       ? assets.answer(req, res)
       : secret

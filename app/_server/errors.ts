@@ -3,6 +3,9 @@ import { ZodError, z } from "zod";
 import { AppError, isUnavailableError } from "@/lib/errors";
 import { logger } from "@/adapters/log/logger";
 import { currentRequest } from "./request-context";
+import { appErrorFromDatabase } from "@/lib/db-errors";
+import { getEnv } from "@/lib/env";
+import { checkJsonShape, isJsonContentType } from "@/lib/http/json-body";
 
 // Seconds a client (or a load balancer) is asked to wait before trying again after a 503.
 export const RETRY_AFTER_SECONDS = 5;
@@ -61,17 +64,56 @@ function mapError(err: unknown, requestId: string | undefined): Mapped {
   if (pgCode === "40001" || pgCode === "40P01") {
     return { status: 409, error: { code: "conflict", message: "Someone else changed this at the same moment; reload and try again." } };
   }
+  // Next.js decodes a dynamic path segment when the handler awaits its params; a malformed
+  // percent-escape ("%E0%A4%A") throws URIError there. The address is the client's mistake.
+  if (err instanceof URIError) return { status: 400, error: { code: "bad_request", message: "The address contains a malformed %-escape." } };
+  // Unique names, out-of-range numbers and dates, NUL bytes: the database refusing a value the
+  // request sent is the request's fault (lib/db-errors.ts says which field).
+  const fromDb = appErrorFromDatabase(err);
+  if (fromDb) return { status: fromDb.status, error: { code: fromDb.code, message: fromDb.message, fieldErrors: fromDb.fieldErrors, details: fromDb.details } };
   logger.error({ req_id: requestId, err }, "unexpected error");
   return { status: 500, error: { code: "internal", message: "Something went wrong on our side; nothing was changed." } };
 }
 
-/** Reads a JSON body; a body that is not JSON is a 400, never a 500. */
-export async function readJson(req: Request): Promise<unknown> {
-  const text = await req.text();
+/** Reads the body's bytes, refusing more than `max` before reading the rest (413). */
+async function readCapped(req: Request, max: number): Promise<string> {
+  const tooLarge = () => new AppError("payload_too_large", `The request body is larger than ${max} bytes.`, undefined, { max_bytes: max });
+  const declared = Number(req.headers.get("content-length"));
+  if (Number.isFinite(declared) && declared > max) throw tooLarge();
+  if (!req.body) return "";
+  const reader = req.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let size = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    size += value.byteLength;
+    if (size > max) {
+      await reader.cancel().catch(() => undefined);
+      throw tooLarge();
+    }
+    chunks.push(value);
+  }
+  return new TextDecoder().decode(Buffer.concat(chunks));
+}
+
+/**
+ * Reads a JSON body: application/json only (415), at most JSON_MAX_BYTES (413), valid JSON (400),
+ * no deeper than a form could send and no NUL byte in any text (422). Never a 500.
+ */
+export async function readJson(req: Request, opts: { maxBytes?: number } = {}): Promise<unknown> {
+  const text = await readCapped(req, opts.maxBytes ?? getEnv().JSON_MAX_BYTES);
   if (!text.trim()) return {};
+  if (!isJsonContentType(req.headers.get("content-type"))) {
+    throw new AppError("unsupported_media_type", "Send the body as JSON with Content-Type: application/json.", undefined, { expected: "application/json" });
+  }
+  let value: unknown;
   try {
-    return JSON.parse(text);
+    value = JSON.parse(text);
   } catch {
     throw new AppError("bad_request", "The request body is not valid JSON.");
   }
+  const problem = checkJsonShape(value);
+  if (problem) throw new AppError(problem.code, problem.message, problem.field ? { [problem.field]: [problem.reason] } : undefined);
+  return value;
 }

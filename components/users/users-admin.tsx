@@ -9,7 +9,7 @@ export type UserAction = (prev: ActionState, form: FormData) => Promise<ActionSt
 
 export type UsersAdminProps = {
   currentUserId: string;
-  actions: { createUser: UserAction; changeRole: UserAction; setActive: UserAction; sendLink: UserAction };
+  actions: { createUser: UserAction; changeRole: UserAction; setActive: UserAction; sendLink: UserAction; signOutEverywhere: UserAction };
 };
 
 export type UserRow = {
@@ -201,6 +201,7 @@ function UserRowView({ user, self, actions, onDone, open, onToggle }: RowProps) 
   const [, roleAction, rolePending] = useActionDone(actions.changeRole, onDone);
   const [, activeAction, activePending] = useActionDone(actions.setActive, onDone);
   const [, linkAction, linkPending] = useActionDone(actions.sendLink, onDone);
+  const [, sessionsAction, sessionsPending] = useActionDone(actions.signOutEverywhere, onDone);
   const [confirming, setConfirming] = useState(false);
   // The row is keyed by id and version, so a saved change remounts it with the new role.
   const [role, setRole] = useState<Role>(user.role);
@@ -247,6 +248,12 @@ function UserRowView({ user, self, actions, onDone, open, onToggle }: RowProps) 
                 </button>
               </form>
             ) : null}
+            <form action={sessionsAction}>
+              <input type="hidden" name="id" value={user.id} />
+              <button type="submit" disabled={sessionsPending} className={secondary} title={self ? "Ends every session of yours, this one included" : undefined}>
+                {sessionsPending ? "Signing out…" : "Sign out everywhere"}
+              </button>
+            </form>
             {self ? null : user.active && !confirming ? (
               <button type="button" className={danger} onClick={() => setConfirming(true)}>
                 Deactivate

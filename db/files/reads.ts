@@ -1,8 +1,9 @@
 import type { Database } from "@/db/client";
+import { isUuid } from "@/lib/ids";
 import { AppError } from "@/lib/errors";
 
 export async function findFileById(db: Database, id: string) {
-  if (!/^[0-9a-f-]{36}$/i.test(id)) return undefined;
+  if (!isUuid(id)) return undefined;
   return db.selectFrom("files").selectAll().where("id", "=", id).executeTakeFirst();
 }
 

@@ -1,3 +1,4 @@
+import type { Role } from "@/lib/auth/permissions";
 import { sql, type Transaction } from "kysely";
 import type PgBoss from "pg-boss";
 import type { Database } from "@/db/client";
@@ -201,7 +202,8 @@ export async function declineQuote(trx: Trx, id: string, version: number, actorI
  * due on the promised date, draft builds by the plates of a fresh tentative plan, and that plan
  * as a printer-plan proposal for a planner to apply on the floor. Nothing is booked here.
  */
-export async function acceptQuote(trx: Trx, id: string, version: number, actorId: string) {
+export async function acceptQuote(trx: Trx, id: string, version: number, actor: { id: string; role: Role }) {
+  const actorId = actor.id;
   const q = await lockQuote(trx, id, version);
   if (q.status === "sent" && new Date(q.valid_until) < new Date()) {
     await trx.updateTable("quotes").set({ status: "expired", decided_at: new Date(), ...bump }).where("id", "=", id).execute();
@@ -211,7 +213,7 @@ export async function acceptQuote(trx: Trx, id: string, version: number, actorId
   const { lines } = await getQuoteOrThrow(trx, id);
   const evaluated = evaluateQuote(lines.map(lineSpecOf), await loadQuoteContext(trx));
   const dueAt = new Date(q.promise_at ?? evaluated.completion ?? Date.now());
-  const order = await insertOrder(trx, { code: `WO-${q.code}`, customer: q.customer, project: `Quote ${q.code}`, due_at: dueAt, priority: 3, notes: q.notes });
+  const order = await insertOrder(trx, { code: `WO-${q.code}`, customer: q.customer, project: `Quote ${q.code}`, due_at: dueAt, priority: 3, notes: q.notes }, actor.role);
   const items: PlanProposalItem[] = [];
   const unplaced: Array<{ code: string; reason: string }> = [];
   const printers = new Map((await trx.selectFrom("printers").select(["id", "name"]).execute()).map((p) => [p.id, p.name]));

@@ -54,6 +54,26 @@ export function can(role: Role | null | undefined, permission: Permission): bool
   return (PERMISSIONS[permission] as readonly Role[]).includes(role);
 }
 
+// Field-level rules ------------------------------------------------------------------------------
+// A permission that guards one field rather than a whole action. Each applies on every door that
+// sets the field: creating, updating and importing alike.
+
+/** The priority an order gets when nobody with "orders:prioritize" chooses one. */
+export const DEFAULT_ORDER_PRIORITY = 3;
+
+/**
+ * Why this role may not give an order this priority, or null. `before` is the order's current
+ * priority on an update and undefined on a create (a new order may only take the default).
+ */
+export function orderPriorityRefusal(role: Role, after: number | undefined, before?: number): string | null {
+  if (after === undefined || can(role, "orders:prioritize")) return null;
+  const allowed = before ?? DEFAULT_ORDER_PRIORITY;
+  if (after === allowed) return null;
+  return before === undefined
+    ? `Only a manager or an admin sets an order's priority; a new order starts at ${DEFAULT_ORDER_PRIORITY}.`
+    : "Only a manager or an admin changes an order's priority.";
+}
+
 export type NavItem = { href: string; label: string; permission: Permission; hint: string };
 
 /** The pages of the product, in the order the work flows. */

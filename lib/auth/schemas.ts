@@ -1,9 +1,10 @@
 import { z } from "zod";
+import { rowVersion, singleLine } from "@/lib/input-fields";
 import { ROLES } from "./permissions";
 import { NOTIFICATION_KINDS } from "@/lib/notifications/kinds";
 
-const email = z.string().trim().min(1, "Enter an e-mail address").max(254).email("That is not an e-mail address");
-const name = z.string().trim().min(1, "Enter a name").max(120, "Keep the name under 120 characters");
+const email = singleLine().trim().min(1, "Enter an e-mail address").max(254).email("That is not an e-mail address");
+const name = singleLine().trim().min(1, "Enter a name").max(120, "Keep the name under 120 characters");
 
 /** Long enough to resist guessing; no composition rules (NIST SP 800-63B §5.1.1). */
 export const PASSWORD_MIN = 10;
@@ -14,7 +15,7 @@ const newPassword = z
 
 export const signInSchema = z.object({
   email,
-  password: z.string().min(1, "Enter your password").max(200),
+  password: singleLine().min(1, "Enter your password").max(200),
 });
 export type SignInInput = z.infer<typeof signInSchema>;
 
@@ -31,7 +32,7 @@ export type CreateUserInput = z.infer<typeof createUserSchema>;
 /** An admin's change to someone's account; `version` guards against two admins at once. */
 export const updateUserSchema = z
   .object({
-    version: z.coerce.number().int().positive(),
+    version: rowVersion(),
     name: name.optional(),
     role: roleSchema.optional(),
     active: z.boolean().optional(),
@@ -43,9 +44,9 @@ export const forgotPasswordSchema = z.object({ email });
 
 export const setPasswordSchema = z
   .object({
-    token: z.string().trim().min(1, "The link has no token").max(100),
+    token: singleLine().trim().min(1, "The link has no token").max(100),
     password: newPassword,
-    confirm: z.string(),
+    confirm: singleLine(),
   })
   .refine((v) => v.password === v.confirm, { message: "The two passwords differ", path: ["confirm"] });
 
@@ -73,9 +74,9 @@ export type UpdateProfileInput = z.infer<typeof updateProfileSchema>;
 
 export const changePasswordSchema = z
   .object({
-    current_password: z.string().min(1, "Enter your current password").max(200),
+    current_password: singleLine().min(1, "Enter your current password").max(200),
     new_password: newPassword,
-    confirm: z.string(),
+    confirm: singleLine(),
   })
   .refine((v) => v.new_password === v.confirm, { message: "The two passwords differ", path: ["confirm"] })
   .refine((v) => v.new_password !== v.current_password, { message: "Choose a password other than the current one", path: ["new_password"] });

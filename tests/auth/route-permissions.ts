@@ -36,10 +36,11 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/session/reset-requests": { POST: "public" },
   "/api/me": { GET: "self:write", PATCH: "self:write" },
   "/api/me/password": { POST: "self:write" },
-  "/api/me/sessions": { DELETE: { gate: "self:write", note: "ends the other sessions of the throwaway user only" } },
+  "/api/me/sessions": { GET: "self:write", DELETE: { gate: "self:write", note: "ends the other sessions of the throwaway user only" } },
   "/api/users": { GET: "users:admin", POST: "users:admin" },
   "/api/users/[id]": { GET: "users:admin", PATCH: "users:admin" },
   "/api/users/[id]/link": { POST: "users:admin" },
+  "/api/users/[id]/sessions": { DELETE: { gate: "users:admin", note: "a fresh id names nobody: a 404 after the gate" } },
 
   "/api/events": { GET: { gate: "shop:read", stream: true, note: "server-sent events: an open stream once allowed" } },
 
@@ -164,5 +165,6 @@ export const ACTION_PERMISSIONS: Record<string, Record<string, Gate>> = {
     changeRole: "users:admin",
     setActive: "users:admin",
     sendLink: "users:admin",
+    signOutEverywhere: "users:admin",
   },
 };

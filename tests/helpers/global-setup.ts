@@ -10,10 +10,11 @@ let procs: Proc[] = [];
 export async function setup() {
   if (process.env.HEARTH_TEST_NO_STACK) return;
   const port = Number(process.env.PORT ?? 3100);
+  // The tests stand in for a reverse proxy: they name client addresses in X-Forwarded-For.
   // Each process's output also goes to <data dir>/logs/<name>.log (the log tests read app.log).
   const logDir = stackLogDir();
   fs.rmSync(logDir, { recursive: true, force: true });
-  procs = await startStack({ port, env: { ...process.env }, quiet: !process.env.HEARTH_TEST_VERBOSE, logDir });
+  procs = await startStack({ port, env: { TRUSTED_PROXIES: "127.0.0.1, ::1", ...process.env }, quiet: !process.env.HEARTH_TEST_VERBOSE, logDir });
 }
 
 export async function teardown() {

@@ -19,6 +19,7 @@ const SECTIONS: Section[] = [
   { title: "Shrinkage calibration", href: "/finishing/calibration", lead: "Realized shrinkage from inspections per material, and the suggested factors to apply." },
   { title: "Quoting rates", href: "/setup/quotes", lead: "Currency, machine and labour rates, furnace run and wash batch costs, overhead, margin and feedstock prices." },
   { title: "Shop settings", href: "/setup/settings", lead: "Shop name, time zone, staffed hours and planning margins." },
+  { title: "Security log", href: "/setup/security", lead: "Sign-ins, failures, sign-outs, ended sessions, role changes, resets and exports." },
   { title: "Background jobs", href: "/setup/jobs", lead: "The worker's queues, failed jobs and its last sweep for bookings whose end went by." },
 ];
 

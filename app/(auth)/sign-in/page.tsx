@@ -3,14 +3,10 @@ import { connection } from "next/server";
 import { DEMO_USERS, DEMO_PASSWORD } from "@/db/seed-users";
 import { showDemoSignIns } from "@/lib/auth/demo";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
+import { safeNextPath } from "@/lib/http/safe-next";
 import { SignInForm } from "./sign-in-form";
 
 export const metadata = { title: "Sign in" };
-
-function safeNext(next: string | undefined) {
-  // Only paths on this site: never an absolute or protocol-relative address.
-  return next && next.startsWith("/") && !next.startsWith("//") ? next : "";
-}
 
 export default async function SignInPage({ searchParams }: { searchParams: Promise<{ next?: string; password?: string; email?: string }> }) {
   await connection();
@@ -25,7 +21,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
           Your password is set. Sign in with it now.
         </p>
       ) : null}
-      <SignInForm next={safeNext(next)} email={typeof email === "string" ? email.slice(0, 254) : ""} />
+      <SignInForm next={safeNextPath(next)} email={typeof email === "string" ? email.slice(0, 254) : ""} />
       <Link href="/forgot-password" className="mt-4 inline-block text-sm font-semibold text-clay-700 hover:underline">
         Forgot your password?
       </Link>

@@ -41,7 +41,16 @@ async function timed<T>(fn: () => Promise<T>): Promise<{ ok: true; ms: number; v
   }
 }
 
-// GET /api/health – reachability of the database, the worker and the mail and file stores (public)
+/**
+ * Who may read the checks themselves (worker ids, queue counts, migration names): a signed-in
+ * admin. API tokens with a monitoring scope will be the second way in; their check goes here.
+ */
+async function mayReadHealthDetail(): Promise<boolean> {
+  const viewer = await getCurrentUser().catch(() => null);
+  return !!viewer && can(viewer.role, "jobs:read");
+}
+
+// GET /api/health – public: {status: "up" | "down"} (503 when down); an admin also gets every check's detail
 export async function GET() {
   const db = getDb();
   const [database, migration, worker, smtp, s3, jobs] = await Promise.all([
@@ -91,8 +100,10 @@ export async function GET() {
       : { ok: false, error: jobs.error },
   };
   const ok = Object.values(checks).every((c) => c.ok);
-  // For a signed-in admin only: this process's live-update streams and its LISTEN connection.
-  const viewer = await getCurrentUser().catch(() => null);
-  const detail = viewer && can(viewer.role, "jobs:read") ? { live: { pid: process.pid, ...liveHub().detail() } } : {};
-  return NextResponse.json({ ok, checked_at: new Date().toISOString(), checks, ...detail }, { status: ok ? 200 : 503, headers: { "cache-control": "no-store", ...(ok ? {} : { "retry-after": "5" }) } });
+  const status = ok ? "up" : "down";
+  // The checks, and this process's live-update streams and LISTEN connection, for an admin only.
+  const body = (await mayReadHealthDetail())
+    ? { status, ok, checked_at: new Date().toISOString(), checks, live: { pid: process.pid, ...liveHub().detail() } }
+    : { status };
+  return NextResponse.json(body, { status: ok ? 200 : 503, headers: { "cache-control": "no-store", ...(ok ? {} : { "retry-after": "5" }) } });
 }

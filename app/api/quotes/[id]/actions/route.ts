@@ -21,7 +21,7 @@ export async function POST(req: Request, ctx: IdContext) {
       return NextResponse.json({ quote });
     }
     if (input.action === "accept") {
-      const out = await db.transaction().execute((trx) => acceptQuote(trx, id, input.version, user.id));
+      const out = await db.transaction().execute((trx) => acceptQuote(trx, id, input.version, { id: user.id, role: user.role }));
       floorWindowCache().clear();
       return NextResponse.json(out);
     }
