@@ -27,21 +27,35 @@ const hostname = process.env.HOSTNAME ?? "127.0.0.1";
 const instance = process.env.HEARTH_INSTANCE || `${hostname}:${port}`;
 // How long a stop waits for requests in flight before it closes their connections.
 const graceMs = Number(process.env.HEARTH_STOP_GRACE_MS ?? 10_000);
+// How long an answer given before the request's body was read keeps reading (and dropping) it.
+const LINGER_MS = 500;
 
 /**
  * Answers that must end their connection: one given before the request's body was read to its
  * end (a 413 for an upload over the limit, a 401 before the upload) — otherwise Node reads and
  * discards the rest of the body and keeps the connection, and a client that stopped sending
- * waits on it until the server's timeouts — and any answer while the server stops. The answer
- * says "Connection: close"; after an unread body the socket goes once the answer is out.
+ * waits on it until the server's timeouts — and any answer while the server stops (which
+ * says "Connection: close"). After an unread body the connection goes once the rest has been
+ * read, or LINGER_MS after the answer.
  */
 function closeWhenDue(req: http.IncomingMessage, res: http.ServerResponse, stopping: () => boolean) {
   const writeHead = res.writeHead;
   res.writeHead = function (this: http.ServerResponse, ...args: Parameters<typeof writeHead>) {
     const hasBody = req.headers["transfer-encoding"] !== undefined || Number(req.headers["content-length"] ?? 0) > 0;
     if (hasBody && !req.complete) {
-      res.shouldKeepAlive = false;
-      res.once("finish", () => req.socket.destroy());
+      // A lingering close, as nginx does: Node goes on reading and dropping what the client is
+      // still sending, so that it can read this answer instead of failing on a reset (EPIPE);
+      // a client that stopped sending loses the connection a moment later instead of hanging
+      // on it until the server's timeouts.
+      res.once("finish", () => {
+        if (req.complete) return;
+        const linger = setTimeout(() => req.socket.destroy(), LINGER_MS);
+        linger.unref();
+        req.once("end", () => {
+          clearTimeout(linger);
+          req.socket.end();
+        });
+      });
     } else if (stopping()) {
       res.shouldKeepAlive = false;
     }
