@@ -58,7 +58,8 @@ describe("quotes", () => {
   });
 
   it("answers bad bodies with 400 and 422 and the field", async () => {
-    expect((await api("/api/quotes", { method: "POST", cookie: manager, body: "{not json" })).status).toBe(400);
+    expect((await api("/api/quotes", { method: "POST", cookie: manager, body: "{not json", headers: { "content-type": "application/json" } })).status).toBe(400);
+    expect((await api("/api/quotes", { method: "POST", cookie: manager, body: "{not json" })).status).toBe(415);
     const r = await api("/api/quotes", { method: "POST", cookie: manager, body: { customer: "", contact_email: "nope" } });
     expect(r.status).toBe(422);
     expect(Object.keys(r.body.error.fieldErrors)).toEqual(expect.arrayContaining(["customer", "contact_email"]));
