@@ -73,8 +73,8 @@ it("starts a SIGKILLed worker again while the app keeps answering", async () => 
   expect(answers).toBeGreaterThan(0);
   expect(stack.child.exitCode).toBeNull();
   expect(stack.output()).toMatch(/worker stopped \(SIGKILL\)/);
-  const health = await (await fetch(`${base}/api/health`)).json();
-  expect(health.checks.worker.ok).toBe(true);
+  // "up" needs every check, the worker's heartbeat among them (the detail is an admin's)
+  expect(await (await fetch(`${base}/api/health`)).json()).toEqual({ status: "up" });
   expect(workerPids(stack.output()).length).toBe(2);
   // the workers' jobs are logged one JSON line each (the heartbeat job runs at start)
   const jobs = stack
