@@ -25,7 +25,7 @@ import Link from "next/link";
 import type { Board, BoardActive, BoardFurnaceRun, BoardUnit, BoardWashBatch } from "@/lib/batches/types";
 import { shopTime } from "./format";
 import { ApiError, getJson, sendJson } from "./client";
-import { BatchesQueryProvider } from "./query-provider";
+import { QueryProvider } from "@/components/floor/query-provider";
 import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { SuggestPanel } from "./suggest-panel";
 import { RunTarget, WashTarget, type HoverVerdict } from "./targets";
@@ -65,9 +65,9 @@ const jumpBetweenTargets: KeyboardCoordinateGetter = (event, { context }) => {
 
 export function BatchesBoard(props: BatchesBoardProps) {
   return (
-    <BatchesQueryProvider>
+    <QueryProvider>
       <BoardInner {...props} />
-    </BatchesQueryProvider>
+    </QueryProvider>
   );
 }
 

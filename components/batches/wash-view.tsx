@@ -10,7 +10,7 @@ import { massLossCheck } from "@/lib/process/wash";
 import { ApiError, getJson, sendJson } from "./client";
 import { duration, shopTime } from "./format";
 import { GaugeBar } from "./gauge";
-import { BatchesQueryProvider } from "./query-provider";
+import { QueryProvider } from "@/components/floor/query-provider";
 import { useLivePoll } from "@/components/live/live-updates";
 
 type MassResult = { unit_id: string; serial: string; green_mass_g: number | null; brown_mass_g: number | null; loss_fraction: number | null; min_mass_loss: number; passed: boolean | null };
@@ -23,9 +23,9 @@ const pct = (x: number) => `${(x * 100).toFixed(2)} %`;
 
 export function WashView(props: WashViewProps) {
   return (
-    <BatchesQueryProvider>
+    <QueryProvider>
       <WashViewInner {...props} />
-    </BatchesQueryProvider>
+    </QueryProvider>
   );
 }
 

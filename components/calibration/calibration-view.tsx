@@ -21,7 +21,7 @@ import type { CalibrationMaterialRow, MaterialCalibrationView } from "@/lib/fini
 import { factorOf } from "@/lib/finishing/calibration";
 import { ApiError, getJson, sendJson } from "@/components/finishing/api";
 import { formatDay, formatWhen } from "@/components/finishing/format";
-import { ShopQueryProvider } from "@/components/finishing/query-provider";
+import { QueryProvider } from "@/components/floor/query-provider";
 
 // Realized shrinkage per material over time, its statistics and the factors they suggest.
 // An admin applies a suggestion; parts scaled after that use it, builds keep their snapshot.
@@ -30,9 +30,9 @@ export type CalibrationViewProps = { canApply: boolean; timeZone: string; initia
 
 export function CalibrationView(props: CalibrationViewProps) {
   return (
-    <ShopQueryProvider>
+    <QueryProvider>
       <Inner {...props} />
-    </ShopQueryProvider>
+    </QueryProvider>
   );
 }
 

@@ -8,7 +8,7 @@ import type { CsvTable, ResourceKind } from "@/lib/capacity/schemas";
 import { capacityQuerySchema } from "@/lib/capacity/schemas";
 import { ApiError, getJson } from "@/components/finishing/api";
 import { formatWhen, slackLabel, stateLabel } from "@/components/finishing/format";
-import { ShopQueryProvider } from "@/components/finishing/query-provider";
+import { QueryProvider } from "@/components/floor/query-provider";
 import { RiskBadge } from "@/components/finishing/state-badge";
 import { QueueChart, ThroughputChart, UtilizationChart, UtilizationTable, WipChart } from "./charts";
 import { CalendarFeeds } from "./calendar-feeds";
@@ -17,9 +17,9 @@ export type CapacityBoardProps = { initialRange: { from: string; to: string }; t
 
 export function CapacityBoard(props: CapacityBoardProps) {
   return (
-    <ShopQueryProvider>
+    <QueryProvider>
       <Inner {...props} />
-    </ShopQueryProvider>
+    </QueryProvider>
   );
 }
 

@@ -8,7 +8,7 @@ import type { FinishingAction } from "@/lib/finishing/schemas";
 import type { FinishingCard, FinishingQueue as Queue } from "@/lib/finishing/types";
 import { ApiError, getJson, sendJson } from "./api";
 import { formatWhen, ra, relative, stateLabel, stockLen } from "./format";
-import { ShopQueryProvider } from "./query-provider";
+import { QueryProvider } from "@/components/floor/query-provider";
 import { StateBadge } from "./state-badge";
 import { ToleranceText, UnitFacts } from "./unit-facts";
 
@@ -16,9 +16,9 @@ export type FinishingQueueProps = { canWrite: boolean; units: UnitSystem; timeZo
 
 export function FinishingQueue(props: FinishingQueueProps) {
   return (
-    <ShopQueryProvider>
+    <QueryProvider>
       <QueueInner {...props} />
-    </ShopQueryProvider>
+    </QueryProvider>
   );
 }
 

@@ -12,7 +12,7 @@ import { ApiError, getJson, sendJson } from "./api";
 import { formatWhen, stateLabel, stockCheckText } from "./format";
 import { InspectionForm } from "./inspection-form";
 import { InspectionList } from "./inspection-list";
-import { ShopQueryProvider } from "./query-provider";
+import { QueryProvider } from "@/components/floor/query-provider";
 import { StateBadge } from "./state-badge";
 import { UnitFacts } from "./unit-facts";
 
@@ -22,9 +22,9 @@ type Detail = { unit: FinishingCard; inspections: InspectionView[] };
 
 export function FinishingUnit(props: FinishingUnitProps) {
   return (
-    <ShopQueryProvider>
+    <QueryProvider>
       <Inner {...props} />
-    </ShopQueryProvider>
+    </QueryProvider>
   );
 }
 

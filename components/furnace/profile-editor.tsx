@@ -10,7 +10,7 @@ import type { BoardProfile } from "@/lib/batches/types";
 import { profileCurve } from "@/lib/process/furnace-profile";
 import { ApiError, getJson, sendJson } from "@/components/batches/client";
 import { duration } from "@/components/batches/format";
-import { BatchesQueryProvider } from "@/components/batches/query-provider";
+import { QueryProvider } from "@/components/floor/query-provider";
 import { ProfileChart } from "./profile-chart";
 
 type ProfileItem = BoardProfile & {
@@ -32,9 +32,9 @@ type ListResponse = {
 
 export function ProfileEditor({ canEdit }: { canEdit: boolean }) {
   return (
-    <BatchesQueryProvider>
+    <QueryProvider>
       <ProfileEditorInner canEdit={canEdit} />
-    </BatchesQueryProvider>
+    </QueryProvider>
   );
 }
 

@@ -13,7 +13,7 @@ import { formatLength } from "@/lib/units";
 import { ApiError, getJson, sendJson } from "@/components/batches/client";
 import { duration, massText, shopTime } from "@/components/batches/format";
 import { GaugeBar } from "@/components/batches/gauge";
-import { BatchesQueryProvider } from "@/components/batches/query-provider";
+import { QueryProvider } from "@/components/floor/query-provider";
 import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { ProfileChart } from "./profile-chart";
 import { TrayDrawing } from "./tray-drawing";
@@ -25,9 +25,9 @@ const REASON_WORDS: Record<string, string> = { print_failure: "Print failure", c
 
 export function RunView(props: RunViewProps) {
   return (
-    <BatchesQueryProvider>
+    <QueryProvider>
       <RunViewInner {...props} />
-    </BatchesQueryProvider>
+    </QueryProvider>
   );
 }
 

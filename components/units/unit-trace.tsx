@@ -7,7 +7,7 @@ import type { TimelineEntry, UnitTrace as Trace } from "@/lib/finishing/types";
 import { getJson } from "@/components/finishing/api";
 import { formatWhen } from "@/components/finishing/format";
 import { InspectionList } from "@/components/finishing/inspection-list";
-import { ShopQueryProvider } from "@/components/finishing/query-provider";
+import { QueryProvider } from "@/components/floor/query-provider";
 import { StateBadge } from "@/components/finishing/state-badge";
 import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { NextStepCard } from "@/components/scan/next-step-card";
@@ -21,9 +21,9 @@ export type UnitTraceProps = { unitId: string; units: UnitSystem; timeZone: stri
 
 export function UnitTrace(props: UnitTraceProps) {
   return (
-    <ShopQueryProvider>
+    <QueryProvider>
       <Inner {...props} />
-    </ShopQueryProvider>
+    </QueryProvider>
   );
 }
 
