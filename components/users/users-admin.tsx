@@ -2,6 +2,7 @@
 
 import { useActionState, useEffect, useState } from "react";
 import { QueryClient, QueryClientProvider, useQuery, useQueryClient } from "@tanstack/react-query";
+import { getJson } from "@/lib/http/client";
 import { ROLES, ROLE_LABELS, type Role } from "@/lib/auth/permissions";
 import { initialActionState, type ActionState } from "@/lib/auth/action-state";
 
@@ -33,13 +34,6 @@ const secondary = `${button} border border-soot-200 bg-white text-soot-700 hover
 const danger = `${button} border border-oxide-500/40 bg-white text-oxide-700 hover:bg-oxide-100`;
 const inputCls = "mt-1 block w-full rounded-md border border-soot-200 bg-white px-2.5 py-1.5 text-sm focus:border-clay-500 focus:outline-none";
 
-async function fetchJson<T>(url: string): Promise<T> {
-  const res = await fetch(url, { headers: { accept: "application/json" } });
-  const body = await res.json().catch(() => null);
-  if (!res.ok) throw new Error(body?.error?.message ?? `The server answered ${res.status}.`);
-  return body as T;
-}
-
 const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString(undefined, { dateStyle: "medium", timeStyle: "short" }) : "—");
 
 export function UsersAdmin(props: UsersAdminProps) {
@@ -53,7 +47,7 @@ export function UsersAdmin(props: UsersAdminProps) {
 
 function UsersAdminInner({ currentUserId, actions }: UsersAdminProps) {
   const queryClient = useQueryClient();
-  const users = useQuery({ queryKey: ["users"], queryFn: () => fetchJson<{ users: UserRow[] }>("/api/users") });
+  const users = useQuery({ queryKey: ["users"], queryFn: () => getJson<{ users: UserRow[] }>("/api/users") });
   const [flash, setFlash] = useState<ActionState | null>(null);
   const [showNew, setShowNew] = useState(false);
   const [open, setOpen] = useState<string | null>(null);
@@ -315,7 +309,7 @@ const EVENT_LABELS: Record<string, string> = {
 const stateName = (s: string | null) => (s ? (ROLE_LABELS[s as Role] ?? s) : "");
 
 function UserHistory({ id, version }: { id: string; version: number }) {
-  const q = useQuery({ queryKey: ["user", id, version], queryFn: () => fetchJson<{ events: UserEvent[] }>(`/api/users/${id}`) });
+  const q = useQuery({ queryKey: ["user", id, version], queryFn: () => getJson<{ events: UserEvent[] }>(`/api/users/${id}`) });
   if (q.isPending) return <p className="text-xs text-soot-500">Loading history…</p>;
   if (q.isError) return <p className="text-xs text-oxide-700">{q.error.message}</p>;
   if (q.data.events.length === 0) return <p className="text-xs text-soot-500">No account events yet.</p>;

@@ -2,6 +2,7 @@
 
 import { useMemo, useState } from "react";
 import { QueryClient, QueryClientProvider, useQuery } from "@tanstack/react-query";
+import { getJson } from "@/lib/http/client";
 
 type Message = { id: string; received_at: string; from: string; to: string[]; subject: string; text: string; html: string; message_id: string | null; attachments?: { filename: string; content_type: string; size: number }[] };
 type OutboxRow = {
@@ -22,13 +23,6 @@ type MailResponse = {
   outbox: { pending: number; sent: number; failed: number; oldest_pending_at: string | null; last_error: string | null };
   outbox_recent: OutboxRow[];
 };
-
-async function fetchJson<T>(url: string): Promise<T> {
-  const res = await fetch(url, { headers: { accept: "application/json" } });
-  const body = await res.json().catch(() => null);
-  if (!res.ok) throw new Error(body?.error?.message ?? `The server answered ${res.status}.`);
-  return body as T;
-}
 
 const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString(undefined, { dateStyle: "medium", timeStyle: "short" }) : "—");
 
@@ -54,7 +48,7 @@ function MailViewerInner() {
   const [view, setView] = useState<"text" | "html">("html");
   const mail = useQuery({
     queryKey: ["mail", filter],
-    queryFn: () => fetchJson<MailResponse>(`/api/mail${filter ? `?to=${encodeURIComponent(filter)}` : ""}`),
+    queryFn: () => getJson<MailResponse>(`/api/mail${filter ? `?to=${encodeURIComponent(filter)}` : ""}`),
     refetchInterval: 5_000,
   });
   const messages = useMemo(() => mail.data?.messages ?? [], [mail.data]);

@@ -2,6 +2,7 @@
 
 import { useState } from "react";
 import { QueryClient, QueryClientProvider, useQuery } from "@tanstack/react-query";
+import { getJson } from "@/lib/http/client";
 import { Bar, BarChart, CartesianGrid, Legend, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
 
 type QueueStat = { queue: string; waiting: number; scheduled: number; active: number; failed: number; oldest_waiting_s: number | null };
@@ -30,13 +31,6 @@ const QUEUE_HINTS: Record<string, string> = {
   heartbeat: "proves a worker is polling",
 };
 
-async function fetchJson<T>(url: string): Promise<T> {
-  const res = await fetch(url, { headers: { accept: "application/json" } });
-  const body = await res.json().catch(() => null);
-  if (!res.ok) throw new Error(body?.error?.message ?? `The server answered ${res.status}.`);
-  return body as T;
-}
-
 const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString(undefined, { dateStyle: "medium", timeStyle: "medium" }) : "—");
 
 function ago(iso: string | null, now: number): string {
@@ -64,7 +58,7 @@ function JobsBoardInner() {
   const [open, setOpen] = useState<string | null>(null);
   const jobs = useQuery({
     queryKey: ["jobs", queue],
-    queryFn: () => fetchJson<JobsResponse>(`/api/jobs${queue ? `?queue=${encodeURIComponent(queue)}` : ""}`),
+    queryFn: () => getJson<JobsResponse>(`/api/jobs${queue ? `?queue=${encodeURIComponent(queue)}` : ""}`),
     refetchInterval: 10_000,
   });
 
