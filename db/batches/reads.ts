@@ -2,6 +2,7 @@ import { sql, type Transaction } from "kysely";
 import { isUuid } from "@/lib/ids";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
+import { PART_SIZE_COLUMNS, unitsWithStages } from "@/db/units/joins";
 import { AppError } from "@/lib/errors";
 import { profileLabel } from "@/lib/batches/rules";
 import { staffingOf, type Staffing } from "@/lib/batches/staffed";
@@ -162,25 +163,17 @@ export type UnitFilter =
   | { kind: "waiting_furnace"; horizon?: Date };
 
 function unitQuery(db: Db) {
-  return db
-    .selectFrom("units as u")
-    .innerJoin("parts as p", "p.id", "u.part_id")
-    .innerJoin("orders as o", "o.id", "p.order_id")
-    .innerJoin("materials as m", "m.id", "p.material_id")
-    .leftJoin("wash_batches as wb", "wb.id", "u.wash_batch_id")
-    .leftJoin("furnace_runs as fr", "fr.id", "u.furnace_run_id")
-    .leftJoin("builds as b", "b.id", "u.build_id")
+  return unitsWithStages(db)
     .select([
       "u.id", "u.serial", "u.version", "u.state", "u.green_mass_g", "u.brown_mass_g", "u.wash_passed", "u.hold_reason",
       "u.wash_batch_id", "u.furnace_run_id", "u.state_changed_at",
       "p.id as part_id", "p.part_number", "p.name as part_name", "p.thickest_wall_mm", "p.volume_mm3",
-      "p.green_x_mm", "p.green_y_mm", "p.green_z_mm", "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm",
-      "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm", "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm",
+      ...PART_SIZE_COLUMNS,
       "o.code as order_code", "o.due_at", "o.priority",
       "m.id as material_id", "m.code as material_code", "m.default_profile_id", "m.shrink_xy", "m.shrink_z",
       "m.green_density_g_cm3", "m.wash_k_min_per_mm2", "m.wash_min_minutes", "m.min_mass_loss",
-      "wb.state as wb_state", "wb.starts_at as wb_starts_at", "wb.ends_at as wb_ends_at", "wb.finished_at as wb_finished_at",
-      "fr.state as fr_state", "fr.starts_at as fr_starts_at", "fr.ends_at as fr_ends_at",
+      "w.state as wb_state", "w.starts_at as wb_starts_at", "w.ends_at as wb_ends_at", "w.finished_at as wb_finished_at",
+      "r.state as fr_state", "r.starts_at as fr_starts_at", "r.ends_at as fr_ends_at",
       "b.ends_at as build_ends_at",
     ]);
 }
@@ -337,7 +330,7 @@ export async function listBoardUnits(db: Db, ctx: ShopContext, filter: UnitFilte
     case "waiting_wash":
       q = q
         .where("u.state", "=", "green")
-        .where((eb) => eb.or([eb("u.wash_batch_id", "is", null), eb("wb.state", "in", ["complete", "cancelled"])]));
+        .where((eb) => eb.or([eb("u.wash_batch_id", "is", null), eb("w.state", "in", ["complete", "cancelled"])]));
       break;
     case "waiting_furnace": {
       const horizon = filter.horizon ?? new Date(ctx.now.getTime() + 48 * 3_600_000);
@@ -348,11 +341,11 @@ export async function listBoardUnits(db: Db, ctx: ShopContext, filter: UnitFilte
             eb.and([
               eb("u.state", "=", "washing"),
               eb.or([eb("u.wash_passed", "is", null), eb("u.wash_passed", "=", true)]),
-              eb("wb.ends_at", "<=", horizon),
+              eb("w.ends_at", "<=", horizon),
             ]),
           ]),
         )
-        .where((eb) => eb.or([eb("u.furnace_run_id", "is", null), eb("fr.state", "in", ["complete", "cancelled"])]));
+        .where((eb) => eb.or([eb("u.furnace_run_id", "is", null), eb("r.state", "in", ["complete", "cancelled"])]));
       break;
     }
   }

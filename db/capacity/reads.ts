@@ -1,6 +1,7 @@
 import { createHash } from "node:crypto";
 import { sql } from "kysely";
 import type { Database } from "@/db/client";
+import { unitsWithStages } from "@/db/units/joins";
 import { orderRisks, type OrderForRisk, type ShopTiming, type UnitForProjection } from "@/lib/capacity/projection-input";
 import {
 queueAhead,
@@ -109,14 +110,7 @@ export async function listMaintenance(db: Database, from: Date, to: Date, resour
 
 /** Units of open orders with what the projection needs, grouped by order. */
 export async function listOpenOrdersForRisk(db: Database): Promise<OrderForRisk[]> {
-  const rows = await db
-    .selectFrom("units as u")
-    .innerJoin("parts as p", "p.id", "u.part_id")
-    .innerJoin("orders as o", "o.id", "p.order_id")
-    .innerJoin("materials as m", "m.id", "p.material_id")
-    .leftJoin("builds as b", "b.id", "u.build_id")
-    .leftJoin("wash_batches as w", "w.id", "u.wash_batch_id")
-    .leftJoin("furnace_runs as r", "r.id", "u.furnace_run_id")
+  const rows = await unitsWithStages(db)
     .select([
       "u.id as unit_id", "u.serial", "u.state", "u.held_from", "u.state_changed_at",
       "o.id as order_id", "o.code as order_code", "o.customer", "o.due_at", "o.priority",

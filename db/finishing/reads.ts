@@ -2,6 +2,7 @@ import { sql, type Transaction } from "kysely";
 import { isUuid } from "@/lib/ids";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
+import { PART_SIZE_COLUMNS, unitsWithPart } from "@/db/units/joins";
 import { AppError } from "@/lib/errors";
 import { availableActions, type UnitState } from "@/lib/finishing/transitions";
 import { toleranceSummary, type PartForFinishing } from "@/lib/finishing/inspection";
@@ -15,11 +16,7 @@ const num = (v: unknown) => (v === null || v === undefined ? null : Number(v));
 const iso = (d: Date | string | null) => (d === null ? null : new Date(d).toISOString());
 
 function cardQuery(db: Database | Trx) {
-  return db
-    .selectFrom("units as u")
-    .innerJoin("parts as p", "p.id", "u.part_id")
-    .innerJoin("orders as o", "o.id", "p.order_id")
-    .innerJoin("materials as m", "m.id", "p.material_id")
+  return unitsWithPart(db)
     .leftJoin("builds as b", "b.id", "u.build_id")
     .leftJoin("furnace_runs as r", "r.id", "u.furnace_run_id")
     .leftJoin("furnaces as f", "f.id", "r.furnace_id")
@@ -27,8 +24,7 @@ function cardQuery(db: Database | Trx) {
       "u.id", "u.serial", "u.state", "u.version", "u.held_from", "u.hold_reason", "u.scrap_reason", "u.scrap_note", "u.state_changed_at",
       "u.sintered_mass_g",
       "p.id as part_id", "p.part_number", "p.revision", "p.name as part_name", "p.finishing_notes", "p.target_ra_um", "p.tolerance_um", "p.tolerance_grade",
-      "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm", "p.green_x_mm", "p.green_y_mm", "p.green_z_mm",
-      "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm", "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm",
+      ...PART_SIZE_COLUMNS,
       "m.id as material_id", "m.code as material_code", "m.name as material_name",
       "o.id as order_id", "o.code as order_code", "o.customer", "o.due_at", "o.priority",
       "b.id as build_id", "b.code as build_code", "b.scale_snapshot",

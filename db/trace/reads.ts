@@ -1,4 +1,5 @@
 import type { Database } from "@/db/client";
+import { unitsWithPart } from "@/db/units/joins";
 import { isUuid } from "@/lib/ids";
 import { AppError } from "@/lib/errors";
 import { massLossCheck } from "@/lib/process/wash";
@@ -15,11 +16,7 @@ const iso = (d: Date | string | null | undefined) => (d ? new Date(d).toISOStrin
 
 export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitTrace> {
   if (!isUuid(unitId)) throw new AppError("not_found", "Unit not found.");
-  const u = await db
-    .selectFrom("units as u")
-    .innerJoin("parts as p", "p.id", "u.part_id")
-    .innerJoin("orders as o", "o.id", "p.order_id")
-    .innerJoin("materials as m", "m.id", "p.material_id")
+  const u = await unitsWithPart(db)
     .select([
       "u.id", "u.serial", "u.state", "u.version", "u.held_from", "u.hold_reason", "u.scrap_reason", "u.scrap_note", "u.state_changed_at", "u.created_at",
       "u.green_mass_g", "u.brown_mass_g", "u.sintered_mass_g", "u.wash_passed", "u.build_id", "u.wash_batch_id", "u.furnace_run_id",

@@ -7,6 +7,7 @@ import { washMinutes } from "@/lib/process/wash";
 import { furnaceCycle } from "@/lib/process/furnace-profile";
 import type { UnitProjection } from "@/lib/process/projection";
 import { getShopPlanning, listPrinterSpecs, partGreen, type ShopPlanning } from "@/db/floor/reads";
+import { PART_SIZE_COLUMNS, unitsWithStages } from "@/db/units/joins";
 
 const n = (v: unknown) => (v === null || v === undefined ? null : Number(v));
 
@@ -59,19 +60,11 @@ export async function loadProjectionContext(db: Database, now = new Date()): Pro
 }
 
 function unitRowsQuery(db: Database) {
-  return db
-    .selectFrom("units as u")
-    .innerJoin("parts as p", "p.id", "u.part_id")
-    .innerJoin("orders as o", "o.id", "p.order_id")
-    .innerJoin("materials as m", "m.id", "p.material_id")
-    .leftJoin("builds as b", "b.id", "u.build_id")
-    .leftJoin("wash_batches as w", "w.id", "u.wash_batch_id")
-    .leftJoin("furnace_runs as r", "r.id", "u.furnace_run_id")
+  return unitsWithStages(db)
     .select([
       "u.id", "u.serial", "u.state", "u.held_from", "u.hold_reason", "u.scrap_reason", "u.state_changed_at", "u.version", "u.build_id",
       "p.id as part_id", "p.part_number", "p.revision", "p.name as part_name", "p.material_id", "p.thickest_wall_mm", "p.volume_mm3",
-      "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm", "p.green_x_mm", "p.green_y_mm", "p.green_z_mm",
-      "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm", "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm",
+      ...PART_SIZE_COLUMNS,
       "o.id as order_id", "o.code as order_code", "o.due_at", "o.priority",
       "m.code as material_code", "m.shrink_xy", "m.shrink_z", "m.wash_k_min_per_mm2", "m.wash_min_minutes",
       "b.code as build_code", "b.state as build_state", "b.starts_at as build_starts_at", "b.ends_at as build_ends_at", "b.finished_at as build_finished_at", "b.est_minutes as build_est_minutes",
