@@ -80,8 +80,25 @@ async function applyUnitChanges(trx: Trx, changes: UnitChange[], reason: string,
   return result.rows.length;
 }
 
-async function bookingEvent(trx: Trx, entity: BookingEntity, id: string, from: string, to: string, reason: string, data: Record<string, unknown>) {
-  await recordEvents(trx, [{ entity, entity_id: id, kind: "state", from_state: from, to_state: to, actor_id: null, reason, data: data }]);
+const BOOKING_TABLES = { build: "builds", wash_batch: "wash_batches", furnace_run: "furnace_runs" } as const;
+
+/**
+ * Marks an open booking complete and records why. A build or wash batch finished by hand keeps
+ * its own finish time; otherwise its scheduled end is when it finished (a run has no finish time:
+ * it is unloaded).
+ */
+async function completeBooking(trx: Trx, entity: BookingEntity, id: string, from: string, reason: string, data: Record<string, unknown>) {
+  await trx
+    .updateTable(BOOKING_TABLES[entity] as "builds")
+    .set({ state: "complete", version: sql`version + 1`, updated_at: sql`now()`, ...(entity === "furnace_run" ? {} : { finished_at: sql`coalesce(finished_at, ends_at)` }) })
+    .where("id", "=", id)
+    .execute();
+  await recordEvents(trx, [{ entity, entity_id: id, kind: "state", from_state: from, to_state: "complete", actor_id: null, reason, data }]);
+}
+
+/** Locks a booking's units that are still in one of `states`. */
+function lockUnitsIn(trx: Trx, column: "build_id" | "furnace_run_id", id: string, states: UnitState[]) {
+  return trx.selectFrom("units").select(["id", "state"]).where(column, "=", id).where("state", "in", states).forUpdate().execute();
 }
 
 function sourceData(source: AdvanceSource): Record<string, unknown> {
@@ -181,13 +198,7 @@ async function advanceBuild(trx: Trx, boss: PgBoss, id: string, source: AdvanceS
     return { status: "advanced", entity: "build", id, code: build.code, transitions: 0, messages };
   }
 
-  const units = await trx
-    .selectFrom("units")
-    .select(["id", "state"])
-    .where("build_id", "=", id)
-    .where("state", "in", ["planned", "printing"])
-    .forUpdate()
-    .execute();
+  const units = await lockUnitsIn(trx, "build_id", id, ["planned", "printing"]);
   const data = { build_id: id, ...sourceData(source) };
   const failNote = build.failure_reason?.trim() || `build ${build.code} marked failed`;
   const reason = build.failed
@@ -203,12 +214,7 @@ async function advanceBuild(trx: Trx, boss: PgBoss, id: string, source: AdvanceS
     reason,
     data,
   );
-  await trx
-    .updateTable("builds")
-    .set({ state: "complete", finished_at: sql`coalesce(finished_at, ends_at)`, version: sql`version + 1`, updated_at: sql`now()` })
-    .where("id", "=", id)
-    .execute();
-  await bookingEvent(trx, "build", id, build.state, "complete", reason, { ...data, units: transitions, failed: build.failed });
+  await completeBooking(trx, "build", id, build.state, reason, { ...data, units: transitions, failed: build.failed });
   const messages = await notifyBuild(trx, boss, build, id);
   return { status: "advanced", entity: "build", id, code: build.code, transitions, messages };
 }
@@ -269,12 +275,7 @@ async function advanceWashBatch(trx: Trx, boss: PgBoss, id: string, source: Adva
     const skip = checkOpenBooking(batch, source);
     if (skip) return { status: "skipped", entity: "wash_batch", id, reason: skip };
     const reason = `Wash batch ${batch.code} reached its scheduled end`;
-    await trx
-      .updateTable("wash_batches")
-      .set({ state: "complete", finished_at: sql`coalesce(finished_at, ends_at)`, version: sql`version + 1`, updated_at: sql`now()` })
-      .where("id", "=", id)
-      .execute();
-    await bookingEvent(trx, "wash_batch", id, batch.state, "complete", reason, data);
+    await completeBooking(trx, "wash_batch", id, batch.state, reason, data);
     transitions++;
     if (!batch.dried && batch.dried_at) {
       // The parts dry before they are weighed; a second job comes back for them then.
@@ -389,21 +390,10 @@ async function advanceFurnaceRun(trx: Trx, boss: PgBoss, id: string, source: Adv
   if (run.state === "scheduled" || run.state === "running") {
     const skip = checkOpenBooking(run, source);
     if (skip) return { status: "skipped", entity: "furnace_run", id, reason: skip };
-    const units = await trx
-      .selectFrom("units")
-      .select(["id", "state"])
-      .where("furnace_run_id", "=", id)
-      .where("state", "in", ["brown", "sintering"])
-      .forUpdate()
-      .execute();
+    const units = await lockUnitsIn(trx, "furnace_run_id", id, ["brown", "sintering"]);
     const reason = `Furnace run ${run.code} reached the end of its cycle (cool-down included)`;
     transitions += await applyUnitChanges(trx, units.map((u) => ({ id: u.id, from_state: u.state, to_state: "sintered" as const })), reason, data);
-    await trx
-      .updateTable("furnace_runs")
-      .set({ state: "complete", version: sql`version + 1`, updated_at: sql`now()` })
-      .where("id", "=", id)
-      .execute();
-    await bookingEvent(trx, "furnace_run", id, run.state, "complete", reason, { ...data, units: transitions });
+    await completeBooking(trx, "furnace_run", id, run.state, reason, { ...data, units: transitions });
     transitions++;
     completedNow = true;
   } else if (run.state === "complete") {
@@ -413,13 +403,7 @@ async function advanceFurnaceRun(trx: Trx, boss: PgBoss, id: string, source: Adv
   }
 
   // Sintered units (just now, or unloaded by hand) move on to the machinists.
-  const sintered = await trx
-    .selectFrom("units")
-    .select(["id", "state"])
-    .where("furnace_run_id", "=", id)
-    .where("state", "=", "sintered")
-    .forUpdate()
-    .execute();
+  const sintered = await lockUnitsIn(trx, "furnace_run_id", id, ["sintered"]);
   const promoted = await applyUnitChanges(
     trx,
     sintered.map((u) => ({ id: u.id, from_state: u.state, to_state: "ready_for_finishing" as const })),
