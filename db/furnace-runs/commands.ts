@@ -6,15 +6,18 @@ import { checkFurnaceAdd, currentLayout, emptyLayout, layoutWithout, packFurnace
 import type { BookingState } from "@/lib/batches/types";
 import type { TrayRun } from "@/lib/packing/types";
 import { cycleMinutesFor, listBoardUnits, type Db, type ShopContext } from "@/db/batches/reads";
-import { lockRowOrThrow, recordEvents, type EventRow } from "@/db/versioned";
-import { assertVersion, checkBookingStart, lockUnit } from "@/db/wash-batches/commands";
+import { lockRowOrThrow, recordEvents, requireVersion, type EventRow } from "@/db/versioned";
+import { checkBookingStart, lockUnit } from "@/db/wash-batches/commands";
 import { refuse, getRun, profileOf, furnaceOf } from "./reads";
 
 type Trx = Transaction<DB>;
 const MIN = 60_000;
 
-export async function lockFurnaceRun(trx: Trx, id: string) {
-  return lockRowOrThrow(trx, "furnace_runs", id, "That furnace run does not exist.");
+/** Locks a furnace run; given the version the person saw, a run that has moved on is a 409. */
+export async function lockFurnaceRun(trx: Trx, id: string, version?: number) {
+  const row = await lockRowOrThrow(trx, "furnace_runs", id, "That furnace run does not exist.");
+  requireVersion(`Furnace run ${row.code}`, row.version, version);
+  return row;
 }
 
 async function bumpRun(
@@ -77,8 +80,7 @@ export async function addUnitToRun(
   input: { runId: string; version: number; unitId: string; unitVersion: number },
   actorId: string,
 ) {
-  const row = await lockFurnaceRun(trx, input.runId);
-  assertVersion("Furnace run", row.code, row.version, input.version);
+  const row = await lockFurnaceRun(trx, input.runId, input.version);
   const unitRow = await lockUnit(trx, input.unitId, input.unitVersion);
   const furnace = await furnaceOf(trx, ctx, row.furnace_id);
   await profileOf(trx, ctx, row.profile_id);
@@ -106,8 +108,7 @@ export async function removeUnitFromRun(
   input: { runId: string; version: number; unitId: string; unitVersion?: number },
   actorId: string,
 ) {
-  const row = await lockFurnaceRun(trx, input.runId);
-  assertVersion("Furnace run", row.code, row.version, input.version);
+  const row = await lockFurnaceRun(trx, input.runId, input.version);
   if (!["draft", "scheduled"].includes(row.state)) throw refuse("state", `Run ${row.code} is ${row.state}; units can only leave a draft or scheduled run.`);
   const unitRow = await lockUnit(trx, input.unitId, input.unitVersion);
   if (unitRow.furnace_run_id !== row.id) throw new AppError("conflict", `Unit ${unitRow.serial} is no longer in ${row.code}; reload to see where it went.`);
@@ -128,8 +129,7 @@ export async function scheduleRun(
   input: { runId: string; version: number; starts_at: string; furnace_id?: string; ends_at?: string },
   actorId: string,
 ) {
-  const row = await lockFurnaceRun(trx, input.runId);
-  assertVersion("Furnace run", row.code, row.version, input.version);
+  const row = await lockFurnaceRun(trx, input.runId, input.version);
   if (!["draft", "scheduled"].includes(row.state)) throw refuse("state", `Run ${row.code} is ${row.state}; only a draft or scheduled run can be moved.`, "starts_at");
   const furnace = await furnaceOf(trx, ctx, input.furnace_id ?? row.furnace_id);
   const profile = await profileOf(trx, ctx, row.profile_id);
@@ -158,8 +158,7 @@ export async function scheduleRun(
 }
 
 export async function startRun(trx: Trx, ctx: ShopContext, input: { runId: string; version: number; checklist: Record<string, boolean> }, actorId: string) {
-  const row = await lockFurnaceRun(trx, input.runId);
-  assertVersion("Furnace run", row.code, row.version, input.version);
+  const row = await lockFurnaceRun(trx, input.runId, input.version);
   if (!["draft", "scheduled"].includes(row.state)) throw refuse("state", `Run ${row.code} is ${row.state}; it cannot start again.`, "state");
   const furnace = await furnaceOf(trx, ctx, row.furnace_id);
   const profile = await profileOf(trx, ctx, row.profile_id);
@@ -201,8 +200,7 @@ export async function unloadRun(
   input: { runId: string; version: number; outcomes: { unit_id: string; outcome: "sintered" | "scrapped"; scrap_reason?: string; scrap_note?: string }[] },
   actorId: string,
 ) {
-  const row = await lockFurnaceRun(trx, input.runId);
-  assertVersion("Furnace run", row.code, row.version, input.version);
+  const row = await lockFurnaceRun(trx, input.runId, input.version);
   if (row.unloaded_at) throw refuse("state", `Run ${row.code} was unloaded already.`, "state");
   if (!(row.state === "complete" || row.state === "running")) throw refuse("state", `Run ${row.code} is ${row.state}; only a run that has been in the furnace can be unloaded.`, "state");
   const now = ctx.now;
@@ -246,8 +244,7 @@ export async function unloadRun(
 }
 
 export async function cancelRun(trx: Trx, ctx: ShopContext, input: { runId: string; version: number; reason: string }, actorId: string) {
-  const row = await lockFurnaceRun(trx, input.runId);
-  assertVersion("Furnace run", row.code, row.version, input.version);
+  const row = await lockFurnaceRun(trx, input.runId, input.version);
   if (!["draft", "scheduled"].includes(row.state)) throw refuse("state", `Run ${row.code} is ${row.state}; only a draft or scheduled run can be cancelled.`, "state");
   await trx.updateTable("units").set({ furnace_run_id: null, version: sql<number>`version + 1`, updated_at: new Date() }).where("furnace_run_id", "=", row.id).execute();
   await trx.updateTable("furnace_runs").set({ state: "cancelled", version: row.version + 1, updated_at: new Date() }).where("id", "=", row.id).execute();

@@ -15,11 +15,12 @@ const MIN = 60_000;
 // A booking made a moment ago is not "in the past" because the request took a while.
 const PAST_SLACK_MS = 2 * MIN;
 
-export async function lockWashBatch(trx: Trx, id: string) {
-  return lockRowOrThrow(trx, "wash_batches", id, "That wash batch does not exist.");
+/** Locks a wash batch; given the version the person saw, a batch that has moved on is a 409. */
+export async function lockWashBatch(trx: Trx, id: string, version?: number) {
+  const row = await lockRowOrThrow(trx, "wash_batches", id, "That wash batch does not exist.");
+  requireVersion(`Wash batch ${row.code}`, row.version, version);
+  return row;
 }
-
-export const assertVersion = (kind: string, code: string, current: number, given: number) => requireVersion(`${kind} ${code}`, current, given);
 
 export async function lockUnit(trx: Trx, id: string, version?: number) {
   const row = await trx.selectFrom("units").select(["id", "serial", "state", "version", "wash_batch_id", "furnace_run_id"]).where("id", "=", id).forUpdate().executeTakeFirst();
@@ -119,8 +120,7 @@ export async function addUnitToWash(
   input: { batchId: string; version: number; unitId: string; unitVersion: number },
   actorId: string,
 ) {
-  const row = await lockWashBatch(trx, input.batchId);
-  assertVersion("Wash batch", row.code, row.version, input.version);
+  const row = await lockWashBatch(trx, input.batchId, input.version);
   const unitRow = await lockUnit(trx, input.unitId, input.unitVersion);
   const station = ctx.stations.find((s) => s.id === row.wash_station_id);
   if (!station) throw refuse("station", `Wash batch ${row.code} has no wash station in use.`);
@@ -141,8 +141,7 @@ export async function removeUnitFromWash(
   input: { batchId: string; version: number; unitId: string; unitVersion?: number },
   actorId: string,
 ) {
-  const row = await lockWashBatch(trx, input.batchId);
-  assertVersion("Wash batch", row.code, row.version, input.version);
+  const row = await lockWashBatch(trx, input.batchId, input.version);
   if (!["draft", "scheduled"].includes(row.state)) throw refuse("state", `Wash batch ${row.code} is ${row.state}; units can only leave a draft or scheduled batch.`);
   const unitRow = await lockUnit(trx, input.unitId, input.unitVersion);
   if (unitRow.wash_batch_id !== row.id) throw new AppError("conflict", `Unit ${unitRow.serial} is no longer in ${row.code}; reload to see where it went.`);
@@ -159,8 +158,7 @@ export async function scheduleWash(
   input: { batchId: string; version: number; starts_at: string; wash_station_id?: string },
   actorId: string,
 ) {
-  const row = await lockWashBatch(trx, input.batchId);
-  assertVersion("Wash batch", row.code, row.version, input.version);
+  const row = await lockWashBatch(trx, input.batchId, input.version);
   if (!["draft", "scheduled"].includes(row.state)) throw refuse("state", `Wash batch ${row.code} is ${row.state}; only a draft or scheduled batch can be moved.`, "starts_at");
   const stationId = input.wash_station_id ?? row.wash_station_id;
   const station = ctx.stations.find((s) => s.id === stationId);
@@ -189,8 +187,7 @@ export async function scheduleWash(
 }
 
 export async function startWash(trx: Trx, ctx: ShopContext, input: { batchId: string; version: number }, actorId: string) {
-  const row = await lockWashBatch(trx, input.batchId);
-  assertVersion("Wash batch", row.code, row.version, input.version);
+  const row = await lockWashBatch(trx, input.batchId, input.version);
   if (!["draft", "scheduled"].includes(row.state)) throw refuse("state", `Wash batch ${row.code} is ${row.state}; it cannot start again.`, "state");
   const units = await listBoardUnits(trx, ctx, { kind: "wash_batch", ids: [row.id] });
   if (units.length === 0) throw refuse("empty", `${row.code} is empty.`, "state");
@@ -249,8 +246,7 @@ export async function recordWashMasses(
   input: { batchId: string; version: number; masses: { unit_id: string; green_mass_g?: number; brown_mass_g?: number }[] },
   actorId: string,
 ) {
-  const row = await lockWashBatch(trx, input.batchId);
-  assertVersion("Wash batch", row.code, row.version, input.version);
+  const row = await lockWashBatch(trx, input.batchId, input.version);
   if (row.state === "cancelled") throw refuse("state", `Wash batch ${row.code} is cancelled.`, "masses");
   const units = await listBoardUnits(trx, ctx, { kind: "wash_batch", ids: [row.id] });
   massErrors(units, input.masses);
@@ -271,8 +267,7 @@ export async function finishWash(
   input: { batchId: string; version: number; masses: { unit_id: string; green_mass_g?: number; brown_mass_g?: number }[] },
   actorId: string,
 ) {
-  const row = await lockWashBatch(trx, input.batchId);
-  assertVersion("Wash batch", row.code, row.version, input.version);
+  const row = await lockWashBatch(trx, input.batchId, input.version);
   if (row.state !== "running") throw refuse("state", `Wash batch ${row.code} is ${row.state}; only a running wash can be finished.`, "state");
   let units = await listBoardUnits(trx, ctx, { kind: "wash_batch", ids: [row.id] });
   massErrors(units, input.masses);
@@ -324,8 +319,7 @@ export async function finishWash(
 }
 
 export async function cancelWash(trx: Trx, ctx: ShopContext, input: { batchId: string; version: number; reason: string }, actorId: string) {
-  const row = await lockWashBatch(trx, input.batchId);
-  assertVersion("Wash batch", row.code, row.version, input.version);
+  const row = await lockWashBatch(trx, input.batchId, input.version);
   if (!["draft", "scheduled"].includes(row.state)) throw refuse("state", `Wash batch ${row.code} is ${row.state}; only a draft or scheduled batch can be cancelled.`, "state");
   await trx.updateTable("units").set({ wash_batch_id: null, version: sql<number>`version + 1`, updated_at: new Date() }).where("wash_batch_id", "=", row.id).execute();
   await trx.updateTable("wash_batches").set({ state: "cancelled", version: row.version + 1, updated_at: new Date() }).where("id", "=", row.id).execute();
