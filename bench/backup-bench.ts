@@ -11,10 +11,10 @@ import { PutObjectCommand, S3Client } from "@aws-sdk/client-s3";
 import pg from "pg";
 import S3rver from "s3rver";
 
-process.env.HEARTH_BENCH_FLOOR_DB ??= "hearth_bench_backup";
-const { freshDatabase, seedFloor } = await import("./floor-bench");
-const { createDb } = await import("@/db/client");
-const { migrateToLatest } = await import("@/db/migrate");
+import { seedFloor } from "./floor-bench";
+import { freshDatabase } from "./setup";
+import { createDb } from "@/db/client";
+import { migrateToLatest } from "@/db/migrate";
 
 const s3Port = Number(process.env.S3_PORT ?? 4569);
 const nObjects = Number(process.env.HEARTH_BENCH_BACKUP_OBJECTS ?? 20);
@@ -35,7 +35,7 @@ async function timed(script: string, args: string[], env: Record<string, string>
   return Math.round(performance.now() - t);
 }
 
-const source = await freshDatabase();
+const source = await freshDatabase(process.env.HEARTH_BENCH_FLOOR_DB ?? "hearth_bench_backup");
 const { db } = createDb(source.url, 4);
 await migrateToLatest(db);
 const seeded = await seedFloor(db);

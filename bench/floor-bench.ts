@@ -13,15 +13,15 @@ import fs from "node:fs";
 import os from "node:os";
 import { createRequire } from "node:module";
 import path from "node:path";
-import { spawnSync } from "node:child_process";
-import pg from "pg";
 import { sql } from "kysely";
 import { createDb, type Database } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
 import { seedDemoShop } from "@/db/seed";
-import { bin, startApp, stopProcs, waitFor, type Proc } from "../scripts/stack";
+import { startApp, stopProcs, waitFor, type Proc } from "../scripts/stack";
 import { launchChromium } from "../scripts/chromium";
 import type { BenchRow, BenchSection } from "./types";
+import { ensureBuild, freshDatabase } from "./setup";
+import { pct, r1 } from "./stats";
 import { mulberry32 } from "@/lib/random";
 import { FLOOR_DATA_MARK, floorUrl, openingWeek } from "@/components/floor/opening-week";
 
@@ -45,31 +45,6 @@ const autocannon = createRequire(import.meta.url)("autocannon") as Autocannon;
 
 const rng = mulberry32;
 
-const pct = (xs: number[], p: number) => {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[Math.min(s.length - 1, Math.max(0, Math.ceil((p / 100) * s.length) - 1))];
-};
-const r1 = (x: number) => Math.round(x * 10) / 10;
-
-export async function freshDatabase(dbName = DB_NAME): Promise<{ url: string; drop: () => Promise<void> }> {
-  const base = new URL(process.env.DATABASE_URL ?? "postgres://postgres@127.0.0.1:54329/hearth");
-  const admin = new URL(base);
-  admin.pathname = "/postgres";
-  const run = async (q: string) => {
-    const c = new pg.Client({ connectionString: admin.toString() });
-    await c.connect();
-    try {
-      await c.query(q);
-    } finally {
-      await c.end();
-    }
-  };
-  await run(`drop database if exists "${dbName}" with (force)`);
-  await run(`create database "${dbName}"`);
-  const url = new URL(base);
-  url.pathname = `/${dbName}`;
-  return { url: url.toString(), drop: () => run(`drop database if exists "${dbName}" with (force)`) };
-}
 
 /** The floor's week around an instant: Sunday to Sunday in the shop's zone, as its week view shows it. */
 const weekAround = (t: number, timeZone: string) => openingWeek(timeZone, new Date(t));
@@ -134,18 +109,6 @@ export async function seedFloor(db: Database, nBuilds = N_BUILDS): Promise<{ fro
   await sql`analyze`.execute(db);
   const total = await sql<{ n: number }>`select count(*)::int as n from builds`.execute(db);
   return { from, timeZone, printers: lanes.length, builds: total.rows[0].n };
-}
-
-export function ensureBuild(): string {
-  const given = process.env.HEARTH_BENCH_NEXT_DIR;
-  if (given && fs.existsSync(path.join(given, "BUILD_ID"))) return given;
-  const dir = ".next-bench";
-  if (!fs.existsSync(path.join(dir, "BUILD_ID")) || process.env.HEARTH_BENCH_REBUILD) {
-    console.log(`[floor] building the app into ${dir} (once)`);
-    const r = spawnSync(bin("next"), ["build"], { env: { ...process.env, NEXT_DIST_DIR: dir, NODE_ENV: "production" }, stdio: ["ignore", "ignore", "inherit"] });
-    if (r.status !== 0) throw new Error("next build failed");
-  }
-  return dir;
 }
 
 async function signIn(base: string): Promise<string> {
@@ -215,7 +178,7 @@ export const section: BenchSection = {
   name: "floor",
   run: async () => {
     const rows: BenchRow[] = [];
-    const { url, drop } = await freshDatabase();
+    const { url, drop } = await freshDatabase(DB_NAME);
     const { db } = createDb(url, 4);
     let procs: Proc[] = [];
     try {

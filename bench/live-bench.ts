@@ -19,7 +19,9 @@ import { migrateToLatest } from "@/db/migrate";
 import { startApp, stopProcs, waitFor, type Proc } from "../scripts/stack";
 import { changesOf, openEventStream, type EventStream, type StreamEvent } from "../tests/helpers/event-stream";
 import { queryHears } from "@/components/live/query-map";
-import { freshDatabase, seedFloor, ensureBuild } from "./floor-bench";
+import { seedFloor } from "./floor-bench";
+import { ensureBuild, freshDatabase } from "./setup";
+import { pct, r1 } from "./stats";
 import type { BenchRow, BenchSection } from "./types";
 
 const PORT = Number(process.env.HEARTH_BENCH_LIVE_PORT ?? 3158);
@@ -31,12 +33,6 @@ const MEMORY_STREAMS = 500;
 const RAMP_S = 10;
 const HOUR = 3_600_000;
 
-const pct = (xs: number[], p: number) => {
-  if (!xs.length) return NaN;
-  const s = [...xs].sort((a, b) => a - b);
-  return s[Math.min(s.length - 1, Math.max(0, Math.ceil((p / 100) * s.length) - 1))];
-};
-const r1 = (x: number) => Math.round(x * 10) / 10;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 /** Request timings per endpoint (path without its query and ids). */

@@ -17,6 +17,7 @@ import { toInstanceRuns, verifyPlan, verifyRuns, type InstanceAssignment, type I
 import { planPrinters } from "@/lib/planning/printer-plan";
 import { furnaceMixInstance, printerPlanInstance, zeroWasteInstance } from "./generate-instances";
 import type { BenchRow, BenchSection } from "./types";
+import { median } from "./stats";
 import { section as workerSection } from "./worker-bench";
 import { section as floorSection } from "./floor-bench";
 import { section as batchesSection } from "./batches-bench";
@@ -25,7 +26,6 @@ import { section as liveSection } from "./live-bench";
 
 const round = (x: number, digits = 3) => Math.round(x * 10 ** digits) / 10 ** digits;
 const mean = (xs: number[]) => xs.reduce((s, x) => s + x, 0) / xs.length;
-const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
 /** Fastest wall time of `reps` calls (the machine is shared and noisy; the minimum is the least disturbed), with the last result. */
 function timed<T>(fn: () => T, reps = 3): { ms: number; value: T } {

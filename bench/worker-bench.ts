@@ -5,38 +5,16 @@
 // two. Measured: seconds from starting the workers to the last transition committed (target
 // ≤ 60 s with one worker), transitions per second, seconds until every message was delivered,
 // and duplicates of any kind with two workers (target 0).
-import pg from "pg";
 import { sql } from "kysely";
 import { createDb, type Database } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
 import { insertDueBuilds, seedShop, sendJobs, startCapture, startSender, startWorker, waitUntil, type Capture } from "../tests/worker/harness";
 import type { BenchRow, BenchSection } from "./types";
+import { freshDatabase } from "./setup";
+import { r1 } from "./stats";
 
 const N = Number(process.env.HEARTH_BENCH_WORKER_N ?? 1000);
 const UNITS_PER_BUILD = 2;
-
-function baseUrl(): URL {
-  return new URL(process.env.DATABASE_URL ?? "postgres://postgres@127.0.0.1:54329/hearth");
-}
-
-async function freshDatabase(name: string): Promise<{ url: string; drop: () => Promise<void> }> {
-  const admin = baseUrl();
-  admin.pathname = "/postgres";
-  const run = async (q: string) => {
-    const c = new pg.Client({ connectionString: admin.toString() });
-    await c.connect();
-    try {
-      await c.query(q);
-    } finally {
-      await c.end();
-    }
-  };
-  await run(`drop database if exists "${name}" with (force)`);
-  await run(`create database "${name}"`);
-  const url = baseUrl();
-  url.pathname = `/${name}`;
-  return { url: url.toString(), drop: () => run(`drop database if exists "${name}" with (force)`) };
-}
 
 type Outcome = {
   workers: number;
@@ -106,8 +84,6 @@ async function scenario(workers: number, capture: Capture): Promise<Outcome> {
     await drop();
   }
 }
-
-const r1 = (x: number) => Math.round(x * 10) / 10;
 
 export const section: BenchSection = {
   name: "worker",
