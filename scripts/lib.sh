@@ -192,3 +192,26 @@ next_build() {
   rm -f "$saved"
   return $rc
 }
+
+# What npm start and npm run start:cluster do before they start their processes: the database
+# (own cluster unless DATABASE_URL is given), the session secret, the ports, the schema and the
+# demo data in an empty database, then the production build (unless HEARTH_SKIP_BUILD).
+prepare_production() {
+  if [ -z "${DATABASE_URL:-}" ]; then
+    ensure_postgres
+    ensure_database "${HEARTH_DB_NAME:-hearth}"
+  else
+    log "using DATABASE_URL from the environment"
+  fi
+  ensure_session_secret
+  stack_env 0
+  export NODE_ENV=production
+
+  log "migrating"
+  node_modules/.bin/tsx db/migrate-cli.ts
+  node_modules/.bin/tsx db/seed-cli.ts --if-empty
+  if [ -z "${HEARTH_SKIP_BUILD:-}" ]; then
+    log "building the app (next build)"
+    next_build "$DATA_DIR/build.log" || { tail -40 "$DATA_DIR/build.log"; exit 1; }
+  fi
+}
