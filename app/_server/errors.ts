@@ -5,6 +5,7 @@ import { logger } from "@/adapters/log/logger";
 import { currentRequest } from "./request-context";
 import { appErrorFromDatabase } from "@/lib/db-errors";
 import { getEnv } from "@/lib/env";
+import { readCappedBody } from "./capped-body";
 import { checkJsonShape, isJsonContentType } from "@/lib/http/json-body";
 
 // Seconds a client (or a load balancer) is asked to wait before trying again after a 503.
@@ -75,26 +76,10 @@ function mapError(err: unknown, requestId: string | undefined): Mapped {
   return { status: 500, error: { code: "internal", message: "Something went wrong on our side; nothing was changed." } };
 }
 
-/** Reads the body's bytes, refusing more than `max` before reading the rest (413). */
+/** Reads the body as text, refusing more than `max` bytes before reading the rest (413). */
 async function readCapped(req: Request, max: number): Promise<string> {
   const tooLarge = () => new AppError("payload_too_large", `The request body is larger than ${max} bytes.`, undefined, { max_bytes: max });
-  const declared = Number(req.headers.get("content-length"));
-  if (Number.isFinite(declared) && declared > max) throw tooLarge();
-  if (!req.body) return "";
-  const reader = req.body.getReader();
-  const chunks: Uint8Array[] = [];
-  let size = 0;
-  for (;;) {
-    const { done, value } = await reader.read();
-    if (done) break;
-    size += value.byteLength;
-    if (size > max) {
-      await reader.cancel().catch(() => undefined);
-      throw tooLarge();
-    }
-    chunks.push(value);
-  }
-  return new TextDecoder().decode(Buffer.concat(chunks));
+  return new TextDecoder().decode(await readCappedBody(req, max, tooLarge));
 }
 
 /**
