@@ -11,6 +11,7 @@ import { ApiError, getJson, sendJson } from "./client";
 import { duration, shopTime } from "./format";
 import { GaugeBar } from "./gauge";
 import { QueryProvider } from "@/components/floor/query-provider";
+import { Fact } from "@/components/ui/fact";
 import { useLivePoll } from "@/components/live/live-updates";
 
 type MassResult = { unit_id: string; serial: string; green_mass_g: number | null; brown_mass_g: number | null; loss_fraction: number | null; min_mass_loss: number; passed: boolean | null };
@@ -203,18 +204,6 @@ function WashViewInner({ batchId, role, timeZone }: WashViewProps) {
           ) : null}
         </div>
       </section>
-    </div>
-  );
-}
-
-function Fact({ label, value, note, testId }: { label: string; value: string; note?: string; testId?: string }) {
-  return (
-    <div className="rounded-card border border-soot-200 bg-white px-3 py-2 shadow-card">
-      <div className="text-2xs text-soot-500">{label}</div>
-      <div className="font-display text-base font-semibold text-soot-900" data-testid={testId}>
-        {value}
-      </div>
-      {note ? <div className="text-2xs text-soot-500">{note}</div> : null}
     </div>
   );
 }

@@ -14,6 +14,7 @@ import { ApiError, getJson, sendJson } from "@/components/batches/client";
 import { duration, massText, shopTime } from "@/components/batches/format";
 import { GaugeBar } from "@/components/batches/gauge";
 import { QueryProvider } from "@/components/floor/query-provider";
+import { Fact } from "@/components/ui/fact";
 import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { ProfileChart } from "./profile-chart";
 import { TrayDrawing } from "./tray-drawing";
@@ -166,18 +167,6 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
       ) : running && canOperate ? (
         <p className="text-sm text-soot-600">The unload form opens when the cycle, cool-down included, is over ({shopTime(run.ends_at, tz)}).</p>
       ) : null}
-    </div>
-  );
-}
-
-function Fact({ label, value, note, testId }: { label: string; value: string; note?: string; testId?: string }) {
-  return (
-    <div className="rounded-card border border-soot-200 bg-white px-3 py-2 shadow-card">
-      <div className="text-2xs text-soot-500">{label}</div>
-      <div className="font-display text-base font-semibold text-soot-900" data-testid={testId}>
-        {value}
-      </div>
-      {note ? <div className="text-2xs text-soot-500">{note}</div> : null}
     </div>
   );
 }
