@@ -2,6 +2,7 @@
 
 import { useState } from "react";
 import { useRouter } from "next/navigation";
+import { FormError } from "@/components/ui/form-error";
 
 export type SetPasswordFormProps = { token: string; email: string; passwordMin: number };
 
@@ -53,9 +54,7 @@ export function SetPasswordForm({ token, email, passwordMin }: SetPasswordFormPr
         {fieldErrors.confirm ? <span className="mt-1 block text-xs text-oxide-700">{fieldErrors.confirm[0]}</span> : null}
       </label>
       {error && !fieldErrors.password && !fieldErrors.confirm ? (
-        <p role="alert" className="rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700">
-          {error}
-        </p>
+        <FormError>{error}</FormError>
       ) : null}
       <button type="submit" disabled={busy} className="w-full rounded-md bg-clay-600 px-4 py-2.5 text-sm font-semibold text-white hover:bg-clay-700 disabled:opacity-60">
         {busy ? "Saving…" : "Save password"}

@@ -8,6 +8,7 @@ import { plannedGreen, realizedPerAxis, runoutStockCheck, sizeDeviations, stockL
 import type { FinishingCard } from "@/lib/finishing/types";
 import { ApiError, sendJson } from "./api";
 import { ra, stockCheckText } from "./format";
+import { FormError } from "@/components/ui/form-error";
 
 // The inspection record, typed in the machinist's own units. The same schema as the API
 // checks it before it is sent; the stock check and the realized shrinkage show as you type.
@@ -240,7 +241,7 @@ export function InspectionForm({ unit, units, onSaved }: InspectionFormProps) {
         </label>
       </fieldset>
 
-      {serverError ? <p role="alert" className="rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700">{serverError}</p> : null}
+      {serverError ? <FormError>{serverError}</FormError> : null}
       <button type="submit" disabled={saving} className="rounded-md bg-clay-600 px-4 py-2 text-sm font-semibold text-white hover:bg-clay-700 disabled:opacity-50">
         {saving ? "Saving…" : "Save inspection"}
       </button>

@@ -4,6 +4,7 @@ import Papa from "papaparse";
 import { useState } from "react";
 import { CSV_COLUMNS, CSV_REQUIRED, type RowResult } from "@/lib/parts/schemas";
 import { ApiError, apiJson } from "@/components/floor/api";
+import { FormError } from "@/components/ui/form-error";
 
 type Outcome = { ok: boolean; imported_parts: number; created_orders: number; valid: number; invalid: number; results: RowResult[] };
 
@@ -87,7 +88,7 @@ export function CsvImport({ onImported }: CsvImportProps) {
       <p className="text-xs text-soot-500">
         One row per part; rows with the same order code make one order (a new one, or parts added to an existing one). Dates as YYYY-MM-DD, sizes in mm, the material by its code.
       </p>
-      {error ? <p role="alert" className="rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700" data-testid="csv-error">{error}</p> : null}
+      {error ? <FormError testId="csv-error">{error}</FormError> : null}
       {check ? (
         <div className={`rounded-md px-3 py-2 text-sm ${check.invalid ? "bg-brass-100 text-brass-600" : "bg-verdigris-100 text-verdigris-700"}`} data-testid="csv-summary">
           {check.valid} row{check.valid === 1 ? "" : "s"} ready, {check.invalid} with errors.

@@ -3,6 +3,7 @@
 import { useQuery } from "@tanstack/react-query";
 import { useEffect, useRef, useState } from "react";
 import { apiJson } from "@/components/floor/api";
+import { FormError } from "@/components/ui/form-error";
 
 type FileInfo = { id: string; filename: string; status: "queued" | "analysing" | "done" | "failed"; error: string | null; analysis: unknown };
 
@@ -123,7 +124,7 @@ export function GeometryUpload({ partId, uploadUrl, onFile, maxBytes, current, o
           )}
         </ol>
       ) : null}
-      {error ? <p role="alert" className="rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700" data-testid="upload-error">{error}</p> : null}
+      {error ? <FormError testId="upload-error">{error}</FormError> : null}
     </div>
   );
 }

@@ -7,6 +7,7 @@ import { useState } from "react";
 import { createOrderSchema } from "@/lib/parts/schemas";
 import { ApiError, apiJson } from "@/components/floor/api";
 import { Field, inputClass } from "./field";
+import { FormError } from "@/components/ui/form-error";
 
 type Input = z.input<typeof createOrderSchema>;
 type Output = z.output<typeof createOrderSchema>;
@@ -71,7 +72,7 @@ export function OrderForm({ order, canPrioritize, onSaved }: OrderFormProps) {
       <Field label="Notes" error={errors.notes} className="col-span-2">
         <textarea {...register("notes")} rows={2} className={inputClass} />
       </Field>
-      {formError ? <p role="alert" className="col-span-2 rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700">{formError}</p> : null}
+      {formError ? <FormError className="col-span-2">{formError}</FormError> : null}
       <div className="col-span-2 flex justify-end">
         <button type="submit" disabled={formState.isSubmitting} className="rounded-md bg-clay-600 px-4 py-2 text-sm font-semibold text-white hover:bg-clay-700 disabled:opacity-60">
           {order ? "Save order" : "Create order"}

@@ -9,6 +9,7 @@ import { stockAdvice } from "@/lib/process/stock";
 import { scaleUp } from "@/lib/process/scale-up";
 import { ApiError, apiJson } from "@/components/floor/api";
 import { Field, inputClass } from "./field";
+import { FormError } from "@/components/ui/form-error";
 
 type Input = z.input<typeof createPartSchema>;
 type Output = z.output<typeof createPartSchema>;
@@ -201,7 +202,7 @@ export function PartForm({ materials, orders, part, defaultOrderId, onSaved }: P
           <textarea {...register("finishing_notes")} rows={2} className={inputClass} />
         </Field>
       </div>
-      {formError ? <p role="alert" className="rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700">{formError}</p> : null}
+      {formError ? <FormError>{formError}</FormError> : null}
       <div className="flex justify-end">
         <button type="submit" disabled={formState.isSubmitting} className="rounded-md bg-clay-600 px-4 py-2 text-sm font-semibold text-white hover:bg-clay-700 disabled:opacity-60">
           {part ? "Save part" : "Create part"}

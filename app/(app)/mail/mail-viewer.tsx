@@ -3,6 +3,7 @@
 import { useMemo, useState } from "react";
 import { QueryClient, QueryClientProvider, useQuery } from "@tanstack/react-query";
 import { getJson } from "@/lib/http/client";
+import { Notice } from "@/components/ui/notice";
 
 type Message = { id: string; received_at: string; from: string; to: string[]; subject: string; text: string; html: string; message_id: string | null; attachments?: { filename: string; content_type: string; size: number }[] };
 type OutboxRow = {
@@ -94,11 +95,7 @@ function MailViewerInner() {
       </form>
 
       {mail.isPending ? <p className="text-sm text-soot-500">Loading the mail…</p> : null}
-      {mail.isError ? (
-        <p role="alert" className="rounded-card border border-oxide-500/40 bg-oxide-100 px-4 py-3 text-sm text-oxide-700">
-          Could not load the mail: {mail.error.message}
-        </p>
-      ) : null}
+      {mail.isError ? <Notice tone="danger">Could not load the mail: {mail.error.message}</Notice> : null}
       {mail.data?.capture_error ? (
         <p role="status" className="rounded-card border border-brass-400/50 bg-brass-100 px-4 py-3 text-sm text-brass-600">
           {mail.data.capture_error}

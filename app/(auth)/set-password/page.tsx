@@ -4,6 +4,7 @@ import { getDb } from "@/db/client";
 import { SetPasswordForm } from "@/components/auth/set-password-form";
 import { inspectToken } from "@/db/auth/accounts";
 import { PASSWORD_MIN } from "@/lib/auth/schemas";
+import { FormError } from "@/components/ui/form-error";
 
 export const metadata = { title: "Choose a password" };
 
@@ -22,9 +23,9 @@ export default async function SetPasswordPage({ searchParams }: { searchParams: 
     return (
       <>
         <h1 className="font-display text-xl font-semibold">Choose a password</h1>
-        <p role="alert" className="mt-4 rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700" data-testid="token-problem">
+        <FormError className="mt-4" testId="token-problem">
           {PROBLEMS[state.state]}
-        </p>
+        </FormError>
         <p className="mt-4 text-sm text-soot-600">
           {state.state === "inactive" ? null : (
             <>

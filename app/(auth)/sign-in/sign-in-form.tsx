@@ -2,6 +2,7 @@
 
 import { useState } from "react";
 import { safeNextPath } from "@/lib/http/safe-next";
+import { FormError } from "@/components/ui/form-error";
 
 export type SignInFormProps = { next: string; email?: string };
 
@@ -50,11 +51,7 @@ export function SignInForm({ next, email = "" }: SignInFormProps) {
         <input name="password" type="password" autoComplete="current-password" required className={input} aria-invalid={!!fieldErrors.password} />
         {fieldErrors.password ? <span className="mt-1 block text-xs text-oxide-700">{fieldErrors.password[0]}</span> : null}
       </label>
-      {error ? (
-        <p role="alert" className="rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700">
-          {error}
-        </p>
-      ) : null}
+      {error ? <FormError>{error}</FormError> : null}
       <button type="submit" disabled={busy} className="w-full rounded-md bg-clay-600 px-4 py-2.5 text-sm font-semibold text-white hover:bg-clay-700 disabled:opacity-60">
         {busy ? "Signing in…" : "Sign in"}
       </button>

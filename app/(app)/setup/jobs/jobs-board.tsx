@@ -3,6 +3,7 @@
 import { useState } from "react";
 import { QueryClient, QueryClientProvider, useQuery } from "@tanstack/react-query";
 import { getJson } from "@/lib/http/client";
+import { Notice } from "@/components/ui/notice";
 import { Bar, BarChart, CartesianGrid, Legend, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
 
 type QueueStat = { queue: string; waiting: number; scheduled: number; active: number; failed: number; oldest_waiting_s: number | null };
@@ -63,7 +64,7 @@ function JobsBoardInner() {
   });
 
   if (jobs.isPending) return <p className="text-sm text-soot-500">Loading the queues…</p>;
-  if (jobs.isError) return <p role="alert" className="rounded-card border border-oxide-500/40 bg-oxide-100 px-4 py-3 text-sm text-oxide-700">Could not load the queues: {jobs.error.message}</p>;
+  if (jobs.isError) return <Notice tone="danger">Could not load the queues: {jobs.error.message}</Notice>;
   const { queues, failed, last_sweep, sweeps, installed } = jobs.data;
   // Ages are reckoned from when the data arrived; it refreshes every ten seconds.
   const now = jobs.dataUpdatedAt;
