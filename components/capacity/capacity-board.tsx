@@ -12,6 +12,7 @@ import { QueryProvider } from "@/components/floor/query-provider";
 import { RiskBadge } from "@/components/finishing/state-badge";
 import { QueueChart, ThroughputChart, UtilizationChart, UtilizationTable, WipChart } from "./charts";
 import { CalendarFeeds } from "./calendar-feeds";
+import { ScrollRegion } from "@/components/ui/scroll-region";
 
 export type CapacityBoardProps = { initialRange: { from: string; to: string }; today: string };
 
@@ -130,7 +131,7 @@ function Inner({ initialRange, today }: CapacityBoardProps) {
             actions={<><span className="text-xs text-soot-500">{onTime} open orders on time · at risk means less than {Math.round(v.at_risk_margin_minutes / 60)} h to spare</span><CsvLink range={range} table="orders" /></>}
           >
             {late.length ? (
-              <div className="overflow-x-auto" role="region" aria-label="Late and at-risk orders" tabIndex={0}>
+              <ScrollRegion label="Late and at-risk orders">
                 <table className="tabular w-full text-sm">
                   <thead className="text-left text-2xs uppercase tracking-wide text-soot-500">
                     <tr>
@@ -167,7 +168,7 @@ function Inner({ initialRange, today }: CapacityBoardProps) {
                     ))}
                   </tbody>
                 </table>
-              </div>
+              </ScrollRegion>
             ) : (
               <p className="text-sm text-verdigris-700">Every open order is projected to finish with more than the margin to spare.</p>
             )}

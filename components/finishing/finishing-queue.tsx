@@ -11,6 +11,7 @@ import { formatWhen, ra, relative, stateLabel, stockLen } from "./format";
 import { QueryProvider } from "@/components/floor/query-provider";
 import { StateBadge } from "./state-badge";
 import { ToleranceText, UnitFacts } from "./unit-facts";
+import { ScrollRegion } from "@/components/ui/scroll-region";
 
 export type FinishingQueueProps = { canWrite: boolean; units: UnitSystem; timeZone: string };
 
@@ -111,7 +112,7 @@ const Empty = ({ children }: { children: React.ReactNode }) => <p className="rou
 
 function ArrivingTable({ cards, units, timeZone, now }: { cards: FinishingCard[]; units: UnitSystem; timeZone: string; now: string }) {
   return (
-    <div className="overflow-x-auto rounded-card border border-soot-200 bg-white" role="region" aria-label="Finishing queue" tabIndex={0}>
+    <ScrollRegion label="Finishing queue" className="rounded-card border border-soot-200 bg-white">
       <table className="tabular w-full text-sm">
         <thead className="bg-soot-50 text-left text-2xs uppercase tracking-wide text-soot-500">
           <tr>
@@ -166,7 +167,7 @@ function ArrivingTable({ cards, units, timeZone, now }: { cards: FinishingCard[]
           })}
         </tbody>
       </table>
-    </div>
+    </ScrollRegion>
   );
 }
 

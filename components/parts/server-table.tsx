@@ -4,6 +4,7 @@ import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type RowSel
 import { keepPreviousData, useQuery } from "@tanstack/react-query";
 import { useEffect, useMemo, useState } from "react";
 import { apiJson } from "@/components/floor/api";
+import { ScrollRegion } from "@/components/ui/scroll-region";
 
 export type ServerTableProps<Row> = {
   /** API path without the query string, e.g. /api/parts */
@@ -119,7 +120,7 @@ export function ServerTable<Row>({ path, queryKey, columns, filters = {}, defaul
           {total} {total === 1 ? "row" : "rows"}
         </span>
       </div>
-      <div className="overflow-x-auto" role="region" aria-label={caption} tabIndex={0}>
+      <ScrollRegion label={caption}>
         <table className="w-full text-left text-sm">
           <caption className="sr-only">{caption}</caption>
           <thead className="bg-soot-50 text-xs text-soot-500">
@@ -158,7 +159,7 @@ export function ServerTable<Row>({ path, queryKey, columns, filters = {}, defaul
             ) : null}
           </tbody>
         </table>
-      </div>
+      </ScrollRegion>
       {query.isError ? <p role="alert" className="px-3 py-2 text-sm text-oxide-700">{(query.error as Error).message}</p> : null}
       <div className="flex items-center justify-between gap-2 border-t border-soot-100 px-3 py-2 text-sm">
         <span className="text-soot-500">

@@ -5,6 +5,7 @@ import { QueryClient, QueryClientProvider, useQuery, useQueryClient } from "@tan
 import { getJson } from "@/lib/http/client";
 import { ROLES, ROLE_LABELS, type Role } from "@/lib/auth/permissions";
 import { initialActionState, type ActionState } from "@/lib/auth/action-state";
+import { ScrollRegion } from "@/components/ui/scroll-region";
 
 export type UserAction = (prev: ActionState, form: FormData) => Promise<ActionState>;
 
@@ -88,7 +89,7 @@ function UsersAdminInner({ currentUserId, actions }: UsersAdminProps) {
 
       {showNew ? <NewUserForm action={actions.createUser} onDone={(s) => { done(s); if (s.ok) setShowNew(false); }} /> : null}
 
-      <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Users" tabIndex={0}>
+      <ScrollRegion label="Users" className="rounded-card border border-soot-200 bg-white shadow-card">
         <table className="min-w-full text-sm">
           <thead className="border-b border-soot-200 bg-soot-50 text-left text-xs uppercase tracking-wide text-soot-500">
             <tr>
@@ -119,7 +120,7 @@ function UsersAdminInner({ currentUserId, actions }: UsersAdminProps) {
             )}
           </tbody>
         </table>
-      </div>
+      </ScrollRegion>
       <p className="text-xs text-soot-500">
         Invitations and reset links work once; an invitation for 48 hours, a reset link for 1 hour. A role change or a deactivation takes effect on the person&apos;s next click.
       </p>

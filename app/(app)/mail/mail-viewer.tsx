@@ -4,6 +4,7 @@ import { useMemo, useState } from "react";
 import { QueryClient, QueryClientProvider, useQuery } from "@tanstack/react-query";
 import { getJson } from "@/lib/http/client";
 import { Notice } from "@/components/ui/notice";
+import { ScrollRegion } from "@/components/ui/scroll-region";
 
 type Message = { id: string; received_at: string; from: string; to: string[]; subject: string; text: string; html: string; message_id: string | null; attachments?: { filename: string; content_type: string; size: number }[] };
 type OutboxRow = {
@@ -174,7 +175,7 @@ function MailViewerInner() {
       {mail.data && mail.data.outbox_recent.length ? (
         <section className="space-y-2">
           <h2 className="font-display text-lg font-semibold text-soot-900">Outbox</h2>
-          <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Outbox" tabIndex={0}>
+          <ScrollRegion label="Outbox" className="rounded-card border border-soot-200 bg-white shadow-card">
             <table className="min-w-full text-xs" data-testid="outbox-table">
               <thead className="border-b border-soot-200 bg-soot-50 text-left uppercase tracking-wide text-soot-500">
                 <tr>
@@ -205,7 +206,7 @@ function MailViewerInner() {
                 ))}
               </tbody>
             </table>
-          </div>
+          </ScrollRegion>
         </section>
       ) : null}
     </div>

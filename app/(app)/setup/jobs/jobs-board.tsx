@@ -5,6 +5,7 @@ import { QueryClient, QueryClientProvider, useQuery } from "@tanstack/react-quer
 import { getJson } from "@/lib/http/client";
 import { Notice } from "@/components/ui/notice";
 import { Bar, BarChart, CartesianGrid, Legend, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
+import { ScrollRegion } from "@/components/ui/scroll-region";
 
 type QueueStat = { queue: string; waiting: number; scheduled: number; active: number; failed: number; oldest_waiting_s: number | null };
 type FailedJob = {
@@ -117,7 +118,7 @@ function JobsBoardInner() {
         </div>
       </section>
 
-      <section className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Queues" tabIndex={0}>
+      <ScrollRegion label="Queues" className="rounded-card border border-soot-200 bg-white shadow-card">
         <table className="min-w-full text-sm" data-testid="queue-table">
           <thead className="border-b border-soot-200 bg-soot-50 text-left text-xs uppercase tracking-wide text-soot-500">
             <tr>
@@ -145,7 +146,7 @@ function JobsBoardInner() {
             ))}
           </tbody>
         </table>
-      </section>
+      </ScrollRegion>
 
       <section className="space-y-3">
         <div className="flex flex-wrap items-end justify-between gap-3">
@@ -166,7 +167,7 @@ function JobsBoardInner() {
             </select>
           </label>
         </div>
-        <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Failed jobs" tabIndex={0}>
+        <ScrollRegion label="Failed jobs" className="rounded-card border border-soot-200 bg-white shadow-card">
           <table className="min-w-full text-sm" data-testid="failed-jobs">
             <thead className="border-b border-soot-200 bg-soot-50 text-left text-xs uppercase tracking-wide text-soot-500">
               <tr>
@@ -228,12 +229,12 @@ function JobsBoardInner() {
               )}
             </tbody>
           </table>
-        </div>
+        </ScrollRegion>
       </section>
 
       <section className="space-y-2">
         <h2 className="font-display text-lg font-semibold text-soot-900">Recent sweeps</h2>
-        <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Sweeps" tabIndex={0}>
+        <ScrollRegion label="Sweeps" className="rounded-card border border-soot-200 bg-white shadow-card">
           <table className="min-w-full text-xs" data-testid="sweeps">
             <thead className="border-b border-soot-200 bg-soot-50 text-left uppercase tracking-wide text-soot-500">
               <tr>
@@ -262,7 +263,7 @@ function JobsBoardInner() {
               ))}
             </tbody>
           </table>
-        </div>
+        </ScrollRegion>
       </section>
     </div>
   );
