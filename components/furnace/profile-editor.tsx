@@ -6,26 +6,15 @@ import { useFieldArray, useForm, useWatch } from "react-hook-form";
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { createProfileSchema, type ProfileFormInput, type ProfileInput } from "@/lib/batches/schemas";
-import type { BoardProfile } from "@/lib/batches/types";
+import type { ProfileListItem } from "@/lib/batches/types";
 import { profileCurve } from "@/lib/process/furnace-profile";
 import { ApiError, getJson, sendJson } from "@/components/batches/client";
 import { duration } from "@/components/batches/format";
 import { QueryProvider } from "@/components/floor/query-provider";
 import { ProfileChart } from "./profile-chart";
 
-type ProfileItem = BoardProfile & {
-  version: number;
-  notes: string;
-  retired: boolean;
-  supersedes_id: string | null;
-  superseded_by: string | null;
-  furnace_ids: string[];
-  cycle_minutes: number;
-  booked_runs: number;
-  draft_runs: number;
-};
 type ListResponse = {
-  profiles: ProfileItem[];
+  profiles: ProfileListItem[];
   materials: { id: string; code: string; name: string; default_profile_id: string | null }[];
   furnaces: { id: string; name: string; max_cool_rate_c_per_min: number; active: boolean }[];
 };
@@ -105,7 +94,7 @@ function ProfileEditorInner({ canEdit }: { canEdit: boolean }) {
   );
 }
 
-function defaultsOf(p?: ProfileItem): ProfileFormInput {
+function defaultsOf(p?: ProfileListItem): ProfileFormInput {
   if (!p) {
     return {
       code: "", name: "", atmosphere: "", start_temp_c: 20, cool_rate_c_per_min: 10, cool_to_c: 100, notes: "",
@@ -120,7 +109,7 @@ function defaultsOf(p?: ProfileItem): ProfileFormInput {
   };
 }
 
-function ProfileForm({ profile, materials, furnaces, canEdit, onSaved }: { profile?: ProfileItem; materials: ListResponse["materials"]; furnaces: ListResponse["furnaces"]; canEdit: boolean; onSaved: (id: string) => void }) {
+function ProfileForm({ profile, materials, furnaces, canEdit, onSaved }: { profile?: ProfileListItem; materials: ListResponse["materials"]; furnaces: ListResponse["furnaces"]; canEdit: boolean; onSaved: (id: string) => void }) {
   const qc = useQueryClient();
   const [message, setMessage] = useState<{ tone: "danger" | "success"; text: string } | null>(null);
   const form = useForm<ProfileFormInput, unknown, ProfileInput>({ resolver: zodResolver(createProfileSchema), defaultValues: defaultsOf(profile), mode: "onChange" });
@@ -151,8 +140,8 @@ function ProfileForm({ profile, materials, furnaces, canEdit, onSaved }: { profi
   const save = useMutation({
     mutationFn: (values: ProfileInput) =>
       profile
-        ? sendJson<ProfileItem & { revised: boolean }>(`/api/sinter-profiles/${profile.id}`, "PUT", { ...values, version: profile.version })
-        : sendJson<ProfileItem>("/api/sinter-profiles", "POST", values),
+        ? sendJson<ProfileListItem & { revised: boolean }>(`/api/sinter-profiles/${profile.id}`, "PUT", { ...values, version: profile.version })
+        : sendJson<ProfileListItem>("/api/sinter-profiles", "POST", values),
     onSuccess: (saved) => {
       const revised = "revised" in saved && saved.revised;
       setMessage({ tone: "success", text: revised ? `Saved as ${saved.label}: booked runs keep revision ${profile?.revision}.` : `Saved ${saved.label}.` });

@@ -1,20 +1,7 @@
 import type { Database } from "@/db/client";
 import { AppError } from "@/lib/errors";
-import type { BoardProfile } from "@/lib/batches/types";
+import type { ProfileListItem } from "@/lib/batches/types";
 import { cycleMinutesFor, listProfiles, type Db } from "@/db/batches/reads";
-
-export type ProfileListItem = BoardProfile & {
-  version: number;
-  notes: string;
-  retired: boolean;
-  supersedes_id: string | null;
-  superseded_by: string | null;
-  furnace_ids: string[];
-  cycle_minutes: number;
-  /** Runs that hold this revision on the calendar or in the record: it can no longer change. */
-  booked_runs: number;
-  draft_runs: number;
-};
 
 export async function listProfilesForSetup(db: Db): Promise<ProfileListItem[]> {
   const profiles = await listProfiles(db, { includeRetired: true });

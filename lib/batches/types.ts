@@ -107,6 +107,20 @@ export interface BoardProfile {
   segments: ProfileSegmentRow[];
 }
 
+/** A profile revision as the set-up page lists it, with what holds it fixed. */
+export type ProfileListItem = BoardProfile & {
+  version: number;
+  notes: string;
+  retired: boolean;
+  supersedes_id: string | null;
+  superseded_by: string | null;
+  furnace_ids: string[];
+  cycle_minutes: number;
+  /** Runs that hold this revision on the calendar or in the record: it can no longer change. */
+  booked_runs: number;
+  draft_runs: number;
+};
+
 export interface BoardMaterial {
   id: string;
   code: string;
