@@ -23,10 +23,9 @@ const checkVersion = (row: { version: number; code: string }, version: number) =
 
 const writeEvent = (trx: Trx, e: Omit<EventRow, "entity"> & { entity?: string }) => recordEvents(trx, [{ ...e, entity: e.entity ?? "build" }]);
 
-/** Units become a build: all planned, none on another build, one material. */
-export async function insertBuild(trx: Trx, input: CreateBuild, actorId: string) {
-  const ids = [...new Set(input.unit_ids)];
-  const units = await trx
+/** Locks the units chosen for a build, in id order (two edits of overlapping units cannot deadlock). */
+function lockUnitsForBuild(trx: Trx, ids: string[]) {
+  return trx
     .selectFrom("units as u")
     .innerJoin("parts as p", "p.id", "u.part_id")
     .select(["u.id", "u.serial", "u.state", "u.build_id", "p.material_id"])
@@ -34,6 +33,12 @@ export async function insertBuild(trx: Trx, input: CreateBuild, actorId: string)
     .orderBy("u.id")
     .forUpdate("u")
     .execute();
+}
+
+/** Units become a build: all planned, none on another build, one material. */
+export async function insertBuild(trx: Trx, input: CreateBuild, actorId: string) {
+  const ids = [...new Set(input.unit_ids)];
+  const units = await lockUnitsForBuild(trx, ids);
   const problems: string[] = [];
   if (units.length !== ids.length) problems.push(`${ids.length - units.length} of the chosen units no longer exist`);
   for (const u of units) {
@@ -75,13 +80,7 @@ export async function updateBuild(trx: Trx, id: string, input: UpdateBuild, acto
       throw new AppError("invalid", `${build.code} is ${build.state}; take it off the floor before changing its units.`, { unit_ids: ["only a draft build's units can change"] });
     }
     const ids = [...new Set(input.unit_ids)];
-    const units = await trx
-      .selectFrom("units as u")
-      .innerJoin("parts as p", "p.id", "u.part_id")
-      .select(["u.id", "u.serial", "u.state", "u.build_id", "p.material_id"])
-      .where("u.id", "in", ids)
-      .forUpdate("u")
-      .execute();
+    const units = await lockUnitsForBuild(trx, ids);
     const bad = units.filter((u) => u.material_id !== build.material_id || u.state !== "planned" || (u.build_id && u.build_id !== id));
     if (units.length !== ids.length || bad.length) {
       throw new AppError("invalid", "Every unit must be planned, of the build's material and on no other build.", { unit_ids: bad.map((u) => u.serial) });
