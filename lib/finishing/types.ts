@@ -1,6 +1,5 @@
-import type { MaterialCalibration, ShrinkageSuggestion } from "@/lib/process/calibration";
 import type { MassLossCheck } from "@/lib/process/wash";
-import type { CalibrationPoint, RejectedReading } from "./calibration";
+import type { CalibrationSummary } from "./calibration";
 import type { PartForFinishing, StockCheck, ToleranceSummary } from "./inspection";
 import type { FinishingAction } from "./schemas";
 import type { UnitState } from "./transitions";
@@ -95,15 +94,9 @@ export type CalibrationHistoryEntry = {
   actor_name: string | null;
 };
 
-export type MaterialCalibrationView = {
+export type MaterialCalibrationView = CalibrationSummary & {
   material: { id: string; code: string; name: string; shrink_xy: number; shrink_z: number; version: number; updated_at: string };
   min_samples: number;
-  points: CalibrationPoint[];
-  rejected: RejectedReading[];
-  calibration: MaterialCalibration;
-  suggestions: ShrinkageSuggestion[];
-  inspections: { xy: number; z: number };
-  applicable: { xy?: number; z?: number };
   history: CalibrationHistoryEntry[];
   excluded: Array<{ id: string; serial: string; unit_id: string; created_at: string; exclusion_reason: string | null }>;
 };
