@@ -82,9 +82,15 @@ function insertInto(ctx: Ctx, run: RunState, it: ItemModel): RunState | null {
   if (!it.eligibleMask.has(run.f.idx) || !run.massFits(it)) return null;
   if (it.area > run.f.runArea - run.area + GEOMETRY_EPS) return null;
   ctx.work++;
+  // Look first, copy only on success: most tries find no room.
   for (const rule of ["short-side", "contact", "bottom-left"] as const) {
-    const c = run.clone();
-    if (c.tryAdd(it, rule, "best")) return c;
+    for (let t = 0; t < run.bins.length; t++) {
+      if (it.area > run.bins[t].freeArea + GEOMETRY_EPS) continue;
+      if (run.bins[t].find(it.pw, it.ph, rule, true)) {
+        const c = run.clone();
+        if (c.tryAdd(it, rule, "best")) return c;
+      }
+    }
   }
   return null;
 }
