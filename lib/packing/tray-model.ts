@@ -14,7 +14,7 @@
 // overlap, or to cross the clearance line, by that much and no more.
 
 import { ComputationError } from "@/lib/errors";
-import { dffTrayBound, shortSideTrayBound } from "./dual-feasible";
+import { claimedAreaTrayBound, dffTrayBound, shortSideTrayBound } from "./dual-feasible";
 import { ceilWithSlack, martelloTothL2 } from "./one-dimensional";
 import { GEOMETRY_EPS } from "./rectangles";
 import type { PackFurnace, PackUnit, TrayLowerBound, TrayPackInput, Unplaced } from "./types";
@@ -293,8 +293,10 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
     // The short-side bound needs one tray size for the whole profile.
     const t0 = pf[0];
     const oneSize = pf.every((f) => (f.W === t0.W && f.D === t0.D) || (f.W === t0.D && f.D === t0.W));
-    const sideTrays = oneSize ? shortSideTrayBound(items.map((it) => ({ w: it.pw, h: it.ph })), t0.W, t0.D) : 0;
-    const trayNeed = Math.max(shapeTrays, sideTrays);
+    const pieces = items.map((it) => ({ w: it.pw, h: it.ph }));
+    const sideTrays = oneSize ? shortSideTrayBound(pieces, t0.W, t0.D) : 0;
+    const claimedTrays = oneSize ? claimedAreaTrayBound(pieces, t0.W, t0.D, items.length <= 200 ? 128 : 32) : 0;
+    const trayNeed = Math.max(shapeTrays, sideTrays, claimedTrays);
     const shape = trayNeed === 0 ? 0 : ceilWithSlack(trayNeed / maxTrays);
     const largest = Math.max(area, mass, count, shape, items.length > 0 ? 1 : 0);
     const bound = { area, mass, count, shape, largest };
