@@ -399,12 +399,12 @@ export function packSet(
 function findSpot(run: RunState, it: ItemModel): { tray: number; fit: NonNullable<ReturnType<MaxRectsBin["find"]>> } | null {
   if (!it.eligibleMask.has(run.f.idx) || !run.massFits(it)) return null;
   if (it.area > run.f.runArea - run.area + GEOMETRY_EPS) return null;
-  for (const rule of ["short-side", "contact", "bottom-left"] as const) {
-    for (let t = 0; t < run.bins.length; t++) {
-      if (it.area > run.bins[t].freeArea + GEOMETRY_EPS) continue;
-      const fit = run.bins[t].find(it.pw, it.ph, rule, true);
-      if (fit) return { tray: t, fit };
-    }
+  // Whether a piece fits does not depend on the rule (rules only rank the free rectangles that
+  // take it), so the first rule decides.
+  for (let t = 0; t < run.bins.length; t++) {
+    if (it.area > run.bins[t].freeArea + GEOMETRY_EPS) continue;
+    const fit = run.bins[t].find(it.pw, it.ph, "short-side", true);
+    if (fit) return { tray: t, fit };
   }
   return null;
 }
