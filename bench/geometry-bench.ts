@@ -7,16 +7,12 @@ import path from "node:path";
 import { sphereWithTriangles, writeBinaryStl } from "@/lib/geometry/generate";
 import { checkClosedMesh } from "@/lib/geometry/mesh";
 import { parseStl } from "@/lib/geometry/stl";
+import { median } from "./stats";
 
 export type BenchResult = { name: string; value: number; unit: string; target?: string; ok?: boolean };
 
 const TRIANGLES = 1_000_000;
 const RUNS = 7;
-
-const median = (xs: number[]) => {
-  const s = [...xs].sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)];
-};
 
 function time<T>(fn: () => T): [number, T] {
   const t0 = performance.now();
