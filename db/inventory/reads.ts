@@ -243,9 +243,9 @@ export type GenealogyRow = {
 /**
  * Every unit a lot reached, with its path through the shop, in one query. The lot's units are
  * gathered first (a materialized CTE: the lot's draws → their builds → units, by index) and only
- * those meet the lookups, so the planner orders two small joins rather than ten; inspections
- * are counted once per unit (a lateral aggregate, by the unit_id index) instead of two
- * correlated subqueries; and the order is by byte value ("C" collation: codes and serials are
+ * those meet the lookups, so the planner orders two small joins rather than ten; the lot's
+ * inspections are counted in one grouped pass (by the unit_id index) instead of two correlated
+ * subqueries per unit; and the order is by byte value ("C" collation: codes and serials are
  * machine-made, and a linguistic sort of 5,000 keys costs more than the rest of the query).
  */
 export async function lotGenealogy(db: Database, lotId: string): Promise<GenealogyRow[]> {
@@ -264,6 +264,13 @@ export async function lotGenealogy(db: Database, lotId: string): Promise<Genealo
           ])
           .where("d.lot_id", "=", lotId),
     )
+    .with("ins", (qb) =>
+      qb
+        .selectFrom("inspections as i")
+        .select(["i.unit_id", sql<number>`count(*)::int`.as("n"), sql<boolean | null>`(array_agg(i.passed order by i.created_at desc))[1]`.as("passed")])
+        .where("i.unit_id", "in", (eb) => eb.selectFrom("lu").select("lu.unit_id"))
+        .groupBy("i.unit_id"),
+    )
     .selectFrom("lu")
     .innerJoin("parts as p", "p.id", "lu.part_id")
     .innerJoin("orders as o", "o.id", "p.order_id")
@@ -271,15 +278,7 @@ export async function lotGenealogy(db: Database, lotId: string): Promise<Genealo
     .leftJoin("wash_batches as w", "w.id", "lu.wash_batch_id")
     .leftJoin("furnace_runs as r", "r.id", "lu.furnace_run_id")
     .leftJoin("sinter_profiles as sp", "sp.id", "r.profile_id")
-    .leftJoinLateral(
-      (eb) =>
-        eb
-          .selectFrom("inspections as i")
-          .select([sql<number>`count(*)::int`.as("n"), sql<boolean | null>`(array_agg(i.passed order by i.created_at desc))[1]`.as("passed")])
-          .whereRef("i.unit_id", "=", "lu.unit_id")
-          .as("ins"),
-      (join) => join.onTrue(),
-    )
+    .leftJoin("ins", "ins.unit_id", "lu.unit_id")
     .select([
       "lu.unit_id", "lu.serial", "lu.state", "lu.build_id", "lu.build_code", "pr.name as printer", "lu.drawn_g",
       "w.code as wash_batch_code", "r.code as furnace_run_code", "sp.code as profile_code", "p.part_number", "o.id as order_id", "o.code as order_code", "o.customer",
