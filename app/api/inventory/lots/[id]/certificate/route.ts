@@ -16,6 +16,16 @@ import { ATTACHMENT_MAX_BYTES } from "@/lib/finishing/schemas";
 import { CERTIFICATE_PREFIX } from "@/lib/inventory/certificate";
 import { certificateQuerySchema } from "@/lib/inventory/schemas";
 
+/** The name the browser sent, %-encoded; a malformed escape is kept as it came rather than refused. */
+function decodedName(raw: string | null): string {
+  if (!raw) return "";
+  try {
+    return decodeURIComponent(raw).trim();
+  } catch {
+    return raw.trim();
+  }
+}
+
 // GET /api/inventory/lots/[id]/certificate – the lot's certificate of analysis, streamed from object storage (every role)
 export async function GET(_req: Request, ctx: IdContext) {
   try {
@@ -56,7 +66,7 @@ export async function POST(req: Request, ctx: IdContext) {
     const { version } = certificateQuerySchema.parse(Object.fromEntries(new URL(req.url).searchParams));
     const db = getDb();
     const lot = await getLotOrThrow(db, id);
-    const filename = safeFilename(decodeURIComponent(req.headers.get("x-filename") ?? "").trim() || "certificate");
+    const filename = safeFilename(decodedName(req.headers.get("x-filename")) || "certificate");
     // Type and size are refused before the body is read: 415, then 413 on the declared length.
     const declared = req.headers.get("content-type") ?? "";
     acceptedAttachmentType(declared, filename);
