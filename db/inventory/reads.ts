@@ -96,65 +96,60 @@ export async function listMaterialStock(db: Database): Promise<MaterialStock[]> 
   }));
 }
 
+type BuildDraw = DrawEstimate & { material_id: string; code: string; starts_at: Date | null; units: number };
+
 /**
  * What each build will draw, from its units' printed volume, the material's feedstock density
- * and its allowances. Units are counted per build and part in the database; each part's and
- * material's figures are read once, so a busy schedule moves a narrow result, not one wide row
- * per unit.
+ * and its allowances. Two passes over the builds' units, so that a busy schedule moves one narrow
+ * row per build rather than one per unit: first the distinct parts printed in each material,
+ * whose green volume is worked out here once each (greenVolumeOf, the floor's rule); then, in the
+ * database, each build's units counted and their volumes summed.
  */
+async function loadBuildDraws(db: Database, filter: { buildIds?: string[]; scheduledOnly?: boolean }): Promise<Map<string, BuildDraw>> {
+  const out = new Map<string, BuildDraw>();
+  if (filter.buildIds && !filter.buildIds.length) return out;
+  const scope = sql.join(
+    [
+      ...(filter.buildIds ? [sql`b.id = any(${filter.buildIds}::uuid[])`] : []),
+      ...(filter.scheduledOnly ? [sql`b.state = 'scheduled' and b.starts_at is not null`] : []),
+      sql`true`,
+    ],
+    sql` and `,
+  );
+  const { rows: printed } = await sql<{
+    part_id: string; material_id: string; volume_mm3: unknown; nominal_x_mm: unknown; nominal_y_mm: unknown; nominal_z_mm: unknown; green_x_mm: unknown; green_y_mm: unknown; green_z_mm: unknown;
+    stock_x_neg_mm: unknown; stock_x_pos_mm: unknown; stock_y_neg_mm: unknown; stock_y_pos_mm: unknown; stock_z_neg_mm: unknown; stock_z_pos_mm: unknown; shrink_xy: unknown; shrink_z: unknown;
+  }>`
+    select p.id as part_id, m.id as material_id, p.volume_mm3, p.nominal_x_mm, p.nominal_y_mm, p.nominal_z_mm, p.green_x_mm, p.green_y_mm, p.green_z_mm,
+      p.stock_x_neg_mm, p.stock_x_pos_mm, p.stock_y_neg_mm, p.stock_y_pos_mm, p.stock_z_neg_mm, p.stock_z_pos_mm, m.shrink_xy, m.shrink_z
+    from parts p
+    cross join materials m
+    where (p.id, m.id) in (select distinct u.part_id, b.material_id from units u join builds b on b.id = u.build_id where u.state <> 'scrapped' and ${scope})`.execute(db);
+  const volumes = printed.map((p) => greenVolumeOf(p));
+  const { rows } = await sql<{ id: string; code: string; material_id: string; starts_at: Date | null; units: number; volume_mm3: number; density: string; support_allowance: string; purge_g: string }>`
+    select b.id, b.code, b.material_id, b.starts_at, count(u.id)::int as units, coalesce(sum(v.volume_mm3), 0)::float8 as volume_mm3,
+      m.green_density_g_cm3 as density, m.support_allowance, m.purge_g
+    from builds b
+    join materials m on m.id = b.material_id
+    left join units u on u.build_id = b.id and u.state <> 'scrapped'
+    left join unnest(${printed.map((p) => p.part_id)}::uuid[], ${printed.map((p) => p.material_id)}::uuid[], ${volumes}::float8[]) as v(part_id, material_id, volume_mm3)
+      on v.part_id = u.part_id and v.material_id = b.material_id
+    where ${scope}
+    group by b.id, m.id`.execute(db);
+  const allowances = new Map<string, { feedstock_density_g_cm3: number; support_allowance: number; purge_g: number }>();
+  for (const r of rows) {
+    let a = allowances.get(r.material_id);
+    if (!a) allowances.set(r.material_id, (a = { feedstock_density_g_cm3: Number(r.density), support_allowance: Number(r.support_allowance), purge_g: Number(r.purge_g) }));
+    out.set(r.id, { ...estimateDrawOfTotal(Number(r.volume_mm3), Number(r.units), a), material_id: r.material_id, code: r.code, starts_at: r.starts_at, units: Number(r.units) });
+  }
+  return out;
+}
+
+/** What each build will draw (a build without units is left out). */
 export async function estimateBuildDraws(db: Database, filter: { buildIds?: string[]; scheduledOnly?: boolean }): Promise<Map<string, DrawEstimate & { material_id: string }>> {
   const out = new Map<string, DrawEstimate & { material_id: string }>();
-  if (filter.buildIds && !filter.buildIds.length) return out;
-  let q = db
-    .selectFrom("units as u")
-    .innerJoin("builds as b", "b.id", "u.build_id")
-    .select(["u.build_id", "b.material_id", "u.part_id", sql<number>`count(*)::int`.as("units")])
-    .where("u.state", "<>", "scrapped")
-    .groupBy(["u.build_id", "b.material_id", "u.part_id"]);
-  if (filter.buildIds) q = q.where("u.build_id", "in", filter.buildIds);
-  if (filter.scheduledOnly) q = q.where("b.state", "=", "scheduled").where("b.starts_at", "is not", null);
-  const rows = await q.execute();
-  if (!rows.length) return out;
-  const partIds = [...new Set(rows.map((r) => r.part_id))];
-  const materialIds = [...new Set(rows.map((r) => r.material_id))];
-  const [parts, materials] = await Promise.all([
-    db
-      .selectFrom("parts as p")
-      .select([
-        "p.id", "p.volume_mm3", "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm", "p.green_x_mm", "p.green_y_mm", "p.green_z_mm",
-        "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm", "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm",
-      ])
-      .where(sql<boolean>`p.id = any(${partIds}::uuid[])`)
-      .execute(),
-    db.selectFrom("materials").select(["id", "shrink_xy", "shrink_z", "green_density_g_cm3", "support_allowance", "purge_g"]).where(sql<boolean>`id = any(${materialIds}::uuid[])`).execute(),
-  ]);
-  const partById = new Map(parts.map((p) => [p.id, p]));
-  const materialById = new Map(materials.map((m) => [m.id, m]));
-  // A part printed in a material has one volume in every build: worked out once per pair.
-  const volumeOf = new Map<string, number>();
-  const partVolume = (partId: string, materialId: string) => {
-    const key = `${partId}:${materialId}`;
-    let v = volumeOf.get(key);
-    if (v === undefined) {
-      const m = materialById.get(materialId)!;
-      volumeOf.set(key, (v = greenVolumeOf({ ...partById.get(partId)!, shrink_xy: m.shrink_xy, shrink_z: m.shrink_z })));
-    }
-    return v;
-  };
-  const totals = new Map<string, { material_id: string; volume: number; units: number }>();
-  for (const r of rows) {
-    const n = Number(r.units);
-    const t = totals.get(r.build_id!);
-    const volume = n * partVolume(r.part_id, r.material_id);
-    if (t) {
-      t.volume += volume;
-      t.units += n;
-    } else totals.set(r.build_id!, { material_id: r.material_id, volume, units: n });
-  }
-  for (const [buildId, t] of totals) {
-    const m = materialById.get(t.material_id)!;
-    const est = estimateDrawOfTotal(t.volume, t.units, { feedstock_density_g_cm3: Number(m.green_density_g_cm3), support_allowance: Number(m.support_allowance), purge_g: Number(m.purge_g) });
-    out.set(buildId, { ...est, material_id: t.material_id });
+  for (const [id, d] of await loadBuildDraws(db, filter)) {
+    if (d.units > 0) out.set(id, { parts_g: d.parts_g, supports_g: d.supports_g, purge_g: d.purge_g, total_g: d.total_g, material_id: d.material_id });
   }
   return out;
 }
@@ -173,7 +168,7 @@ async function loadStockInputs(db: Database, now: Date, proposed: Array<{ build_
   const zone = await findShopZone(db);
   const today = shopDay(now, zone);
   const proposedIds = proposed.map((p) => p.build_id);
-  const [materials, lots, scheduled, draws, proposedDraws, tracked] = await Promise.all([
+  const [materials, lots, scheduled, proposedDraws, tracked] = await Promise.all([
     listMaterialStock(db),
     db
       .selectFrom("feedstock_lots")
@@ -181,8 +176,7 @@ async function loadStockInputs(db: Database, now: Date, proposed: Array<{ build_
       .where("state", "in", ["released", "quarantine"])
       .where("remaining_g", ">", 0)
       .execute(),
-    db.selectFrom("builds").select(["id", "code", "material_id", "starts_at"]).where("state", "=", "scheduled").where("starts_at", "is not", null).execute(),
-    estimateBuildDraws(db, { scheduledOnly: true }),
+    loadBuildDraws(db, { scheduledOnly: true }),
     estimateBuildDraws(db, { buildIds: proposedIds }),
     db.selectFrom("feedstock_lots").select("material_id").distinct().execute(),
   ]);
@@ -204,14 +198,17 @@ async function loadStockInputs(db: Database, now: Date, proposed: Array<{ build_
       state: l.state, remaining_g: Number(l.remaining_g), expires_on: l.expires_on, usable: l.state === "released" && !(l.expires_on && l.expires_on < today),
     });
   }
-  for (const b of scheduled) {
-    if (skip.has(b.id)) continue;
-    byMaterial.get(b.material_id)?.builds.push({ id: b.id, code: b.code, day: dayOf(b.starts_at!), grams: draws.get(b.id)?.total_g ?? 0 });
+  // In order of start: within a day, the build that starts first takes what the shelf holds first.
+  const drawing: Array<{ at: number; material_id: string; build: ProjectionBuild }> = [];
+  for (const [id, b] of scheduled) {
+    if (!skip.has(id)) drawing.push({ at: new Date(b.starts_at!).getTime(), material_id: b.material_id, build: { id, code: b.code, day: dayOf(b.starts_at!), grams: b.total_g } });
   }
   for (const p of proposed) {
     const draw = proposedDraws.get(p.build_id);
-    if (draw) byMaterial.get(draw.material_id)?.builds.push({ id: p.build_id, code: p.code, day: dayOf(p.starts_at), grams: draw.total_g });
+    if (draw) drawing.push({ at: Date.parse(p.starts_at), material_id: draw.material_id, build: { id: p.build_id, code: p.code, day: dayOf(p.starts_at), grams: draw.total_g } });
   }
+  drawing.sort((a, b) => a.at - b.at || (a.build.code < b.build.code ? -1 : a.build.code > b.build.code ? 1 : 0));
+  for (const d of drawing) byMaterial.get(d.material_id)?.builds.push(d.build);
   return { today, zone, materials: [...byMaterial.values()] };
 }
 
