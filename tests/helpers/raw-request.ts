@@ -9,10 +9,7 @@ export type RawResponse = { status: number; headers: http.IncomingHttpHeaders; b
 export function rawRequest(origin: string, path: string, headers: Record<string, string> = {}, method = "GET", body?: string | Buffer): Promise<RawResponse> {
   const { hostname, port } = new URL(origin);
   return new Promise((resolve, reject) => {
-    // A connection of its own (agent: false): an answer given before the body was read ends its
-    // connection (scripts/serve.ts), and a pooled keep-alive socket could be handed to the next
-    // request just as it closes, which would fail that request, not the one that caused it.
-    const req = http.request({ host: hostname, port: Number(port), path, method, headers, agent: false }, (res) => {
+    const req = http.request({ host: hostname, port: Number(port), path, method, headers }, (res) => {
       const chunks: Buffer[] = [];
       res.on("data", (c: Buffer) => chunks.push(c));
       res.on("end", () => resolve({ status: res.statusCode ?? 0, headers: res.headers, bytes: Buffer.concat(chunks) }));
