@@ -12,7 +12,7 @@ import pg from "pg";
 import S3rver from "s3rver";
 
 import { seedFloor } from "./floor-bench";
-import { freshDatabase } from "./setup";
+import { freshDatabase } from "./fresh-database";
 import { createDb } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
 

@@ -14,7 +14,7 @@ import { migrateToLatest } from "@/db/migrate";
 import { seedDemoShop } from "@/db/seed";
 import { BENCH_FURNACES, furnaceMixInstance } from "./generate-instances";
 import type { BenchRow, BenchSection } from "./types";
-import { freshDatabase } from "./setup";
+import { freshDatabase } from "./fresh-database";
 import { median } from "./stats";
 
 const DB_NAME = "hearth_bench_batches";

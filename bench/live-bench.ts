@@ -20,7 +20,8 @@ import { startApp, stopProcs, waitFor, type Proc } from "../scripts/stack";
 import { changesOf, openEventStream, type EventStream, type StreamEvent } from "../tests/helpers/event-stream";
 import { queryHears } from "@/components/live/query-map";
 import { seedFloor } from "./floor-bench";
-import { ensureBuild, freshDatabase } from "./setup";
+import { freshDatabase } from "./fresh-database";
+import { ensureBuild } from "./setup";
 import { pct, r1 } from "./stats";
 import type { BenchRow, BenchSection } from "./types";
 

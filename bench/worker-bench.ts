@@ -10,7 +10,7 @@ import { createDb, type Database } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
 import { insertDueBuilds, seedShop, sendJobs, startCapture, startSender, startWorker, waitUntil, type Capture } from "../tests/worker/harness";
 import type { BenchRow, BenchSection } from "./types";
-import { freshDatabase } from "./setup";
+import { freshDatabase } from "./fresh-database";
 import { r1 } from "./stats";
 
 const N = Number(process.env.HEARTH_BENCH_WORKER_N ?? 1000);

@@ -13,7 +13,8 @@ import { migrateToLatest } from "@/db/migrate";
 import { seedDemoShop } from "@/db/seed";
 import { startApp, stopProcs, waitFor, type Proc } from "../../scripts/stack";
 import { launchChromium } from "../../scripts/chromium";
-import { ensureBuild, freshDatabase } from "../setup";
+import { freshDatabase } from "../fresh-database";
+import { ensureBuild } from "../setup";
 import { median, r1 } from "../stats";
 import type { BenchRow, BenchSection } from "../types";
 
