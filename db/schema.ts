@@ -205,6 +205,15 @@ export interface FurnaceRuns {
   version: Generated<number>;
 }
 
+export interface FurnaceQuoteRates {
+  energy_cost_minor: number | null;
+  furnace_id: string;
+  gas_cost_minor: number | null;
+  run_cost_minor: number | null;
+  updated_at: Generated<Timestamp>;
+  version: Generated<number>;
+}
+
 export interface Furnaces {
   active: Generated<boolean>;
   created_at: Generated<Timestamp>;
@@ -400,6 +409,13 @@ export interface PlanProposals {
 export interface PrinterMaterials {
   material_id: string;
   printer_id: string;
+}
+
+export interface PrinterQuoteRates {
+  printer_id: string;
+  rate_minor_per_h: number;
+  updated_at: Generated<Timestamp>;
+  version: Generated<number>;
 }
 
 export interface Printers {
@@ -663,6 +679,7 @@ export interface DB {
   files: Files;
   furnace_profiles: FurnaceProfiles;
   furnace_runs: FurnaceRuns;
+  furnace_quote_rates: FurnaceQuoteRates;
   furnaces: Furnaces;
   gas_supplies: GasSupplies;
   inspection_files: InspectionFiles;
@@ -676,6 +693,7 @@ export interface DB {
   parts: Parts;
   plan_proposals: PlanProposals;
   printer_materials: PrinterMaterials;
+  printer_quote_rates: PrinterQuoteRates;
   printers: Printers;
   quote_lines: QuoteLines;
   quote_settings: QuoteSettings;

@@ -1,6 +1,6 @@
 // Capable-to-promise speed: one 10-unit quote line planned into a busy shop (500 booked builds
-// over 8 printers, 100 open furnace runs with room over 4 furnaces, wash stations in use) and
-// priced. Target: at most 1 s. The first call pays for the plate layouts (remembered across plans
+// over 8 printers, 100 open furnace runs with room over 4 furnaces, wash stations in use, the
+// finishing queue of those runs' units) and priced. Target: at most 1 s. The first call pays for the plate layouts (remembered across plans
 // after that), so both the cold and the warm figure are reported.
 
 import { packTrays } from "@/lib/packing/trays";
@@ -39,6 +39,15 @@ function context(now: number): QuoteContext {
     open_runs,
     tray_clearance_mm: 5,
     finishing_lead_minutes: 2880,
+    // Three machinists; the 600 units of the open runs queue for finishing as their runs end,
+    // 40 machinist-minutes each, and 60 units are waiting now.
+    finishing_lanes: 3,
+    finishing_queue: [
+      { release: now, minutes: 60 * 40 },
+      ...open_runs.map((r) => ({ release: r.ends_at + 2880 * 60_000, minutes: r.units.length * 40 })),
+    ],
+    printer_rates: new Map([["p0", 2600]]),
+    furnace_rates: new Map([["F0", { run_cost_minor: 30000, gas_cost_minor: 9500, energy_cost_minor: null }]]),
     spread: { print: { p90_ratio: 1.15, samples: 40, source: "history" }, wash: { p90_ratio: 1.1, samples: 40, source: "history" }, furnace: { p90_ratio: 1.05, samples: 40, source: "history" }, finishing: { p90_ratio: 1.25, samples: 0, source: "fallback" } },
     rates: {
       printer_rate_minor_per_h: 1800, wash_batch_cost_minor: 4500, wash_batch_volume_cm3: 1500, furnace_run_cost_minor: 22000, furnace_gas_cost_minor: 6500, furnace_energy_cost_minor: 9000,

@@ -7,6 +7,9 @@ import { currentLayout, packFurnace, packUnit, profileLabel } from "@/lib/batche
 import { staffedHoursFor } from "@/lib/floor/plan";
 import { spreadFrom, type PromiseOpenRun, type SpreadKind, type Spread } from "@/lib/quotes/promise";
 import type { QuoteContext, QuoteLineSpec, QuoteMaterial, QuoteRates } from "@/lib/quotes/evaluate";
+import { finishingMinutesPerUnit, type FurnaceRates } from "@/lib/quotes/cost";
+import { finishingQueue, type QueuedUnit } from "@/lib/quotes/finishing-queue";
+import type { StaffedHours } from "@/lib/planning/staffed-hours";
 
 const num = (v: unknown) => Number(v);
 const numOrNull = (v: unknown) => (v === null || v === undefined ? null : Number(v));
@@ -81,6 +84,62 @@ export async function listMaterialRates(db: Db) {
   })) satisfies (QuoteMaterial & { rates_set: boolean })[];
 }
 
+/** Printers and furnaces with their own quoting rates (null = the shop's rate). */
+export async function listEquipmentRates(db: Db) {
+  const [printers, furnaces] = await Promise.all([
+    db.selectFrom("printers as p").leftJoin("printer_quote_rates as r", "r.printer_id", "p.id")
+      .select(["p.id", "p.name", "p.active", "r.rate_minor_per_h", "r.version as rate_version"]).orderBy("p.name").execute(),
+    db.selectFrom("furnaces as f").leftJoin("furnace_quote_rates as r", "r.furnace_id", "f.id")
+      .select(["f.id", "f.name", "f.active", "r.run_cost_minor", "r.gas_cost_minor", "r.energy_cost_minor", "r.version as rate_version"]).orderBy("f.name").execute(),
+  ]);
+  const n = (v: unknown) => (v === null || v === undefined ? null : Number(v));
+  return {
+    printers: printers.map((p) => ({ id: p.id, name: p.name, active: p.active, rate_minor_per_h: n(p.rate_minor_per_h) })),
+    furnaces: furnaces.map((f) => ({ id: f.id, name: f.name, active: f.active, run_cost_minor: n(f.run_cost_minor), gas_cost_minor: n(f.gas_cost_minor), energy_cost_minor: n(f.energy_cost_minor) })),
+  };
+}
+
+async function equipmentRateMaps(db: Db): Promise<{ printer_rates: Map<string, number>; furnace_rates: Map<string, FurnaceRates> }> {
+  const { printers, furnaces } = await listEquipmentRates(db);
+  return {
+    printer_rates: new Map(printers.flatMap((p) => (p.rate_minor_per_h === null ? [] : [[p.id, p.rate_minor_per_h] as [string, number]]))),
+    furnace_rates: new Map(furnaces.map((f) => [f.id, { run_cost_minor: f.run_cost_minor, gas_cost_minor: f.gas_cost_minor, energy_cost_minor: f.energy_cost_minor }])),
+  };
+}
+
+/** Active machinists and the finishing work released to them or coming from booked furnace runs. */
+export async function loadFinishingQueue(db: Db, now: Date, leadMinutes: number, staffed: StaffedHours | null, minPerCm2: number) {
+  const [lanes, rows] = await Promise.all([
+    db.selectFrom("users").select(sql<number>`count(*)`.as("n")).where("role", "=", "machinist").where("active", "=", true).executeTakeFirstOrThrow(),
+    db
+      .selectFrom("units as u")
+      .innerJoin("parts as p", "p.id", "u.part_id")
+      .leftJoin("furnace_runs as r", "r.id", "u.furnace_run_id")
+      .select([
+        "u.state", "r.state as run_state", "r.ends_at as run_ends_at",
+        "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm", "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm",
+        "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm", "p.target_ra_um", "p.tolerance_um",
+      ])
+      .where((eb) =>
+        eb.or([
+          eb("u.state", "in", ["sintered", "ready_for_finishing", "finishing"]),
+          eb.and([eb("u.state", "in", ["planned", "printing", "green", "washing", "brown", "sintering"]), eb("r.state", "in", ["scheduled", "running"])]),
+        ]),
+      )
+      .execute(),
+  ]);
+  const units: QueuedUnit[] = rows.map((r) => ({
+    released: r.state === "sintered" || r.state === "ready_for_finishing" || r.state === "finishing",
+    run_ends_at: r.run_ends_at ? new Date(r.run_ends_at).getTime() : null,
+    minutes: finishingMinutesPerUnit(
+      { x: num(r.nominal_x_mm), y: num(r.nominal_y_mm), z: num(r.nominal_z_mm) },
+      { x_neg: num(r.stock_x_neg_mm), x_pos: num(r.stock_x_pos_mm), y_neg: num(r.stock_y_neg_mm), y_pos: num(r.stock_y_pos_mm), z_neg: num(r.stock_z_neg_mm), z_pos: num(r.stock_z_pos_mm) },
+      numOrNull(r.target_ra_um), numOrNull(r.tolerance_um), minPerCm2,
+    ),
+  }));
+  return { lanes: Math.max(1, Number(lanes.n)), queue: finishingQueue(units, now.getTime(), leadMinutes, staffed) };
+}
+
 /** Units with a verdict per material: done (good) or scrapped at any step. */
 export async function materialOutcomes(db: Db): Promise<Map<string, { good: number; scrapped: number }>> {
   const rows = await db
@@ -116,7 +175,7 @@ export async function durationRatios(db: Db): Promise<Record<"print" | "wash" | 
 
 /** Everything a promise plans against: the live schedule, equipment, shop hours, rates, yields. */
 export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteContext> {
-  const [shop, printers, blocked, ctx, settings, materials, yields, ratios] = await Promise.all([
+  const [shop, printers, blocked, ctx, settings, materials, yields, ratios, equipmentRates] = await Promise.all([
     getShopPlanning(db as Database),
     listPrinterSpecs(db as Database, { activeOnly: true }),
     printerBlockedFrom(db as Database, now),
@@ -125,13 +184,16 @@ export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteC
     listMaterialRates(db),
     materialOutcomes(db),
     durationRatios(db),
+    equipmentRateMaps(db),
   ]);
+  const staffed = staffedHoursFor(shop.staffed_hours, shop.time_zone);
   const [washBusy, furnaceBusy, maint, openRuns] = await Promise.all([
     db.selectFrom("wash_batches").select(["wash_station_id", "starts_at", "ends_at"]).where("state", "in", ["scheduled", "running", "complete"]).where("ends_at", ">", now).execute(),
     db.selectFrom("furnace_runs").select(["furnace_id", "starts_at", "ends_at"]).where("state", "in", ["scheduled", "running", "complete"]).where("ends_at", ">", now).execute(),
     db.selectFrom("maintenance_windows").select(["wash_station_id", "furnace_id", "starts_at", "ends_at"]).where("resource", "in", ["wash_station", "furnace"]).where("ends_at", ">", now).execute(),
     listFurnaceRuns(db, ctx, { states: ["scheduled"] }),
   ]);
+  const finishing = await loadFinishingQueue(db, now, ctx.finishing_lead_minutes, staffed, settings.finishing_min_per_cm2);
   const intervals = (rows: { id: string | null; starts_at: Date | null; ends_at: Date | null }[], id: string): [number, number][] =>
     rows.filter((r) => r.id === id && r.starts_at && r.ends_at).map((r) => [new Date(r.starts_at!).getTime(), new Date(r.ends_at!).getTime()]);
   const washRows = [...washBusy.map((w) => ({ id: w.wash_station_id, starts_at: w.starts_at, ends_at: w.ends_at })), ...maint.map((m) => ({ id: m.wash_station_id, starts_at: m.starts_at, ends_at: m.ends_at }))];
@@ -166,7 +228,7 @@ export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteC
   return {
     now: now.getTime(),
     horizon_days: PROMISE_HORIZON_DAYS,
-    staffed: staffedHoursFor(shop.staffed_hours, shop.time_zone),
+    staffed,
     printers: printers.map((p) => ({ ...p, busy: blocked.get(p.id) ?? [] })),
     plate_clearance_mm: shop.plate_clearance_mm,
     wash_stations: ctx.stations.map((s) => ({ id: s.id, name: s.name, capacity_units: s.capacity_units, basket_mm: [s.basket_x_mm, s.basket_y_mm, s.basket_z_mm], busy: intervals(washRows, s.id) })),
@@ -183,8 +245,11 @@ export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteC
     open_runs,
     tray_clearance_mm: ctx.clearance_mm,
     finishing_lead_minutes: ctx.finishing_lead_minutes,
+    finishing_lanes: finishing.lanes,
+    finishing_queue: finishing.queue,
     spread,
     rates: ratesOf(settings),
+    ...equipmentRates,
     materials: materialMap,
     yields,
   };

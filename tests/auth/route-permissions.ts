@@ -152,6 +152,7 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/quotes/learning": { GET: "capacity:read" },
   "/api/quote-settings": { GET: "quotes:read", PUT: "setup:write" },
   "/api/quote-settings/materials": { PUT: "setup:write" },
+  "/api/quote-settings/equipment": { PUT: "setup:write" },
 };
 
 /**
