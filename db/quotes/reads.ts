@@ -9,6 +9,7 @@ import { spreadFrom, type PromiseOpenRun, type SpreadKind, type Spread } from "@
 import type { QuoteContext, QuoteLineSpec, QuoteMaterial, QuoteRates } from "@/lib/quotes/evaluate";
 import { finishingMinutesPerUnit, type FurnaceRates } from "@/lib/quotes/cost";
 import { finishingQueue, type QueuedUnit } from "@/lib/quotes/finishing-queue";
+import { actualCost, quotedDirect, type ActualBuild, type ActualCost, type ActualRun, type ActualShare } from "@/lib/quotes/actual-cost";
 import type { StaffedHours } from "@/lib/planning/staffed-hours";
 
 const num = (v: unknown) => Number(v);
@@ -313,6 +314,101 @@ export function lineSpecOf(l: QuoteDetail["lines"][number]): QuoteLineSpec {
   };
 }
 
+/**
+ * What finished orders really cost (lib/quotes/actual-cost.ts): their bookings, draws, finishing
+ * times and inspections, shared among orders by units, priced with today's rates.
+ */
+export async function actualCostsOf(db: Db, orderIds: string[], quoted: Map<string, { feedstock_minor_per_unit: number; setup_minor: number }>): Promise<Map<string, ActualCost>> {
+  const out = new Map<string, ActualCost>();
+  if (!orderIds.length) return out;
+  const units = await db
+    .selectFrom("units as u")
+    .innerJoin("parts as p", "p.id", "u.part_id")
+    .select(["u.id", "u.state", "u.build_id", "u.wash_batch_id", "u.furnace_run_id", "p.order_id"])
+    .where("p.order_id", "in", orderIds)
+    .execute();
+  const ids = (k: "build_id" | "wash_batch_id" | "furnace_run_id") => [...new Set(units.flatMap((u) => (u[k] ? [u[k]!] : [])))];
+  const buildIds = ids("build_id");
+  const washIds = ids("wash_batch_id");
+  const runIds = ids("furnace_run_id");
+  const unitIds = units.map((u) => u.id);
+  const [settings, equipment, materials, builds, washes, runs, events, inspections] = await Promise.all([
+    getQuoteSettings(db),
+    listEquipmentRates(db),
+    listMaterialRates(db),
+    buildIds.length
+      ? db.selectFrom("builds as b").innerJoin("printers as pr", "pr.id", "b.printer_id")
+          .select(["b.id", "b.code", "b.printer_id", "pr.name as printer_name", "b.material_id", "b.started_at", "b.finished_at", "b.est_minutes",
+            sql<number>`(select count(*) from units x where x.build_id = b.id)`.as("units_total"),
+            sql<string | null>`(select sum(d.drawn_g) from feedstock_draws d where d.build_id = b.id)`.as("drawn_g")])
+          .where("b.id", "in", buildIds).execute()
+      : [],
+    washIds.length
+      ? db.selectFrom("wash_batches as w").select(["w.id", "w.code", sql<number>`(select count(*) from units x where x.wash_batch_id = w.id)`.as("units_total")]).where("w.id", "in", washIds).execute()
+      : [],
+    runIds.length
+      ? db.selectFrom("furnace_runs as r").innerJoin("furnaces as f", "f.id", "r.furnace_id")
+          .select(["r.id", "r.code", "r.furnace_id", "f.name as furnace_name", sql<number>`(select count(*) from units x where x.furnace_run_id = r.id)`.as("units_total")])
+          .where("r.id", "in", runIds).execute()
+      : [],
+    db.selectFrom("events").select(["entity_id", "to_state", "created_at"])
+      .where("entity", "=", "unit").where("kind", "=", "state").where("to_state", "in", ["finishing", "done", "on_hold", "scrapped", "ready_for_finishing"]).where("entity_id", "in", unitIds)
+      .orderBy("created_at").execute(),
+    db.selectFrom("inspections").select(["unit_id", sql<number>`count(*)`.as("n")]).where("unit_id", "in", unitIds).groupBy("unit_id").execute(),
+  ]);
+  const rates = ratesOf(settings);
+  const printerRate = new Map(equipment.printers.map((p) => [p.id, p.rate_minor_per_h]));
+  const furnaceRate = new Map(equipment.furnaces.map((f) => [f.id, f]));
+  const price = new Map(materials.map((m) => [m.id, m.feedstock_minor_per_kg]));
+  // Minutes in finishing per unit: each stretch from a move into finishing to the next move out
+  // of it (done, held, scrapped or sent back); time on hold is not work.
+  const finishingMin = new Map<string, number>();
+  const startedAt = new Map<string, number>();
+  for (const e of events) {
+    const t = new Date(e.created_at).getTime();
+    if (e.to_state === "finishing") startedAt.set(e.entity_id!, t);
+    else if (startedAt.has(e.entity_id!)) {
+      finishingMin.set(e.entity_id!, (finishingMin.get(e.entity_id!) ?? 0) + (t - startedAt.get(e.entity_id!)!) / 60_000);
+      startedAt.delete(e.entity_id!);
+    }
+  }
+  const inspected = new Map(inspections.map((i) => [i.unit_id, Number(i.n)]));
+  for (const orderId of orderIds) {
+    const mine = units.filter((u) => u.order_id === orderId);
+    const count = (k: "build_id" | "wash_batch_id" | "furnace_run_id", id: string) => mine.filter((u) => u[k] === id).length;
+    const aBuilds: ActualBuild[] = builds.filter((b) => count("build_id", b.id) > 0).map((b) => {
+      const recorded = !!(b.started_at && b.finished_at);
+      return {
+        code: b.code,
+        printer: { name: b.printer_name, rate_minor_per_h: printerRate.get(b.printer_id!) ?? null },
+        minutes: recorded ? (new Date(b.finished_at!).getTime() - new Date(b.started_at!).getTime()) / 60_000 : Number(b.est_minutes ?? 0),
+        recorded,
+        units: count("build_id", b.id),
+        units_total: Number(b.units_total),
+        drawn_g: b.drawn_g === null ? null : Number(b.drawn_g),
+        feedstock_minor_per_kg: price.get(b.material_id) ?? 0,
+      };
+    });
+    const aWashes: ActualShare[] = washes.filter((w) => count("wash_batch_id", w.id) > 0).map((w) => ({ code: w.code, units: count("wash_batch_id", w.id), units_total: Number(w.units_total) }));
+    const aRuns: ActualRun[] = runs.filter((r) => count("furnace_run_id", r.id) > 0).map((r) => {
+      const own = furnaceRate.get(r.furnace_id!);
+      return {
+        code: r.code, units: count("furnace_run_id", r.id), units_total: Number(r.units_total),
+        furnace: { name: r.furnace_name, run_cost_minor: own?.run_cost_minor ?? null, gas_cost_minor: own?.gas_cost_minor ?? null, energy_cost_minor: own?.energy_cost_minor ?? null },
+      };
+    });
+    const q = quoted.get(orderId) ?? { feedstock_minor_per_unit: 0, setup_minor: 0 };
+    out.set(orderId, actualCost({
+      builds: aBuilds, washes: aWashes, runs: aRuns,
+      finishing_minutes: mine.reduce((s, u) => s + (finishingMin.get(u.id) ?? 0), 0),
+      inspections: mine.reduce((s, u) => s + (inspected.get(u.id) ?? 0), 0),
+      setup_minor: q.setup_minor,
+      quoted_feedstock_minor_per_unit: q.feedstock_minor_per_unit,
+    }, rates));
+  }
+  return out;
+}
+
 /** What quoting has taught: quotes sent, won, and for finished orders quoted vs actual. */
 export async function quoteLearning(db: Db) {
   const counts = await db
@@ -325,21 +421,23 @@ export async function quoteLearning(db: Db) {
     ])
     .executeTakeFirstOrThrow();
   // Finished orders that came from a quote: promised vs the last unit's completion, and the
-  // quoted total vs the actual hours booked on printers (the only actual cost recorded so far).
+  // quoted direct cost vs the cost recorded on the floor.
   const finished = await sql<{
-    code: string; quote_code: string; promise_at: Date; completed_at: Date | null; total_minor: number; currency: string; minor_digits: number;
-    units: number; done: number; scrapped: number;
+    order_id: string; code: string; quote_code: string; promise_at: Date; completed_at: Date | null; total_minor: number; currency: string; minor_digits: number;
+    cost: unknown; units: number; done: number; scrapped: number;
   }>`
-    select o.code, q.code as quote_code, q.promise_at, q.total_minor, q.currency, q.minor_digits,
+    select o.id as order_id, o.code, q.code as quote_code, q.promise_at, q.total_minor, q.currency, q.minor_digits, q.cost,
       max(u.state_changed_at) filter (where u.state = 'done') as completed_at,
       count(u.id)::int as units,
       count(u.id) filter (where u.state = 'done')::int as done,
       count(u.id) filter (where u.state = 'scrapped')::int as scrapped
     from quotes q join orders o on o.id = q.order_id join parts p on p.order_id = o.id join units u on u.part_id = p.id
     where q.status = 'accepted'
-    group by o.code, q.code, q.promise_at, q.total_minor, q.currency, q.minor_digits
+    group by o.id, o.code, q.code, q.promise_at, q.total_minor, q.currency, q.minor_digits, q.cost
     having bool_and(u.state in ('done', 'scrapped'))
     order by max(u.state_changed_at) desc limit 50`.execute(db);
+  const quoted = new Map(finished.rows.map((r) => [r.order_id, quotedDirect(r.cost)]));
+  const actual = await actualCostsOf(db, finished.rows.map((r) => r.order_id), new Map([...quoted].flatMap(([k, v]) => (v ? [[k, v] as const] : []))));
   const sent = Number(counts.sent);
   const accepted = Number(counts.accepted);
   const decided = accepted + Number(counts.declined) + Number(counts.expired);
@@ -349,11 +447,18 @@ export async function quoteLearning(db: Db) {
     declined: Number(counts.declined),
     expired: Number(counts.expired),
     win_rate: decided ? accepted / decided : null,
-    finished: finished.rows.map((r) => ({
-      order_code: r.code, quote_code: r.quote_code, promise_at: r.promise_at, completed_at: r.completed_at,
-      late_minutes: r.completed_at && r.promise_at ? Math.round((new Date(r.completed_at).getTime() - new Date(r.promise_at).getTime()) / 60_000) : null,
-      quoted_total_minor: Number(r.total_minor), currency: r.currency, minor_digits: r.minor_digits,
-      units: r.units, done: r.done, scrapped: r.scrapped,
-    })),
+    finished: finished.rows.map((r) => {
+      const a = actual.get(r.order_id) ?? null;
+      const qd = quoted.get(r.order_id)?.direct_minor ?? null;
+      return {
+        order_code: r.code, quote_code: r.quote_code, promise_at: r.promise_at, completed_at: r.completed_at,
+        late_minutes: r.completed_at && r.promise_at ? Math.round((new Date(r.completed_at).getTime() - new Date(r.promise_at).getTime()) / 60_000) : null,
+        quoted_total_minor: Number(r.total_minor), currency: r.currency, minor_digits: r.minor_digits,
+        quoted_direct_minor: qd,
+        actual_direct_minor: a?.total_minor ?? null,
+        actual_figures: a?.figures ?? [],
+        units: r.units, done: r.done, scrapped: r.scrapped,
+      };
+    }),
   };
 }
