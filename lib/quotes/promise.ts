@@ -339,15 +339,15 @@ function plan(input: PromiseInput): PromiseResult {
   const lanes = Math.max(1, Math.floor(input.finishing_lanes));
   const work = (t: number, minutes: number) => (cal ? cal.addWork(t, minutes * MIN) : t + minutes * MIN);
   // The machinists as one pool working `lanes` minutes per staffed minute, first come first
-  // served: a pool of equal servers is work-conserving, so its backlog only grows with the work
-  // released ahead, which keeps the date monotone (Kleinrock, Queueing Systems vol. 1, 1975, the
-  // single-server FIFO queue: a departure never comes earlier when an arrival or a job is added).
+  // served. The pool never idles while released work waits, so more work released ahead, a
+  // later release or fewer machinists can only make it free later: the date stays monotone.
   const ahead = input.finishing_queue.filter((j) => j.release <= release && j.minutes > 0).sort((a, b) => a.release - b.release);
   let poolFree = now;
   let queuedAhead = 0;
   for (const j of ahead) {
     poolFree = work(Math.max(poolFree, j.release), j.minutes / lanes);
     queuedAhead += j.minutes;
+    if (poolFree > limit) throw new Infeasible("finishing", `The finishing queue ahead runs past the ${input.horizon_days}-day planning horizon.`);
   }
   const lotMinutes = unit.finishing_minutes * input.finish_quantity;
   // A unit is one machinist's work: the lot takes ⌈units / machinists⌉ units' time at least.

@@ -3,6 +3,7 @@ import { describe, expect, it } from "vitest";
 import { maxQuantityBy, planPromise, type PromiseInput, type PromiseOpenRun } from "@/lib/quotes/promise";
 import { packTrays } from "@/lib/packing/trays";
 import { isStaffed } from "@/lib/process/time-zone";
+import { finishingQueue } from "@/lib/quotes/finishing-queue";
 
 const H = 3_600_000;
 const NOW = Date.parse("2026-12-07T08:00:00Z"); // a Monday
@@ -163,6 +164,13 @@ describe("capable-to-promise", () => {
     expect(two.feasible && two.completion).toBe("2026-12-14T06:50:00.000Z");
   });
 
+  it("says so when the finishing queue alone runs past the horizon", () => {
+    // 60 days × 16 h at most are staffed in the 60-day horizon; 1000 h of work cannot fit.
+    const r = planPromise(base({ finishing_queue: [{ release: NOW, minutes: 1000 * 60 }] }));
+    expect(r).toMatchObject({ feasible: false, step: "finishing" });
+    if (!r.feasible) expect(r.reason).toMatch(/60-day planning horizon/);
+  });
+
   it("work released after the lot does not hold it up (first come, first served)", () => {
     const later = planPromise(base({ finishing_queue: [{ release: Date.parse("2026-12-14T06:00:00Z"), minutes: 100 * 60 }] }));
     expect(later.feasible && later.completion).toBe("2026-12-14T07:30:00.000Z");
@@ -211,5 +219,29 @@ describe("capable-to-promise", () => {
       const over = planPromise(base({ start_quantity: r.quantity + 1, finish_quantity: r.quantity + 1 }));
       expect(over.feasible && Date.parse(over.completion) <= deadline).toBe(false);
     }
+  });
+});
+
+describe("the finishing queue a promise plans behind", () => {
+  it("releases waiting units now and units in booked runs at the unload plus the lead time, grouped", () => {
+    // A run ending Sat 12 Dec 10:00 is unloaded at the next shift, Mon 14 Dec 06:00, and released 1440 min later.
+    const runEnd = Date.parse("2026-12-12T10:00:00Z");
+    const jobs = finishingQueue(
+      [
+        { released: true, run_ends_at: null, minutes: 30 },
+        { released: true, run_ends_at: null, minutes: 15 },
+        { released: false, run_ends_at: runEnd, minutes: 20 },
+        { released: false, run_ends_at: runEnd, minutes: 25 },
+        { released: false, run_ends_at: null, minutes: 99 }, // no run booked: not in the queue yet
+        { released: true, run_ends_at: null, minutes: 0 }, // nothing to finish
+      ],
+      NOW,
+      1440,
+      staffed,
+    );
+    expect(jobs).toEqual([
+      { release: NOW, minutes: 45 },
+      { release: Date.parse("2026-12-15T06:00:00Z"), minutes: 45 },
+    ]);
   });
 });
