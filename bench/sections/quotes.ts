@@ -40,11 +40,13 @@ function context(now: number): QuoteContext {
     tray_clearance_mm: 5,
     finishing_lead_minutes: 2880,
     // Three machinists; the 600 units of the open runs queue for finishing as their runs end,
-    // 40 machinist-minutes each, and 60 units are waiting now.
+    // 120 machinist-minutes each, and 60 units are waiting now. The quoted lot is released after
+    // the printers' backlog, when this queue has been worked off: the queue is walked in full
+    // but does not delay it (detail.finishing_wait_min).
     finishing_lanes: 3,
     finishing_queue: [
-      { release: now, minutes: 60 * 40 },
-      ...open_runs.map((r) => ({ release: r.ends_at + 2880 * 60_000, minutes: r.units.length * 40 })),
+      { release: now, minutes: 60 * 120 },
+      ...open_runs.map((r) => ({ release: r.ends_at + 2880 * 60_000, minutes: r.units.length * 120 })),
     ],
     printer_rates: new Map([["p0", 2600]]),
     furnace_rates: new Map([["F0", { run_cost_minor: 30000, gas_cost_minor: 9500, energy_cost_minor: null }]]),
