@@ -157,6 +157,54 @@ export async function materialOutcomes(db: Db): Promise<Map<string, { good: numb
   return new Map(rows.map((r) => [r.material_id, { good: Number(r.good), scrapped: Number(r.scrapped) }]));
 }
 
+/**
+ * Minutes each unit spent in finishing, from its recorded state changes: each stretch from a
+ * move into finishing to the next move out of it (done, held, scrapped or sent back); time on
+ * hold is not work.
+ */
+export async function recordedFinishingMinutes(db: Db, unitIds: string[]): Promise<Map<string, number>> {
+  const minutes = new Map<string, number>();
+  if (!unitIds.length) return minutes;
+  const events = await db.selectFrom("events").select(["entity_id", "to_state", "created_at"])
+    .where("entity", "=", "unit").where("kind", "=", "state").where("to_state", "in", ["finishing", "done", "on_hold", "scrapped", "ready_for_finishing"]).where("entity_id", "in", unitIds)
+    .orderBy("created_at").orderBy("id").execute();
+  const startedAt = new Map<string, number>();
+  for (const e of events) {
+    const t = new Date(e.created_at).getTime();
+    if (e.to_state === "finishing") startedAt.set(e.entity_id!, t);
+    else if (startedAt.has(e.entity_id!)) {
+      minutes.set(e.entity_id!, (minutes.get(e.entity_id!) ?? 0) + (t - startedAt.get(e.entity_id!)!) / 60_000);
+      startedAt.delete(e.entity_id!);
+    }
+  }
+  return minutes;
+}
+
+/** Recorded ÷ planned finishing minutes of the last 500 finished units whose parts carry finishing work. */
+async function finishingRatios(db: Db, minPerCm2: number): Promise<number[]> {
+  const done = await db
+    .selectFrom("units as u")
+    .innerJoin("parts as p", "p.id", "u.part_id")
+    .select([
+      "u.id", "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm", "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm",
+      "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm", "p.target_ra_um", "p.tolerance_um",
+    ])
+    .where("u.state", "=", "done")
+    .orderBy("u.state_changed_at", "desc")
+    .limit(500)
+    .execute();
+  const recorded = await recordedFinishingMinutes(db, done.map((u) => u.id));
+  return done.flatMap((u) => {
+    const planned = finishingMinutesPerUnit(
+      { x: num(u.nominal_x_mm), y: num(u.nominal_y_mm), z: num(u.nominal_z_mm) },
+      { x_neg: num(u.stock_x_neg_mm), x_pos: num(u.stock_x_pos_mm), y_neg: num(u.stock_y_neg_mm), y_pos: num(u.stock_y_pos_mm), z_neg: num(u.stock_z_neg_mm), z_pos: num(u.stock_z_pos_mm) },
+      numOrNull(u.target_ra_um), numOrNull(u.tolerance_um), minPerCm2,
+    );
+    const actual = recorded.get(u.id);
+    return planned > 0 && actual !== undefined && actual > 0 ? [actual / planned] : [];
+  });
+}
+
 /** Actual ÷ planned durations of finished builds, washes and furnace runs (the last 500 of each). */
 export async function durationRatios(db: Db): Promise<Record<"print" | "wash" | "furnace", number[]>> {
   const [builds, washes, runs] = await Promise.all([
@@ -194,7 +242,10 @@ export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteC
     db.selectFrom("maintenance_windows").select(["wash_station_id", "furnace_id", "starts_at", "ends_at"]).where("resource", "in", ["wash_station", "furnace"]).where("ends_at", ">", now).execute(),
     listFurnaceRuns(db, ctx, { states: ["scheduled"] }),
   ]);
-  const finishing = await loadFinishingQueue(db, now, ctx.finishing_lead_minutes, staffed, settings.finishing_min_per_cm2);
+  const [finishing, finishingRatioList] = await Promise.all([
+    loadFinishingQueue(db, now, ctx.finishing_lead_minutes, staffed, settings.finishing_min_per_cm2),
+    finishingRatios(db, settings.finishing_min_per_cm2),
+  ]);
   const intervals = (rows: { id: string | null; starts_at: Date | null; ends_at: Date | null }[], id: string): [number, number][] =>
     rows.filter((r) => r.id === id && r.starts_at && r.ends_at).map((r) => [new Date(r.starts_at!).getTime(), new Date(r.ends_at!).getTime()]);
   const washRows = [...washBusy.map((w) => ({ id: w.wash_station_id, starts_at: w.starts_at, ends_at: w.ends_at })), ...maint.map((m) => ({ id: m.wash_station_id, starts_at: m.starts_at, ends_at: m.ends_at }))];
@@ -223,8 +274,8 @@ export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteC
     print: spreadFrom(ratios.print, FALLBACK_P90_RATIO),
     wash: spreadFrom(ratios.wash, FALLBACK_P90_RATIO),
     furnace: spreadFrom(ratios.furnace, FALLBACK_P90_RATIO),
-    // Finishing is not booked, so there is nothing recorded to compare with.
-    finishing: spreadFrom([], FALLBACK_P90_RATIO),
+    // Finishing has no booking to compare with: its plan is the quote's own minutes per unit.
+    finishing: spreadFrom(finishingRatioList, FALLBACK_P90_RATIO),
   };
   return {
     now: now.getTime(),
@@ -332,7 +383,7 @@ export async function actualCostsOf(db: Db, orderIds: string[], quoted: Map<stri
   const washIds = ids("wash_batch_id");
   const runIds = ids("furnace_run_id");
   const unitIds = units.map((u) => u.id);
-  const [settings, equipment, materials, builds, washes, runs, events, inspections] = await Promise.all([
+  const [settings, equipment, materials, builds, washes, runs, finishingMin, inspections] = await Promise.all([
     getQuoteSettings(db),
     listEquipmentRates(db),
     listMaterialRates(db),
@@ -351,27 +402,13 @@ export async function actualCostsOf(db: Db, orderIds: string[], quoted: Map<stri
           .select(["r.id", "r.code", "r.furnace_id", "f.name as furnace_name", sql<number>`(select count(*) from units x where x.furnace_run_id = r.id)`.as("units_total")])
           .where("r.id", "in", runIds).execute()
       : [],
-    db.selectFrom("events").select(["entity_id", "to_state", "created_at"])
-      .where("entity", "=", "unit").where("kind", "=", "state").where("to_state", "in", ["finishing", "done", "on_hold", "scrapped", "ready_for_finishing"]).where("entity_id", "in", unitIds)
-      .orderBy("created_at").execute(),
+    recordedFinishingMinutes(db, unitIds),
     db.selectFrom("inspections").select(["unit_id", sql<number>`count(*)`.as("n")]).where("unit_id", "in", unitIds).groupBy("unit_id").execute(),
   ]);
   const rates = ratesOf(settings);
   const printerRate = new Map(equipment.printers.map((p) => [p.id, p.rate_minor_per_h]));
   const furnaceRate = new Map(equipment.furnaces.map((f) => [f.id, f]));
   const price = new Map(materials.map((m) => [m.id, m.feedstock_minor_per_kg]));
-  // Minutes in finishing per unit: each stretch from a move into finishing to the next move out
-  // of it (done, held, scrapped or sent back); time on hold is not work.
-  const finishingMin = new Map<string, number>();
-  const startedAt = new Map<string, number>();
-  for (const e of events) {
-    const t = new Date(e.created_at).getTime();
-    if (e.to_state === "finishing") startedAt.set(e.entity_id!, t);
-    else if (startedAt.has(e.entity_id!)) {
-      finishingMin.set(e.entity_id!, (finishingMin.get(e.entity_id!) ?? 0) + (t - startedAt.get(e.entity_id!)!) / 60_000);
-      startedAt.delete(e.entity_id!);
-    }
-  }
   const inspected = new Map(inspections.map((i) => [i.unit_id, Number(i.n)]));
   for (const orderId of orderIds) {
     const mine = units.filter((u) => u.order_id === orderId);
