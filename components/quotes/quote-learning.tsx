@@ -31,7 +31,7 @@ export function QuoteLearning() {
             <div><dt className="text-2xs text-soot-500">Win rate</dt><dd className="tabular font-semibold" data-testid="win-rate">{data.win_rate === null ? "—" : `${Math.round(data.win_rate * 100)} %`}</dd></div>
           </dl>
           {data.finished.length ? (
-            <div className="mt-3 overflow-x-auto">
+            <div className="mt-3 overflow-x-auto" tabIndex={0} role="region" aria-label="Finished orders from quotes">
               <table className="w-full text-xs">
                 <caption className="sr-only">Finished orders from quotes</caption>
                 <thead className="text-left text-soot-500"><tr><th scope="col" className="py-1 pr-2">Order</th><th scope="col" className="py-1 pr-2">Quoted</th><th scope="col" className="py-1 pr-2">Cost quoted / actual</th><th scope="col" className="py-1 pr-2">Good / started</th><th scope="col" className="py-1 pr-2">Promised</th><th scope="col" className="py-1 pr-2">Finished</th><th scope="col" className="py-1 text-right">Late by</th></tr></thead>
