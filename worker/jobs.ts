@@ -6,6 +6,7 @@ import { advanceHandler } from "./handlers/advance";
 import { scaleUpHandler } from "./handlers/scale-up";
 import { drainOutbox, sendMailHandler } from "./handlers/send-mail";
 import { runSweep } from "./sweep";
+import { deliverDueWebhooks, webhookConfig } from "./webhooks";
 
 /** Runs `fn` every `seconds`, never two at once; resolves the returned stop() when the last run ends. */
 function every(seconds: number, name: string, fn: () => Promise<void>) {
@@ -56,10 +57,15 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
   const stopPump = every(cfg.mailPumpSeconds, "outbox", async () => {
     await drainOutbox(db, 200);
   });
+  const hooks = webhookConfig();
+  const stopWebhooks = every(Number(process.env.HEARTH_WEBHOOK_PUMP_SECONDS) || 2, "webhooks", async () => {
+    const r = await deliverDueWebhooks(db, hooks);
+    if (!cfg.quiet && (r.delivered || r.retry || r.failed)) console.log(`[worker] webhooks: ${r.delivered} delivered, ${r.retry} to retry, ${r.failed} given up`);
+  });
   console.log(
     `[worker] sweep every ${cfg.sweepSeconds} s, outbox every ${cfg.mailPumpSeconds} s, polling ${cfg.pollSeconds} s, batch ${cfg.batchSize} × ${cfg.concurrency}`,
   );
   return async () => {
-    await Promise.all([stopSweep(), stopPump()]);
+    await Promise.all([stopSweep(), stopPump(), stopWebhooks()]);
   };
 }

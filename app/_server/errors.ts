@@ -21,10 +21,14 @@ export function toErrorResponse(err: unknown): NextResponse<ErrorBody> {
     );
   }
   if (err instanceof AppError) {
-    return NextResponse.json(
+    const res = NextResponse.json(
       { error: { code: err.code, message: err.message, fieldErrors: err.fieldErrors, details: err.details } },
       { status: err.status },
     );
+    // RFC 9110 §10.2.3: a 429 that knows the wait says it in Retry-After (seconds).
+    const wait = Number(err.details?.retry_after_s);
+    if (err.status === 429 && Number.isFinite(wait) && wait > 0) res.headers.set("Retry-After", String(Math.ceil(wait)));
+    return res;
   }
   const pgCode = (err as { code?: string } | null)?.code;
   if (pgCode === "23P01") {

@@ -7,6 +7,8 @@ import { findActiveUserById, type CurrentUser } from "@/db/users/reads";
 import { AppError } from "@/lib/errors";
 import { can, type Permission } from "@/lib/auth/permissions";
 import { clientAddress } from "@/lib/auth/throttle";
+import { actorCan } from "@/lib/auth/api-scopes";
+import { authenticateBearer, currentBearer } from "@/app/_server/api-token-auth";
 
 export type { CurrentUser };
 
@@ -97,6 +99,15 @@ async function renewIfDue(now = Date.now()): Promise<void> {
 
 /** For route handlers and server actions: 401 when signed out, 403 without the permission. */
 export async function requireUser(permission?: Permission): Promise<CurrentUser> {
+  // A bearer token replaces the cookie (app/_server/api-token-auth.ts): same checks, narrowed by its scopes.
+  const bearer = await currentBearer();
+  if (bearer !== null) {
+    const tokenUser = await authenticateBearer(bearer);
+    if (permission && !actorCan(tokenUser, permission)) {
+      throw new AppError("forbidden", `This API token may not do this: it needs "${permission}", which its scopes or its creator's role do not give.`);
+    }
+    return tokenUser;
+  }
   const user = await getCurrentUser();
   if (!user) throw new AppError("unauthenticated", "Sign in to continue.");
   if (permission && !can(user.role, permission)) {

@@ -38,6 +38,12 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/users": { GET: "users:admin", POST: "users:admin" },
   "/api/users/[id]": { GET: "users:admin", PATCH: "users:admin" },
   "/api/users/[id]/link": { POST: "users:admin" },
+  "/api/api-tokens": { GET: "users:admin", POST: "users:admin" },
+  "/api/api-tokens/[id]": { DELETE: "users:admin" },
+  "/api/webhooks": { GET: "setup:write", POST: "setup:write" },
+  "/api/webhooks/[id]": { PATCH: "setup:write" },
+  "/api/webhooks/[id]/deliveries": { GET: "setup:write" },
+  "/api/webhook-deliveries/[id]/redeliver": { POST: "setup:write" },
 
   // set-up
   "/api/furnaces": { GET: "shop:read", POST: "setup:write" },

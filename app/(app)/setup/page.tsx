@@ -18,6 +18,7 @@ const SECTIONS: Section[] = [
   { title: "Sinter profiles", href: "/setup/profiles", lead: "Ramp, hold and cool-down segments, atmosphere and compatible materials." },
   { title: "Shrinkage calibration", href: "/finishing/calibration", lead: "Realized shrinkage from inspections per material, and the suggested factors to apply." },
   { title: "Shop settings", href: "/setup/settings", lead: "Shop name, time zone, staffed hours and planning margins." },
+  { title: "API tokens", href: "/setup/tokens", lead: "Scoped tokens for other programs to call Hearth's API; shown once, revocable, rate-limited." },
   { title: "Background jobs", href: "/setup/jobs", lead: "The worker's queues, failed jobs and its last sweep for bookings whose end went by." },
 ];
 
