@@ -86,7 +86,10 @@ begin
     when new.entity = 'build' and new.to_state = 'scheduled' and new.from_state is distinct from 'scheduled' then 'build.scheduled'
     when new.entity = 'build' and new.to_state = 'running' and new.from_state is distinct from 'running' then 'build.started'
     when new.entity = 'build' and new.to_state = 'complete' and new.from_state is distinct from 'complete' then 'build.finished'
-    when new.entity = 'furnace_run' and new.to_state = 'complete' and new.from_state is distinct from 'complete' then 'furnace_run.finished'
+    -- out of the furnace (by the worker at the run's end, or unloaded straight from running)
+    when new.entity = 'furnace_run' and new.to_state = 'complete' and new.from_state = 'running' then 'furnace_run.finished'
+    -- the operator recorded each unit's outcome after the run had already finished
+    when new.entity = 'furnace_run' and new.kind = 'unload' then 'furnace_run.unloaded'
     when new.entity = 'unit' and new.kind = 'state' and new.to_state = 'ready_for_finishing' then 'unit.ready_for_finishing'
     when new.entity = 'unit' and new.kind = 'state' and new.to_state = 'scrapped' then 'unit.scrapped'
     when new.entity = 'unit' and new.kind = 'inspection' then 'inspection.recorded'

@@ -18,6 +18,7 @@ export const WEBHOOK_EVENT_TYPES = [
   "build.started",
   "build.finished",
   "furnace_run.finished",
+  "furnace_run.unloaded",
   "unit.ready_for_finishing",
   "unit.scrapped",
   "inspection.recorded",
@@ -28,8 +29,13 @@ export function newWebhookSecret(): string {
   return `whsec_${randomBytes(24).toString("base64url")}`;
 }
 
+/** Hex HMAC-SHA256 of a UTF-8 message. */
+export function hmacSha256Hex(key: string, message: string): string {
+  return createHmac("sha256", key).update(message, "utf8").digest("hex");
+}
+
 export function signatureOf(secret: string, timestamp: number, body: string): string {
-  return createHmac("sha256", secret).update(`${timestamp}.${body}`, "utf8").digest("hex");
+  return hmacSha256Hex(secret, `${timestamp}.${body}`);
 }
 
 export function signatureHeader(secret: string, timestamp: number, body: string): string {

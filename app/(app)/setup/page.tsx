@@ -19,6 +19,7 @@ const SECTIONS: Section[] = [
   { title: "Shrinkage calibration", href: "/finishing/calibration", lead: "Realized shrinkage from inspections per material, and the suggested factors to apply." },
   { title: "Shop settings", href: "/setup/settings", lead: "Shop name, time zone, staffed hours and planning margins." },
   { title: "API tokens", href: "/setup/tokens", lead: "Scoped tokens for other programs to call Hearth's API; shown once, revocable, rate-limited." },
+  { title: "Webhooks", href: "/setup/webhooks", lead: "Signed notices to other programs when orders, builds, furnace runs, units and inspections change; delivery log." },
   { title: "Background jobs", href: "/setup/jobs", lead: "The worker's queues, failed jobs and its last sweep for bookings whose end went by." },
 ];
 
