@@ -23,7 +23,7 @@ import { bin, startApp, stopProcs, waitFor, type Proc } from "../scripts/stack";
 import { launchChromium } from "../scripts/chromium";
 import type { BenchRow, BenchSection } from "./types";
 import { mulberry32 } from "@/lib/random";
-import { FLOOR_DATA_MARK } from "@/components/floor/opening-week";
+import { FLOOR_DATA_MARK, floorUrl, openingWeek } from "@/components/floor/opening-week";
 
 const N_BUILDS = Number(process.env.HEARTH_BENCH_FLOOR_BUILDS ?? 10_000);
 const EXTRA_PRINTERS = 24;
@@ -51,7 +51,7 @@ const pct = (xs: number[], p: number) => {
 };
 const r1 = (x: number) => Math.round(x * 10) / 10;
 
-export async function freshDatabase(): Promise<{ url: string; drop: () => Promise<void> }> {
+export async function freshDatabase(dbName = DB_NAME): Promise<{ url: string; drop: () => Promise<void> }> {
   const base = new URL(process.env.DATABASE_URL ?? "postgres://postgres@127.0.0.1:54329/hearth");
   const admin = new URL(base);
   admin.pathname = "/postgres";
@@ -64,22 +64,19 @@ export async function freshDatabase(): Promise<{ url: string; drop: () => Promis
       await c.end();
     }
   };
-  await run(`drop database if exists "${DB_NAME}" with (force)`);
-  await run(`create database "${DB_NAME}"`);
+  await run(`drop database if exists "${dbName}" with (force)`);
+  await run(`create database "${dbName}"`);
   const url = new URL(base);
-  url.pathname = `/${DB_NAME}`;
-  return { url: url.toString(), drop: () => run(`drop database if exists "${DB_NAME}" with (force)`) };
+  url.pathname = `/${dbName}`;
+  return { url: url.toString(), drop: () => run(`drop database if exists "${dbName}" with (force)`) };
 }
 
-/** Start of the current week (Sunday 00:00 UTC, as the floor's week view in a UTC browser). */
-function weekStart(t: number): number {
-  const d = new Date(t);
-  d.setUTCHours(0, 0, 0, 0);
-  return d.getTime() - d.getUTCDay() * 24 * HOUR;
-}
+/** The floor's week around an instant: Sunday to Sunday in the shop's zone, as its week view shows it. */
+const weekAround = (t: number, timeZone: string) => openingWeek(timeZone, new Date(t));
 
-export async function seedFloor(db: Database): Promise<{ from: number; printers: number; builds: number }> {
+export async function seedFloor(db: Database, nBuilds = N_BUILDS): Promise<{ from: number; timeZone: string; printers: number; builds: number }> {
   await seedDemoShop(db);
+  const { time_zone: timeZone } = await db.selectFrom("shop_settings").select("time_zone").where("id", "=", 1).executeTakeFirstOrThrow();
   const rand = rng(5);
   const materials = await db.selectFrom("materials").select("id").execute();
   const printerRows = await db
@@ -95,9 +92,9 @@ export async function seedFloor(db: Database): Promise<{ from: number; printers:
   // Lanes filled back to back (with short gaps) from ten weeks ago, the emptiest lane first,
   // so that every week of the twenty holds about the same number of bookings.
   const now = Date.now();
-  const from = weekStart(now) - 10 * WEEK;
+  const from = Date.parse(weekAround(now - 10 * WEEK, timeZone).from);
   const span = WEEKS * WEEK;
-  const perLane = (N_BUILDS - existing.rows[0].n) / lanes.length;
+  const perLane = (nBuilds - existing.rows[0].n) / lanes.length;
   const meanSlot = span / perLane;
   const cursor = new Map(lanes.map((l) => [l.id, from + rand() * meanSlot]));
   // The seed's own bookings sit around now on its four printers; keep the bench's clear of them.
@@ -105,7 +102,7 @@ export async function seedFloor(db: Database): Promise<{ from: number; printers:
   const clash = (pid: string, s: number, e: number) => seeded.some((b) => b.printer_id === pid && b.starts_at!.getTime() < e && b.ends_at!.getTime() > s);
   const rows: Array<Record<string, unknown>> = [];
   let seq = 0;
-  while (rows.length < N_BUILDS - existing.rows[0].n) {
+  while (rows.length < nBuilds - existing.rows[0].n) {
     let lane = lanes[0].id;
     for (const l of lanes) if (cursor.get(l.id)! < cursor.get(lane)!) lane = l.id;
     const start = Math.round(cursor.get(lane)! / 60_000) * 60_000;
@@ -136,10 +133,10 @@ export async function seedFloor(db: Database): Promise<{ from: number; printers:
   }
   await sql`analyze`.execute(db);
   const total = await sql<{ n: number }>`select count(*)::int as n from builds`.execute(db);
-  return { from, printers: lanes.length, builds: total.rows[0].n };
+  return { from, timeZone, printers: lanes.length, builds: total.rows[0].n };
 }
 
-function ensureBuild(): string {
+export function ensureBuild(): string {
   const given = process.env.HEARTH_BENCH_NEXT_DIR;
   if (given && fs.existsSync(path.join(given, "BUILD_ID"))) return given;
   const dir = ".next-bench";
@@ -233,8 +230,9 @@ export const section: BenchSection = {
       await waitFor(`${base}/sign-in`, 90_000, (s) => s === 200);
       const cookie = await signIn(base);
 
-      const weeks = Array.from({ length: WEEKS }, (_, k) => seeded.from + k * WEEK);
-      const paths = weeks.map((w) => `/api/floor?from=${new Date(w).toISOString()}&to=${new Date(w + WEEK).toISOString()}`);
+      // Mid-week instants, so that a daylight-saving change cannot land one in the wrong week.
+      const weeks = Array.from({ length: WEEKS }, (_, k) => weekAround(seeded.from + k * WEEK + 3 * 24 * HOUR, seeded.timeZone));
+      const paths = weeks.map(floorUrl);
       const sample = await (await fetch(`${base}${paths[10]}`, { headers: { cookie } })).json();
       const perWeek = sample.events.length;
       const encoding = (await fetch(`${base}${paths[10]}`, { headers: { cookie, "accept-encoding": BROWSER_ACCEPT_ENCODING } })).headers.get("content-encoding");
@@ -264,8 +262,25 @@ export const section: BenchSection = {
         detail: { load_average_1m: r1(os.loadavg()[0]), p50_ms: r1(pct(plain.times, 50)), p99_ms: r1(pct(plain.times, 99)), req_per_s: r1(plain.res.requests.average), non2xx: plain.res.non2xx, errors: plain.res.errors },
       });
 
+      // The same first render with the static files left to Next.js: does the web server's own
+      // static-file path (app/_server/static-assets.ts) still earn its place?
+      await stopProcs(procs);
+      procs = [startApp(PORT, { ...env, HEARTH_STATIC_FROM_MEMORY: "0" }, true)];
+      await waitFor(`${base}/sign-in`, 90_000, (s) => s === 200);
+      const plainRender = await firstRender(base, cookie);
+      await stopProcs(procs);
+      procs = [startApp(PORT, env, true)];
+      await waitFor(`${base}/sign-in`, 90_000, (s) => s === 200);
+
       const render = await firstRender(base, cookie);
       const median = pct(render.ms, 50);
+      rows.push({
+        section: "floor",
+        name: `first render of /floor week view, static files served by Next.js (HEARTH_STATIC_FROM_MEMORY=0), for comparison`,
+        metric: `ms to all events drawn (median of ${RENDER_RUNS})`,
+        value: Math.round(pct(plainRender.ms, 50)),
+        detail: { load_average_1m: r1(os.loadavg()[0]), runs_ms: plainRender.ms.map(Math.round), data_in_hand_ms: plainRender.dataMs.map(Math.round) },
+      });
       rows.push({
         section: "floor",
         name: `first render of /floor week view (${render.events} events), headless Chromium`,

@@ -20,6 +20,8 @@ import type { BenchRow, BenchSection } from "./types";
 import { section as workerSection } from "./worker-bench";
 import { section as floorSection } from "./floor-bench";
 import { section as batchesSection } from "./batches-bench";
+import { section as binPackingSection } from "./bin-packing-bench";
+import { section as liveSection } from "./live-bench";
 
 const round = (x: number, digits = 3) => Math.round(x * 10 ** digits) / 10 ** digits;
 const mean = (xs: number[]) => xs.reduce((s, x) => s + x, 0) / xs.length;
@@ -184,7 +186,7 @@ const planning: BenchSection = {
 };
 
 /** Add sections here, or drop a bench/sections/<name>.ts that exports `section: BenchSection`. */
-export const SECTIONS: BenchSection[] = [geometry, packing, planning, workerSection, floorSection, batchesSection];
+export const SECTIONS: BenchSection[] = [geometry, packing, binPackingSection, planning, workerSection, floorSection, batchesSection, liveSection];
 
 async function discoverSections(): Promise<BenchSection[]> {
   const dir = path.join(path.dirname(new URL(import.meta.url).pathname), "sections");

@@ -9,6 +9,8 @@ export type BatchProposalStatus = "applied" | "open" | "refused";
 
 export type BookingState = "cancelled" | "complete" | "draft" | "running" | "scheduled";
 
+export type FeedstockLotState = "consumed" | "quarantine" | "rejected" | "released";
+
 export type FileKind = "attachment" | "geometry";
 
 export type FileStatus = "analysing" | "done" | "failed" | "queued";
@@ -105,6 +107,7 @@ export interface Builds {
   est_minutes: Numeric | null;
   failed: Generated<boolean>;
   failure_reason: string | null;
+  feedstock_lot_id: string | null;
   finished_at: Timestamp | null;
   id: Generated<string>;
   material_id: string;
@@ -131,6 +134,47 @@ export interface Events {
   kind: string;
   reason: string | null;
   to_state: string | null;
+}
+
+export interface FeedstockDraws {
+  build_id: string;
+  corrected_at: Timestamp | null;
+  correction_note: string | null;
+  created_at: Generated<Timestamp>;
+  created_by: string | null;
+  drawn_g: Numeric;
+  estimated_g: Numeric;
+  id: Generated<string>;
+  lot_id: string;
+}
+
+export interface FeedstockForms {
+  created_at: Generated<Timestamp>;
+  id: Generated<string>;
+  name: string;
+}
+
+export interface FeedstockLots {
+  certificate_file_id: string | null;
+  code: string;
+  created_at: Generated<Timestamp>;
+  created_by: string | null;
+  expires_on: Timestamp | null;
+  form_id: string | null;
+  id: Generated<string>;
+  material_id: string;
+  quantity_g: Numeric;
+  recall_reason: string | null;
+  recalled_at: Timestamp | null;
+  received_on: Timestamp;
+  remaining_g: Numeric;
+  state: Generated<FeedstockLotState>;
+  state_reason: string | null;
+  storage_notes: Generated<string>;
+  supplier: string;
+  supplier_lot: string;
+  updated_at: Generated<Timestamp>;
+  version: Generated<number>;
 }
 
 export interface Files {
@@ -191,6 +235,16 @@ export interface Furnaces {
   version: Generated<number>;
 }
 
+export interface GasSupplies {
+  counted_at: Generated<Timestamp>;
+  counted_by: string | null;
+  gas: string;
+  id: Generated<string>;
+  note: Generated<string>;
+  on_hand_l: Numeric;
+  version: Generated<number>;
+}
+
 export interface InspectionFiles {
   file_id: string;
   inspection_id: string;
@@ -246,12 +300,17 @@ export interface Materials {
   default_profile_id: string | null;
   green_density_g_cm3: Numeric;
   id: Generated<string>;
+  lead_time_days: Generated<number>;
   min_mass_loss: Numeric;
   name: string;
+  purge_g: Generated<Numeric>;
+  reorder_alerted_at: Timestamp | null;
+  reorder_point_g: Generated<Numeric>;
   shrink_xy: Numeric;
   shrink_z: Numeric;
   sintered_density_g_cm3: Numeric;
   solids_loading: Numeric;
+  support_allowance: Generated<Numeric>;
   theoretical_density_g_cm3: Numeric;
   updated_at: Generated<Timestamp>;
   version: Generated<number>;
@@ -390,9 +449,11 @@ export interface SinterProfiles {
   cool_rate_c_per_min: Numeric;
   cool_to_c: Generated<Numeric>;
   created_at: Generated<Timestamp>;
+  gas_flow_l_per_min: Generated<Numeric>;
   id: Generated<string>;
   name: string;
   notes: Generated<string>;
+  process_gas: Generated<string>;
   retired: Generated<boolean>;
   revision: Generated<number>;
   start_temp_c: Generated<Numeric>;
@@ -471,6 +532,9 @@ export interface WashStations {
   basket_x_mm: Numeric;
   basket_y_mm: Numeric;
   basket_z_mm: Numeric;
+  bath_alerted_at: Timestamp | null;
+  bath_binder_limit_g: Generated<Numeric>;
+  bath_changed_at: Generated<Timestamp>;
   capacity_units: number;
   created_at: Generated<Timestamp>;
   id: Generated<string>;
@@ -555,10 +619,14 @@ export interface DB {
   batch_proposals: BatchProposals;
   builds: Builds;
   events: Events;
+  feedstock_draws: FeedstockDraws;
+  feedstock_forms: FeedstockForms;
+  feedstock_lots: FeedstockLots;
   files: Files;
   furnace_profiles: FurnaceProfiles;
   furnace_runs: FurnaceRuns;
   furnaces: Furnaces;
+  gas_supplies: GasSupplies;
   inspection_files: InspectionFiles;
   inspections: Inspections;
   maintenance_windows: MaintenanceWindows;

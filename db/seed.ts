@@ -1,3 +1,6 @@
+import { sql, type Transaction } from "kysely";
+import type { DB } from "@/db/schema";
+import { estimateBuildDraws } from "@/db/inventory/reads";
 import type { Database } from "@/db/client";
 import { hashPassword } from "@/lib/auth/password";
 import type { Role } from "@/lib/auth/permissions";
@@ -30,7 +33,7 @@ type MaterialSeed = {
   fs: number; // fractional sintered density
   rhoT: number; // wrought density g/cm³ (REFERENCES: matweb / datasheets)
   zExtra: number; // extra Z shrinkage of extruded layers
-  profile: { code: string; name: string; atmosphere: string; segments: [number, number, number][]; cool: number };
+  profile: { code: string; name: string; atmosphere: string; gas: string; flow: number; segments: [number, number, number][]; cool: number };
 };
 
 const BINDER_DENSITY = 0.95; // g/cm³, a typical polymer binder
@@ -41,19 +44,19 @@ const WASH_MIN = 60;
 const MATERIALS: MaterialSeed[] = [
   {
     code: "17-4PH", name: "17-4 PH stainless", family: "precipitation-hardening stainless", phi: 0.6, fs: 0.97, rhoT: 7.78, zExtra: 0.012,
-    profile: { code: "174PH-std", name: "17-4 PH standard", atmosphere: "Ar / 3 % H₂ partial pressure", segments: [[5, 600, 60], [5, 1350, 120]], cool: 10 },
+    profile: { code: "174PH-std", name: "17-4 PH standard", atmosphere: "Ar / 3 % H₂ partial pressure", gas: "argon-hydrogen mix", flow: 8, segments: [[5, 600, 60], [5, 1350, 120]], cool: 10 },
   },
   {
     code: "316L", name: "316L stainless", family: "austenitic stainless", phi: 0.62, fs: 0.98, rhoT: 7.99, zExtra: 0.01,
-    profile: { code: "316L-std", name: "316L standard", atmosphere: "H₂ flowing", segments: [[5, 600, 60], [4, 1360, 150]], cool: 8 },
+    profile: { code: "316L-std", name: "316L standard", atmosphere: "H₂ flowing", gas: "hydrogen", flow: 12, segments: [[5, 600, 60], [4, 1360, 150]], cool: 8 },
   },
   {
     code: "H13", name: "H13 hot-work tool steel", family: "tool steel", phi: 0.6, fs: 0.98, rhoT: 7.8, zExtra: 0.014,
-    profile: { code: "H13-std", name: "H13 standard", atmosphere: "vacuum, Ar backfill", segments: [[5, 600, 60], [4, 1280, 90]], cool: 10 },
+    profile: { code: "H13-std", name: "H13 standard", atmosphere: "vacuum, Ar backfill", gas: "argon", flow: 2, segments: [[5, 600, 60], [4, 1280, 90]], cool: 10 },
   },
   {
     code: "A2", name: "A2 cold-work tool steel", family: "tool steel", phi: 0.58, fs: 0.97, rhoT: 7.86, zExtra: 0.015,
-    profile: { code: "A2-std", name: "A2 standard", atmosphere: "vacuum, N₂ backfill", segments: [[5, 550, 60], [4, 1260, 90]], cool: 10 },
+    profile: { code: "A2-std", name: "A2 standard", atmosphere: "vacuum, N₂ backfill", gas: "nitrogen", flow: 2, segments: [[5, 550, 60], [4, 1260, 90]], cool: 10 },
   },
 ];
 
@@ -105,7 +108,10 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
     for (const m of MATERIALS) {
       const profile = await trx
         .insertInto("sinter_profiles")
-        .values({ code: m.profile.code, name: m.profile.name, atmosphere: m.profile.atmosphere, cool_rate_c_per_min: m.profile.cool, start_temp_c: 20, cool_to_c: 100 })
+        .values({
+          code: m.profile.code, name: m.profile.name, atmosphere: m.profile.atmosphere, cool_rate_c_per_min: m.profile.cool, start_temp_c: 20, cool_to_c: 100,
+          process_gas: m.profile.gas, gas_flow_l_per_min: m.profile.flow,
+        })
         .returning("id")
         .executeTakeFirstOrThrow();
       await trx
@@ -126,6 +132,8 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
           wash_k_min_per_mm2: WASH_K, wash_min_minutes: WASH_MIN,
           min_mass_loss: 0.035,
           default_profile_id: profile.id,
+          // the demo shop's own allowances and reorder rule (invented)
+          support_allowance: 0.15, purge_g: 25, reorder_point_g: m.code === "A2" ? 6000 : 4000, lead_time_days: m.code === "A2" ? 21 : 10,
         })
         .returning("id")
         .executeTakeFirstOrThrow();
@@ -440,6 +448,67 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
       }
     }
     if (eventsRows.length) await trx.insertInto("events").values(eventsRows).execute();
+    await seedFeedstock(trx, { now, materialIds, userId: userId("technician") });
     return { units: unitCount, orders: orderCount };
   });
+}
+
+/**
+ * The demo shop's shelf (invented suppliers and lots): a released lot per material with plenty
+ * left, a second lot in quarantine, an A2 lot close to expiry, and the draws of the builds the
+ * seed already started, so genealogy and the projection have something to show.
+ */
+async function seedFeedstock(trx: Transaction<DB>, ctx: { now: Date; materialIds: Record<string, string>; userId: string }) {
+  const forms = await trx
+    .insertInto("feedstock_forms")
+    .values(["spool 1 kg", "spool 3 kg", "rod cartridge", "pellets 5 kg bag"].map((name) => ({ name })))
+    .returning(["id", "name"])
+    .execute();
+  const form = (name: string) => forms.find((f) => f.name === name)!.id;
+  const day = (offset: number) => new Date(ctx.now.getTime() + offset * DAY).toISOString().slice(0, 10);
+  const lots: Array<{ mat: string; supplier: string; lot: string; form: string; received: number; expires: number | null; kg: number; state: "released" | "quarantine" }> = [
+    { mat: "17-4PH", supplier: "Northgate Powders", lot: "NG-174-2611-A", form: "spool 3 kg", received: -40, expires: 320, kg: 30, state: "released" },
+    { mat: "17-4PH", supplier: "Northgate Powders", lot: "NG-174-2612-B", form: "spool 3 kg", received: -2, expires: 360, kg: 18, state: "quarantine" },
+    { mat: "316L", supplier: "Calder Feedstock Co.", lot: "CF-316-0921", form: "rod cartridge", received: -55, expires: 250, kg: 24, state: "released" },
+    { mat: "H13", supplier: "Northgate Powders", lot: "NG-H13-2610", form: "spool 1 kg", received: -70, expires: 200, kg: 12, state: "released" },
+    { mat: "A2", supplier: "Ostrava Binder Works", lot: "OBW-A2-118", form: "pellets 5 kg bag", received: -150, expires: 12, kg: 10, state: "released" },
+  ];
+  // the released lots were received with what the started builds drew plus what is left now
+  const started = await trx.selectFrom("builds").select(["id", "material_id"]).where("state", "in", ["running", "complete"]).where("failed", "=", false).execute();
+  const estimates = await estimateBuildDraws(trx, { buildIds: started.map((b) => b.id) });
+  const drawnOf = (mat: string) => started.filter((b) => b.material_id === ctx.materialIds[mat]).reduce((sum, b) => sum + (estimates.get(b.id)?.total_g ?? 0), 0);
+  const rows: Array<{ id: string; material_id: string; state: string }> = [];
+  for (const [i, l] of lots.entries()) {
+    const drawn = l.state === "released" ? Math.round(drawnOf(l.mat) * 10) / 10 : 0;
+    rows.push(
+      await trx
+        .insertInto("feedstock_lots")
+        .values({
+          code: `FL-${String(i + 1).padStart(5, "0")}`, material_id: ctx.materialIds[l.mat], supplier: l.supplier, supplier_lot: l.lot, form_id: form(l.form),
+          received_on: day(l.received), expires_on: l.expires === null ? null : day(l.expires), quantity_g: l.kg * 1000 + drawn, remaining_g: l.kg * 1000, state: l.state,
+          storage_notes: l.form.startsWith("pellets") ? "Sealed bag with desiccant, dry cabinet 2" : "Dry cabinet 1, keep sealed between builds", created_by: ctx.userId,
+        })
+        .returning(["id", "material_id", "state"])
+        .executeTakeFirstOrThrow(),
+    );
+  }
+  await sql`select setval('feedstock_lot_code_seq', ${lots.length})`.execute(trx);
+  for (const b of started) {
+    const lot = rows.find((r) => r.material_id === b.material_id && r.state === "released");
+    const est = estimates.get(b.id);
+    if (!lot || !est) continue;
+    await trx.insertInto("feedstock_draws").values({ lot_id: lot.id, build_id: b.id, estimated_g: est.total_g, drawn_g: est.total_g, created_by: ctx.userId }).execute();
+    await trx.updateTable("builds").set({ feedstock_lot_id: lot.id }).where("id", "=", b.id).execute();
+  }
+  // the baths were last changed a fortnight ago, so the washes since show on the gauges
+  await trx.updateTable("wash_stations").set({ bath_changed_at: new Date(ctx.now.getTime() - 14 * DAY), bath_binder_limit_g: 1500 }).execute();
+  await trx
+    .insertInto("gas_supplies")
+    .values([
+      { gas: "argon-hydrogen mix", on_hand_l: 60_000, note: "6 cylinders of 10 000 L", counted_by: ctx.userId },
+      { gas: "hydrogen", on_hand_l: 9_000, note: "1 bundle, gauge reading", counted_by: ctx.userId },
+      { gas: "argon", on_hand_l: 40_000, note: "4 cylinders", counted_by: ctx.userId },
+      { gas: "nitrogen", on_hand_l: 100_000, note: "liquid tank, gauge reading", counted_by: ctx.userId },
+    ])
+    .execute();
 }

@@ -12,6 +12,7 @@ import next from "next";
 import { closeDb, getDb } from "@/db/client";
 import { answerFloorWindow } from "@/app/_server/floor-window-direct";
 import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
+import { liveHub } from "@/app/_server/live-hub";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const port = Number(process.env.PORT ?? 3000);
@@ -21,12 +22,13 @@ async function main() {
   const app = next({ dev: false, dir: root, hostname, port });
   await app.prepare();
   const handle = app.getRequestHandler();
-  const assets = new StaticAssets(path.resolve(root, process.env.NEXT_DIST_DIR || ".next", "static"));
+  // HEARTH_STATIC_FROM_MEMORY=0 leaves the static files to Next.js (the floor benchmark measures both).
+  const assets = process.env.HEARTH_STATIC_FROM_MEMORY === "0" ? null : new StaticAssets(path.resolve(root, process.env.NEXT_DIST_DIR || ".next", "static"));
   // Without a usable secret nothing can be answered directly; Next.js then reports the set-up error.
   const secret = process.env.SESSION_SECRET && process.env.SESSION_SECRET.length >= 32 ? process.env.SESSION_SECRET : null;
 
   const server = http.createServer((req, res) => {
-    const direct = req.url?.startsWith(STATIC_PREFIX)
+    const direct = assets && req.url?.startsWith(STATIC_PREFIX)
       ? assets.answer(req, res)
       : secret
         ? answerFloorWindow(req, res, getDb(), secret)
@@ -50,17 +52,25 @@ async function main() {
   server.listen(port, hostname, () => console.log(`[app] ready on http://${hostname}:${port}`));
   // Off the request path (the reads and gzip run on libuv's pool): the first page load then
   // finds its scripts ready too.
-  void assets.warm().catch((err: unknown) => console.error("[app] static files not preloaded:", err));
+  void assets?.warm().catch((err: unknown) => console.error("[app] static files not preloaded:", err));
+  // Live updates (app/api/events): listening from the start also keeps the floor's window cache
+  // in step with changes made by other instances and the worker.
+  liveHub().start();
 
   let stopping = false;
   const stop = async (signal: string) => {
     if (stopping) return;
     stopping = true;
     console.log(`[app] ${signal}: closing`);
+    // Open event streams never finish by themselves: end them now, and the browsers reconnect
+    // to another instance (or to this one once it is back).
+    const live = liveHub().shutdown();
     // Requests in flight may finish (five seconds at most); idle keep-alive connections go now.
     await new Promise<void>((resolve) => {
       server.close(() => resolve());
       server.closeIdleConnections();
+      // The ended streams' connections turn idle a moment later.
+      void live.then(() => setTimeout(() => server.closeIdleConnections(), 50));
       setTimeout(() => {
         server.closeAllConnections();
         resolve();

@@ -8,6 +8,12 @@ cd "$ROOT"
 slot="${HEARTH_TEST_SLOT:-0}"
 ensure_node_modules
 ensure_chromium
+# CI audits the production dependencies (npm run audit): a high or critical advisory fails the
+# run; a registry that does not answer is reported and the tests go on.
+if [ "${CI:-}" = "true" ]; then
+  log "auditing the production dependencies (npm audit --omit=dev)"
+  node_modules/.bin/tsx scripts/audit.ts
+fi
 # The tests get a cluster of their own, so that fsync=off never touches the shop's data.
 PG_DIR="${HEARTH_TEST_PG_DIR:-$DATA_DIR/pg-test}"
 PG_PORT="${HEARTH_TEST_PG_PORT:-$((PG_PORT + 1))}"

@@ -3,6 +3,7 @@ import { sql } from "kysely";
 import type { Database } from "@/db/client";
 import { advanceBooking } from "@/db/advance/commands";
 import { listDueBookings } from "@/db/advance/reads";
+import { checkStockAlerts } from "@/db/inventory/commands";
 import { recomputeScaleUp } from "./handlers/scale-up";
 import { drainOutbox } from "./handlers/send-mail";
 import { shuffled } from "./limit";
@@ -12,7 +13,7 @@ export type SweepResult = { advanced: number; rescaled: number; mail_sent: numbe
 /**
  * The safety net behind the jobs: advances bookings whose end passed without their job (a
  * worker died holding it, or nobody sent one), recomputes scale-ups older than their part or
- * material, and sends mail that is due. Several workers may sweep at once: bookings are locked
+ * material, mails feedstock reorder and bath change-out alerts once, and sends mail that is due. Several workers may sweep at once: bookings are locked
  * with SKIP LOCKED and every rule checks state first, so each change still happens once.
  */
 export async function runSweep(db: Database, boss: PgBoss, workerId: string, opts: { limit: number }): Promise<SweepResult> {
@@ -35,6 +36,11 @@ export async function runSweep(db: Database, boss: PgBoss, workerId: string, opt
       rescaled = (await recomputeScaleUp(db, { stale: 200 })).changed;
     } catch (err) {
       errors.push(`scale-up: ${err instanceof Error ? err.message : String(err)}`);
+    }
+    try {
+      await checkStockAlerts(db, boss);
+    } catch (err) {
+      errors.push(`stock alerts: ${err instanceof Error ? err.message : String(err)}`);
     }
     mailSent = (await drainOutbox(db, 200)).sent;
   } catch (err) {

@@ -1,18 +1,18 @@
 // GET /api/floor answered by the web server itself (scripts/serve.ts), before Next.js sees the
 // request. Every open floor polls its window every few seconds, and on a small shop server the
 // framework's per-request work costs more than the answer: the window comes from a cache, so
-// the rest is a cookie, one query and a write. Only the plain case is answered here: a valid,
-// not-yet-due-for-renewal session of an active user who may read the shop, and a well-formed
-// window. Anything else (signed out, refused, bad window, a cookie to renew, an error) returns
-// false and goes to the route handler, app/api/floor/route.ts, which holds the whole rule.
+// the rest is a cookie, one query and a write. Only the plain case is answered here: a well-formed
+// window and a session that app/_server/floor-access.ts allows (the rule the route handler uses
+// too) and that is not yet due for renewal. Anything else (signed out, refused, bad window, a
+// cookie to renew, an error) returns false and goes to the route handler, app/api/floor/route.ts,
+// which answers it in full.
 import type { IncomingMessage, ServerResponse } from "node:http";
 import { parse as parseCookies } from "cookie";
 import type { Database } from "@/db/client";
-import { floorViewerAndStamp, floorWindowBody } from "@/db/floor/reads";
-import { can } from "@/lib/auth/permissions";
+import { floorWindowBody } from "@/db/floor/reads";
 import { acceptsGzip } from "@/lib/http/accept-encoding";
-import { unsealSession } from "@/lib/auth/seal-cache";
-import { SESSION_COOKIE, renewalDue, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
+import { SESSION_COOKIE } from "@/lib/auth/session-config";
+import { authorizeFloorRead } from "@/app/_server/floor-access";
 import { floorWindowSchema } from "@/lib/floor/schemas";
 
 export const FLOOR_WINDOW_PATH = "/api/floor";
@@ -23,21 +23,13 @@ export async function answerFloorWindow(req: IncomingMessage, res: ServerRespons
   const q = req.url.indexOf("?");
   if ((q < 0 ? req.url : req.url.slice(0, q)) !== FLOOR_WINDOW_PATH) return false;
 
-  const seal = req.headers.cookie ? parseCookies(req.headers.cookie)[SESSION_COOKIE] : undefined;
-  if (!seal) return false;
-  let session: SessionData;
-  try {
-    session = await unsealSession(seal, secret, now);
-  } catch {
-    return false;
-  }
-  if (!session.userId || renewalDue(session, now)) return false;
-
   const w = floorWindowSchema.safeParse(Object.fromEntries(new URLSearchParams(q < 0 ? "" : req.url.slice(q + 1))));
   if (!w.success) return false;
 
-  const { viewer, stamp } = await floorViewerAndStamp(db, session.userId);
-  if (!viewer || !sessionIsLive(session, viewer.sessions_valid_after, now) || !can(viewer.role, "shop:read")) return false;
+  const seal = req.headers.cookie ? parseCookies(req.headers.cookie)[SESSION_COOKIE] : undefined;
+  const access = await authorizeFloorRead(db, seal, secret, now);
+  if (access.kind !== "allowed" || access.renewalDue) return false;
+  const stamp = access.stamp;
 
   const { bytes, headers } = (await floorWindowBody(db, w.data, stamp)).encoded(acceptsGzip(req.headers["accept-encoding"]));
   res.writeHead(200, headers);

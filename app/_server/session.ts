@@ -5,7 +5,7 @@ import { getIronSession, type SessionOptions } from "iron-session";
 import { getDb } from "@/db/client";
 import { findActiveUserById, type CurrentUser } from "@/db/users/reads";
 import { AppError } from "@/lib/errors";
-import { can, type Permission } from "@/lib/auth/permissions";
+import { can, type Permission, type Role } from "@/lib/auth/permissions";
 import { clientAddress } from "@/lib/auth/throttle";
 import { actorCan } from "@/lib/auth/api-scopes";
 import { authenticateBearer, currentBearer } from "@/app/_server/api-token-auth";
@@ -88,13 +88,18 @@ export const getCurrentUser = cache(async (): Promise<CurrentUser | null> => {
  * Slides the idle lifetime for API calls and server actions (proxy.ts does it for pages, where
  * a server component may not set cookies). At most once per renewal interval.
  */
-async function renewIfDue(now = Date.now()): Promise<void> {
+export async function renewIfDue(now = Date.now()): Promise<void> {
   const data = await readSession();
   if (!data || !renewalDue(data, now)) return;
   const session = await getSession();
   if (!session.userId) return;
   session.seenAt = now;
   await session.save();
+}
+
+/** The 403 a role without the permission gets from any API. */
+export function forbidden(role: Role, permission: Permission): AppError {
+  return new AppError("forbidden", `Your role (${role.replace("_", " ")}) may not do this: it needs "${permission}".`);
 }
 
 /** For route handlers and server actions: 401 when signed out, 403 without the permission. */
@@ -110,9 +115,7 @@ export async function requireUser(permission?: Permission): Promise<CurrentUser>
   }
   const user = await getCurrentUser();
   if (!user) throw new AppError("unauthenticated", "Sign in to continue.");
-  if (permission && !can(user.role, permission)) {
-    throw new AppError("forbidden", `Your role (${user.role.replace("_", " ")}) may not do this: it needs "${permission}".`);
-  }
+  if (permission && !can(user.role, permission)) throw forbidden(user.role, permission);
   await renewIfDue();
   return user;
 }

@@ -25,6 +25,7 @@ import type { Board, BoardActive, BoardFurnaceRun, BoardUnit, BoardWashBatch } f
 import { shopTime } from "./format";
 import { ApiError, getJson, sendJson } from "./client";
 import { BatchesQueryProvider } from "./query-provider";
+import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { SuggestPanel } from "./suggest-panel";
 import { RunTarget, WashTarget, type HoverVerdict } from "./targets";
 import { UnitCard, UnitCardBody, type DragData } from "./unit-card";
@@ -69,7 +70,7 @@ export function BatchesBoard(props: BatchesBoardProps) {
   );
 }
 
-function WaitingColumn({ lane, children, count }: { lane: Lane; children: React.ReactNode; count: number }) {
+function WaitingColumn({ lane, children, count, listed, total }: { lane: Lane; children: React.ReactNode; count: number; listed: number; total: number }) {
   const { setNodeRef, isOver } = useDroppable({ id: `waiting:${lane}` });
   return (
     <section
@@ -82,6 +83,11 @@ function WaitingColumn({ lane, children, count }: { lane: Lane; children: React.
         {lane === "furnace" ? "Waiting for a furnace" : "Waiting for a wash"} <span className="font-normal text-soot-500">({count})</span>
       </h2>
       <p className="mb-2 text-2xs text-soot-500">Most at risk first. Drop a unit back here to take it out of its {lane === "furnace" ? "run" : "batch"}.</p>
+      {total > listed ? (
+        <p className="mb-2 text-2xs text-soot-600" data-testid={`waiting-${lane}-more`}>
+          Listed: the {listed} most at risk of {total} waiting. Suggestions consider them all.
+        </p>
+      ) : null}
       <div className="flex max-h-[70vh] flex-col gap-1.5 overflow-y-auto pr-1">{children}</div>
     </section>
   );
@@ -89,7 +95,8 @@ function WaitingColumn({ lane, children, count }: { lane: Lane; children: React.
 
 function BoardInner({ role, unitPref }: BatchesBoardProps) {
   const qc = useQueryClient();
-  const board = useQuery({ queryKey: ["batches-board"], queryFn: () => getJson<Board>("/api/batches"), refetchInterval: 20_000 });
+  const poll = useLivePoll();
+  const board = useQuery({ queryKey: ["batches-board"], queryFn: () => getJson<Board>("/api/batches"), refetchInterval: poll(20_000) });
   const [lane, setLane] = useState<Lane>(role === "technician" ? "wash" : "furnace");
   const [flash, setFlash] = useState<Flash>(null);
   const [hover, setHover] = useState<HoverVerdict | null>(null);
@@ -287,6 +294,7 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
             </button>
           ))}
         </div>
+        <LiveIndicator />
         <div className="flex flex-wrap items-end gap-2 text-2xs text-soot-600">
           <label>
             Material
@@ -368,7 +376,12 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
         }}
       >
         <div className="grid gap-4 lg:grid-cols-[minmax(16rem,22rem)_1fr]">
-          <WaitingColumn lane={lane} count={waiting.length}>
+          <WaitingColumn
+            lane={lane}
+            count={waiting.length}
+            listed={lane === "furnace" ? data.furnace_waiting.length : data.wash_waiting.length}
+            total={lane === "furnace" ? data.furnace_waiting_total : data.wash_waiting_total}
+          >
             {waiting.length === 0 ? <p className="text-xs text-soot-500">Nothing waiting{filters.material || filters.profile || filters.due ? " that matches the filters" : ""}.</p> : null}
             {waiting.map((u) => (
               <UnitCard key={u.id} unit={u} from={{ kind: "waiting" }} lane={lane} timeZone={data.time_zone} unitPref={unitPref} profileLabel={profileName(u.profile_id)} disabled={!canLane} />

@@ -15,7 +15,12 @@ export type SuggestPanelProps = { board: Board; role: Role; profileId?: string; 
 
 export function SuggestPanel({ board, role, profileId, onClose, onApplied }: SuggestPanelProps) {
   const [error, setError] = useState<string | null>(null);
-  const suggest = useMutation({ mutationFn: () => sendJson<Proposal>("/api/batches/suggest", "POST", { wash: true, furnace: true, ...(profileId ? { profile_ids: [profileId] } : {}) }) });
+  // The packer searches for fewer runs within a time budget; "Search longer" asks again with more.
+  const [budgetMs, setBudgetMs] = useState(DEFAULT_BUDGET_MS);
+  const suggest = useMutation({
+    mutationFn: (budget: number) =>
+      sendJson<Proposal>("/api/batches/suggest", "POST", { wash: true, furnace: true, budget_ms: budget, ...(profileId ? { profile_ids: [profileId] } : {}) }),
+  });
   const apply = useMutation({
     mutationFn: (id: string) => sendJson<{ wash_batches: string[]; furnace_runs: string[] }>("/api/batches/suggest/apply", "POST", { proposal_id: id }),
     onSuccess: (r) => onApplied(`Booked ${r.furnace_runs.length} furnace run${r.furnace_runs.length === 1 ? "" : "s"} and ${r.wash_batches.length} wash batch${r.wash_batches.length === 1 ? "" : "es"}.`),
@@ -25,8 +30,17 @@ export function SuggestPanel({ board, role, profileId, onClose, onApplied }: Sug
   useEffect(() => {
     if (started.current) return;
     started.current = true;
-    suggest.mutate();
+    suggest.mutate(DEFAULT_BUDGET_MS);
   }, [suggest]);
+  const elapsed = useElapsed(suggest.isPending, suggest.submittedAt);
+  const searchLonger = () => {
+    const next = Math.min(MAX_BUDGET_MS, budgetMs * 4);
+    // The shorter search's proposal is replaced, so it is refused rather than left open.
+    if (p) void sendJson("/api/batches/suggest/refuse", "POST", { proposal_id: p.id, reason: "searched longer" }).catch(() => undefined);
+    setError(null);
+    setBudgetMs(next);
+    suggest.mutate(next);
+  };
 
   const p = suggest.data;
   const dismiss = () => {
@@ -53,7 +67,14 @@ export function SuggestPanel({ board, role, profileId, onClose, onApplied }: Sug
           Dismiss
         </button>
       </header>
-      {suggest.isPending ? <p className="mt-3 text-sm text-soot-500">Packing the waiting units…</p> : null}
+      {suggest.isPending ? (
+        <div className="mt-3 space-y-1" data-testid="suggest-progress">
+          <p className="text-sm text-soot-500" aria-live="polite">
+            Packing the waiting units… searching for fewer runs, {(elapsed / 1000).toFixed(1)} s of up to {(budgetMs / 1000).toFixed(budgetMs < 10_000 ? 1 : 0)} s
+          </p>
+          <progress className="h-1.5 w-full accent-clay-600" max={budgetMs} value={Math.min(elapsed, budgetMs)} aria-label="Search time used" />
+        </div>
+      ) : null}
       {suggest.isError ? <p role="alert" className="mt-3 text-sm text-oxide-700">{(suggest.error as Error).message}</p> : null}
       {p ? (
         <div className="mt-3 space-y-4">
@@ -67,6 +88,7 @@ export function SuggestPanel({ board, role, profileId, onClose, onApplied }: Sug
             <Metric label="Wash batches proposed" value={String(p.metrics.wash_batches)} note={`for ${p.metrics.wash_units} units`} />
             <Metric label="Open now" value={`${p.current.furnace_runs} runs · ${p.current.wash_batches} washes`} note={`worked out in ${p.server_ms} ms`} />
           </dl>
+          <SearchNote p={p} canExtend={budgetMs < MAX_BUDGET_MS} onLonger={searchLonger} busy={suggest.isPending} />
           {p.furnace.length ? <RunFillChart runs={p.furnace} /> : null}
           {p.furnace.length ? (
             <DiffTable
@@ -121,13 +143,54 @@ export function SuggestPanel({ board, role, profileId, onClose, onApplied }: Sug
             >
               {apply.isPending ? "Booking…" : "Accept and book"}
             </button>
-            <button type="button" onClick={() => (setError(null), suggest.mutate())} className="rounded-md border border-soot-200 px-3 py-1.5 text-sm text-soot-700 hover:bg-soot-100">
+            <button type="button" onClick={() => (setError(null), suggest.mutate(budgetMs))} className="rounded-md border border-soot-200 px-3 py-1.5 text-sm text-soot-700 hover:bg-soot-100">
               Suggest again
             </button>
           </div>
         </div>
       ) : null}
     </section>
+  );
+}
+
+const DEFAULT_BUDGET_MS = 1_000;
+/** The API's limit (lib/batches/schemas.ts). */
+const MAX_BUDGET_MS = 30_000;
+
+/** Milliseconds since `since` while `running`, updated ten times a second (0 otherwise). */
+function useElapsed(running: boolean, since: number): number {
+  const [now, setNow] = useState(0);
+  useEffect(() => {
+    if (!running) return;
+    const timer = setInterval(() => setNow(Date.now()), 100);
+    return () => clearInterval(timer);
+  }, [running]);
+  return running && since > 0 ? Math.max(0, now - since) : 0;
+}
+
+/** How far the proposal is from the bound, and whether a longer search could still help. */
+function SearchNote({ p, canExtend, onLonger, busy }: { p: Proposal; canExtend: boolean; onLonger: () => void; busy: boolean }) {
+  const s = p.metrics.search;
+  if (!p.metrics.lower_bound || !s) return null;
+  const gap = p.metrics.furnace_runs - p.metrics.lower_bound;
+  const searched = s.budget_ms ? ` The search took ${(s.ms / 1000).toFixed(1)} s of ${(s.budget_ms / 1000).toFixed(1)} s` : "";
+  const saved = s.start_runs > p.metrics.furnace_runs ? ` and saved ${s.start_runs - p.metrics.furnace_runs} run${s.start_runs - p.metrics.furnace_runs === 1 ? "" : "s"}.` : searched ? "." : "";
+  return (
+    <div className="flex flex-wrap items-center gap-3 rounded-md border border-soot-200 px-3 py-2 text-sm" data-testid="suggest-search">
+      <p className="text-soot-700">
+        <span className="tabular font-semibold">
+          Runs {p.metrics.furnace_runs}, lower bound {p.metrics.lower_bound}
+        </span>
+        {gap <= 0 ? " — no plan can use fewer runs." : ` — at most ${gap} run${gap === 1 ? "" : "s"} could still be saved (the bound may not be reachable).`}
+        {searched}
+        {saved}
+      </p>
+      {gap > 0 && s.stop !== "bound" && canExtend ? (
+        <button type="button" onClick={onLonger} disabled={busy} className="rounded-md border border-clay-300 px-3 py-1.5 text-sm text-clay-700 hover:bg-clay-50 disabled:opacity-50" data-testid="suggest-longer">
+          Search longer
+        </button>
+      ) : null}
+    </div>
   );
 }
 

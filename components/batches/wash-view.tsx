@@ -10,6 +10,7 @@ import { ApiError, getJson, sendJson } from "./client";
 import { duration, shopTime } from "./format";
 import { GaugeBar } from "./gauge";
 import { BatchesQueryProvider } from "./query-provider";
+import { useLivePoll } from "@/components/live/live-updates";
 
 type MassResult = { unit_id: string; serial: string; green_mass_g: number | null; brown_mass_g: number | null; loss_fraction: number | null; min_mass_loss: number; passed: boolean | null };
 type Detail = { batch: BoardWashBatch; masses: MassResult[]; station: BoardStation | null };
@@ -29,7 +30,8 @@ export function WashView(props: WashViewProps) {
 
 function WashViewInner({ batchId, role, timeZone }: WashViewProps) {
   const qc = useQueryClient();
-  const q = useQuery({ queryKey: ["wash-batch", batchId], queryFn: () => getJson<Detail>(`/api/wash-batches/${batchId}`), refetchInterval: 30_000 });
+  const poll = useLivePoll();
+  const q = useQuery({ queryKey: ["wash-batch", batchId], queryFn: () => getJson<Detail>(`/api/wash-batches/${batchId}`), refetchInterval: poll(30_000) });
   const [edits, setEdits] = useState<Record<string, { green?: string; brown?: string }>>({});
   const [flash, setFlash] = useState<{ tone: "danger" | "success"; text: string; fields?: Record<string, string[]> } | null>(null);
   const act = useMutation({

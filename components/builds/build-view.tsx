@@ -4,7 +4,7 @@ import Link from "next/link";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useState } from "react";
 import { ApiError, apiJson } from "@/components/floor/api";
-import { formatSlot, formatWhen, minutesLabel } from "@/components/floor/format";
+import { formatDay, formatSlot, formatWhen, minutesLabel } from "@/components/floor/format";
 import { PlateDrawing, type PlateDrawingProps } from "./plate-drawing";
 
 type Detail = {
@@ -20,11 +20,12 @@ type Detail = {
   history: { id: number; kind: string; from_state: string | null; to_state: string | null; reason: string | null; created_at: string; actor_name: string | null }[];
 };
 
-export type BuildViewProps = { buildId: string; canWrite: boolean };
+/** timeZone: the shop's, so the booking reads as it does on the floor. */
+export type BuildViewProps = { buildId: string; canWrite: boolean; timeZone: string };
 
 const STATE_WORDS: Record<string, string> = { draft: "draft: not on the floor", scheduled: "booked on a printer", running: "printing", complete: "complete", cancelled: "cancelled" };
 
-export function BuildView({ buildId, canWrite }: BuildViewProps) {
+export function BuildView({ buildId, canWrite, timeZone }: BuildViewProps) {
   const qc = useQueryClient();
   const q = useQuery({ queryKey: ["build", buildId], queryFn: ({ signal }) => apiJson<Detail>(`/api/builds/${buildId}`, { signal }), refetchInterval: 15_000 });
   const [message, setMessage] = useState<{ tone: "success" | "danger"; text: string } | null>(null);
@@ -94,13 +95,13 @@ export function BuildView({ buildId, canWrite }: BuildViewProps) {
               <dt className="text-soot-500">Printer</dt>
               <dd>{build.printer_name ?? <span className="text-soot-500">not booked · <Link href="/floor" className="text-clay-700 underline">book it on the floor</Link></span>}</dd>
               <dt className="text-soot-500">Slot</dt>
-              <dd className="tabular">{build.starts_at && build.ends_at ? formatSlot(build.starts_at, build.ends_at) : "–"}</dd>
+              <dd className="tabular">{build.starts_at && build.ends_at ? formatSlot(build.starts_at, build.ends_at, timeZone) : "–"}</dd>
               <dt className="text-soot-500">Estimated print time</dt>
               <dd className="tabular" data-testid="build-estimate">
                 {build.est_minutes ? minutesLabel(build.est_minutes) : verdicts.some((v) => v.ok) ? `${minutesLabel(Math.min(...verdicts.filter((v) => v.ok).map((v) => v.est_minutes!)))} on the fastest printer` : "no printer can take it"}
               </dd>
-              {build.started_at ? (<><dt className="text-soot-500">Started</dt><dd className="tabular">{formatWhen(build.started_at)}</dd></>) : null}
-              {build.finished_at ? (<><dt className="text-soot-500">Finished</dt><dd className="tabular">{formatWhen(build.finished_at)}</dd></>) : null}
+              {build.started_at ? (<><dt className="text-soot-500">Started</dt><dd className="tabular">{formatWhen(build.started_at, timeZone)}</dd></>) : null}
+              {build.finished_at ? (<><dt className="text-soot-500">Finished</dt><dd className="tabular">{formatWhen(build.finished_at, timeZone)}</dd></>) : null}
             </dl>
             <div className="flex flex-col items-end gap-2">
               <a href={`/api/builds/${buildId}/traveler`} target="_blank" rel="noreferrer" className={`${button} border border-soot-300 text-soot-800 hover:bg-soot-100`} data-testid="traveler-link">
@@ -143,7 +144,7 @@ export function BuildView({ buildId, canWrite }: BuildViewProps) {
                 <tr key={u.id} className="border-t border-soot-100">
                   <td className="py-1 font-mono text-xs font-semibold">{u.serial}</td>
                   <td><Link href={`/parts/${u.part_id}`} className="text-clay-800 hover:underline">{u.part_number}</Link> <span className="text-xs text-soot-500">rev {u.revision} · {u.part_name}</span></td>
-                  <td className="text-xs">{u.order_code} · {new Date(u.due_at).toLocaleDateString()}</td>
+                  <td className="text-xs">{u.order_code} · {formatDay(u.due_at, timeZone)}</td>
                   <td className="tabular text-right text-xs">{u.green_x_mm && u.green_y_mm && u.green_z_mm ? `${u.green_x_mm.toFixed(1)} × ${u.green_y_mm.toFixed(1)} × ${u.green_z_mm.toFixed(1)}` : "–"}</td>
                   <td className="pl-4 text-xs">{u.state.replaceAll("_", " ")}</td>
                 </tr>
@@ -171,7 +172,7 @@ export function BuildView({ buildId, canWrite }: BuildViewProps) {
           <ol className="space-y-1.5 text-xs">
             {history.map((h) => (
               <li key={h.id}>
-                <span className="tabular text-soot-500">{formatWhen(h.created_at)}</span> · {h.actor_name ?? "Hearth"} ·{" "}
+                <span className="tabular text-soot-500">{formatWhen(h.created_at, timeZone)}</span> · {h.actor_name ?? "Hearth"} ·{" "}
                 {h.kind === "schedule" ? (h.to_state === "draft" ? "taken off the floor" : "booked / moved") : h.kind === "state" ? `${h.from_state ?? "new"} → ${h.to_state}` : h.kind}
                 {h.reason ? <span className="text-soot-600">: {h.reason}</span> : null}
               </li>

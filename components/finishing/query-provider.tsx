@@ -2,11 +2,17 @@
 
 import { useState } from "react";
 import { QueryClient, QueryClientProvider } from "@tanstack/react-query";
+import { LiveUpdates } from "@/components/live/live-updates";
 
 /** One query client per page for the finishing, calibration, capacity and unit pages. */
 export function ShopQueryProvider({ children }: { children: React.ReactNode }) {
   const [client] = useState(
     () => new QueryClient({ defaultOptions: { queries: { staleTime: 5_000, refetchOnWindowFocus: true, retry: 1 } } }),
   );
-  return <QueryClientProvider client={client}>{children}</QueryClientProvider>;
+  return (
+    <QueryClientProvider client={client}>
+      <LiveUpdates />
+      {children}
+    </QueryClientProvider>
+  );
 }

@@ -1,6 +1,7 @@
 "use client";
 
 import FullCalendar from "@fullcalendar/react";
+import luxonPlugin from "@fullcalendar/luxon3";
 import interactionPlugin, { Draggable, type DateClickArg, type EventReceiveArg } from "@fullcalendar/interaction";
 import resourceTimelinePlugin from "@fullcalendar/resource-timeline";
 import type { CalendarOptions, DateSpanApi, DatesSetArg, EventApi, EventContentArg, EventDropArg, EventInput } from "@fullcalendar/core";
@@ -12,11 +13,15 @@ import type { FloorData, FloorEvent, FloorResource, UnscheduledBuild } from "@/l
 import { ApiError, apiJson } from "./api";
 import { PlanPanel, type Proposal } from "./plan-panel";
 import { ScheduleForm } from "./schedule-form";
-import { formatSlot, minutesLabel } from "./format";
+import { formatDay, formatSlot, minutesLabel } from "./format";
 import { FLOOR_DATA_MARK, floorUrl, openingWeek, takeOpeningFetch, type FloorRange } from "./opening-week";
+import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { laneEditable, laneMoveRefusal, moveLaneBooking, type LaneEventProps, type LanePermissions } from "@/components/furnace/lane-interactions";
 
-export type FloorBoardProps = { canSchedule: boolean; canPropose: boolean; canApply: boolean; canWash?: boolean; canFurnace?: boolean };
+export type FloorBoardProps = {
+  /** The shop's IANA time zone: the timeline, its labels, drops and the now line all read it. */
+  timeZone: string;
+  canSchedule: boolean; canPropose: boolean; canApply: boolean; canWash?: boolean; canFurnace?: boolean };
 
 type Message = { tone: "success" | "danger" | "info"; text: string } | null;
 type Slot = { printer_id: string | null; starts_at: string | null };
@@ -41,8 +46,9 @@ const STATE_WORDS: Record<FloorEvent["kind"], Record<string, string>> = {
 };
 
 // FullCalendar re-renders every event when an option's identity changes, so options live here
-// or in memos, never inline.
-const PLUGINS = [resourceTimelinePlugin, interactionPlugin];
+// or in memos, never inline. The Luxon plugin gives FullCalendar real named time zones: without
+// it a named zone is "UTC-coercion", and the Date objects of drops and clicks are not instants.
+const PLUGINS = [resourceTimelinePlugin, interactionPlugin, luxonPlugin];
 const HEADER = { left: "prev,today,next", center: "title", right: "resourceTimelineDay,resourceTimelineWeek" };
 const BUTTONS = { today: "Now", resourceTimelineDay: "Day", resourceTimelineWeek: "Week" };
 const VIEWS: CalendarOptions["views"] = {
@@ -72,7 +78,7 @@ function el(tag: string, className: string, text?: string | null, data: Record<s
  */
 const isHistory = (e: Pick<FloorEvent, "state" | "failed">) => e.state === "complete" && !e.failed;
 
-function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
+function toEvent(e: FloorEvent, lanes: LanePermissions, short: ReadonlyMap<string, string> = new Map()): EventInput {
   const lane = e.kind !== "build";
   const c = e.failed ? COLORS.failed : e.kind === "build" ? (COLORS[e.state] ?? COLORS.scheduled) : COLORS[e.kind];
   const history = isHistory(e);
@@ -89,15 +95,15 @@ function toEvent(e: FloorEvent, lanes: LanePermissions): EventInput {
     backgroundColor: c.bg,
     borderColor: c.border,
     textColor: c.text,
-    classNames: [`hearth-${e.kind}`, `hearth-state-${e.state}`, ...(history ? ["hearth-history"] : [])],
-    extendedProps: { ...e, build_id: e.kind === "build" ? e.id : undefined },
+    classNames: [`hearth-${e.kind}`, `hearth-state-${e.state}`, ...(history ? ["hearth-history"] : []), ...(short.has(e.id) ? ["hearth-feedstock-short"] : [])],
+    extendedProps: { ...e, build_id: e.kind === "build" ? e.id : undefined, feedstock_short: short.get(e.id) },
   };
 }
 
-export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false, canFurnace = false }: FloorBoardProps) {
+export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWash = false, canFurnace = false }: FloorBoardProps) {
   const qc = useQueryClient();
   const router = useRouter();
-  const [range, setRange] = useState<FloorRange | null>(() => openingWeek());
+  const [range, setRange] = useState<FloorRange | null>(() => openingWeek(timeZone));
   const [message, setMessage] = useState<Message>(null);
   const [lastMove, setLastMove] = useState<LastMove | null>(null);
   const [proposal, setProposal] = useState<Proposal | null>(null);
@@ -107,6 +113,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
   const listRef = useRef<HTMLUListElement>(null);
   const calendarRef = useRef<FullCalendar>(null);
 
+  const poll = useLivePoll();
   const floorKey = useMemo(() => ["floor", range?.from, range?.to] as const, [range]);
   const floor = useQuery({
     queryKey: floorKey,
@@ -119,14 +126,27 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
     },
     enabled: range !== null,
     placeholderData: keepPreviousData,
-    // Someone else's change shows up within seconds; never while a drag is in the air.
-    refetchInterval: () => (dragging.current ? false : 10_000),
+    // Someone else's change arrives live (components/live); the old polling only while the
+    // stream is down. Never while a drag is in the air.
+    refetchInterval: () => (dragging.current ? false : poll(10_000)),
+    meta: { liveHold: () => dragging.current },
   });
   const unscheduled = useQuery({
     queryKey: ["unscheduled"],
     queryFn: ({ signal }) => apiJson<{ builds: UnscheduledBuild[] }>("/api/floor/unscheduled", { signal }),
-    refetchInterval: () => (dragging.current ? false : 15_000),
+    refetchInterval: () => (dragging.current ? false : poll(15_000)),
+    meta: { liveHold: () => dragging.current },
   });
+  // Scheduled builds whose feedstock will not be on the shelf when they start (the projection).
+  const shortfalls = useQuery({
+    queryKey: ["feedstock-shortfalls"],
+    queryFn: ({ signal }) => apiJson<{ builds: { build_id: string; material_code: string; first_short_day: string }[] }>("/api/inventory/shortfalls", { signal }),
+    refetchInterval: 60_000,
+  });
+  const short = useMemo(
+    () => new Map((shortfalls.data?.builds ?? []).map((b) => [b.build_id, `no ${b.material_code} feedstock from ${b.first_short_day}`])),
+    [shortfalls.data],
+  );
   const drafts = useMemo(() => unscheduled.data?.builds ?? [], [unscheduled.data]);
   const draftsRef = useRef(drafts);
   useEffect(() => {
@@ -145,7 +165,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
   const printerName = useCallback((id: string | null) => (id ? (resourceById.get(id)?.title ?? "a printer") : "nothing"), [resourceById]);
 
   const events = useMemo<EventInput[]>(() => {
-    const list: EventInput[] = (floor.data?.events ?? []).map((e) => toEvent(e, { wash: canWash, furnace: canFurnace }));
+    const list: EventInput[] = (floor.data?.events ?? []).map((e) => toEvent(e, { wash: canWash, furnace: canFurnace }, short));
     for (const b of floor.data?.blocks ?? []) {
       list.push({ id: `mw-${b.id}`, resourceId: b.resource_id, start: b.start, end: b.end, display: "background", backgroundColor: "#8d8273", classNames: ["hearth-maintenance"], title: `Maintenance: ${b.reason || "no reason given"}` });
     }
@@ -155,7 +175,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
       }
     }
     return list;
-  }, [floor.data, proposal, canWash, canFurnace]);
+  }, [floor.data, proposal, canWash, canFurnace, short]);
 
   const hint = useCallback((text: string | null) => {
     const el = hintRef.current;
@@ -197,7 +217,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
         setMessage({
           tone: "success",
           text: nb.printer_id
-            ? `${opts.undo ? "Undone: " : ""}${nb.code} is booked on ${printerName(nb.printer_id)}, ${formatSlot(nb.starts_at!, nb.ends_at!)}.`
+            ? `${opts.undo ? "Undone: " : ""}${nb.code} is booked on ${printerName(nb.printer_id)}, ${formatSlot(nb.starts_at!, nb.ends_at!, timeZone)}.`
             : `${opts.undo ? "Undone: " : ""}${nb.code} is off the floor and waits in the unscheduled list.`,
         });
         return true;
@@ -211,7 +231,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
         await Promise.all([qc.invalidateQueries({ queryKey: ["floor"] }), qc.invalidateQueries({ queryKey: ["unscheduled"] })]);
       }
     },
-    [qc, floorKey, printerName],
+    [qc, floorKey, printerName, timeZone],
   );
 
   // The unscheduled list becomes a source of drags onto the timeline.
@@ -278,7 +298,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
       const oldResource = info.oldEvent.getResources()[0]?.id ?? props.resource_id;
       const newResource = info.newResource?.id ?? oldResource;
       if (props.kind !== "build") {
-        const r = await moveLaneBooking(props, newResource, e.start!.toISOString(), e.end?.toISOString());
+        const r = await moveLaneBooking(props, newResource, e.start!.toISOString(), e.end?.toISOString(), timeZone);
         setMessage({ tone: r.ok ? "success" : "danger", text: r.text });
         if (!r.ok) info.revert();
         await qc.invalidateQueries({ queryKey: ["floor"] });
@@ -291,7 +311,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
       );
       if (!ok) info.revert();
     },
-    [hint, move, qc],
+    [hint, move, qc, timeZone],
   );
 
   const onEventReceive = useCallback(
@@ -324,10 +344,11 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
       return { domNodes: [el("div", "truncate px-1 pt-0.5 text-2xs italic text-soot-800", arg.event.title, { testid: "maintenance-block" })] };
     }
     const state = p.failed ? "failed" : p.state && p.kind ? (STATE_WORDS[p.kind][p.state] ?? p.state) : arg.event.classNames.includes("hearth-proposed") ? "proposed" : "";
-    const detail = [state, p.unit_count ? `${p.unit_count} u` : ""].filter(Boolean).join(" · ");
+    const feedstock = (p as { feedstock_short?: string }).feedstock_short;
+    const detail = [state, p.unit_count ? `${p.unit_count} u` : "", feedstock ? "no feedstock" : ""].filter(Boolean).join(" · ");
     const box = el("div", "hearth-booking", arg.event.title, { testid: "floor-event", eventId: arg.event.id, detail });
     // The bar is often narrower than its words: the whole line on hover.
-    box.title = detail ? `${arg.event.title} (${detail})` : arg.event.title;
+    box.title = detail ? `${arg.event.title} (${[state, p.unit_count ? `${p.unit_count} u` : "", feedstock].filter(Boolean).join(" · ")})` : arg.event.title;
     return { domNodes: [box] };
   }, []);
 
@@ -405,7 +426,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
             plugins={PLUGINS}
             schedulerLicenseKey="GPL-My-Project-Is-Open-Source"
             initialView="resourceTimelineWeek"
-            timeZone="local"
+            timeZone={timeZone}
             height="auto"
             nowIndicator
             scrollTime="00:00:00"
@@ -448,6 +469,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
       </section>
 
       <aside className="flex w-full shrink-0 flex-col gap-4 xl:w-80" aria-label="Scheduling">
+        <LiveIndicator className="self-start" />
         {message ? (
           <div role={message.tone === "danger" ? "alert" : "status"} data-testid="floor-message" data-tone={message.tone}
             className={`rounded-card border px-3 py-2 text-sm ${message.tone === "danger" ? "border-oxide-500/40 bg-oxide-100 text-oxide-700" : message.tone === "success" ? "border-verdigris-400/40 bg-verdigris-100 text-verdigris-700" : "border-slate2-400/40 bg-slate2-100 text-slate2-600"}`}>
@@ -477,7 +499,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
                     <span className="text-xs text-soot-600">{b.material_code} · {b.unit_count} unit{b.unit_count === 1 ? "" : "s"}</span>
                   </div>
                   <div className="text-2xs text-soot-500">
-                    {b.due_at ? `due ${new Date(b.due_at).toLocaleDateString(undefined, { day: "numeric", month: "short" })}` : "no due date"} ·{" "}
+                    {b.due_at ? `due ${formatDay(b.due_at, timeZone)}` : "no due date"} ·{" "}
                     {ok.length ? `${ok.length} printer${ok.length === 1 ? "" : "s"}, ${minutesLabel(Math.min(...ok.map((p) => p.est_minutes ?? Infinity)))} or more` : "no printer can take it"}
                   </div>
                 </li>
@@ -491,6 +513,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
             drafts={drafts}
             scheduled={scheduledInWindow}
             printers={printers}
+            timeZone={timeZone}
             busy={busy}
             onSubmit={(b, to, before) => move(b, to, before)}
           />
@@ -500,6 +523,7 @@ export function FloorBoard({ canSchedule, canPropose, canApply, canWash = false,
           <PlanPanel
             proposal={proposal}
             setProposal={setProposal}
+            timeZone={timeZone}
             canApply={canApply}
             onApplied={async (text) => {
               setMessage({ tone: "success", text });

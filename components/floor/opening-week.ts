@@ -6,15 +6,21 @@
 // opening week at once; the board takes that answer if it is for the window it shows and still
 // fresh, and asks again otherwise (a 401 or any error, a client-side navigation, a stale answer).
 
+import { addLocalDays, localDateOf, startOfLocalDay, weekdayOf } from "@/lib/process/time-zone";
+
 export type FloorRange = { from: string; to: string };
 
 export const floorUrl = (r: FloorRange) => `/api/floor?from=${encodeURIComponent(r.from)}&to=${encodeURIComponent(r.to)}`;
 
-/** Sunday to Sunday in browser time, as FullCalendar's week view (firstDay 0) shows it. */
-export function openingWeek(now = new Date()): FloorRange {
-  const start = new Date(now.getFullYear(), now.getMonth(), now.getDate() - now.getDay());
-  const end = new Date(start.getFullYear(), start.getMonth(), start.getDate() + 7);
-  return { from: start.toISOString(), to: end.toISOString() };
+/**
+ * Sunday 00:00 to the next Sunday 00:00 in the shop's time zone, as FullCalendar's week view
+ * (firstDay 0, timeZone set to the shop's) shows it, whatever zone the browser is in.
+ */
+export function openingWeek(timeZone: string, now = new Date()): FloorRange {
+  const today = localDateOf(now.getTime(), timeZone);
+  const sunday = addLocalDays(today, -weekdayOf(today));
+  const at = (ms: number) => new Date(ms).toISOString();
+  return { from: at(startOfLocalDay(sunday, timeZone)), to: at(startOfLocalDay(addLocalDays(sunday, 7), timeZone)) };
 }
 
 const GLOBAL = "__hearthFloorOpening";
@@ -27,13 +33,24 @@ type Opening = { url: string; at: number; data: Promise<unknown> };
 
 /**
  * The inline script: the same week and address as openingWeek and floorUrl (a test runs both
- * side by side), written as plain ES2017 for the browser to run before any bundle arrives.
+ * side by side), written as plain ES2017 for the browser to run before any bundle arrives. The
+ * week is the shop's: Intl gives the wall clock in its zone, and local midnight is turned into
+ * an instant as zonedTimeToUtc does (lib/process/time-zone.ts), the earlier of an ambiguous
+ * pair and past a gap.
  */
-export const OPENING_FETCH_SCRIPT = `(function(){try{
-var n=new Date(),s=new Date(n.getFullYear(),n.getMonth(),n.getDate()-n.getDay()),e=new Date(s.getFullYear(),s.getMonth(),s.getDate()+7);
-var u="/api/floor?from="+encodeURIComponent(s.toISOString())+"&to="+encodeURIComponent(e.toISOString());
+export function openingFetchScript(timeZone: string): string {
+  // JSON with "<" escaped: a string literal that cannot end the script element.
+  const zone = JSON.stringify(timeZone).replace(/</g, "\\u003c");
+  return `(function(){try{
+var f=new Intl.DateTimeFormat("en-US",{timeZone:${zone},hourCycle:"h23",year:"numeric",month:"numeric",day:"numeric",hour:"numeric",minute:"numeric",second:"numeric"});
+function p(t){var o={};f.formatToParts(new Date(t)).forEach(function(x){o[x.type]=Number(x.value)});return o}
+function off(t){var q=p(t);return Date.UTC(q.year,q.month-1,q.day,q.hour%24,q.minute,q.second)-Math.floor(t/1e3)*1e3}
+function utc(w){var b=off(w-864e5),a=off(w+864e5),r=[w-b,w-a].filter(function(u){return w-off(u)===u});return new Date(r.length?Math.min.apply(null,r):w-b).toISOString()}
+var n=p(Date.now()),k=new Date(Date.UTC(n.year,n.month-1,n.day)).getUTCDay(),s=Date.UTC(n.year,n.month-1,n.day-k),e=Date.UTC(n.year,n.month-1,n.day-k+7);
+var u="/api/floor?from="+encodeURIComponent(utc(s))+"&to="+encodeURIComponent(utc(e));
 window.${GLOBAL}={url:u,at:Date.now(),data:fetch(u,{credentials:"same-origin",cache:"no-store"}).then(function(r){return r.ok?r.json():null}).catch(function(){return null})};
 }catch(x){}})();`;
+}
 
 /**
  * The early answer for this address, once: null when there is none, it is for another window or

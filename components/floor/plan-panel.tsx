@@ -1,6 +1,6 @@
 "use client";
 
-import { useState } from "react";
+import { useEffect, useState } from "react";
 import { ApiError, apiJson } from "./api";
 import { formatWhen, minutesLabel } from "./format";
 
@@ -8,27 +8,45 @@ export type Proposal = {
   id: string;
   status: string;
   planned_from: string;
-  items: Array<{ build_id: string; code: string; material_code: string; printer_id: string; printer_name: string; starts_at: string; ends_at: string; due_at: string | null; lateness_min: number }>;
+  items: Array<{ build_id: string; code: string; material_code: string; printer_id: string; printer_name: string; starts_at: string; ends_at: string; due_at: string | null; lateness_min: number; feedstock_short?: string }>;
   unplaced: Array<{ build_id: string; code: string; reason: string; printer_reasons: (string | null)[] }>;
-  metrics: { builds: number; placed: number; makespan_min: number; makespan_lower_bound_min: number; max_lateness_min: number; total_lateness_min: number; late_count: number; plan_ms: number };
+  metrics: { builds: number; placed: number; makespan_min: number; makespan_lower_bound_min: number; max_lateness_min: number; total_lateness_min: number; late_count: number; plan_ms: number; search_timed_out?: boolean };
 };
+
+const DEFAULT_BUDGET_MS = 2_000;
+/** The API's limit (lib/floor/schemas.ts). */
+const MAX_BUDGET_MS = 30_000;
 
 export type PlanPanelProps = {
   proposal: Proposal | null;
   setProposal: (p: Proposal | null) => void;
   canApply: boolean;
+  /** The shop's time zone, as on the floor. */
+  timeZone: string;
   onApplied: (message: string) => void | Promise<void>;
   onError: (message: string) => void;
 };
 
 /** Propose plan: the planner's bookings as a diff against today's floor; nothing changes until Apply. */
-export function PlanPanel({ proposal, setProposal, canApply, onApplied, onError }: PlanPanelProps) {
+export function PlanPanel({ proposal, setProposal, canApply, timeZone, onApplied, onError }: PlanPanelProps) {
   const [busy, setBusy] = useState(false);
+  // The planner's search runs within a time budget; "Search longer" asks again with more.
+  const [budgetMs, setBudgetMs] = useState(DEFAULT_BUDGET_MS);
+  const [startedAt, setStartedAt] = useState(0);
+  const [now, setNow] = useState(0);
+  useEffect(() => {
+    if (!busy) return;
+    const timer = setInterval(() => setNow(Date.now()), 100);
+    return () => clearInterval(timer);
+  }, [busy]);
+  const elapsed = busy && startedAt > 0 ? Math.max(0, now - startedAt) : 0;
 
-  async function propose() {
+  async function propose(budget = budgetMs) {
     setBusy(true);
+    setStartedAt(Date.now());
+    setBudgetMs(budget);
     try {
-      const res = await apiJson<{ proposal: Proposal }>("/api/plans", { method: "POST", body: {} });
+      const res = await apiJson<{ proposal: Proposal }>("/api/plans", { method: "POST", body: { budget_ms: budget } });
       setProposal(res.proposal);
     } catch (err) {
       onError(`No plan: ${(err as Error).message}`);
@@ -58,15 +76,29 @@ export function PlanPanel({ proposal, setProposal, canApply, onApplied, onError 
     <section className="rounded-card border border-soot-200 bg-white p-3 shadow-card" aria-labelledby="plan-heading" data-testid="plan-panel">
       <div className="flex items-center justify-between gap-2">
         <h2 id="plan-heading" className="font-display text-base font-semibold text-soot-900">Propose plan</h2>
-        <button type="button" onClick={propose} disabled={busy} className="rounded-md border border-verdigris-500 px-2.5 py-1 text-xs font-semibold text-verdigris-700 hover:bg-verdigris-100 disabled:opacity-60">
+        <button type="button" onClick={() => propose()} disabled={busy} className="rounded-md border border-verdigris-500 px-2.5 py-1 text-xs font-semibold text-verdigris-700 hover:bg-verdigris-100 disabled:opacity-60">
           {busy && !proposal ? "Planning…" : proposal ? "Propose again" : "Propose plan"}
         </button>
       </div>
       <p className="mt-1 text-xs text-soot-500">
         Unscheduled builds onto compatible printers by due date, around maintenance and existing bookings, starting in staffed hours. Shown in green on the timeline; booked only when applied.
       </p>
+      {busy ? (
+        <p className="mt-2 text-2xs text-soot-500" aria-live="polite" data-testid="plan-progress">
+          Planning… {(elapsed / 1000).toFixed(1)} s of up to {(budgetMs / 1000).toFixed(1)} s
+        </p>
+      ) : null}
       {proposal ? (
         <div className="mt-3">
+          <p className="text-xs text-soot-700" data-testid="plan-bound">
+            Makespan {minutesLabel(m!.makespan_min)}, lower bound {minutesLabel(m!.makespan_lower_bound_min)}
+            {m!.makespan_lower_bound_min > 0 ? ` (${((m!.makespan_min / m!.makespan_lower_bound_min - 1) * 100).toFixed(1)} % above; the bound may not be reachable)` : ""}
+            {m!.search_timed_out && budgetMs < MAX_BUDGET_MS ? (
+              <button type="button" onClick={() => propose(Math.min(MAX_BUDGET_MS, budgetMs * 4))} disabled={busy} className="ml-2 rounded border border-verdigris-500 px-2 py-0.5 text-2xs text-verdigris-700 hover:bg-verdigris-100 disabled:opacity-60" data-testid="plan-longer">
+                Search longer
+              </button>
+            ) : null}
+          </p>
           <dl className="grid grid-cols-2 gap-x-3 gap-y-1 text-xs">
             <dt className="text-soot-500">Placed</dt>
             <dd className="tabular font-semibold">{m!.placed} of {m!.builds}</dd>
@@ -92,9 +124,12 @@ export function PlanPanel({ proposal, setProposal, canApply, onApplied, onError 
               <tbody>
                 {proposal.items.map((i) => (
                   <tr key={i.build_id} className="border-t border-soot-100 align-top">
-                    <td className="py-1 pr-1 font-semibold text-verdigris-700">+ {i.code}</td>
+                    <td className="py-1 pr-1 font-semibold text-verdigris-700">
+                      + {i.code}
+                      {i.feedstock_short ? <span className="block text-2xs font-semibold text-oxide-700">No feedstock: {i.feedstock_short}</span> : null}
+                    </td>
                     <td className="pr-1">{i.printer_name}</td>
-                    <td className="tabular pr-1">{formatWhen(i.starts_at)} → {formatWhen(i.ends_at)}</td>
+                    <td className="tabular pr-1">{formatWhen(i.starts_at, timeZone)} → {formatWhen(i.ends_at, timeZone)}</td>
                     <td className={`tabular ${i.lateness_min > 0 ? "font-semibold text-oxide-700" : "text-soot-500"}`}>{i.lateness_min > 0 ? minutesLabel(i.lateness_min) : "on time"}</td>
                   </tr>
                 ))}

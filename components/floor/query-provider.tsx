@@ -1,6 +1,7 @@
 "use client";
 
 import { QueryClient, QueryClientProvider } from "@tanstack/react-query";
+import { LiveUpdates } from "@/components/live/live-updates";
 import { useState } from "react";
 
 export type QueryProviderProps = { children: React.ReactNode };
@@ -15,5 +16,10 @@ export function QueryProvider({ children }: QueryProviderProps) {
         },
       }),
   );
-  return <QueryClientProvider client={client}>{children}</QueryClientProvider>;
+  return (
+    <QueryClientProvider client={client}>
+      <LiveUpdates />
+      {children}
+    </QueryClientProvider>
+  );
 }

@@ -2,7 +2,8 @@
 
 import { useMemo, useState } from "react";
 import type { FloorEvent, FloorResource, UnscheduledBuild } from "@/lib/floor/schemas";
-import { minutesLabel, toLocalInput } from "./format";
+import { fromLocalInput, toLocalInput } from "@/components/batches/format";
+import { minutesLabel } from "./format";
 
 type Slot = { printer_id: string | null; starts_at: string | null };
 
@@ -10,19 +11,18 @@ export type ScheduleFormProps = {
   drafts: UnscheduledBuild[];
   scheduled: FloorEvent[];
   printers: FloorResource[];
+  /** The shop's time zone: the start is typed and read as shop time. */
+  timeZone: string;
   busy: boolean;
   onSubmit: (b: { build_id: string; code: string; version: number }, to: Slot, before: Slot) => Promise<boolean>;
 };
 
 /** The keyboard way to book: choose the build, the printer and the start, then book. */
-export function ScheduleForm({ drafts, scheduled, printers, busy, onSubmit }: ScheduleFormProps) {
+export function ScheduleForm({ drafts, scheduled, printers, timeZone, busy, onSubmit }: ScheduleFormProps) {
   const [buildId, setBuildId] = useState("");
   const [printerId, setPrinterId] = useState("");
-  const [start, setStart] = useState(() => {
-    const d = new Date(Date.now() + 60 * 60_000);
-    d.setMinutes(0, 0, 0);
-    return toLocalInput(d);
-  });
+  // The next whole hour of shop time (in a zone with a half-hour offset that is not UTC's).
+  const [start, setStart] = useState(() => `${toLocalInput(new Date(Date.now() + 60 * 60_000).toISOString(), timeZone).slice(0, 14)}00`);
   const [error, setError] = useState<string | null>(null);
 
   const options = useMemo(
@@ -39,10 +39,10 @@ export function ScheduleForm({ drafts, scheduled, printers, busy, onSubmit }: Sc
     setError(null);
     if (!chosen) return setError("Choose a build.");
     if (!printerId) return setError("Choose a printer.");
-    const at = new Date(start);
-    if (Number.isNaN(at.getTime())) return setError("Enter a start date and time.");
+    const at = fromLocalInput(start, timeZone);
+    if (!at) return setError("Enter a start date and time.");
     const before: Slot = chosen.current ? { printer_id: chosen.current.resource_id, starts_at: chosen.current.start } : { printer_id: null, starts_at: null };
-    const ok = await onSubmit({ build_id: chosen.id, code: chosen.code, version: chosen.version }, { printer_id: printerId, starts_at: at.toISOString() }, before);
+    const ok = await onSubmit({ build_id: chosen.id, code: chosen.code, version: chosen.version }, { printer_id: printerId, starts_at: at }, before);
     if (ok) setBuildId("");
   }
 
@@ -82,7 +82,7 @@ export function ScheduleForm({ drafts, scheduled, printers, busy, onSubmit }: Sc
         </select>
       </label>
       <label className="mt-2 block text-xs font-medium text-soot-700">
-        Start (your time zone)
+        Start (shop time, {timeZone.replaceAll("_", " ")})
         <input type="datetime-local" className={field} value={start} onChange={(e) => setStart(e.target.value)} name="start" step={900} />
       </label>
       {error ? <p role="alert" className="mt-2 text-xs text-oxide-700">{error}</p> : null}

@@ -40,7 +40,7 @@ export function laneMoveRefusal(e: LaneEventProps, r: LaneResourceProps): string
 export type LaneMoveResult = { ok: boolean; text: string };
 
 /** Books the moved batch or run through its schedule route; the floor reverts the drag when it is refused. */
-export async function moveLaneBooking(e: LaneEventProps, resourceId: string, startsAt: string, endsAt?: string | null): Promise<LaneMoveResult> {
+export async function moveLaneBooking(e: LaneEventProps, resourceId: string, startsAt: string, endsAt: string | null | undefined, timeZone: string): Promise<LaneMoveResult> {
   const code = e.title.split(" ")[0];
   const url = e.kind === "furnace_run" ? `/api/furnace-runs/${e.id}/schedule` : `/api/wash-batches/${e.id}/schedule`;
   const body =
@@ -56,7 +56,7 @@ export async function moveLaneBooking(e: LaneEventProps, resourceId: string, sta
     }
     const start = new Date(json.starts_at);
     const end = new Date(json.ends_at);
-    const f = (d: Date) => d.toLocaleString(undefined, { weekday: "short", hour: "2-digit", minute: "2-digit" });
+    const f = (d: Date) => d.toLocaleString(undefined, { weekday: "short", hour: "2-digit", minute: "2-digit", hourCycle: "h23", timeZone });
     return { ok: true, text: `${code} is booked ${f(start)} – ${f(end)}.` };
   } catch {
     return { ok: false, text: "Not saved: the server could not be reached." };

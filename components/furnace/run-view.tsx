@@ -13,6 +13,7 @@ import { ApiError, getJson, sendJson } from "@/components/batches/client";
 import { duration, massText, shopTime } from "@/components/batches/format";
 import { GaugeBar } from "@/components/batches/gauge";
 import { BatchesQueryProvider } from "@/components/batches/query-provider";
+import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { ProfileChart } from "./profile-chart";
 import { TrayDrawing } from "./tray-drawing";
 
@@ -40,7 +41,8 @@ function useNow(ms = 30_000) {
 
 function RunViewInner({ runId, role, unitPref }: RunViewProps) {
   const qc = useQueryClient();
-  const q = useQuery({ queryKey: ["furnace-run", runId], queryFn: () => getJson<RunDetail>(`/api/furnace-runs/${runId}`), refetchInterval: 30_000 });
+  const poll = useLivePoll();
+  const q = useQuery({ queryKey: ["furnace-run", runId], queryFn: () => getJson<RunDetail>(`/api/furnace-runs/${runId}`), refetchInterval: poll(30_000) });
   const now = useNow();
   const [flash, setFlash] = useState<{ tone: "danger" | "success"; text: string } | null>(null);
   const act = useMutation({
@@ -66,6 +68,7 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
 
   return (
     <div className="space-y-5">
+      <LiveIndicator />
       {flash ? (
         <div role={flash.tone === "danger" ? "alert" : "status"} data-testid="run-flash" className={`rounded-card border px-3 py-2 text-sm ${flash.tone === "danger" ? "border-oxide-500/40 bg-oxide-100 text-oxide-700" : "border-verdigris-400/40 bg-verdigris-100 text-verdigris-700"}`}>
           {flash.text}

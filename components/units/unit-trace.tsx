@@ -9,6 +9,7 @@ import { formatWhen } from "@/components/finishing/format";
 import { InspectionList } from "@/components/finishing/inspection-list";
 import { ShopQueryProvider } from "@/components/finishing/query-provider";
 import { StateBadge } from "@/components/finishing/state-badge";
+import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 
 // Where a unit came from and what happened to it: lot and build, wash and masses, furnace run
 // and profile, inspections, and every event of the unit and its bookings on one timeline.
@@ -47,7 +48,8 @@ const Row = ({ k, children }: { k: string; children: React.ReactNode }) => (
 );
 
 function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
-  const trace = useQuery({ queryKey: ["trace", unitId], queryFn: () => getJson<Trace>(`/api/units/${unitId}/trace`) });
+  const poll = useLivePoll();
+  const trace = useQuery({ queryKey: ["trace", unitId], queryFn: () => getJson<Trace>(`/api/units/${unitId}/trace`), refetchInterval: poll(10_000) });
   if (trace.isPending) return <p className="text-sm text-soot-500">Loading the unit&rsquo;s history…</p>;
   if (trace.isError) return <p className="text-sm text-oxide-700">{trace.error.message}</p>;
   const t = trace.data;
@@ -68,6 +70,7 @@ function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
         </span>
         {t.unit.hold_reason ? <span className="text-sm text-brass-600">On hold: {t.unit.hold_reason}</span> : null}
         {t.unit.scrap_reason ? <span className="text-sm text-oxide-700">Scrapped ({t.unit.scrap_reason.replaceAll("_", " ")}): {t.unit.scrap_note}</span> : null}
+        <LiveIndicator />
         {["ready_for_finishing", "finishing"].includes(t.unit.state) ? (
           <Link href={`/finishing/${t.unit.id}`} className="ml-auto text-sm font-semibold text-clay-700 hover:underline">Open in finishing</Link>
         ) : null}
@@ -76,7 +79,16 @@ function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
       <div className="grid gap-4 md:grid-cols-2 2xl:grid-cols-4">
         <Card title="Material and print" testId="trace-build">
           <Row k="Material">{t.material.name} ({t.material.code})</Row>
-          <Row k="Lot">{t.build?.material_lot || "not recorded"}</Row>
+          <Row k="Feedstock lot">
+            {t.build?.feedstock_lots.length
+              ? t.build.feedstock_lots.map((l, i) => (
+                  <span key={l.id}>
+                    {i ? ", " : ""}
+                    <Link href={`/inventory/${l.id}`} className="font-mono text-clay-700 hover:underline">{l.code}</Link> ({l.supplier} {l.supplier_lot})
+                  </span>
+                ))
+              : t.build?.material_lot || "not recorded"}
+          </Row>
           <Row k="Build">{t.build ? <Link href={`/builds/${t.build.id}`} className="text-clay-700 hover:underline">{t.build.code}</Link> : "not in a build yet"}</Row>
           {t.build ? (
             <>

@@ -41,7 +41,7 @@ export type Proposal = SuggestResult & {
  */
 export async function proposeBatches(
   db: Database,
-  opts: { wash: boolean; furnace: boolean; horizon_hours: number; profile_ids?: string[] },
+  opts: { wash: boolean; furnace: boolean; horizon_hours: number; profile_ids?: string[]; budget_ms?: number },
   actorId: string | null,
   now = new Date(),
 ): Promise<Proposal> {
@@ -76,6 +76,7 @@ export async function proposeBatches(
     busy,
     wash: opts.wash,
     furnace: opts.furnace,
+    search_budget_ms: opts.budget_ms,
   });
   const tPlanned = performance.now();
   const row = await db

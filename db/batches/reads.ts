@@ -21,6 +21,8 @@ import { furnaceCycle, type SinterProfile } from "@/lib/process/furnace-profile"
 import { projectionStatus, projectUnit, type StepState } from "@/lib/process/projection";
 import { washMinutes } from "@/lib/process/wash";
 import type { TrayRun } from "@/lib/packing/types";
+import { boardCache } from "@/lib/batches/board-cache";
+import { WindowBody } from "@/lib/floor/window-body";
 
 export type Db = Database | Transaction<DB>;
 
@@ -434,6 +436,20 @@ async function listActive(db: Db, now: Date): Promise<BoardActive[]> {
   ];
 }
 
+/** Moves on every change to anything the board shows (migration 202612040510). */
+export async function boardChangeStamp(db: Db): Promise<string> {
+  const { rows } = await sql<{ v: string }>`select last_value::text || ':' || is_called::text as v from board_change_seq`.execute(db);
+  return rows[0].v;
+}
+
+/** The board's encoded body, from the process-wide cache while the stamp holds. */
+export function boardBody(db: Db, stamp: string): Promise<WindowBody> {
+  return boardCache().get("board", stamp, async () => WindowBody.fromJson(JSON.stringify(await loadBoard(db))));
+}
+
+/** Waiting units the board lists per lane, most at risk first (the suggestions still see all). */
+export const BOARD_WAITING_LIMIT = 200;
+
 export async function loadBoard(db: Db, now = new Date()): Promise<Board> {
   const ctx = await loadShopContext(db, now);
   const [washWaiting, furnaceWaiting, washes, runs, active] = await Promise.all([
@@ -448,8 +464,10 @@ export async function loadBoard(db: Db, now = new Date()): Promise<Board> {
     time_zone: ctx.time_zone,
     clearance_mm: ctx.clearance_mm,
     drying_minutes: ctx.drying_minutes,
-    wash_waiting: washWaiting,
-    furnace_waiting: furnaceWaiting,
+    wash_waiting: washWaiting.slice(0, BOARD_WAITING_LIMIT),
+    furnace_waiting: furnaceWaiting.slice(0, BOARD_WAITING_LIMIT),
+    wash_waiting_total: washWaiting.length,
+    furnace_waiting_total: furnaceWaiting.length,
     wash_batches: washes,
     furnace_runs: runs,
     active,

@@ -8,6 +8,8 @@ import { scheduleAdvance } from "@/db/jobs/advance";
 import { planFloor, staffedHoursFor } from "@/lib/floor/plan";
 import { getShopPlanning, listPrinterSpecs, listUnscheduledBuilds, printerBlockedFrom, unitSpecsForBuilds } from "@/db/floor/reads";
 import { verdictsForBuilds } from "./reads";
+import { assertLotFitsBuild, correctDraws, drawForBuild } from "@/db/inventory/commands";
+import { shortAmongProposed } from "@/db/inventory/reads";
 import { lockRowOrThrow, recordEvents, requireVersion, type EventRow } from "@/db/versioned";
 
 type Trx = Transaction<DB>;
@@ -62,6 +64,12 @@ export async function insertBuild(trx: Trx, input: CreateBuild, actorId: string)
 export async function updateBuild(trx: Trx, id: string, input: UpdateBuild, actorId: string) {
   const build = await lockBuildOrThrow(trx, id);
   checkVersion(build, input.version);
+  if (input.feedstock_lot_id !== undefined) {
+    if (build.state !== "draft" && build.state !== "scheduled") {
+      throw new AppError("invalid", `${build.code} is ${build.state}; its feedstock was drawn when it started.`, { feedstock_lot_id: ["only before the build starts"] });
+    }
+    await assertLotFitsBuild(trx, build, input.feedstock_lot_id);
+  }
   if (input.unit_ids) {
     if (build.state !== "draft") {
       throw new AppError("invalid", `${build.code} is ${build.state}; take it off the floor before changing its units.`, { unit_ids: ["only a draft build's units can change"] });
@@ -85,6 +93,7 @@ export async function updateBuild(trx: Trx, id: string, input: UpdateBuild, acto
     .updateTable("builds")
     .set({
       ...(input.material_lot !== undefined ? { material_lot: input.material_lot } : {}),
+      ...(input.feedstock_lot_id !== undefined ? { feedstock_lot_id: input.feedstock_lot_id } : {}),
       ...(input.notes !== undefined ? { notes: input.notes } : {}),
       version: sql`version + 1`,
       updated_at: sql`now()`,
@@ -225,6 +234,7 @@ export async function applyBuildAction(trx: Trx, id: string, input: BuildAction,
       material: material.code, material_version: material.version, shrink_xy: material.shrink_xy, shrink_z: material.shrink_z,
       xy: 1 / (1 - material.shrink_xy), z: 1 / (1 - material.shrink_z), taken_at: now.toISOString(),
     });
+    await drawForBuild(trx, build, actorId, now);
     set = { state: "running", started_at: now, scale_snapshot };
     toState = "running";
   } else if (input.action === "complete") {
@@ -238,6 +248,7 @@ export async function applyBuildAction(trx: Trx, id: string, input: BuildAction,
     if (build.ends_at && build.starts_at && now < build.ends_at && now > build.starts_at) newEnd = now;
     set = { state: "complete", finished_at: now, ...(newEnd ? { ends_at: newEnd } : {}) };
     toState = "complete";
+    await correctDraws(trx, build, input.feedstock_used_kg, actorId, "weighed at completion");
   } else if (input.action === "fail") {
     if (build.state !== "running" && build.state !== "scheduled") refuse("marked failed");
     const units = await unitsOf(["planned", "printing"]);
@@ -260,6 +271,7 @@ export async function applyBuildAction(trx: Trx, id: string, input: BuildAction,
         .execute();
     }
     if (build.state === "running") {
+      await correctDraws(trx, build, input.feedstock_used_kg, actorId, `weighed after the failure: ${input.reason}`);
       if (build.ends_at && build.starts_at && now < build.ends_at && now > build.starts_at) newEnd = now;
       set = { state: "complete", failed: true, failure_reason: input.reason, finished_at: now, ...(newEnd ? { ends_at: newEnd } : {}) };
       toState = "complete";
@@ -290,6 +302,8 @@ export async function applyBuildAction(trx: Trx, id: string, input: BuildAction,
 // Printer-plan proposals ------------------------------------------------------------------------
 
 export type PlanProposalItem = {
+  /** Set when the build's material will not be on the shelf on its proposed day. */
+  feedstock_short?: string;
   build_id: string;
   build_version: number;
   code: string;
@@ -303,7 +317,7 @@ export type PlanProposalItem = {
 };
 
 /** Runs the planner over the draft builds and keeps the proposal so it can be applied as shown. */
-export async function proposePrinterPlan(db: Database, opts: { build_ids?: string[]; from?: string }, actorId: string) {
+export async function proposePrinterPlan(db: Database, opts: { build_ids?: string[]; from?: string; budget_ms?: number }, actorId: string) {
   const now = opts.from ? new Date(opts.from) : new Date();
   // Plans start on the next whole five minutes: a slot that begins 14:03:27 reads badly on a traveler.
   now.setUTCSeconds(0, 0);
@@ -315,6 +329,7 @@ export async function proposePrinterPlan(db: Database, opts: { build_ids?: strin
   const result = planFloor({
     now: now.getTime(),
     staffed: staffedHoursFor(shop.staffed_hours, shop.time_zone),
+    budget_ms: opts.budget_ms,
     printers: printers.map((p) => ({ id: p.id, blocked: blocked.get(p.id) ?? [] })),
     builds: drafts.map((b) => ({
       id: b.id,
@@ -339,6 +354,9 @@ export async function proposePrinterPlan(db: Database, opts: { build_ids?: strin
     const reasons = (verdicts.get(u.build_id)?.verdicts ?? []).filter((v) => !v.ok).map((v) => v.reason);
     return { build_id: u.build_id, code: b.code, build_version: b.version, reason: u.reason, printer_reasons: reasons };
   });
+  // Flagged, not refused: the technician may receive a lot before the build starts.
+  const short = await shortAmongProposed(db, items, now);
+  for (const item of items) if (short.has(item.build_id)) item.feedstock_short = short.get(item.build_id)!;
   const metrics = { ...result.metrics, plan_ms: Math.round(planMs * 10) / 10 };
   const row = await db
     .insertInto("plan_proposals")

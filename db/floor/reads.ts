@@ -226,9 +226,6 @@ export async function unitSpecsForBuilds(db: Database, buildIds: string[]): Prom
     .execute();
   for (const r of rows) {
     const green = partGreen(r);
-    const nominal = { x: Number(r.nominal_x_mm), y: Number(r.nominal_y_mm), z: Number(r.nominal_z_mm) };
-    const vol = n(r.volume_mm3);
-    const grow = (green.x / nominal.x) * (green.y / nominal.y) * (green.z / nominal.z);
     const spec: BuildUnitSpec = {
       unit_id: r.id,
       serial: r.serial,
@@ -236,14 +233,22 @@ export async function unitSpecsForBuilds(db: Database, buildIds: string[]): Prom
       green_x_mm: green.x,
       green_y_mm: green.y,
       green_z_mm: green.z,
-      // without geometry: half the bounding box, a middling fill for machined-looking parts
-      green_volume_mm3: vol && vol > 0 ? vol * grow : 0.5 * green.x * green.y * green.z,
+      green_volume_mm3: greenVolumeOf(r, green),
     };
     const list = out.get(r.build_id!) ?? [];
     list.push(spec);
     out.set(r.build_id!, list);
   }
   return out;
+}
+
+/** The printed volume of one unit: the part's volume grown by the scale-up on each axis. */
+export function greenVolumeOf(r: GreenSource & { volume_mm3: unknown }, green = partGreen(r)): number {
+  const nominal = { x: Number(r.nominal_x_mm), y: Number(r.nominal_y_mm), z: Number(r.nominal_z_mm) };
+  const vol = n(r.volume_mm3);
+  const grow = (green.x / nominal.x) * (green.y / nominal.y) * (green.z / nominal.z);
+  // without geometry: half the bounding box, a middling fill for machined-looking parts
+  return vol && vol > 0 ? vol * grow : 0.5 * green.x * green.y * green.z;
 }
 
 type GreenSource = {

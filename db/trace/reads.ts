@@ -31,7 +31,7 @@ export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitT
     .executeTakeFirst();
   if (!u) throw new AppError("not_found", "Unit not found.");
 
-  const [build, wash, run, inspections] = await Promise.all([
+  const [build, wash, run, inspections, lots] = await Promise.all([
     u.build_id
       ? db
           .selectFrom("builds as b")
@@ -66,6 +66,15 @@ export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitT
           .executeTakeFirst()
       : undefined,
     listInspectionsForUnit(db, unitId),
+    u.build_id
+      ? db
+          .selectFrom("feedstock_draws as d")
+          .innerJoin("feedstock_lots as l", "l.id", "d.lot_id")
+          .select(["l.id", "l.code", "l.supplier", "l.supplier_lot", "d.drawn_g"])
+          .where("d.build_id", "=", u.build_id)
+          .orderBy("l.code")
+          .execute()
+      : [],
   ]);
   const segments = run
     ? await db.selectFrom("sinter_profile_segments").select(["position", "rate_c_per_min", "setpoint_c", "hold_min"]).where("profile_id", "=", run.profile_id).orderBy("position").execute()
@@ -186,6 +195,7 @@ export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitT
     build: build
       ? {
           id: build.id, code: build.code, state: build.state, material_lot: build.material_lot, printer_id: build.printer_id, printer_name: build.printer_name,
+          feedstock_lots: lots.map((l) => ({ id: l.id, code: l.code, supplier: l.supplier, supplier_lot: l.supplier_lot, drawn_g: Number(l.drawn_g) })),
           starts_at: iso(build.starts_at), ends_at: iso(build.ends_at), started_at: iso(build.started_at), finished_at: iso(build.finished_at),
           failed: build.failed, failure_reason: build.failure_reason, scale_snapshot: build.scale_snapshot, est_minutes: num(build.est_minutes),
         }

@@ -28,6 +28,11 @@ export const API_SCOPES = {
     hint: "Record wash masses, operate furnace runs, finishing steps and inspections.",
     permissions: ["wash:record", "furnace:operate", "finishing:write", "inspections:write"],
   },
+  "inventory:write": {
+    label: "Write inventory",
+    hint: "Receive, release and recall feedstock lots; record consumables.",
+    permissions: ["inventory:write", "inventory:recall", "consumables:write"],
+  },
   "setup:write": {
     label: "Write set-up",
     hint: "Change equipment, materials, sinter profiles, shop settings; apply calibration.",

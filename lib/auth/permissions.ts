@@ -37,6 +37,9 @@ export const PERMISSIONS = {
   "users:admin": ["admin"],
   "mail:read": ["admin"],
   "jobs:read": ["admin"],
+  "inventory:write": ["admin", "manager", "technician"],
+  "inventory:recall": ["admin", "manager"],
+  "consumables:write": ["admin", "technician", "furnace_operator"],
   "self:write": everyone,
 } as const satisfies Record<string, readonly Role[]>;
 
@@ -55,6 +58,7 @@ export const NAV: NavItem[] = [
   { href: "/parts", label: "Orders & parts", permission: "shop:read", hint: "Orders, parts, units and geometry" },
   { href: "/batches", label: "Batches", permission: "shop:read", hint: "Fill wash batches and furnace runs" },
   { href: "/finishing", label: "Finishing", permission: "shop:read", hint: "Arriving and ready parts, inspection" },
+  { href: "/inventory", label: "Feedstock", permission: "shop:read", hint: "Lots on hand, projection, genealogy, solvent and gas" },
   { href: "/capacity", label: "Capacity", permission: "capacity:read", hint: "Utilization, work in progress, late orders" },
   { href: "/setup", label: "Set-up", permission: "setup:write", hint: "Users, equipment, materials, profiles" },
   { href: "/mail", label: "Mail", permission: "mail:read", hint: "Messages captured by the local mail server" },

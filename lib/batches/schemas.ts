@@ -95,6 +95,8 @@ export const suggestSchema = z.object({
   horizon_hours: z.coerce.number().min(0).max(24 * 14).default(48),
   /** Only units whose material's default profile is one of these (the board's profile filter). */
   profile_ids: z.array(id).max(50).optional(),
+  /** Time the packer's search may take, ms; "search longer" on the board asks for more. */
+  budget_ms: z.coerce.number().int().min(200).max(30_000).default(1_000),
 });
 
 export const applyProposalSchema = z.object({ proposal_id: id });

@@ -41,6 +41,8 @@ export interface SuggestInput {
   furnace: boolean;
   /** Packer restarts per profile (more is slower and rarely better). */
   restarts?: number;
+  /** Time the packer's search may take, ms (see planFurnaceRuns). */
+  search_budget_ms?: number;
 }
 
 export interface ProposedRun {
@@ -87,6 +89,8 @@ export interface SuggestMetrics {
   max_lateness_min: number | null;
   late_units: number;
   pack_ms: number;
+  /** The packer's search: budget given, time taken, and why it stopped ("bound": nothing left to gain). */
+  search: { budget_ms: number | null; ms: number; stop: "bound" | "budget" | "time" | "off"; start_runs: number };
 }
 
 export interface SuggestResult {
@@ -141,6 +145,7 @@ function suggestFurnace(input: SuggestInput, unplaced: Unplaced[], busy: Busy[])
     cycle_min: cycleMin,
     bookings: busy.filter((b) => byId.has(b.resource_id)).map((b) => ({ furnace: byId.get(b.resource_id)!.name, start: new Date(b.start).toISOString(), end: new Date(b.end).toISOString() })),
     staffed_hours: input.staffing,
+    search_budget_ms: input.search_budget_ms,
   });
   const packMs = performance.now() - t0;
   for (const u of plan.unplaced) {
@@ -173,7 +178,9 @@ function suggestFurnace(input: SuggestInput, unplaced: Unplaced[], busy: Busy[])
       max_lateness_min: Math.round(lateness),
     };
   });
-  return { runs, lowerBound: plan.metrics.lower_bound, packMs, placedUnits: planUnits.length - plan.unplaced.length };
+  const s = plan.metrics.search;
+  const search = { budget_ms: s.budget_ms, ms: Math.round(s.ms), stop: s.stop, start_runs: s.start_runs };
+  return { runs, lowerBound: plan.metrics.lower_bound, packMs, placedUnits: planUnits.length - plan.unplaced.length, search };
 }
 
 const profileForCycleOf = (p: BoardProfile) => ({
@@ -229,7 +236,9 @@ export function suggestBatches(input: SuggestInput): SuggestResult {
   const unplaced: Unplaced[] = [];
   const busy: Busy[] = [...input.busy];
   const wash = input.wash ? suggestWash(input, unplaced, busy) : [];
-  const f = input.furnace ? suggestFurnace(input, unplaced, busy) : { runs: [], lowerBound: 0, packMs: 0, placedUnits: 0 };
+  const f = input.furnace
+    ? suggestFurnace(input, unplaced, busy)
+    : { runs: [], lowerBound: 0, packMs: 0, placedUnits: 0, search: { budget_ms: input.search_budget_ms ?? null, ms: 0, stop: "off" as const, start_runs: 0 } };
   const lateness = f.runs.map((r) => r.max_lateness_min);
   const due = new Map(input.furnace_units.map((u) => [u.id, Date.parse(u.due_at)]));
   const late = f.runs.reduce((n, r) => {
@@ -250,6 +259,7 @@ export function suggestBatches(input: SuggestInput): SuggestResult {
       max_lateness_min: lateness.length ? Math.max(...lateness) : null,
       late_units: late,
       pack_ms: Math.round(f.packMs),
+      search: f.search,
     },
   };
 }

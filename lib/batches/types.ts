@@ -166,6 +166,12 @@ export interface Board {
   wash_waiting: BoardUnit[];
   /** Brown and soon-brown (washing, not failed) units not in an open furnace run. */
   furnace_waiting: BoardUnit[];
+  /**
+   * How many wait in all: the lists above hold the most at risk only (BOARD_WAITING_LIMIT each),
+   * since a card per unit of thousands helps nobody drag and costs every open board megabytes.
+   */
+  wash_waiting_total: number;
+  furnace_waiting_total: number;
   wash_batches: BoardWashBatch[];
   furnace_runs: BoardFurnaceRun[];
   /** Running washes and runs, and finished runs not unloaded yet. */

@@ -13,16 +13,21 @@ export type CreateBuild = z.output<typeof createBuildSchema>;
 export const updateBuildSchema = z.object({
   version,
   material_lot: z.string().trim().max(60).optional(),
+  /** The feedstock lot to print from; null leaves the choice to first-expiring-first-out at start. */
+  feedstock_lot_id: z.string().uuid("choose a lot").nullable().optional(),
   notes: z.string().trim().max(2000).optional(),
   /** Replaces the build's units; only while the build is a draft or scheduled. */
   unit_ids: createBuildSchema.shape.unit_ids.optional(),
 });
 export type UpdateBuild = z.output<typeof updateBuildSchema>;
 
+/** Weighed feedstock the build really used (spool before minus after), replacing the estimate. */
+const feedstockUsed = z.coerce.number({ error: "feedstock used must be a number of kg" }).finite().min(0, "cannot be negative").max(1000, "at most 1000 kg").optional();
+
 export const buildActionSchema = z.discriminatedUnion("action", [
   z.object({ action: z.literal("start"), version }),
-  z.object({ action: z.literal("complete"), version }),
-  z.object({ action: z.literal("fail"), version, reason: z.string({ error: "say what went wrong" }).trim().min(3, "say what went wrong").max(500) }),
+  z.object({ action: z.literal("complete"), version, feedstock_used_kg: feedstockUsed }),
+  z.object({ action: z.literal("fail"), version, reason: z.string({ error: "say what went wrong" }).trim().min(3, "say what went wrong").max(500), feedstock_used_kg: feedstockUsed }),
   z.object({ action: z.literal("cancel"), version }),
 ], { error: "action must be start, complete, fail or cancel" });
 export type BuildAction = z.output<typeof buildActionSchema>;

@@ -33,7 +33,7 @@ const CLAY = rgb(0.659, 0.31, 0.165);
 const LINE = rgb(0.827, 0.804, 0.769);
 
 /** Standard PDF fonts only know WinAnsi; anything else would throw while drawing. */
-function safe(text: string): string {
+export function safe(text: string): string {
   return text
     .replace(/[≤]/g, "<=")
     .replace(/[≥]/g, ">=")
@@ -54,7 +54,7 @@ function duration(minutes: number | null): string {
   return h ? `${h} h ${String(m).padStart(2, "0")} min` : `${m} min`;
 }
 
-function drawQr(page: PDFPage, text: string, x: number, y: number, size: number) {
+export function drawQr(page: PDFPage, text: string, x: number, y: number, size: number) {
   const qr = QRCode.create(text, { errorCorrectionLevel: "M" });
   const n = qr.modules.size;
   const quiet = 2;

@@ -129,6 +129,8 @@ export type UnitTrace = {
   material: { id: string; code: string; name: string; shrink_xy: number; shrink_z: number; min_mass_loss: number };
   build: {
     id: string; code: string; state: string; material_lot: string; printer_id: string | null; printer_name: string | null;
+    /** The feedstock lots the build drew from (several when one ran out). */
+    feedstock_lots: Array<{ id: string; code: string; supplier: string; supplier_lot: string; drawn_g: number }>;
     starts_at: string | null; ends_at: string | null; started_at: string | null; finished_at: string | null;
     failed: boolean; failure_reason: string | null; scale_snapshot: unknown; est_minutes: number | null;
   } | null;

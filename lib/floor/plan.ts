@@ -34,6 +34,8 @@ export type PlanInput = {
   builds: PlanBuild[];
   /** Builds may only start in these hours; none = any time. */
   staffed?: StaffedHours | null;
+  /** Time the planner's lateness search may take, ms (none: until no move helps). */
+  budget_ms?: number;
 };
 
 export type PlanItem = { build_id: string; printer_id: string; start: number; end: number; lateness_min: number };
@@ -50,6 +52,8 @@ export type PlanMetrics = {
   late_count: number;
   /** Moves the planner's local search made beyond plain earliest-due-date. */
   search_moves: number;
+  /** The search stopped at the time budget (a longer one may do better). */
+  search_timed_out: boolean;
 };
 export type PlanResult = { items: PlanItem[]; unplaced: PlanUnplaced[]; metrics: PlanMetrics };
 
@@ -114,7 +118,7 @@ export function planFloor(input: PlanInput): PlanResult {
         due: iso(b.due ?? now + NO_DUE_MS),
       })),
     },
-    { staffed_hours: input.staffed ?? null },
+    { staffed_hours: input.staffed ?? null, budgetMs: input.budget_ms },
   );
   for (const u of result.unplaced) unplaced.push({ build_id: u.build, reason: u.reason });
 
@@ -154,6 +158,7 @@ export function planFloor(input: PlanInput): PlanResult {
       total_lateness_min: lateness.reduce((s, l) => s + l, 0),
       late_count: lateness.filter((l) => l > 0).length,
       search_moves: result.moves,
+      search_timed_out: result.timed_out,
     },
   };
 }

@@ -19,6 +19,8 @@ export const proposePlanSchema = z.object({
   build_ids: z.array(z.string().uuid()).max(2000).optional(),
   /** Earliest start; now when absent. */
   from: instant.optional(),
+  /** Time the planner's search may take, ms. */
+  budget_ms: z.coerce.number().int().min(200).max(30_000).default(2_000),
 });
 
 export const decidePlanSchema = z.object({ decision: z.enum(["apply", "refuse"], { error: "decision must be apply or refuse" }) });

@@ -1,7 +1,8 @@
 // The floor's window JSON, kept for a moment per window and per change stamp. A request whose
 // stamp differs from the cached one reloads; concurrent misses of one window share one load.
 // The age limit covers the one gap a stamp cannot: a change whose stamp moved just before its
-// transaction committed, read in between.
+// transaction committed, read in between. While the live listener is up it closes that gap
+// sooner: it clears the cache as soon as the committed change is announced (app/_server/live-hub.ts).
 
 import type { WindowBody } from "./window-body";
 

@@ -12,8 +12,9 @@ import {
 // STL reader. Binary layout (little-endian IEEE-754): 80-byte header, UINT32 facet count, then
 // 50 bytes per facet: normal (3 × REAL32), three vertices (9 × REAL32), UINT16 attribute
 // count; file size = 84 + 50·n. ASCII: solid name / facet normal … / outer loop /
-// vertex x y z ×3 / endloop / endfacet / endsolid. Facet normals are not used: they are
-// often wrong or zero in the wild, and the vertex order carries the orientation.
+// vertex x y z ×3 / endloop / endfacet / endsolid, lines ending in LF, CR LF or a lone CR.
+// Facet normals are not used: they are often wrong or zero in the wild, and the vertex order
+// carries the orientation.
 
 export type StlErrorCode = "empty" | "truncated" | "count_mismatch" | "non_finite" | "too_large" | "not_stl";
 
@@ -207,9 +208,14 @@ const NON_FINITE_WORD = /^[-+]?(?:nan|inf|infinity)$/i;
 export function parseAsciiStl(bytes: Uint8Array): ParsedStl {
   if (bytes.length === 0) throw new StlError("empty", "the file is empty");
   const text = new TextDecoder("utf-8", { fatal: false }).decode(bytes);
+  // A line ends at LF, CR LF or a lone CR: files from classic Mac OS exporters still use the
+  // last, and the line numbers in errors must match what an editor shows for all three.
   const lineOf = (index: number) => {
     let line = 1;
-    for (let i = 0; i < index && i < text.length; i++) if (text.charCodeAt(i) === 10) line++;
+    for (let i = 0, end = Math.min(index, text.length); i < end; i++) {
+      const c = text.charCodeAt(i);
+      if (c === 10 || (c === 13 && text.charCodeAt(i + 1) !== 10)) line++;
+    }
     return line;
   };
   const token = /\S+/g;
@@ -231,8 +237,8 @@ export function parseAsciiStl(bytes: Uint8Array): ParsedStl {
   };
   const restOfLine = () => {
     const from = token.lastIndex;
-    let end = text.indexOf("\n", from);
-    if (end < 0) end = text.length;
+    let end = from;
+    while (end < text.length && text.charCodeAt(end) !== 10 && text.charCodeAt(end) !== 13) end++;
     token.lastIndex = end;
     return text.slice(from, end).trim();
   };

@@ -304,3 +304,41 @@ export function readyForFinishingMail(data: ReadyMailData, recipient: MailRecipi
   );
   return render(subject, recipient, ctx, blocks);
 }
+
+export type ReorderMailData = { material_code: string; material_name: string; on_hand_g: number; reorder_point_g: number; lead_time_days: number; first_below_day: string; first_short_day: string | null; short_builds: string[] };
+
+const kgText = (g: number) => `${(g / 1000).toLocaleString("en-GB", { maximumFractionDigits: 1 })} kg`;
+
+export function feedstockReorderMail(data: ReorderMailData, recipient: MailRecipient, ctx: MailContext): MailContent {
+  const subject = `Reorder ${data.material_code} feedstock: below the reorder point on ${data.first_below_day}`;
+  return render(subject, recipient, ctx, [
+    {
+      kind: "p",
+      text: `With the builds now scheduled, ${data.material_name} feedstock on the shelf falls below its reorder point of ${kgText(data.reorder_point_g)} on ${data.first_below_day}, within the ${data.lead_time_days}-day lead time of a delivery.${data.first_short_day ? ` It runs out on ${data.first_short_day}; ${plural(data.short_builds.length, "scheduled build")} would then have nothing to print from.` : ""}`,
+    },
+    {
+      kind: "facts",
+      rows: [
+        ["Material", `${data.material_code} (${data.material_name})`],
+        ["Released and in date now", kgText(data.on_hand_g)],
+        ["Reorder point", kgText(data.reorder_point_g)],
+        ["Below it on", data.first_below_day],
+        ["Runs out on", data.first_short_day ?? "not within the horizon"],
+        ["Builds short", data.short_builds.length ? data.short_builds.join(", ") : "none"],
+      ],
+    },
+    { kind: "link", label: "Open feedstock", href: link(ctx, "/inventory") },
+  ]);
+}
+
+export type BathMailData = { station: string; solvent: string; dissolved_g: number; limit_g: number; saturation: number };
+
+export function bathChangeDueMail(data: BathMailData, recipient: MailRecipient, ctx: MailContext): MailContent {
+  const subject = `Change the solvent at ${data.station}: ${Math.round(data.saturation * 100)} % of its binder limit`;
+  return render(subject, recipient, ctx, [
+    { kind: "p", text: `The bath at ${data.station} has taken up ${kgText(data.dissolved_g)} of binder since its last change, ${Math.round(data.saturation * 100)} % of the ${kgText(data.limit_g)} the shop allows. A saturated bath washes slowly and leaves binder behind; change it before the next batch.` },
+    { kind: "facts", rows: [["Wash station", data.station], ["Solvent", data.solvent], ["Binder dissolved", kgText(data.dissolved_g)], ["Limit", kgText(data.limit_g)]] },
+    { kind: "caution", text: "Wash solvents give off flammable, harmful vapour: drain and refill with ventilation running, no ignition sources, gloves and eye protection, and dispose of spent solvent as the solvent maker's safety data sheet and local codes require." },
+    { kind: "link", label: "Open feedstock and consumables", href: link(ctx, "/inventory#consumables") },
+  ]);
+}

@@ -5,7 +5,8 @@
 // second plate is reported as not fitting, with the plate count it would take.
 
 import { ComputationError } from "@/lib/errors";
-import { solveProfile } from "./run-solver";
+import { orderByDue, solveProfile } from "./run-solver";
+import { reduceRuns } from "./run-search";
 import { buildTrayModel } from "./tray-model";
 import type { PackUnit, TrayPlacement } from "./types";
 
@@ -77,7 +78,13 @@ export function packPlate(units: readonly PlateUnit[], printer: PlatePrinter, cl
   if (!pm) {
     return { printer: printer.id, placements: [], unplaced, area_used_fraction: 0, plates_needed: 0, lower_bound_plates: 0 };
   }
-  const runs = solveProfile(pm, { restarts: 0 });
+  let runs = solveProfile(pm, { restarts: 0 });
+  // Units left for a second plate: the run-removing search may fit them all on one. A small
+  // budget: plates are laid out for every build and printer when the floor checks fits.
+  if (runs.length > pm.bound.largest) {
+    const found = reduceRuns(pm, runs, { seed: 1, work: Math.min(20_000, 300 * pm.items.length) });
+    if (found.runs.length < runs.length) runs = orderByDue(found.runs);
+  }
   const first = runs[0];
   const c = model.clearance;
   const placements: TrayPlacement[] = first.placed.map((p) => {

@@ -14,6 +14,7 @@
 // overlap, or to cross the clearance line, by that much and no more.
 
 import { ComputationError } from "@/lib/errors";
+import { dffTrayBound, shortSideTrayBound } from "./dual-feasible";
 import { ceilWithSlack, martelloTothL2 } from "./one-dimensional";
 import { GEOMETRY_EPS } from "./rectangles";
 import type { PackFurnace, PackUnit, TrayLowerBound, TrayPackInput, Unplaced } from "./types";
@@ -65,7 +66,7 @@ export interface ProfileModel {
   maxLoad: number;
   maxTrays: number;
   minSide: number;
-  bound: { area: number; mass: number; count: number; largest: number };
+  bound: { area: number; mass: number; count: number; shape: number; largest: number };
 }
 
 export interface TrayModel {
@@ -253,7 +254,7 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
   });
 
   const profiles: ProfileModel[] = [];
-  const total = { area: 0, mass: 0, count: 0, largest: 0 };
+  const total = { area: 0, mass: 0, count: 0, shape: 0, largest: 0 };
   for (const [profile, items] of [...byProfile.entries()].sort((a, b) => (a[0] < b[0] ? -1 : 1))) {
     const used = new Set<number>();
     for (const it of items) for (const f of it.eligible) used.add(f);
@@ -283,11 +284,24 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
       : 0;
     const big = items.filter((it) => it.eligible.every((fi) => isBigOnTray(it.pw, it.ph, furnaces[fi]))).length;
     const count = big === 0 ? 0 : ceilWithSlack(big / maxTrays);
-    const largest = Math.max(area, mass, count, items.length > 0 ? 1 : 0);
-    const bound = { area, mass, count, largest };
+    // Trays needed by the pieces' shapes (dual-feasible functions, turning allowed), spread over
+    // the most trays a run of this profile can have.
+    const shapeTrays = dffTrayBound(
+      items.map((it) => ({ w: it.pw, h: it.ph, trays: it.eligible.map((fi) => ({ W: furnaces[fi].W, D: furnaces[fi].D })) })),
+      items.length <= 200 ? 24 : 8,
+    );
+    // The short-side bound needs one tray size for the whole profile.
+    const t0 = pf[0];
+    const oneSize = pf.every((f) => (f.W === t0.W && f.D === t0.D) || (f.W === t0.D && f.D === t0.W));
+    const sideTrays = oneSize ? shortSideTrayBound(items.map((it) => ({ w: it.pw, h: it.ph })), t0.W, t0.D) : 0;
+    const trayNeed = Math.max(shapeTrays, sideTrays);
+    const shape = trayNeed === 0 ? 0 : ceilWithSlack(trayNeed / maxTrays);
+    const largest = Math.max(area, mass, count, shape, items.length > 0 ? 1 : 0);
+    const bound = { area, mass, count, shape, largest };
     total.area += area;
     total.mass += mass;
     total.count += count;
+    total.shape += shape;
     total.largest += largest;
     profiles.push({ profile, items, furnaces: pf, maxRunArea, maxLoad, maxTrays, minSide, bound });
   }

@@ -58,14 +58,19 @@ export interface Unplaced {
 }
 
 /**
- * Lower bounds on the run count. `area`, `mass` and `count` are each summed over profiles;
- * `largest` sums, profile by profile, the largest of the three, so it is at least max(area,
- * mass, count) and is the bound to compare a result against.
+ * Lower bounds on the run count. `area`, `mass`, `count` and `shape` are each summed over
+ * profiles; `largest` sums, profile by profile, the largest of the four, so it is at least
+ * max(area, mass, count, shape) and is the bound to compare a result against.
  */
 export interface TrayLowerBound {
+  /** Martello–Toth L2 on footprint area against the largest run area. */
   area: number;
+  /** Martello–Toth L2 on mass against the largest load limit. */
   mass: number;
+  /** Pieces over half a tray both ways, which cannot share a tray. */
   count: number;
+  /** Trays needed by the pieces' shapes (dual-feasible functions, turning allowed; dual-feasible.ts). */
+  shape: number;
   largest: number;
 }
 

@@ -7,7 +7,7 @@
 
 import { ComputationError } from "@/lib/errors";
 import { GEOMETRY_EPS } from "@/lib/packing/rectangles";
-import { packTrays } from "@/lib/packing/trays";
+import { defaultSearchWork, packTraysReported, type PackSearchReport } from "@/lib/packing/trays";
 import type { PackFurnace, PackUnit, TrayLowerBound, TrayRun, Unplaced } from "@/lib/packing/types";
 import { StaffedCalendar, type StaffedHours } from "./staffed-hours";
 
@@ -34,6 +34,13 @@ export interface FurnacePlanInput {
   /** Runs already booked and maintenance, per furnace. */
   bookings?: readonly FurnaceBooking[];
   staffed_hours?: StaffedHours | null;
+  /**
+   * Time the packer's run-removing search may take, ms. The default work (repeatable for a seed)
+   * is scaled by budget / 1 s, and the budget is also a hard deadline.
+   */
+  search_budget_ms?: number;
+  /** Clock for the deadline (default Date.now). */
+  clock?: () => number;
 }
 
 export interface ProposedRun extends TrayRun {
@@ -52,6 +59,8 @@ export interface FurnacePlanMetrics {
   late_count: number;
   /** Minutes from `now` to the end of the last proposed run. */
   makespan_min: number;
+  /** How the packer's search ended: "bound" = the run count meets the lower bound. */
+  search: PackSearchReport & { budget_ms: number | null };
 }
 
 export interface FurnacePlanResult {
@@ -135,7 +144,13 @@ export function planFurnaceRuns(input: FurnacePlanInput): FurnacePlanResult {
     const key = Math.max(ready.get(u.id)!, d - input.cycle_min[u.profile] * MINUTE_MS);
     return { ...u, due: new Date(key).toISOString() };
   });
-  const packed = packTrays({ clearance_mm: input.clearance_mm, furnaces: input.furnaces, units: packUnits });
+  const budget = input.search_budget_ms ?? null;
+  const { result: packed, search } = packTraysReported(
+    { clearance_mm: input.clearance_mm, furnaces: input.furnaces, units: packUnits },
+    budget === null
+      ? { clock: input.clock }
+      : { search: { work: Math.round(defaultSearchWork(packUnits.length) * (budget / 1000)), deadlineMs: budget }, clock: input.clock },
+  );
   unplaced.push(...packed.unplaced);
   const cal = input.staffed_hours ? new StaffedCalendar(input.staffed_hours, now) : null;
 
@@ -192,6 +207,7 @@ export function planFurnaceRuns(input: FurnacePlanInput): FurnacePlanResult {
       max_lateness_min: Number.isFinite(maxLate) ? maxLate / MINUTE_MS : null,
       late_count: lateCount,
       makespan_min: (last - now) / MINUTE_MS,
+      search: { ...search, budget_ms: budget },
     },
   };
 }

@@ -7,7 +7,9 @@
 // in due order, each on the compatible printer where it would finish first. Each printer runs its
 // builds in due order and a build may drop into an idle gap left before a blocked window, which
 // delays nobody. Then a local search moves and swaps builds off the printer that finishes last
-// while the maximum lateness stays no worse than the plain rule's.
+// while the maximum lateness stays no worse than the plain rule's, and a second one moves and
+// swaps builds off the printer with the latest build (against its due date) while the makespan
+// stays where the first search left it.
 
 import { ComputationError } from "@/lib/errors";
 import { printerPlanInstanceSchema, type PrinterPlanInstance, type PrinterPlanInstanceInput } from "./instances";
@@ -55,6 +57,8 @@ export interface PrinterPlanResult {
   lowerBound: PrinterLowerBound;
   /** Local-search moves applied. */
   moves: number;
+  /** The lateness pass stopped at `budgetMs` rather than because no move helped. */
+  timed_out: boolean;
 }
 
 export interface PrinterPlanOptions {
@@ -62,6 +66,9 @@ export interface PrinterPlanOptions {
   improve?: boolean;
   /** Upper limit on local-search moves (keeps the run time bounded and the result repeatable). */
   maxMoves?: number;
+  /** Time allowed for the lateness pass (ms of `clock`); none = until no move helps. */
+  budgetMs?: number;
+  clock?: () => number;
   /** Overrides the instance's staffed hours. */
   staffed_hours?: StaffedHours | null;
 }
@@ -489,6 +496,64 @@ function improve(model: Model, seqs: number[][], lateCap: number, bound: number,
   return moves;
 }
 
+/**
+ * Second pass, after the makespan search: lowers the maximum lateness. Take the printer whose
+ * latest build is the latest against its due date and move one of its builds elsewhere, or swap
+ * it for another printer's build, choosing the move that lowers the larger lateness of the two
+ * printers most; neither printer may then finish after `finishCap` (the plan's makespan), so the
+ * makespan never grows. Stops when no move lowers the maximum lateness or after maxMoves.
+ */
+function improveLateness(model: Model, seqs: number[][], finishCap: number, maxMoves: number, outOfTime: () => boolean): number {
+  const state = seqs.map((s, i) => timeSequence(model, model.printers[i], s));
+  const builds = model.builds;
+  let moves = 0;
+  while (moves < maxMoves && !outOfTime()) {
+    let crit = 0;
+    for (let i = 1; i < state.length; i++) if (state[i].lmax > state[crit].lmax) crit = i;
+    const lc = state[crit].lmax;
+    if (lc <= 0) break;
+    const critPr = model.printers[crit];
+    const mine = seqs[crit];
+    type Move = { j: number; k: number; j2: number; sa: PrinterState; sb: PrinterState; key: number; tie: number };
+    let best: Move | null = null;
+    const consider = (j: number, k: number, j2: number, sa: PrinterState) => {
+      if (sa.lmax >= lc || sa.finish > finishCap) return;
+      const sb = timeSequence(model, model.printers[k], seqs[k], undefined, j2, j);
+      if (sb.finish > finishCap) return;
+      const key = Math.max(sa.lmax, sb.lmax);
+      if (key >= lc) return;
+      const tie = sa.tard + sb.tard - state[crit].tard - state[k].tard;
+      if (!best || key < best.key || (key === best.key && tie < best.tie)) best = { j, k, j2, sa, sb, key, tie };
+    };
+    for (const j of mine) {
+      const others = builds[j].compat.filter((k) => k !== crit && state[k].lmax < lc);
+      if (others.length === 0) continue;
+      const sa = timeSequence(model, critPr, mine, undefined, j);
+      if (sa.lmax >= lc) continue;
+      for (const k of others) consider(j, k, -1, sa);
+    }
+    if (!best) {
+      for (const j of mine) {
+        for (const k of builds[j].compat) {
+          if (k === crit || state[k].lmax >= lc) continue;
+          for (const j2 of seqs[k]) {
+            if (builds[j2].p >= builds[j].p || !builds[j2].compat.includes(crit)) continue;
+            consider(j, k, j2, timeSequence(model, critPr, mine, undefined, j, j2));
+          }
+        }
+      }
+    }
+    if (!best) break;
+    const m = best as Move;
+    seqs[crit] = edited(model, mine, m.j, m.j2);
+    seqs[m.k] = edited(model, seqs[m.k], m.j2, m.j);
+    state[crit] = m.sa;
+    state[m.k] = m.sb;
+    moves++;
+  }
+  return moves;
+}
+
 /** Plans `instance` (parsed or raw; validated here). */
 export function planPrinters(
   instance: PrinterPlanInstance | PrinterPlanInstanceInput,
@@ -507,10 +572,18 @@ export function planPrinters(
   timeAll();
   const baseline = metricsOf(model, starts);
   let moves = 0;
+  let timedOut = false;
   if (options.improve !== false && model.builds.length > 0) {
     const cap = (baseline.max_lateness_min ?? 0) * MINUTE_MS;
     const bound = model.now + lowerBound.makespan_min * MINUTE_MS;
-    moves = improve(model, seqs, cap, bound, options.maxMoves ?? 5000);
+    const maxMoves = options.maxMoves ?? 5000;
+    moves = improve(model, seqs, cap, bound, maxMoves);
+    timeAll();
+    const finishCap = Math.max(...model.builds.map((b) => starts[b.idx] + b.p));
+    const clock = options.clock ?? (() => Date.now());
+    const t0 = clock();
+    const outOfTime = () => (timedOut ||= options.budgetMs !== undefined && clock() - t0 > options.budgetMs);
+    moves += improveLateness(model, seqs, finishCap, Math.max(0, maxMoves - moves), outOfTime);
     timeAll();
   }
   const assignments: PlannedBuild[] = [];
@@ -526,5 +599,5 @@ export function planPrinters(
     }
   });
   assignments.sort((a, b) => (a.printer < b.printer ? -1 : a.printer > b.printer ? 1 : a.start < b.start ? -1 : 1));
-  return { assignments, unplaced: model.unplaced, metrics: metricsOf(model, starts), baseline, lowerBound, moves };
+  return { assignments, unplaced: model.unplaced, metrics: metricsOf(model, starts), baseline, lowerBound, moves, timed_out: timedOut };
 }

@@ -357,6 +357,9 @@ describe("suggest batches", () => {
     expect(p.metrics.lower_bound).toBe(2);
     expect(p.metrics.furnace_runs).toBeGreaterThanOrEqual(p.metrics.lower_bound);
     expect(p.metrics.furnace_runs).toBeLessThanOrEqual(3);
+    // The search reports why it stopped; at the bound there is nothing left to gain.
+    expect(p.metrics.search.budget_ms).toBe(1000);
+    if (p.metrics.furnace_runs === p.metrics.lower_bound) expect(p.metrics.search.stop).toBe("bound");
     expect(p.unplaced).toHaveLength(0);
     const proposedIds = p.furnace.flatMap((r: { units: { id: string }[] }) => r.units.map((u) => u.id));
     expect(proposedIds.sort()).toEqual(units.map((u) => u.id).sort());
@@ -373,6 +376,11 @@ describe("suggest batches", () => {
     expect(runs.every((r) => r.state === "scheduled" && r.starts_at && r.ends_at && r.furnace_id === own.id)).toBe(true);
     const again = await api("/api/batches/suggest/apply", { method: "POST", cookie: operator, body: { proposal_id: p.id } });
     expect(again.status).toBe(409);
+
+    // A search budget beyond the limit is refused with the field named, not run.
+    const tooLong = await api("/api/batches/suggest", { method: "POST", cookie: operator, body: { ...only, budget_ms: 600_000 } });
+    expect(tooLong.status).toBe(422);
+    expect(JSON.stringify(tooLong.body)).toMatch(/budget_ms/);
 
     const more = await makeUnits(db, { material: mine.material_code, state: "brown", count: 2, green: [60, 60, 30], mass_g: 200 });
     const second = await api("/api/batches/suggest", { method: "POST", cookie: operator, body: only });

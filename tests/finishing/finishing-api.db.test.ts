@@ -132,7 +132,9 @@ describe("inspection readings", () => {
     expect(res.body.stock_check.shortByMm).toBeCloseTo(0.254 + 0.05 - 0.2635, 9);
     const row = await db.selectFrom("inspections").selectAll().where("id", "=", res.body.id).executeTakeFirstOrThrow();
     expect(Number(row.sintered_x_mm)).toBeCloseTo(25.527, 9);
-    expect(Number(row.ra_um)).toBeCloseTo(0.8128, 9); // 32 µin × 0.0254
+    // Ra, the mean absolute profile deviation from the mean line (ISO 4287:1997 / ISO 21920-2:2021,
+    // ASME B46.1-2002), converts as a length: 32 µin × 0.0254 µm/µin (NIST SP 811 B.8).
+    expect(Number(row.ra_um)).toBeCloseTo(0.8128, 9);
     expect(Number(row.green_x_mm)).toBe(30); // the planned green size, from the part
     expect(row).toMatchObject({ green_source: "planned", entered_units: "in", runout_axis: "x" });
 

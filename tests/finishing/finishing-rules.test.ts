@@ -64,7 +64,9 @@ describe("inspection readings", () => {
     const stored = toStoredReadings(input);
     expect(stored.green.x).toBe(31.75);
     expect(stored.finished.x).toBe(25.4);
-    expect(stored.ra_um).toBe(3.175); // 125 µin is 3.175 µm exactly, not the 3.2 µm ladder rung
+    // Ra (ISO 4287:1997 / ISO 21920-2:2021, ASME B46.1-2002: the mean absolute deviation of the
+    // profile from its mean line) is a length: 125 µin is 3.175 µm exactly, not the 3.2 µm rung.
+    expect(stored.ra_um).toBe(3.175);
     expect(stored.runout_mm).toBeCloseTo(0.0508, 12);
   });
 

@@ -4,11 +4,15 @@ import { testDb } from "../helpers/db";
 import { appUrl, launchBrowser, screenshot } from "../helpers/browser";
 import { DEMO, signIn } from "../helpers/session";
 import { openingWeek } from "@/components/floor/opening-week";
+import { addLocalDays, localDateOf, zonedParts, zonedTimeToUtc, type LocalDate } from "@/lib/process/time-zone";
+import { api } from "../helpers/session";
 import { makeDraftBuild, makePrinter, retirePrinters } from "./fixtures";
 
 // The floor in Chromium, signed in as a technician: drag an unscheduled build onto a printer
 // lane, see it there after a reload, and see an overlapping drop refused with the reason; a
 // finished build is a block in its lane's background that opens the build when clicked.
+// Then the same floor in a browser whose clock is in another zone (Asia/Tokyo): the timeline,
+// the now line and a drop all read the shop's zone (shop_settings.time_zone).
 
 const { db, close } = testDb();
 let browser: Browser;
@@ -17,13 +21,14 @@ let tech: string;
 let lane: { id: string; name: string };
 let first: Awaited<ReturnType<typeof makeDraftBuild>>;
 let second: Awaited<ReturnType<typeof makeDraftBuild>>;
+let shopZone: string;
 
-async function openNextWeek(page: Page) {
+async function openNextWeek(page: Page, laneId = lane.id) {
   await page.goto(`${appUrl()}/floor`);
   await page.waitForSelector('[data-testid="floor-board"][data-ready="true"]');
   await page.click(".fc-next-button");
   await page.waitForFunction(() => document.querySelector('[data-testid="floor-board"]')?.getAttribute("data-ready") === "true");
-  await page.waitForSelector(`.fc-timeline-lane[data-resource-id="${lane.id}"]`);
+  await page.waitForSelector(`.fc-timeline-lane[data-resource-id="${laneId}"]`);
 }
 
 /** Drags an element onto the printer lane at the start of the n-th time slot of the view. */
@@ -42,6 +47,7 @@ async function dragTo(page: Page, selector: string, slotIndex: number, opts: { d
 
 beforeAll(async () => {
   tech = await signIn(DEMO.technician);
+  shopZone = (await db.selectFrom("shop_settings").select("time_zone").where("id", "=", 1).executeTakeFirstOrThrow()).time_zone;
   lane = await makePrinter(db, { materials: ["17-4PH"], build: [300, 250, 200], rate: 20, name: `AA-${Date.now().toString(36)}` });
   first = await makeDraftBuild(tech, db, { material: "17-4PH", quantity: 2, due: new Date(Date.now() - 86_400_000) });
   second = await makeDraftBuild(tech, db, { material: "17-4PH", due: new Date(Date.now() - 86_400_000) });
@@ -137,7 +143,7 @@ describe("the floor in a browser", () => {
     await page.goto(`${appUrl()}/floor`);
     await page.waitForSelector('[data-testid="floor-board"][data-ready="true"]');
     // Early on a Sunday the build finished in last week's view.
-    if (ends.getTime() <= Date.parse(openingWeek().from)) {
+    if (ends.getTime() <= Date.parse(openingWeek(shopZone).from)) {
       await page.click(".fc-prev-button");
       await page.waitForFunction(() => document.querySelector('[data-testid="floor-board"]')?.getAttribute("data-ready") === "true");
     }
@@ -149,6 +155,115 @@ describe("the floor in a browser", () => {
     const box = (await block.boundingBox())!;
     await page.mouse.click(box.x + 3, box.y + box.height / 2);
     await page.waitForURL(`**/builds/${done.id}`, { timeout: 15_000 });
+    await page.close();
+  });
+});
+
+describe("the floor in a browser on another zone's clock", () => {
+  const BROWSER_ZONE = "Asia/Tokyo";
+  let far: BrowserContext;
+  let zoneLane: { id: string; name: string };
+  let shown: Awaited<ReturnType<typeof makeDraftBuild>>;
+  let dropped: Awaited<ReturnType<typeof makeDraftBuild>>;
+  /** Next week's day (0 = Sunday) in the shop's zone, the week the tests open. */
+  const nextWeekDay = (weekday: number): LocalDate => addLocalDays(localDateOf(Date.parse(openingWeek(shopZone).to), shopZone), weekday);
+  const slotLane = (page: Page, day: LocalDate, hour: number) => {
+    const two = (n: number) => String(n).padStart(2, "0");
+    return page.locator(`.fc-timeline-slot-lane[data-date="${day.year}-${two(day.month)}-${two(day.day)}T${two(hour)}:00:00"]`);
+  };
+
+  beforeAll(async () => {
+    // The demo shop keeps its own zone; the point is that the browser's differs from it.
+    expect(shopZone).not.toBe(BROWSER_ZONE);
+    zoneLane = await makePrinter(db, { materials: ["17-4PH"], build: [300, 250, 200], rate: 20, name: `AB-${Date.now().toString(36)}` });
+    shown = await makeDraftBuild(tech, db, { material: "17-4PH" });
+    dropped = await makeDraftBuild(tech, db, { material: "17-4PH", due: new Date(Date.now() - 86_400_000) });
+    far = await browser.newContext({ viewport: { width: 1600, height: 1100 }, timezoneId: BROWSER_ZONE });
+    const [name, value] = tech.split("=");
+    await far.addCookies([{ name, value, url: appUrl() }]);
+  });
+
+  afterAll(async () => {
+    await far?.close();
+    await retirePrinters(db, [zoneLane.id]);
+  });
+
+  it("runs the browser on another clock", async () => {
+    const page = await far.newPage();
+    expect(await page.evaluate(() => Intl.DateTimeFormat().resolvedOptions().timeZone)).toBe(BROWSER_ZONE);
+    await page.close();
+  });
+
+  it("shows a booking at its hour in the shop's zone", async () => {
+    // Wednesday 09:00 in the shop is Wednesday 23:00 in Tokyo (22:00 in summer time)
+    const day = nextWeekDay(3);
+    const startsAt = new Date(zonedTimeToUtc(day, 9 * 60, shopZone));
+    const res = await api(`/api/builds/${shown.build.id}/schedule`, { method: "PATCH", cookie: tech, body: { version: shown.build.version, printer_id: zoneLane.id, starts_at: startsAt.toISOString() } });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+
+    const page = await far.newPage();
+    await openNextWeek(page, zoneLane.id);
+    expect(await page.locator("body").textContent()).toContain(`Times are the shop's, in ${shopZone.replaceAll("_", " ")}`);
+    const booking = page.locator(`.fc-timeline-lane[data-resource-id="${zoneLane.id}"] [data-event-id="${shown.build.id}"]`);
+    await booking.waitFor({ timeout: 15_000 });
+    const left = await booking.evaluate((el) => el.closest(".fc-timeline-event-harness")!.getBoundingClientRect().left);
+    // The week view's slots are six hours: 09:00 is half-way through the 06:00 slot.
+    const slot = (await slotLane(page, day, 6).boundingBox())!;
+    expect(Math.abs(left - (slot.x + slot.width / 2))).toBeLessThan(3);
+    await screenshot(page, "floor-shop-zone-booking");
+    await page.close();
+  });
+
+  it("draws the now line at the shop's time", async () => {
+    const page = await far.newPage();
+    await page.goto(`${appUrl()}/floor`);
+    await page.waitForSelector('[data-testid="floor-board"][data-ready="true"]');
+    const line = page.locator(".fc-timeline-now-indicator-line").first();
+    await line.waitFor({ timeout: 15_000 });
+    const now = zonedParts(Date.now(), shopZone);
+    const slot = (await slotLane(page, now, now.hour - (now.hour % 6)).boundingBox())!;
+    const fraction = ((now.hour % 6) * 60 + now.minute + now.second / 60) / 360;
+    const x = (await line.boundingBox())!.x;
+    // a minute is about a tenth of a pixel here; allow for the seconds the page took
+    expect(Math.abs(x - (slot.x + fraction * slot.width))).toBeLessThan(3);
+    await page.close();
+  });
+
+  it("books the instant of the shop-zone slot a build is dropped on", async () => {
+    const page = await far.newPage();
+    await openNextWeek(page, zoneLane.id);
+    await page.waitForSelector(`[data-testid="unscheduled-${dropped.build.code}"]`);
+    // Thursday 12:00 shop time in the day view, whose hour slots are wide enough to aim at
+    // the middle of one 15-minute snap.
+    const day = nextWeekDay(4);
+    await page.click(".fc-resourceTimelineDay-button");
+    await page.waitForFunction(() => document.querySelector('[data-testid="floor-board"]')?.getAttribute("data-ready") === "true");
+    for (let i = 0; i < 8 && (await slotLane(page, day, 12).count()) === 0; i++) {
+      const shownDay = (await page.locator(".fc-timeline-slot-lane[data-date]").first().getAttribute("data-date"))!.slice(0, 10);
+      const target = `${day.year}-${String(day.month).padStart(2, "0")}-${String(day.day).padStart(2, "0")}`;
+      await page.click(shownDay < target ? ".fc-next-button" : ".fc-prev-button");
+      await page.waitForFunction(() => document.querySelector('[data-testid="floor-board"]')?.getAttribute("data-ready") === "true");
+    }
+    const slot = (await slotLane(page, day, 12).boundingBox())!;
+    const snapPx = slot.width / 4;
+    expect(snapPx).toBeGreaterThan(6);
+    const source = (await page.locator(`[data-testid="unscheduled-${dropped.build.code}"]`).boundingBox())!;
+    const laneBox = (await page.locator(`.fc-timeline-lane[data-resource-id="${zoneLane.id}"]`).first().boundingBox())!;
+    await page.mouse.move(source.x + source.width / 2, source.y + source.height / 2);
+    await page.mouse.down();
+    await page.mouse.move(source.x + source.width / 2 - 20, source.y + source.height / 2, { steps: 5 });
+    await page.mouse.move(slot.x + snapPx / 2, laneBox.y + laneBox.height / 2, { steps: 25 });
+    await page.waitForTimeout(200);
+    await page.mouse.up();
+    const message = page.getByTestId("floor-message");
+    await expect.poll(async () => message.getAttribute("data-tone"), { timeout: 15_000 }).toBe("success");
+    const expected = new Date(zonedTimeToUtc(day, 12 * 60, shopZone));
+    const row = await db.selectFrom("builds").select(["printer_id", "starts_at"]).where("id", "=", dropped.build.id).executeTakeFirstOrThrow();
+    expect(row.printer_id).toBe(zoneLane.id);
+    expect(row.starts_at?.toISOString()).toBe(expected.toISOString());
+    // the message reads the shop's clock too
+    expect(await message.textContent()).toContain("12:00");
+    await screenshot(page, "floor-shop-zone-drop");
     await page.close();
   });
 });

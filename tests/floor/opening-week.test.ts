@@ -1,12 +1,16 @@
 import vm from "node:vm";
 import { afterEach, describe, expect, it } from "vitest";
-import { OPENING_FETCH_SCRIPT, floorUrl, openingWeek, takeOpeningFetch } from "@/components/floor/opening-week";
+import { floorUrl, openingFetchScript, openingWeek, takeOpeningFetch } from "@/components/floor/opening-week";
 
-// The floor's opening week and the early request for it: the inline script must ask for exactly
-// the address the board will ask for, in any time zone and on any day of the week.
+// The floor's opening week and the early request for it: the week is the shop's, whatever zone
+// the browser is in, and the inline script must ask for exactly the address the board will ask
+// for, for any shop zone, in any browser zone and on any day of the week.
 
-const ZONES = ["UTC", "America/Chicago", "Europe/Berlin", "Asia/Kolkata", "Pacific/Auckland"];
-const DAYS = ["2026-03-08T07:30:00Z", "2026-03-29T00:30:00Z", "2026-11-01T06:59:00Z", "2026-12-02T15:00:00Z", "2026-12-05T23:59:00Z", "2027-01-03T00:00:00Z"];
+// America/Santiago: clocks go from 00:00 to 01:00 on the first Sunday of September, so that
+// week starts at 01:00 (FullCalendar, through Luxon, moves a missing wall time on by the gap).
+const ZONES = ["UTC", "America/Chicago", "America/Detroit", "Europe/Berlin", "Asia/Kolkata", "Pacific/Auckland", "America/Santiago"];
+const BROWSER_ZONES = ["UTC", "Asia/Tokyo", "America/Los_Angeles"];
+const DAYS = ["2026-09-06T12:00:00Z", "2026-09-05T23:30:00Z", "2026-03-08T07:30:00Z", "2026-03-29T00:30:00Z", "2026-11-01T06:59:00Z", "2026-12-02T15:00:00Z", "2026-12-05T23:59:00Z", "2027-01-03T00:00:00Z"];
 
 const originalTz = process.env.TZ;
 afterEach(() => {
@@ -15,7 +19,7 @@ afterEach(() => {
 });
 
 /** Runs the inline script with a fixed clock and a recording fetch; returns the address it asked for. */
-function runScript(now: string): { url: string; credentials: string } {
+function runScript(shopZone: string, now: string): { url: string; credentials: string } {
   const calls: { url: string; credentials: string }[] = [];
   const RealDate = Date;
   const fixed = new RealDate(now).getTime();
@@ -33,32 +37,47 @@ function runScript(now: string): { url: string; credentials: string } {
     calls.push({ url, credentials: init.credentials });
     return Promise.resolve({ ok: true, json: () => Promise.resolve({ events: [] }) });
   };
-  vm.runInNewContext(OPENING_FETCH_SCRIPT, { window, fetch, Date: FixedDate, encodeURIComponent });
+  vm.runInNewContext(openingFetchScript(shopZone), { window, fetch, Date: FixedDate, encodeURIComponent });
   expect(calls).toHaveLength(1);
   expect((window.__hearthFloorOpening as { url: string }).url).toBe(calls[0].url);
   return calls[0];
 }
 
 describe("the opening week", () => {
-  it("runs Sunday 00:00 to the next Sunday 00:00 in browser time (FullCalendar's week view, firstDay 0)", () => {
-    process.env.TZ = "Europe/Berlin";
-    const w = openingWeek(new Date("2026-12-02T15:00:00Z")); // a Wednesday
-    expect(w).toEqual({ from: "2026-11-28T23:00:00.000Z", to: "2026-12-05T23:00:00.000Z" });
-    // across the end of daylight saving time the week is 7 days and one hour long
-    process.env.TZ = "America/Chicago";
-    const dst = openingWeek(new Date("2026-11-03T12:00:00Z"));
-    expect(dst).toEqual({ from: "2026-11-01T05:00:00.000Z", to: "2026-11-08T06:00:00.000Z" });
+  it("runs Sunday 00:00 to the next Sunday 00:00 in the shop's zone (FullCalendar's week view, firstDay 0), not the browser's", () => {
+    for (const browser of BROWSER_ZONES) {
+      process.env.TZ = browser;
+      const w = openingWeek("Europe/Berlin", new Date("2026-12-02T15:00:00Z")); // a Wednesday
+      expect(w).toEqual({ from: "2026-11-28T23:00:00.000Z", to: "2026-12-05T23:00:00.000Z" });
+      // across the end of daylight saving time the week is 7 days and one hour long
+      const dst = openingWeek("America/Chicago", new Date("2026-11-03T12:00:00Z"));
+      expect(dst).toEqual({ from: "2026-11-01T05:00:00.000Z", to: "2026-11-08T06:00:00.000Z" });
+      // Saturday 23:30 in Detroit is already Sunday in UTC and Tokyo: still the week before
+      const late = openingWeek("America/Detroit", new Date("2026-12-06T04:30:00Z"));
+      expect(late).toEqual({ from: "2026-11-29T05:00:00.000Z", to: "2026-12-06T05:00:00.000Z" });
+      // the Sunday that has no midnight in Santiago begins at 01:00 (UTC−3)
+      const gap = openingWeek("America/Santiago", new Date("2026-09-06T12:00:00Z"));
+      expect(gap.from).toBe("2026-09-06T04:00:00.000Z");
+    }
   });
 
-  it("the inline script asks for the address the board asks for, in every zone and on every day", () => {
-    for (const tz of ZONES) {
-      process.env.TZ = tz;
-      for (const day of DAYS) {
-        const asked = runScript(day);
-        expect(asked.url, `${tz} ${day}`).toBe(floorUrl(openingWeek(new Date(day))));
-        expect(asked.credentials).toBe("same-origin");
+  it("the inline script asks for the address the board asks for, for every shop zone, in every browser zone, on every day", () => {
+    for (const browser of BROWSER_ZONES) {
+      process.env.TZ = browser;
+      for (const shop of ZONES) {
+        for (const day of DAYS) {
+          const asked = runScript(shop, day);
+          expect(asked.url, `${shop} seen from ${browser} on ${day}`).toBe(floorUrl(openingWeek(shop, new Date(day))));
+          expect(asked.credentials).toBe("same-origin");
+        }
       }
     }
+  });
+
+  it("the script carries the zone as a string that cannot close the script element", () => {
+    const script = openingFetchScript('Bad</script><script>alert(1)</script>"');
+    expect(script).not.toContain("</script>");
+    expect(script).toContain("\\u003c/script>");
   });
 });
 

@@ -95,6 +95,35 @@ describe("ASCII and binary of the same mesh", () => {
     expect(parseStl(text(ascii)).measures.volumeMm3).toBeCloseTo(6, 6);
   });
 
+  it("reads LF, CR LF and lone-CR (classic Mac OS) line ends alike", () => {
+    const lf = writeAsciiStl(tessellatedBox(2, 3, 4, 2), "mac part");
+    const reference = parseStl(text(lf));
+    for (const end of ["\r\n", "\r"]) {
+      const parsed = parseStl(text(lf.replace(/\n/g, end)));
+      expect(parsed.label).toBe("mac part");
+      expect(parsed.triangleCount).toBe(reference.triangleCount);
+      expect(parsed.positions).toEqual(reference.positions);
+      expect(parsed.measures).toEqual(reference.measures);
+    }
+  });
+
+  it("errors name the line an editor shows, whatever the line ends", () => {
+    const lf = writeAsciiStl(boxMesh(1, 2, 3));
+    const lines = lf.split("\n");
+    const bad = lines.findIndex((l, i) => i > 20 && l.trim().startsWith("vertex"));
+    lines[bad] = lines[bad].replace(/vertex (\S+)/, "vertex abc");
+    const cut = lines.slice(0, bad + 1);
+    for (const end of ["\n", "\r\n", "\r"]) {
+      expect(() => parseStl(text(lines.join(end)))).toThrow(new RegExp(`^line ${bad + 1}: "abc" is not a number`));
+      // A blank line of each kind before the facet moves it down by one.
+      const blank = [lines[0], "", ...lines.slice(1)].join(end);
+      expect(() => parseStl(text(blank))).toThrow(new RegExp(`^line ${bad + 2}: `));
+      // Cut after the bad line's x: the end of the file is on that same line.
+      const short = cut.join(end).replace(/vertex abc.*$/, "vertex 1");
+      expect(() => parseStl(text(short))).toThrow(new RegExp(`\\(line ${bad + 1}\\): it was cut short`));
+    }
+  });
+
   it("several solids in one ASCII file are read in order", () => {
     const a = writeAsciiStl(boxMesh(1, 1, 1), "a");
     const b = writeAsciiStl(boxMesh(1, 1, 1, [5, 0, 0]), "b");

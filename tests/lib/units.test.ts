@@ -49,11 +49,14 @@ describe("length display", () => {
   });
 });
 
+// Ra is the arithmetical mean deviation of the roughness profile from its mean line,
+// (1/l)∫|z| dx: ISO 4287:1997 (superseded by ISO 21920-2:2021) and ASME B46.1-2002. It is a
+// length, so µm and µin convert as lengths (1 µin = 0.0254 µm, NIST SP 811 B.8).
 describe("Ra display", () => {
   it("three significant figures, trailing zeros dropped", () => {
     expect(formatRa(0.8, "mm")).toBe("0.8 µm");
     expect(formatRa(12.5, "mm")).toBe("12.5 µm");
-    expect(formatRa(0.8, "in")).toBe("31.5 µin");
+    expect(formatRa(0.8, "in")).toBe("31.5 µin"); // 0.8 / 0.0254 = 31.496 µin
     expect(formatRa(1.6, "in")).toBe("63 µin");
   });
 

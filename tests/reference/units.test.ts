@@ -1,4 +1,5 @@
 import { describe, expect, it } from "vitest";
+import { raFromUm, raToUm } from "@/lib/finishing/inspection";
 import {
   decimalsAfterConversion,
   formatRa,
@@ -47,8 +48,43 @@ describe("NIST SP 811 (2008) App. B.8 and the 1959 International Yard and Pound 
   });
 });
 
+// Ra, the arithmetical mean deviation of the assessed profile: Ra = (1/l)∫₀ˡ |z(x)| dx, the
+// absolute heights z of the roughness profile measured from its mean line, averaged over the
+// evaluation length l. Sources: ISO 4287:1997, Geometrical Product Specifications (GPS) —
+// Surface texture: Profile method — Terms, definitions and surface texture parameters (identical
+// to IS 15262:2002), superseded by ISO 21920-2:2021 (from memory); ASME B46.1-2002, Surface
+// Texture (Surface Roughness, Waviness, and Lay), which calls it the roughness average.
+// Ra is a mean of lengths, so it converts as a length: 1 µin = 0.0254 µm (NIST SP 811 B.8).
+describe("Ra from its definition (ISO 4287 / ISO 21920-2, ASME B46.1)", () => {
+  /** Ra by the definition, over a profile sampled at equal steps: mean |z − mean line|. */
+  const raOf = (z: number[]) => {
+    const mean = z.reduce((s, v) => s + v, 0) / z.length;
+    return z.reduce((s, v) => s + Math.abs(v - mean), 0) / z.length;
+  };
+  // A sinusoid of amplitude A has Ra = 2A/π: the mean of |sin| over whole periods is 2/π
+  // (computed here from the definition).
+  const profile = (amplitude: number, offset: number, periods = 7, n = 70_000) =>
+    Array.from({ length: n }, (_, i) => offset + amplitude * Math.sin((2 * Math.PI * periods * (i + 0.5)) / n));
+
+  it("a sinusoid of amplitude A has Ra = 2A/π, whatever its height above the datum", () => {
+    expect(raOf(profile(1.25, 0))).toBeCloseTo((2 * 1.25) / Math.PI, 6);
+    expect(raOf(profile(1.25, 40))).toBeCloseTo((2 * 1.25) / Math.PI, 6);
+  });
+
+  it("an Ra entered in µin is stored as the Ra of the same profile measured in µm", () => {
+    const uin = profile(50, 3);
+    const raUin = raOf(uin);
+    expect(raToUm(raUin, "in")).toBeCloseTo(raOf(uin.map((z) => z * 0.0254)), 9);
+    expect(raToUm(raUin, "in")).toBeCloseTo(((2 * 50) / Math.PI) * 0.0254, 6);
+    expect(raFromUm(raToUm(raUin, "in"), "in")).toBeCloseTo(raUin, 9);
+    expect(raToUm(0.8, "mm")).toBe(0.8);
+  });
+});
+
 describe("Ra: exact conversion vs the nominal ladder (REFERENCES §7)", () => {
-  // Exact µin from 1 µin = 0.0254 µm (a-i-t.com chart; follows from the exact inch).
+  // Ra as defined in ISO 4287:1997 / ISO 21920-2:2021 and ASME B46.1-2002 (above); the ladder
+  // is of preferred Ra values. Exact µin from 1 µin = 0.0254 µm (a-i-t.com chart; follows
+  // from the exact inch).
   const exact: Array<[number, number, number]> = [
     [0.1, 3.937, 4],
     [0.2, 7.874, 8],

@@ -92,8 +92,10 @@ describe("messages", () => {
     expect(a.subject).toBe("Ready for finishing: 2 units of 1 part from furnace run R-1001");
     expect(a.text).toContain("X− 0.30 mm, X+ 0.30 mm, Z+ 0.50 mm");
     expect(b.text).toContain("X− 0.012 in, X+ 0.012 in, Z+ 0.020 in");
+    // Target Ra (ISO 4287:1997 / ISO 21920-2:2021, ASME B46.1-2002: the mean absolute deviation
+    // of the profile from its mean line) is a length: 0.8 µm = 31.496 µin (1 µin = 0.0254 µm).
     expect(a.text).toContain("0.8 µm");
-    expect(b.text).toContain("µin");
+    expect(b.text).toContain("31.5 µin");
     for (const body of [a.text, a.html]) {
       expect(body).toContain("Grind bore to size.");
       expect(body).toContain("IT7");

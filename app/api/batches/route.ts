@@ -1,14 +1,20 @@
-import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { loadBoard } from "@/db/batches/reads";
+import { boardBody, boardChangeStamp } from "@/db/batches/reads";
 import { requireUser } from "@/app/_server/session";
 import { toErrorResponse } from "@/app/_server/errors";
+import { cachedBody } from "@/app/_server/cached-body";
 
 // GET /api/batches – the batching board: waiting units, open wash batches and furnace runs, equipment (every role)
+// Every open board asks again after each change it hears of: one load serves them all until
+// anything on the board changes (the stamp moves, or the live listener hears of it) or two
+// seconds pass. The stamp tells nothing to someone who is then refused.
 export async function GET() {
   try {
-    await requireUser("shop:read");
-    return NextResponse.json(await loadBoard(getDb()));
+    const db = getDb();
+    const [, stamp] = await Promise.all([requireUser("shop:read"), boardChangeStamp(db)]);
+    // Plain bytes: Next.js compresses a handler's response itself.
+    const { bytes, headers } = (await boardBody(db, stamp)).encoded(false);
+    return new Response(cachedBody(bytes), { headers });
   } catch (err) {
     return toErrorResponse(err);
   }

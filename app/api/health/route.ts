@@ -6,6 +6,9 @@ import { findLastSweep, listQueueStats } from "@/db/jobs/reads";
 import { summarizeOutbox } from "@/db/outbox/reads";
 import { checkSmtp } from "@/adapters/mail/transport";
 import { checkBucket } from "@/adapters/storage/s3";
+import { getCurrentUser } from "@/app/_server/session";
+import { liveHub } from "@/app/_server/live-hub";
+import { can } from "@/lib/auth/permissions";
 
 export const dynamic = "force-dynamic";
 
@@ -76,5 +79,8 @@ export async function GET() {
       : { ok: false, error: jobs.error },
   };
   const ok = Object.values(checks).every((c) => c.ok);
-  return NextResponse.json({ ok, checked_at: new Date().toISOString(), checks }, { status: ok ? 200 : 503, headers: { "cache-control": "no-store" } });
+  // For a signed-in admin only: this process's live-update streams and its LISTEN connection.
+  const viewer = await getCurrentUser().catch(() => null);
+  const detail = viewer && can(viewer.role, "jobs:read") ? { live: { pid: process.pid, ...liveHub().detail() } } : {};
+  return NextResponse.json({ ok, checked_at: new Date().toISOString(), checks, ...detail }, { status: ok ? 200 : 503, headers: { "cache-control": "no-store" } });
 }

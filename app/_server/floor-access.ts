@@ -1,0 +1,33 @@
+// Who may read the floor's window: the one copy of the rule, used by the route handler
+// (app/api/floor/route.ts) and by the web server's direct path (app/_server/floor-window-direct.ts).
+// A session seal that opens, names an active user, is still live for that user (not revoked by a
+// password change or a sign-out everywhere), and a role that may read the shop. The floor's
+// change stamp comes back from the same round trip: it tells nothing to someone who is refused.
+import type { Database } from "@/db/client";
+import { floorViewerAndStamp } from "@/db/floor/reads";
+import { can, type Role } from "@/lib/auth/permissions";
+import { unsealSession } from "@/lib/auth/seal-cache";
+import { renewalDue, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
+
+export const FLOOR_PERMISSION = "shop:read" as const;
+
+export type FloorAccess =
+  | { kind: "signed-out" }
+  | { kind: "forbidden"; role: Role }
+  /** renewalDue: the cookie's idle lifetime should slide, which only the route handler can do. */
+  | { kind: "allowed"; stamp: string; renewalDue: boolean };
+
+export async function authorizeFloorRead(db: Database, seal: string | undefined, secret: string, now = Date.now()): Promise<FloorAccess> {
+  if (!seal) return { kind: "signed-out" };
+  let session: SessionData;
+  try {
+    session = await unsealSession(seal, secret, now);
+  } catch {
+    return { kind: "signed-out" };
+  }
+  if (!session.userId) return { kind: "signed-out" };
+  const { viewer, stamp } = await floorViewerAndStamp(db, session.userId);
+  if (!viewer || !sessionIsLive(session, viewer.sessions_valid_after, now)) return { kind: "signed-out" };
+  if (!can(viewer.role, FLOOR_PERMISSION)) return { kind: "forbidden", role: viewer.role };
+  return { kind: "allowed", stamp, renewalDue: renewalDue(session, now) };
+}

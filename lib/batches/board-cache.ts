@@ -1,0 +1,13 @@
+// The batching board's response body, shared by every open board in the process until the
+// board's change stamp moves (migration 202612040510) or the live listener hears of a change:
+// after each change every open board asks again at once, and one load serves them all.
+import { WindowCache } from "@/lib/floor/window-cache";
+import type { WindowBody } from "@/lib/floor/window-body";
+
+// On globalThis for the same reason as the floor's window cache: the route handler and the live
+// listener's module copy must share it.
+const globalForCache = globalThis as unknown as { hearthBoardCache?: WindowCache<WindowBody> };
+
+export function boardCache(): WindowCache<WindowBody> {
+  return (globalForCache.hearthBoardCache ??= new WindowCache<WindowBody>(2_000, 4));
+}

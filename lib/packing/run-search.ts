@@ -1,0 +1,224 @@
+// Local search that takes runs away from a valid plan, one at a time, until the plan meets its
+// lower bound or the budget runs out. The plan it starts from is kept unless a plan with fewer
+// runs is found, so the result is never worse than the start.
+//
+// One step "empties the weakest run": its units go to a pool, and the search then repacks one of
+// the remaining runs at a time from its own units plus the pooled ones, keeping the repacked run
+// when the pool's weight does not grow. The pool empties when every unit has found a place, and
+// the plan then has one run fewer. Pooled units that stay homeless gain weight (so they are placed
+// first in later repacks and are harder to push out again), which breaks cycles. This is the
+// "empty the bin with the least filling and redistribute its items" neighbourhood of A. Lodi,
+// S. Martello & D. Vigo, "Heuristic and metaheuristic approaches for a class of two-dimensional
+// bin packing problems", INFORMS J. Computing 11(4):345–357 (1999), with the penalised pool of the
+// goal-driven search of L. Wei, W.-C. Oon, W. Zhu & A. Lim, "A goal-driven approach to the 2D bin
+// packing and variable-sized bin packing problems", EJOR 224(1):110–121 (2013) [both from memory].
+//
+// Deterministic for a seed: the work budget counts placement attempts, not time; the optional
+// deadline only cuts the search short (and then the result depends on the machine's speed).
+
+import { GEOMETRY_EPS, type PlacementRule } from "./rectangles";
+import { RunState, type TrayChoice } from "./run-solver";
+import type { ItemModel, ProfileModel } from "./tray-model";
+import { mulberry32 } from "@/lib/random";
+
+export interface RunSearchOptions {
+  seed: number;
+  /** Placement attempts allowed (one attempt = one unit tried in one run). */
+  work: number;
+  /** Stop when clock() passes this (same unit as clock). */
+  deadline?: number;
+  clock?: () => number;
+}
+
+export type StopReason = "bound" | "budget" | "time" | "start";
+
+export interface RunSearchResult {
+  runs: RunState[];
+  work: number;
+  stop: StopReason;
+}
+
+const RULES: readonly PlacementRule[] = ["short-side", "contact", "short-side", "bottom-left", "area", "long-side"];
+
+interface Ctx {
+  pm: ProfileModel;
+  rnd: () => number;
+  work: number;
+  limit: number;
+  deadline: number;
+  clock: () => number;
+  timedOut: boolean;
+}
+
+function outOfBudget(ctx: Ctx): boolean {
+  if (ctx.work >= ctx.limit) return true;
+  if (ctx.deadline !== Infinity && ctx.clock() > ctx.deadline) {
+    ctx.timedOut = true;
+    return true;
+  }
+  return false;
+}
+
+/** Repacks the runs `bases` (first fit over them, in order) from `order`; returns the runs and the units left out. */
+function repack(ctx: Ctx, bases: readonly RunState[], order: readonly ItemModel[], rule: PlacementRule, trays: TrayChoice): { runs: RunState[]; out: ItemModel[] } {
+  const runs = bases.map((b) => new RunState(b.f, ctx.pm.minSide));
+  const out: ItemModel[] = [];
+  for (const it of order) {
+    let placed = false;
+    for (const run of runs) {
+      ctx.work++;
+      if (run.tryAdd(it, rule, trays)) {
+        placed = true;
+        break;
+      }
+    }
+    if (!placed) out.push(it);
+  }
+  return { runs, out };
+}
+
+/** Tries to place `it` beside the present layout of `run` (a copy), or returns null. */
+function insertInto(ctx: Ctx, run: RunState, it: ItemModel): RunState | null {
+  if (!it.eligibleMask.has(run.f.idx) || !run.massFits(it)) return null;
+  if (it.area > run.f.runArea - run.area + GEOMETRY_EPS) return null;
+  ctx.work++;
+  for (const rule of ["short-side", "contact", "bottom-left"] as const) {
+    const c = run.clone();
+    if (c.tryAdd(it, rule, "best")) return c;
+  }
+  return null;
+}
+
+/**
+ * Looks for a plan with the runs of `runs` except `drop`, all units placed. Returns the new runs or
+ * null when the budget share `until` is spent first.
+ */
+function withoutRun(ctx: Ctx, runs: readonly RunState[], drop: number, until: number): RunState[] | null {
+  const n = ctx.pm.items.length;
+  const mult = new Float64Array(n).fill(1);
+  const weight = (it: ItemModel) => it.size * mult[it.local];
+  let cur = runs.filter((_, i) => i !== drop);
+  let pool = [...runs[drop].placed.map((p) => p.item)];
+  const poolWeight = (p: readonly ItemModel[]) => p.reduce((s, it) => s + weight(it), 0);
+  // First the cheap move: pooled units into the gaps of the other runs as they stand.
+  const settle = () => {
+    pool.sort((a, b) => weight(b) - weight(a));
+    const left: ItemModel[] = [];
+    for (const it of pool) {
+      let placed = false;
+      for (let r = 0; r < cur.length && !placed; r++) {
+        const next = insertInto(ctx, cur[r], it);
+        if (next) {
+          cur = cur.map((x, k) => (k === r ? next : x));
+          placed = true;
+        }
+      }
+      if (!placed) left.push(it);
+    }
+    pool = left;
+  };
+  settle();
+  // A pooled unit that no remaining run's furnace takes has nowhere to go.
+  const furnacesLeft = new Set(cur.map((r) => r.f.idx));
+  if (pool.some((it) => !it.eligible.some((fi) => furnacesLeft.has(fi)))) return null;
+  let stale = 0;
+  while (pool.length > 0) {
+    if (ctx.work >= until || outOfBudget(ctx)) return null;
+    // One, two or three runs repacked together with the pool: more runs let units change
+    // partners, which is what frees room; one run alone is the cheap move.
+    const roll = ctx.rnd();
+    const k = Math.min(cur.length, roll < 0.3 ? 1 : roll < 0.8 ? 2 : 3);
+    const picked: number[] = [];
+    while (picked.length < k) {
+      const r = Math.floor(ctx.rnd() * cur.length);
+      if (!picked.includes(r)) picked.push(r);
+    }
+    const bases = picked.map((r) => cur[r]);
+    const fset = new Set(bases.map((b) => b.f.idx));
+    const mine = bases.flatMap((b) => b.placed.map((p) => p.item));
+    const eligible = pool.filter((it) => it.eligible.some((fi) => fset.has(fi)));
+    if (eligible.length === 0) {
+      // Counted as work, so that a plan where few runs can take the pool still ends.
+      ctx.work++;
+      stale++;
+      continue;
+    }
+    const cands = [...mine, ...eligible];
+    // Heavier first, with some noise so that repeated repacks differ.
+    const noise = 0.2 + 0.4 * ctx.rnd();
+    const keyed = cands.map((it) => ({ it, k: weight(it) * (1 - noise / 2 + noise * ctx.rnd()) }));
+    keyed.sort((a, b) => b.k - a.k || a.it.local - b.it.local);
+    const rule = RULES[Math.floor(ctx.rnd() * RULES.length)];
+    const trays: TrayChoice = ctx.rnd() < 0.5 ? "best" : "first";
+    const { runs: next, out } = repack(
+      ctx,
+      bases,
+      keyed.map((x) => x.it),
+      rule,
+      trays,
+    );
+    const eligibleSet = new Set(eligible);
+    const newPool = [...pool.filter((it) => !eligibleSet.has(it)), ...out];
+    const before = poolWeight(pool);
+    const after = poolWeight(newPool);
+    if (after <= before + 1e-12 && next.every((r) => r.placed.length > 0)) {
+      if (after < before - 1e-12) stale = 0;
+      else stale++;
+      cur = cur.map((x, i) => {
+        const at = picked.indexOf(i);
+        return at < 0 ? x : next[at];
+      });
+      pool = newPool;
+      if (pool.length > 0 && after < before - 1e-12) settle();
+    } else {
+      stale++;
+    }
+    // Units that stay homeless weigh more, so later repacks place them first.
+    for (const it of pool) mult[it.local] += 0.02;
+    if (stale > 4 * cur.length) {
+      for (const it of pool) mult[it.local] += 0.5;
+      stale = 0;
+    }
+  }
+  return cur;
+}
+
+/**
+ * Removes runs from `start` while it is above the profile's bound and the budget lasts. Each
+ * attempt empties one of the weakest runs (by share of the run's capacity used); a failed attempt
+ * moves on to the next weakest.
+ */
+export function reduceRuns(pm: ProfileModel, start: RunState[], opts: RunSearchOptions): RunSearchResult {
+  const ctx: Ctx = {
+    pm,
+    rnd: mulberry32(opts.seed),
+    work: 0,
+    limit: opts.work,
+    deadline: opts.deadline ?? Infinity,
+    clock: opts.clock ?? (() => Date.now()),
+    timedOut: false,
+  };
+  let best = start;
+  let attempt = 0;
+  while (best.length > pm.bound.largest) {
+    if (best.length <= 1 || outOfBudget(ctx)) break;
+    // Weakest first: the least used run has the fewest units to rehouse.
+    const ranked = best.map((r, i) => ({ i, v: r.value + 1e-9 * r.placed.length })).sort((a, b) => a.v - b.v || a.i - b.i);
+    const pick = ranked[attempt % Math.min(3, ranked.length)].i;
+    // Each attempt gets a share of what is left, so later attempts still get a chance.
+    const left = ctx.limit - ctx.work;
+    const share = ctx.work + Math.max(left / 3, Math.min(left, 2000));
+    const next = withoutRun(ctx, best, pick, share);
+    if (next) {
+      best = next;
+      attempt = 0;
+    } else {
+      // A failed attempt is charged its whole share, even one that gave up at once (no furnace
+      // left for a pooled unit), so the loop always ends.
+      ctx.work = Math.max(ctx.work, share);
+      attempt++;
+    }
+  }
+  const stop: StopReason = best.length <= pm.bound.largest ? "bound" : ctx.timedOut ? "time" : ctx.work >= ctx.limit ? "budget" : "start";
+  return { runs: best, work: ctx.work, stop };
+}
