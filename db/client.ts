@@ -13,7 +13,11 @@ export type Database = Kysely<DB>;
 const globalForDb = globalThis as unknown as { hearthDb?: Database; hearthPool?: pg.Pool };
 
 export function createDb(connectionString = getEnv().DATABASE_URL, max = getEnv().DB_POOL_MAX): { db: Database; pool: pg.Pool } {
-  const pool = new pg.Pool({ connectionString, max });
+  // A request waits at most DB_CONNECT_TIMEOUT_MS for a connection (node-postgres waits for
+  // ever by default): a full pool or a database that is down then answers 503, not a hang.
+  const pool = new pg.Pool({ connectionString, max, connectionTimeoutMillis: getEnv().DB_CONNECT_TIMEOUT_MS });
+  // An idle client whose server went away (a restart, a failover) emits 'error' on the pool;
+  // unheard, that would be an uncaught exception. The pool drops the client and connects anew.
   pool.on("error", (err) => console.error("[db] idle client error", err.message));
   return { db: new Kysely<DB>({ dialect: new PostgresDialect({ pool }) }), pool };
 }

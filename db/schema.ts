@@ -41,6 +41,8 @@ export type OutboxStatus = "failed" | "pending" | "sent";
 
 export type PlanProposalStatus = "applied" | "open" | "refused";
 
+export type QuoteStatus = "accepted" | "declined" | "draft" | "expired" | "sent";
+
 export type ResourceKind = "furnace" | "printer" | "wash_station";
 
 export type ScrapReason = "crack" | "other" | "out_of_tolerance" | "print_failure" | "slump" | "warp";
@@ -278,6 +280,15 @@ export interface Inspections {
   unit_id: string;
 }
 
+export interface MaterialQuoteRates {
+  feedstock_minor_per_kg: Generated<number>;
+  infill_fraction: Generated<Numeric>;
+  material_id: string;
+  support_fraction: Generated<Numeric>;
+  updated_at: Generated<Timestamp>;
+  version: Generated<number>;
+}
+
 export interface MaintenanceWindows {
   created_at: Generated<Timestamp>;
   ends_at: Timestamp;
@@ -348,6 +359,14 @@ export interface Orders {
   version: Generated<number>;
 }
 
+export interface OutboxAttachments {
+  content: Buffer;
+  content_type: string;
+  filename: string;
+  id: Generated<string>;
+  outbox_id: string;
+}
+
 export interface Parts {
   created_at: Generated<Timestamp>;
   finishing_notes: Generated<string>;
@@ -414,6 +433,82 @@ export interface Printers {
   model_note: Generated<string>;
   name: string;
   version: Generated<number>;
+}
+
+export interface QuoteLines {
+  cost_minor: number | null;
+  created_at: Generated<Timestamp>;
+  file_id: string | null;
+  id: Generated<string>;
+  material_id: string;
+  name: string;
+  nominal_x_mm: Numeric;
+  nominal_y_mm: Numeric;
+  nominal_z_mm: Numeric;
+  part_id: string | null;
+  position: number;
+  quantity: number;
+  quote_id: string;
+  requested_at: Timestamp | null;
+  stock_x_neg_mm: Generated<Numeric>;
+  stock_x_pos_mm: Generated<Numeric>;
+  stock_y_neg_mm: Generated<Numeric>;
+  stock_y_pos_mm: Generated<Numeric>;
+  stock_z_neg_mm: Generated<Numeric>;
+  stock_z_pos_mm: Generated<Numeric>;
+  target_ra_um: Numeric | null;
+  thickest_wall_mm: Numeric;
+  tolerance_um: Numeric | null;
+  volume_mm3: Numeric | null;
+}
+
+export interface Quotes {
+  code: string;
+  contact_email: string;
+  cost: Json | null;
+  created_at: Generated<Timestamp>;
+  created_by: string | null;
+  currency: string;
+  customer: string;
+  decided_at: Timestamp | null;
+  decided_by: string | null;
+  id: Generated<string>;
+  minor_digits: number;
+  notes: Generated<string>;
+  order_id: string | null;
+  plan_proposal_id: string | null;
+  promise: Json | null;
+  promise_at: Timestamp | null;
+  promise_p90_at: Timestamp | null;
+  sent_at: Timestamp | null;
+  status: Generated<QuoteStatus>;
+  total_minor: number | null;
+  updated_at: Generated<Timestamp>;
+  valid_until: Timestamp;
+  version: Generated<number>;
+}
+
+export interface QuoteSettings {
+  currency: Generated<string>;
+  fallback_yield: Generated<Numeric>;
+  finishing_min_per_cm2: Generated<Numeric>;
+  finishing_rate_minor_per_h: Generated<number>;
+  furnace_energy_cost_minor: Generated<number>;
+  furnace_gas_cost_minor: Generated<number>;
+  furnace_run_cost_minor: Generated<number>;
+  id: Generated<number>;
+  inspection_min_per_unit: Generated<Numeric>;
+  inspection_rate_minor_per_h: Generated<number>;
+  margin_bp: Generated<number>;
+  minor_digits: Generated<number>;
+  overhead_bp: Generated<number>;
+  printer_rate_minor_per_h: Generated<number>;
+  setup_minor_per_order: Generated<number>;
+  updated_at: Generated<Timestamp>;
+  validity_days: Generated<number>;
+  version: Generated<number>;
+  wash_batch_cost_minor: Generated<number>;
+  wash_batch_volume_cm3: Generated<Numeric>;
 }
 
 export interface ShopSettings {
@@ -490,6 +585,17 @@ export interface Units {
   version: Generated<number>;
   wash_batch_id: string | null;
   wash_passed: boolean | null;
+}
+
+export interface UserSessions {
+  created_at: Generated<Timestamp>;
+  id: Generated<string>;
+  ip: string | null;
+  last_seen_at: Generated<Timestamp>;
+  revoked_at: Timestamp | null;
+  revoked_reason: string | null;
+  user_agent: string | null;
+  user_id: string;
 }
 
 export interface Users {
@@ -630,19 +736,25 @@ export interface DB {
   inspection_files: InspectionFiles;
   inspections: Inspections;
   maintenance_windows: MaintenanceWindows;
+  material_quote_rates: MaterialQuoteRates;
   materials: Materials;
   notification_outbox: NotificationOutbox;
   orders: Orders;
+  outbox_attachments: OutboxAttachments;
   parts: Parts;
   plan_proposals: PlanProposals;
   printer_materials: PrinterMaterials;
   printers: Printers;
+  quote_lines: QuoteLines;
+  quote_settings: QuoteSettings;
+  quotes: Quotes;
   shop_settings: ShopSettings;
   sign_in_attempts: SignInAttempts;
   sinter_profile_materials: SinterProfileMaterials;
   sinter_profile_segments: SinterProfileSegments;
   sinter_profiles: SinterProfiles;
   units: Units;
+  user_sessions: UserSessions;
   users: Users;
   wash_batches: WashBatches;
   wash_stations: WashStations;

@@ -142,6 +142,23 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
       profileIds[m.code] = profile.id;
     }
 
+    // Quoting rates (invented for the demo shop; money in euro cents) ------------------------
+    await trx
+      .updateTable("quote_settings")
+      .set({
+        currency: "EUR", minor_digits: 2, printer_rate_minor_per_h: 1800, wash_batch_cost_minor: 4500, wash_batch_volume_cm3: 1500,
+        furnace_run_cost_minor: 22000, furnace_gas_cost_minor: 6500, furnace_energy_cost_minor: 9000, finishing_rate_minor_per_h: 7200,
+        finishing_min_per_cm2: 0.6, inspection_rate_minor_per_h: 6000, inspection_min_per_unit: 12, setup_minor_per_order: 15000,
+        overhead_bp: 1800, margin_bp: 2200, fallback_yield: 0.9, validity_days: 30,
+      })
+      .where("id", "=", 1)
+      .execute();
+    const feedstockPrice: Record<string, number> = { "17-4PH": 16500, "316L": 17500, H13: 21000, A2: 19500 };
+    await trx
+      .insertInto("material_quote_rates")
+      .values(Object.entries(materialIds).map(([code, id]) => ({ material_id: id, feedstock_minor_per_kg: feedstockPrice[code] ?? 18000, infill_fraction: 0.8, support_fraction: 0.12 })))
+      .execute();
+
     // Equipment -----------------------------------------------------------------------------------
     const printerSpecs = [
       { name: "Wren", build: [300, 220, 180], rate: 22, mats: ["17-4PH", "316L", "H13"] },

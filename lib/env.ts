@@ -19,6 +19,14 @@ const envSchema = z.object({
   S3_SECRET_ACCESS_KEY: z.string().default("S3RVER"),
   S3_FORCE_PATH_STYLE: z.enum(["true", "false"]).default("true"),
   UPLOAD_MAX_BYTES: z.coerce.number().int().positive().default(100 * 1024 * 1024),
+  JSON_MAX_BYTES: z.coerce.number().int().positive().default(1024 * 1024), // a JSON request body; larger is a 413
+  TRUSTED_PROXIES: z.string().default(""), // IPs/CIDRs whose X-Forwarded-For is believed; empty = the socket address
+  // An upload up to this size is parsed whole in the request; a larger one is checked for shape
+  // as it streams to disk and measured by the worker from the store.
+  UPLOAD_PARSE_MAX_BYTES: z.coerce.number().int().positive().default(16 * 1024 * 1024),
+  S3_CONNECT_TIMEOUT_MS: z.coerce.number().int().positive().default(3_000),
+  S3_IDLE_TIMEOUT_MS: z.coerce.number().int().positive().default(15_000),
+  DB_CONNECT_TIMEOUT_MS: z.coerce.number().int().positive().default(5_000),
   DB_POOL_MAX: z.coerce.number().int().positive().default(10),
   NODE_ENV: z.string().default("development"),
 });

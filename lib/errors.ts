@@ -59,3 +59,23 @@ export class ComputationError extends AppError {
 export function isAppError(err: unknown): err is AppError {
   return err instanceof AppError;
 }
+
+// Network errors of a connection that could not be made or was lost (Node's net and dns).
+const CONNECTION_CODES = new Set(["ECONNREFUSED", "ECONNRESET", "ETIMEDOUT", "EPIPE", "ENOTFOUND", "EAI_AGAIN", "EHOSTUNREACH", "ENETUNREACH"]);
+// What node-postgres says when a pool cannot hand out a connection or a client lost its server.
+const CONNECTION_MESSAGES = [/timeout exceeded when trying to connect/i, /connection terminated/i, /is not queryable/i, /Connection ended unexpectedly/i];
+
+/**
+ * Whether an error means the database (or another service) cannot be reached right now rather
+ * than that the request was wrong: a refused or dropped connection, a server shutting down or
+ * starting (SQLSTATE 57P01 admin_shutdown, 57P02 crash_shutdown, 57P03 cannot_connect_now), or
+ * any class 08 connection exception (PostgreSQL documentation, Appendix A, "PostgreSQL Error Codes").
+ */
+export function isUnavailableError(err: unknown, depth = 0): boolean {
+  if (!err || typeof err !== "object" || depth > 3) return false;
+  const { code, message, errors, cause } = err as { code?: unknown; message?: unknown; errors?: unknown; cause?: unknown };
+  if (typeof code === "string" && (CONNECTION_CODES.has(code) || code === "57P01" || code === "57P02" || code === "57P03" || code.startsWith("08"))) return true;
+  if (typeof message === "string" && CONNECTION_MESSAGES.some((re) => re.test(message))) return true;
+  if (Array.isArray(errors) && errors.some((e) => isUnavailableError(e, depth + 1))) return true;
+  return isUnavailableError(cause, depth + 1);
+}

@@ -41,6 +41,13 @@ ensure_postgres_binaries() {
   fi
 }
 
+# nginx for the multi-instance arrangement (npm run start:cluster and its test).
+ensure_nginx() {
+  if [ -z "${HEARTH_NGINX:-}" ] && [ ! -x /usr/sbin/nginx ] && [ ! -x /usr/bin/nginx ]; then
+    apt_install nginx-light
+  fi
+}
+
 ensure_chromium() {
   if [ -z "${HEARTH_CHROMIUM:-}" ] && [ ! -x /usr/bin/chromium ]; then
     apt_install chromium
@@ -52,13 +59,42 @@ pg_as() {
   if is_root; then runuser -u postgres -- "$@"; else "$@"; fi
 }
 
-# Starts the project's own cluster: data in $DATA_DIR/pg, socket beside it, 127.0.0.1:$PG_PORT.
+# Where the cluster of PG_DIR really lives. PostgreSQL refuses to run as root, so as root the
+# server runs as the `postgres` user, which must be able to reach its data folder. A checkout
+# under a folder closed to other users (root's home is 0700, so is a mktemp -d folder) cannot
+# hold it; its cluster then lives in /var/lib/hearth/<hash of the folder's path>/<name>, owned by
+# postgres, and the same checkout finds the same cluster again. Not root: the server runs as
+# the invoking user in PG_DIR itself.
+pg_home() {
+  local dir="$1"
+  if ! is_root || ! id postgres >/dev/null 2>&1; then printf '%s\n' "$dir"; return 0; fi
+  local parent; parent="$(dirname "$dir")"
+  mkdir -p "$parent"
+  # root creates the folder and hands it over; the server user must only be able to pass through
+  if runuser -u postgres -- test -x "$parent" 2>/dev/null; then
+    printf '%s\n' "$dir"
+    return 0
+  fi
+  local id; id="$(printf '%s' "$(realpath -m "$dir")" | sha256sum | cut -c1-16)"
+  printf '%s\n' "${HEARTH_PG_HOME_ROOT:-/var/lib/hearth}/$id/$(basename "$dir")"
+}
+
+# Starts the project's own cluster: data in $DATA_DIR/pg (see pg_home), socket beside it, 127.0.0.1:$PG_PORT.
 ensure_postgres() {
   if [ -n "${DATABASE_URL:-}" ] && [ -z "${HEARTH_OWN_PG:-}" ]; then
     log "using DATABASE_URL from the environment"
     return 0
   fi
   ensure_postgres_binaries
+  local wanted="$PG_DIR"
+  PG_DIR="$(pg_home "$PG_DIR")"
+  if [ "$PG_DIR" != "$wanted" ]; then
+    log "$wanted is out of the postgres user's reach; the cluster lives in $PG_DIR"
+    mkdir -p "$(dirname "$PG_DIR")"
+    chown postgres "$(dirname "$PG_DIR")"
+    mkdir -p "$(dirname "$wanted")"
+    printf '%s\n' "$PG_DIR" > "$wanted.location"
+  fi
   local pgdata="$PG_DIR/data" sock="$PG_DIR/run"
   mkdir -p "$pgdata" "$sock"
   # several test runs may start at once: one of them creates and starts the cluster
@@ -94,6 +130,7 @@ CONF
 }
 
 stop_postgres() {
+  PG_DIR="$(pg_home "$PG_DIR")"
   local pgdata="$PG_DIR/data"
   if [ -f "$pgdata/postmaster.pid" ]; then
     pg_as "$PG_BIN/pg_ctl" -D "$pgdata" -m fast -w stop >/dev/null && log "PostgreSQL stopped ($PG_DIR)"
@@ -143,4 +180,17 @@ stack_env() {
   export S3_ENDPOINT="${S3_ENDPOINT:-http://127.0.0.1:$S3_PORT}"
   export WEBHOOK_RECEIVER_URL="${WEBHOOK_RECEIVER_URL:-http://127.0.0.1:$WEBHOOK_RECEIVER_PORT}"
   export SMTP_HOST="${SMTP_HOST:-127.0.0.1}"
+}
+
+# next build, leaving the tracked tsconfig.json as it was: Next.js adds its output folder's
+# type paths (.next-test1/types/**/*.ts, …) to `include` whenever they are not listed literally.
+next_build() {
+  local log_file="$1" saved
+  saved="$(mktemp)"
+  cp "$ROOT/tsconfig.json" "$saved"
+  local rc=0
+  node_modules/.bin/next build > "$log_file" 2>&1 || rc=$?
+  cmp -s "$saved" "$ROOT/tsconfig.json" || cat "$saved" > "$ROOT/tsconfig.json"
+  rm -f "$saved"
+  return $rc
 }

@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# npm run db:start / db:stop
+# npm run db:start / db:stop; `bash scripts/pg.sh where` prints where each cluster's files live.
 set -euo pipefail
 source "$(dirname "$0")/lib.sh"
 case "${1:-start}" in
@@ -7,5 +7,8 @@ case "${1:-start}" in
   stop)
     stop_postgres
     PG_DIR="$DATA_DIR/pg-test" stop_postgres;;
-  *) echo "usage: pg.sh start|stop" >&2; exit 2;;
+  where)
+    pg_home "$PG_DIR"
+    pg_home "$DATA_DIR/pg-test";;
+  *) echo "usage: pg.sh start|stop|where" >&2; exit 2;;
 esac

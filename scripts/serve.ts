@@ -5,6 +5,8 @@
 // cache (app/_server/floor-window-direct.ts), and the build's hashed static files from memory, gzipped
 // once (app/_server/static-assets.ts). Everything else is Next.js's, unchanged.
 // PORT (3000) and HOSTNAME (127.0.0.1) say where it listens; the build is NEXT_DIST_DIR (.next).
+// Every answer names the instance in X-Hearth-Instance (HEARTH_INSTANCE, else host:port), so
+// that behind a proxy one can see which instance answered.
 import http from "node:http";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
@@ -12,11 +14,54 @@ import next from "next";
 import { closeDb, getDb } from "@/db/client";
 import { answerFloorWindow } from "@/app/_server/floor-window-direct";
 import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
+import { PEER_HEADER } from "@/lib/http/client-address";
+import { baseSecurityHeaders } from "@/lib/http/security-headers";
+import { pathDecodes } from "@/lib/http/request-target";
+import { crossSiteRefusal } from "@/lib/http/cross-site";
 import { liveHub } from "@/app/_server/live-hub";
+import { withRequestLog } from "@/app/_server/request-log";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
 const port = Number(process.env.PORT ?? 3000);
 const hostname = process.env.HOSTNAME ?? "127.0.0.1";
+const instance = process.env.HEARTH_INSTANCE || `${hostname}:${port}`;
+// How long a stop waits for requests in flight before it closes their connections.
+const graceMs = Number(process.env.HEARTH_STOP_GRACE_MS ?? 10_000);
+// How long an answer given before the request's body was read keeps reading (and dropping) it.
+const LINGER_MS = 500;
+
+/**
+ * Answers that must end their connection: one given before the request's body was read to its
+ * end (a 413 for an upload over the limit, a 401 before the upload) — otherwise Node reads and
+ * discards the rest of the body and keeps the connection, and a client that stopped sending
+ * waits on it until the server's timeouts — and any answer while the server stops (which
+ * says "Connection: close"). After an unread body the connection goes once the rest has been
+ * read, or LINGER_MS after the answer.
+ */
+function closeWhenDue(req: http.IncomingMessage, res: http.ServerResponse, stopping: () => boolean) {
+  const writeHead = res.writeHead;
+  res.writeHead = function (this: http.ServerResponse, ...args: Parameters<typeof writeHead>) {
+    const hasBody = req.headers["transfer-encoding"] !== undefined || Number(req.headers["content-length"] ?? 0) > 0;
+    if (hasBody && !req.complete) {
+      // A lingering close, as nginx does: Node goes on reading and dropping what the client is
+      // still sending, so that it can read this answer instead of failing on a reset (EPIPE);
+      // a client that stopped sending loses the connection a moment later instead of hanging
+      // on it until the server's timeouts.
+      res.once("finish", () => {
+        if (req.complete) return;
+        const linger = setTimeout(() => req.socket.destroy(), LINGER_MS);
+        linger.unref();
+        req.once("end", () => {
+          clearTimeout(linger);
+          req.socket.end();
+        });
+      });
+    } else if (stopping()) {
+      res.shouldKeepAlive = false;
+    }
+    return writeHead.apply(this, args);
+  } as typeof res.writeHead;
+}
 
 async function main() {
   const app = next({ dev: false, dir: root, hostname, port });
@@ -27,7 +72,30 @@ async function main() {
   // Without a usable secret nothing can be answered directly; Next.js then reports the set-up error.
   const secret = process.env.SESSION_SECRET && process.env.SESSION_SECRET.length >= 32 ? process.env.SESSION_SECRET : null;
 
-  const server = http.createServer((req, res) => {
+  const securityHeaders = Object.entries(baseSecurityHeaders(process.env.APP_URL));
+  const appOrigin = URL.canParse(process.env.APP_URL ?? "") ? new URL(process.env.APP_URL!).origin : null;
+  let stopping = false;
+  const server = http.createServer((req, res) => withRequestLog(req, res, () => {
+    res.setHeader("x-hearth-instance", instance);
+    closeWhenDue(req, res, () => stopping);
+    // Every answer, direct or Next.js's, carries the security headers; the page's CSP is proxy.ts's.
+    for (const [name, value] of securityHeaders) res.setHeader(name, value);
+    // The socket's address for app/_server/session.ts, never a value the client sent.
+    delete req.headers[PEER_HEADER];
+    if (req.socket.remoteAddress) req.headers[PEER_HEADER] = req.socket.remoteAddress;
+    // A state-changing request from another site (route handlers and server actions alike) ends
+    // here, before Next.js reads its body (lib/http/cross-site.ts).
+    const refusal = crossSiteRefusal(req.method ?? "GET", { get: (name) => [req.headers[name] ?? []].flat().join(", ") || null }, appOrigin);
+    if (refusal) {
+      res.writeHead(403, { "content-type": "application/json" });
+      res.end(JSON.stringify({ error: { code: "forbidden", message: `${refusal} Changes are only accepted from Hearth's own pages.` } }));
+      return;
+    }
+    if (req.url && !pathDecodes(req.url)) {
+      res.writeHead(400, { "content-type": "application/json" });
+      res.end(JSON.stringify({ error: { code: "bad_request", message: "The address contains a malformed %-escape." } }));
+      return;
+    }
     const direct = assets && req.url?.startsWith(STATIC_PREFIX)
       ? assets.answer(req, res)
       : secret
@@ -45,7 +113,7 @@ async function main() {
         if (!res.headersSent) res.writeHead(500, { "content-type": "text/plain" });
         res.end();
       });
-  });
+  }));
   // Longer than a reverse proxy's usual idle timeout, so that the proxy closes first.
   server.keepAliveTimeout = 65_000;
   server.headersTimeout = 66_000;
@@ -57,25 +125,28 @@ async function main() {
   // in step with changes made by other instances and the worker.
   liveHub().start();
 
-  let stopping = false;
   const stop = async (signal: string) => {
     if (stopping) return;
     stopping = true;
+    const started = Date.now();
     console.log(`[app] ${signal}: closing`);
     // Open event streams never finish by themselves: end them now, and the browsers reconnect
     // to another instance (or to this one once it is back).
-    const live = liveHub().shutdown();
-    // Requests in flight may finish (five seconds at most); idle keep-alive connections go now.
+    void liveHub().shutdown();
+    // Idle keep-alive connections go now, and each one that falls idle after its answer goes
+    // too (the ended streams' connections among them); the server stops as soon as the requests
+    // in flight are answered, or after the grace.
     await new Promise<void>((resolve) => {
       server.close(() => resolve());
       server.closeIdleConnections();
-      // The ended streams' connections turn idle a moment later.
-      void live.then(() => setTimeout(() => server.closeIdleConnections(), 50));
+      const sweep = setInterval(() => server.closeIdleConnections(), 50);
+      sweep.unref();
       setTimeout(() => {
         server.closeAllConnections();
         resolve();
-      }, 5_000).unref();
+      }, graceMs).unref();
     });
+    console.log(`[app] connections closed in ${Date.now() - started} ms`);
     await app.close().catch(() => undefined);
     await closeDb().catch(() => undefined);
     process.exit(0);

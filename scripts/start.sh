@@ -21,6 +21,6 @@ node_modules/.bin/tsx db/migrate-cli.ts
 node_modules/.bin/tsx db/seed-cli.ts --if-empty
 if [ -z "${HEARTH_SKIP_BUILD:-}" ]; then
   log "building the app (next build)"
-  node_modules/.bin/next build > "$DATA_DIR/build.log" 2>&1 || { tail -40 "$DATA_DIR/build.log"; exit 1; }
+  next_build "$DATA_DIR/build.log" || { tail -40 "$DATA_DIR/build.log"; exit 1; }
 fi
 exec node_modules/.bin/tsx scripts/run-stack.ts

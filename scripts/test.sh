@@ -8,6 +8,7 @@ cd "$ROOT"
 slot="${HEARTH_TEST_SLOT:-0}"
 ensure_node_modules
 ensure_chromium
+ensure_nginx
 # CI audits the production dependencies (npm run audit): a high or critical advisory fails the
 # run; a registry that does not answer is reported and the tests go on.
 if [ "${CI:-}" = "true" ]; then
@@ -39,7 +40,7 @@ node_modules/.bin/tsx db/migrate-cli.ts
 node_modules/.bin/tsx db/seed-cli.ts
 if [ -z "${HEARTH_SKIP_BUILD:-}" ] || [ ! -d "$NEXT_DIST_DIR" ]; then
   log "building the app into $NEXT_DIST_DIR"
-  node_modules/.bin/next build > "$HEARTH_DATA_DIR/build.log" 2>&1 || { tail -60 "$HEARTH_DATA_DIR/build.log"; exit 1; }
+  next_build "$HEARTH_DATA_DIR/build.log" || { tail -60 "$HEARTH_DATA_DIR/build.log"; exit 1; }
 fi
 log "running the tests"
 exec node_modules/.bin/vitest run "$@"

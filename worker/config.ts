@@ -22,6 +22,10 @@ export type WorkerConfig = {
   expireSeconds: number;
   /** Most bookings one sweep advances. */
   sweepLimit: number;
+  /** Seconds between passes that delete stored objects no files row names. */
+  orphanSweepSeconds: number;
+  /** An object younger than this may belong to an upload still in progress. */
+  orphanMinAgeSeconds: number;
   quiet: boolean;
 };
 
@@ -35,6 +39,8 @@ export function workerConfig(): WorkerConfig {
     concurrency: Math.round(num("HEARTH_WORKER_CONCURRENCY", 2, 1)),
     expireSeconds: Math.round(num("HEARTH_JOB_EXPIRE_SECONDS", 300, 5)),
     sweepLimit: Math.round(num("HEARTH_SWEEP_LIMIT", 500, 1)),
+    orphanSweepSeconds: num("HEARTH_ORPHAN_SWEEP_SECONDS", 3600, 1),
+    orphanMinAgeSeconds: num("HEARTH_ORPHAN_MIN_AGE_SECONDS", 3600, 0),
     quiet: process.env.HEARTH_WORKER_QUIET === "1",
   };
 }

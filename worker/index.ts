@@ -6,6 +6,7 @@ import { getEnv } from "@/lib/env";
 import { ALL_QUEUES, QUEUES } from "@/lib/jobs/queues";
 import { handleGeometry } from "./handlers/geometry";
 import { startWorkerJobs } from "./jobs";
+import { logJobs, trackFailures } from "./job-log";
 
 const workerId = `${os.hostname()}:${process.pid}:${Date.now().toString(36)}`;
 const BEAT_MS = 15_000;
@@ -25,13 +26,17 @@ async function main() {
   // Failed jobs stay in pgboss.job for a week so that /setup/jobs can show them.
   const boss = new PgBoss({ connectionString: getEnv().DATABASE_URL, max: 5, archiveFailedAfterSeconds: 7 * 24 * 3600 });
   boss.on("error", (err) => console.error("[worker] pg-boss error", err.message));
+  trackFailures(boss);
   await boss.start();
   for (const name of ALL_QUEUES) await boss.createQueue(name);
 
-  await boss.work(QUEUES.geometry, { includeMetadata: true, batchSize: 1 }, handleGeometry);
-  await boss.work(QUEUES.heartbeat, async () => {
-    await beat(true);
-  });
+  await boss.work(QUEUES.geometry, { includeMetadata: true, batchSize: 1 }, logJobs(QUEUES.geometry, handleGeometry));
+  await boss.work(
+    QUEUES.heartbeat,
+    logJobs(QUEUES.heartbeat, async () => {
+      await beat(true);
+    }),
+  );
   // Cron in pg-boss is minute-grained; the heartbeat job proves the queue is being worked.
   await boss.schedule(QUEUES.heartbeat, "* * * * *", {}, { singletonKey: "heartbeat" });
   await boss.send(QUEUES.heartbeat, {});

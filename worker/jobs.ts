@@ -7,6 +7,8 @@ import { scaleUpHandler } from "./handlers/scale-up";
 import { drainOutbox, sendMailHandler } from "./handlers/send-mail";
 import { runSweep } from "./sweep";
 import { deliverDueWebhooks, webhookConfig } from "./webhooks";
+import { logJobs } from "./job-log";
+import { sweepOrphanObjects } from "./orphans";
 
 /** Runs `fn` every `seconds`, never two at once; resolves the returned stop() when the last run ends. */
 function every(seconds: number, name: string, fn: () => Promise<void>) {
@@ -43,10 +45,10 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
 
   const work = { batchSize: cfg.batchSize, pollingIntervalSeconds: cfg.pollSeconds };
   for (let i = 0; i < cfg.concurrency; i++) {
-    await boss.work(QUEUES.advance, work, advanceHandler(db, boss, { quiet: cfg.quiet }));
-    await boss.work(QUEUES.sendMail, work, sendMailHandler(db));
+    await boss.work(QUEUES.advance, work, logJobs(QUEUES.advance, advanceHandler(db, boss, { quiet: cfg.quiet })));
+    await boss.work(QUEUES.sendMail, work, logJobs(QUEUES.sendMail, sendMailHandler(db)));
   }
-  await boss.work(QUEUES.scaleUp, { batchSize: 5, pollingIntervalSeconds: cfg.pollSeconds }, scaleUpHandler(db));
+  await boss.work(QUEUES.scaleUp, { batchSize: 5, pollingIntervalSeconds: cfg.pollSeconds }, logJobs(QUEUES.scaleUp, scaleUpHandler(db)));
 
   const stopSweep = every(cfg.sweepSeconds, "sweep", async () => {
     const r = await runSweep(db, boss, workerId, { limit: cfg.sweepLimit });
@@ -62,10 +64,14 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
     const r = await deliverDueWebhooks(db, hooks);
     if (!cfg.quiet && (r.delivered || r.retry || r.failed)) console.log(`[worker] webhooks: ${r.delivered} delivered, ${r.retry} to retry, ${r.failed} given up`);
   });
+  const stopOrphans = every(cfg.orphanSweepSeconds, "orphan sweep", async () => {
+    const r = await sweepOrphanObjects(db, { minAgeSeconds: cfg.orphanMinAgeSeconds });
+    if (r.deleted.length) console.log(`[worker] orphan sweep: deleted ${r.deleted.length} of ${r.listed} stored objects that no file names`);
+  });
   console.log(
     `[worker] sweep every ${cfg.sweepSeconds} s, outbox every ${cfg.mailPumpSeconds} s, polling ${cfg.pollSeconds} s, batch ${cfg.batchSize} × ${cfg.concurrency}`,
   );
   return async () => {
-    await Promise.all([stopSweep(), stopPump(), stopWebhooks()]);
+    await Promise.all([stopSweep(), stopPump(), stopWebhooks(), stopOrphans()]);
   };
 }

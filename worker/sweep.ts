@@ -7,6 +7,7 @@ import { checkStockAlerts } from "@/db/inventory/commands";
 import { recomputeScaleUp } from "./handlers/scale-up";
 import { drainOutbox } from "./handlers/send-mail";
 import { shuffled } from "./limit";
+import { expireQuotes } from "@/db/quotes/commands";
 
 export type SweepResult = { advanced: number; rescaled: number; mail_sent: number; errors: string[]; ms: number };
 
@@ -41,6 +42,11 @@ export async function runSweep(db: Database, boss: PgBoss, workerId: string, opt
       await checkStockAlerts(db, boss);
     } catch (err) {
       errors.push(`stock alerts: ${err instanceof Error ? err.message : String(err)}`);
+    }
+    try {
+      await expireQuotes(db);
+    } catch (err) {
+      errors.push(`quotes: ${err instanceof Error ? err.message : String(err)}`);
     }
     mailSent = (await drainOutbox(db, 200)).sent;
   } catch (err) {

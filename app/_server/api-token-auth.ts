@@ -5,28 +5,17 @@ import { useApiToken } from "@/db/api-tokens/commands";
 import { findActiveUserById, type CurrentUser } from "@/db/users/reads";
 import { AppError } from "@/lib/errors";
 import { bearerToken, looksLikeApiToken, retryAfterSeconds } from "@/lib/auth/api-scopes";
-import { clientAddress } from "@/lib/auth/throttle";
+import { isBearerTokenRequest } from "@/lib/http/cross-site";
 
 // Requests from other programs carry `Authorization: Bearer hth_…` instead of the session cookie.
 
 /** A user acting through a token: the token's scopes narrow what the role allows. */
 export type TokenUser = CurrentUser & { token_scopes: string[]; api_token_id: string };
 
-type HeaderSource = Request | Headers | { headers: Headers };
-
-/**
- * True when the request authenticates with a bearer token rather than a cookie. Cross-site
- * (Origin / CSRF) checks are about cookies a browser attaches by itself; a bearer token is never
- * attached by a browser, so such checks may exempt these requests.
- */
-export function isBearerRequest(req: HeaderSource): boolean {
-  const h = req instanceof Headers ? req : req.headers;
-  return bearerToken(h.get("authorization")) !== null;
-}
-
 /** The bearer token of the current request, when it has one. */
 export async function currentBearer(): Promise<string | null> {
-  return bearerToken((await headers()).get("authorization"));
+  const h = await headers();
+  return isBearerTokenRequest(h) ? bearerToken(h.get("authorization")) : null;
 }
 
 const UNAUTHENTICATED = "The API token is not valid: unknown, revoked or expired.";
@@ -36,11 +25,10 @@ const UNAUTHENTICATED = "The API token is not valid: unknown, revoked or expired
  * 401 for an unknown, revoked or expired token or a deactivated creator, 429 with the wait when
  * the token's window is full.
  */
-export const authenticateBearer = cache(async (token: string): Promise<TokenUser> => {
+export const authenticateBearer = cache(async (token: string, address: string): Promise<TokenUser> => {
   if (!looksLikeApiToken(token)) throw new AppError("unauthenticated", UNAUTHENTICATED);
-  const h = await headers();
   const db = getDb();
-  const use = await useApiToken(db, token, clientAddress(h.get("x-forwarded-for"), h.get("x-real-ip")));
+  const use = await useApiToken(db, token, address);
   if (!use) throw new AppError("unauthenticated", UNAUTHENTICATED);
   if (use.over_limit) {
     const wait = retryAfterSeconds(use.window_started_at.getTime(), Date.now());

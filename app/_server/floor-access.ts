@@ -26,8 +26,8 @@ export async function authorizeFloorRead(db: Database, seal: string | undefined,
     return { kind: "signed-out" };
   }
   if (!session.userId) return { kind: "signed-out" };
-  const { viewer, stamp } = await floorViewerAndStamp(db, session.userId);
-  if (!viewer || !sessionIsLive(session, viewer.sessions_valid_after, now)) return { kind: "signed-out" };
+  const { viewer, stamp } = await floorViewerAndStamp(db, session.userId, session.sid);
+  if (!viewer || !sessionIsLive(session, viewer.sessions_valid_after, now, viewer.session_open)) return { kind: "signed-out" };
   if (!can(viewer.role, FLOOR_PERMISSION)) return { kind: "forbidden", role: viewer.role };
   return { kind: "allowed", stamp, renewalDue: renewalDue(session, now) };
 }

@@ -4,6 +4,7 @@ import { getDb, type Database } from "@/db/client";
 import type { Permission } from "@/lib/auth/permissions";
 import { requireUser } from "@/app/_server/session";
 import { readJson, toErrorResponse } from "./errors";
+import { readId } from "@/app/api/builds/_helpers";
 
 type Ctx = { params: Promise<{ id: string }> };
 
@@ -48,7 +49,7 @@ export function versionedPatchHandler<In extends { version: number }, Row>(opts:
   return async (req: Request, ctx: Ctx) => {
     try {
       await requireUser(opts.write);
-      const id = z.string().uuid(`Not a ${opts.one.replace("_", " ")} id`).parse((await ctx.params).id);
+      const id = await readId(ctx, opts.one.replace("_", " ").replace(/^./, (c) => c.toUpperCase()));
       const { version, ...input } = opts.schema.parse(await readJson(req));
       return NextResponse.json({ [opts.one]: await opts.update(getDb(), id, version, input) });
     } catch (err) {

@@ -3,8 +3,11 @@
 import { useState } from "react";
 import { useRouter } from "next/navigation";
 
+export type OpenSession = { id: string; created_at: string; last_seen_at: string; ip: string | null; user_agent: string | null; current: boolean };
+
 export type SettingsFormsProps = {
   user: { name: string; unit_pref: "mm" | "in"; muted_mail: string[] };
+  sessions: OpenSession[];
   mailKinds: { kind: string; label: string }[];
   passwordMin: number;
 };
@@ -42,7 +45,7 @@ function AnswerLine({ answer }: { answer: Answer }) {
 const FieldError = ({ errors, name }: { errors?: Record<string, string[]>; name: string }) =>
   errors?.[name]?.[0] ? <span className="mt-1 block text-xs text-oxide-700">{errors[name][0]}</span> : null;
 
-export function SettingsForms({ user, mailKinds, passwordMin }: SettingsFormsProps) {
+export function SettingsForms({ user, sessions, mailKinds, passwordMin }: SettingsFormsProps) {
   const router = useRouter();
   const [profileAnswer, setProfileAnswer] = useState<Answer>(null);
   const [mailAnswer, setMailAnswer] = useState<Answer>(null);
@@ -87,6 +90,7 @@ export function SettingsForms({ user, mailKinds, passwordMin }: SettingsFormsPro
     setBusy("sessions");
     setSessionsAnswer(await send("/api/me/sessions", "DELETE", undefined, signedOut));
     setBusy(null);
+    router.refresh();
   }
 
   return (
@@ -167,9 +171,22 @@ export function SettingsForms({ user, mailKinds, passwordMin }: SettingsFormsPro
       <section className={`${card} space-y-3`} aria-label="Sessions">
         <h2 className="font-display text-lg font-semibold">Sessions</h2>
         <p className="text-sm text-soot-600">Left Hearth open on a shared terminal? End every session except this one.</p>
+        <ul className="divide-y divide-soot-100 text-sm" data-testid="open-sessions">
+          {sessions.map((s) => (
+            <li key={s.id} className="py-2">
+              <div className="font-medium text-soot-800 [overflow-wrap:anywhere]">
+                {s.user_agent ? s.user_agent.slice(0, 80) : "Unknown browser"}
+                {s.current ? <span className="ml-2 rounded bg-verdigris-100 px-1.5 py-0.5 text-xs text-verdigris-700">this browser</span> : null}
+              </div>
+              <div className="text-xs text-soot-500">
+                {s.ip ?? "address unknown"} · signed in {new Date(s.created_at).toLocaleString()} · last active {new Date(s.last_seen_at).toLocaleString()}
+              </div>
+            </li>
+          ))}
+        </ul>
         <div className="flex items-center gap-3">
           <button type="button" onClick={signOutElsewhere} disabled={busy === "sessions"} className="rounded-md border border-soot-200 px-3.5 py-2 text-sm font-semibold text-soot-700 hover:bg-soot-50 disabled:opacity-60">
-            {busy === "sessions" ? "Signing out…" : "Sign out everywhere else"}
+            {busy === "sessions" ? "Signing out…" : "Sign out other sessions"}
           </button>
           <AnswerLine answer={sessionsAnswer} />
         </div>

@@ -5,7 +5,8 @@ import {
   DndContext,
   DragOverlay,
   KeyboardSensor,
-  PointerSensor,
+  MouseSensor,
+  TouchSensor,
   pointerWithin,
   rectIntersection,
   useDroppable,
@@ -77,7 +78,7 @@ function WaitingColumn({ lane, children, count, listed, total }: { lane: Lane; c
       ref={setNodeRef}
       aria-label={lane === "furnace" ? "Brown units waiting for a furnace run" : "Green units waiting for a wash"}
       data-testid={`waiting-${lane}`}
-      className={`rounded-card border bg-soot-50/60 p-3 ${isOver ? "border-clay-400" : "border-soot-200"}`}
+      className={`rounded-card border bg-soot-50/60 p-3 md:sticky md:top-2 md:self-start ${isOver ? "border-clay-400" : "border-soot-200"}`}
     >
       <h2 className="text-sm font-semibold text-soot-800">
         {lane === "furnace" ? "Waiting for a furnace" : "Waiting for a wash"} <span className="font-normal text-soot-500">({count})</span>
@@ -88,7 +89,7 @@ function WaitingColumn({ lane, children, count, listed, total }: { lane: Lane; c
           Listed: the {listed} most at risk of {total} waiting. Suggestions consider them all.
         </p>
       ) : null}
-      <div className="flex max-h-[70vh] flex-col gap-1.5 overflow-y-auto pr-1">{children}</div>
+      <div className="flex max-h-[70vh] flex-col gap-1.5 overflow-y-auto pr-1" role="region" aria-label={lane === "furnace" ? "Brown units" : "Green units"} tabIndex={0}>{children}</div>
     </section>
   );
 }
@@ -104,7 +105,13 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
   const [filters, setFilters] = useState({ material: "", profile: "", due: "" });
   const [busy, setBusy] = useState(false);
   const [showSuggest, setShowSuggest] = useState(false);
-  const sensors = useSensors(useSensor(PointerSensor, { activationConstraint: { distance: 4 } }), useSensor(KeyboardSensor, { coordinateGetter: jumpBetweenTargets }));
+  // Mouse and touch apart (dnd-kit's sensors guide): a finger must press and hold a card for a
+  // quarter second before it lifts, so that a swipe still scrolls the list on a phone.
+  const sensors = useSensors(
+    useSensor(MouseSensor, { activationConstraint: { distance: 4 } }),
+    useSensor(TouchSensor, { activationConstraint: { delay: 250, tolerance: 5 } }),
+    useSensor(KeyboardSensor, { coordinateGetter: jumpBetweenTargets }),
+  );
 
   const canFurnace = can(role, "furnace:write");
   const canWash = can(role, "wash:write");
@@ -216,7 +223,11 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
     setDragging(null);
     setHover(null);
     if (!e.over) return;
-    const targetId = String(e.over.id);
+    dropOn(drag, String(e.over.id));
+  };
+
+  /** A drop, from a drag (mouse, finger or keyboard) or from the "Move to…" menu: the same checks and calls. */
+  const dropOn = (drag: DragData, targetId: string) => {
     const [kind, id] = targetId.split(":");
     if (kind === "waiting") {
       if (drag.from.kind !== "waiting") removeUnit(drag.unit, drag.from);
@@ -275,6 +286,10 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
   };
 
   const waiting = lane === "furnace" ? filtered.furnace : filtered.wash;
+  const moveTargets =
+    lane === "furnace"
+      ? data.furnace_runs.filter((r) => r.state === "draft" || r.state === "scheduled").map((r) => ({ id: `run:${r.id}`, label: r.code }))
+      : data.wash_batches.filter((w) => w.state === "draft" || w.state === "scheduled").map((w) => ({ id: `wash:${w.id}`, label: w.code }));
   const canLane = lane === "furnace" ? canFurnace : canWash;
 
   return (
@@ -363,6 +378,9 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
 
       <DndContext sensors={sensors} collisionDetection={collision} onDragStart={onDragStart} onDragOver={onDragOver} onDragEnd={onDragEnd} onDragCancel={() => (setDragging(null), setHover(null))}
         accessibility={{
+          screenReaderInstructions: {
+            draggable: "To move a unit: press space or enter to pick it up, arrow keys to go from one batch or run to the next, space or enter to drop it, escape to put it back. On a touch screen, press and hold the card, then drag it.",
+          },
           announcements: {
             onDragStart: ({ active }) => `Picked up ${(active.data.current as DragData).unit.serial}.`,
             onDragOver: ({ active, over }) => {
@@ -375,7 +393,7 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
           },
         }}
       >
-        <div className="grid gap-4 lg:grid-cols-[minmax(16rem,22rem)_1fr]">
+        <div className="grid grid-cols-1 gap-4 md:grid-cols-[minmax(14rem,18rem)_minmax(0,1fr)] lg:grid-cols-[minmax(16rem,22rem)_minmax(0,1fr)]">
           <WaitingColumn
             lane={lane}
             count={waiting.length}
@@ -384,14 +402,25 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
           >
             {waiting.length === 0 ? <p className="text-xs text-soot-500">Nothing waiting{filters.material || filters.profile || filters.due ? " that matches the filters" : ""}.</p> : null}
             {waiting.map((u) => (
-              <UnitCard key={u.id} unit={u} from={{ kind: "waiting" }} lane={lane} timeZone={data.time_zone} unitPref={unitPref} profileLabel={profileName(u.profile_id)} disabled={!canLane} />
+              <UnitCard
+                key={u.id}
+                unit={u}
+                from={{ kind: "waiting" }}
+                lane={lane}
+                timeZone={data.time_zone}
+                unitPref={unitPref}
+                profileLabel={profileName(u.profile_id)}
+                disabled={!canLane}
+                moveTargets={moveTargets}
+                onMove={(targetId) => dropOn({ unit: u, from: { kind: "waiting" }, lane }, targetId)}
+              />
             ))}
           </WaitingColumn>
           <div className="space-y-3">
             {lane === "furnace" ? (
               <>
                 {canFurnace ? <NewRunForm board={data} busy={busy} onCreate={(body) => change.mutate({ url: "/api/furnace-runs", method: "POST", body, done: "New draft run opened." })} /> : null}
-                <div className="grid gap-3 xl:grid-cols-2" data-testid="run-targets">
+                <div className="grid grid-cols-1 gap-3 xl:grid-cols-2" data-testid="run-targets">
                   {data.furnace_runs.length === 0 ? <p className="text-sm text-soot-500">No open furnace runs. Open one, or let Hearth suggest them.</p> : null}
                   {data.furnace_runs.map((r) => (
                     <RunTarget
@@ -419,7 +448,7 @@ function BoardInner({ role, unitPref }: BatchesBoardProps) {
             ) : (
               <>
                 {canWash ? <NewWashForm board={data} busy={busy} onCreate={(body) => change.mutate({ url: "/api/wash-batches", method: "POST", body, done: "New draft wash batch opened." })} /> : null}
-                <div className="grid gap-3 xl:grid-cols-2" data-testid="wash-targets">
+                <div className="grid grid-cols-1 gap-3 xl:grid-cols-2" data-testid="wash-targets">
                   {data.wash_batches.length === 0 ? <p className="text-sm text-soot-500">No open wash batches. Open one, or let Hearth suggest them.</p> : null}
                   {data.wash_batches.map((w) => (
                     <WashTarget
@@ -498,9 +527,9 @@ function NewRunForm({ board, busy, onCreate }: { board: Board; busy: boolean; on
       }}
     >
       <span className="text-sm font-semibold text-soot-800">New furnace run</span>
-      <label className="text-2xs text-soot-600">
+      <label className="min-w-0 max-w-full text-2xs text-soot-600">
         Furnace
-        <select aria-label="Furnace for the new run" value={furnaceId} onChange={(e) => setFurnaceId(e.target.value)} className="mt-0.5 block rounded border border-soot-200 px-1.5 py-1 text-xs">
+        <select aria-label="Furnace for the new run" value={furnaceId} onChange={(e) => setFurnaceId(e.target.value)} className="mt-0.5 block w-full max-w-full rounded border border-soot-200 px-1.5 py-1 text-xs">
           {board.furnaces.map((f) => (
             <option key={f.id} value={f.id}>
               {f.name} ({f.tray_count} × {f.tray_x_mm}×{f.tray_y_mm} mm, {f.usable_height_mm} mm high)
@@ -508,9 +537,9 @@ function NewRunForm({ board, busy, onCreate }: { board: Board; busy: boolean; on
           ))}
         </select>
       </label>
-      <label className="text-2xs text-soot-600">
+      <label className="min-w-0 max-w-full text-2xs text-soot-600">
         Sinter profile
-        <select aria-label="Sinter profile for the new run" value={chosen} onChange={(e) => setProfileId(e.target.value)} className="mt-0.5 block rounded border border-soot-200 px-1.5 py-1 text-xs">
+        <select aria-label="Sinter profile for the new run" value={chosen} onChange={(e) => setProfileId(e.target.value)} className="mt-0.5 block w-full max-w-full rounded border border-soot-200 px-1.5 py-1 text-xs">
           {profiles.map((p) => (
             <option key={p.id} value={p.id}>
               {p.label} · {p.name}
@@ -536,9 +565,9 @@ function NewWashForm({ board, busy, onCreate }: { board: Board; busy: boolean; o
       }}
     >
       <span className="text-sm font-semibold text-soot-800">New wash batch</span>
-      <label className="text-2xs text-soot-600">
+      <label className="min-w-0 max-w-full text-2xs text-soot-600">
         Wash station
-        <select aria-label="Wash station for the new batch" value={stationId} onChange={(e) => setStationId(e.target.value)} className="mt-0.5 block rounded border border-soot-200 px-1.5 py-1 text-xs">
+        <select aria-label="Wash station for the new batch" value={stationId} onChange={(e) => setStationId(e.target.value)} className="mt-0.5 block w-full max-w-full rounded border border-soot-200 px-1.5 py-1 text-xs">
           {board.stations.map((s) => (
             <option key={s.id} value={s.id}>
               {s.name} ({s.capacity_units} units, {s.basket_x_mm}×{s.basket_y_mm}×{s.basket_z_mm} mm)

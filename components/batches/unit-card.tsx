@@ -26,6 +26,9 @@ export type UnitCardProps = {
   disabled?: boolean;
   compact?: boolean;
   onRemove?: () => void;
+  /** The batches or runs it could go to: a "Move to…" menu beside the card, the way without a drag on a touch screen. */
+  moveTargets?: { id: string; label: string }[];
+  onMove?: (targetId: string) => void;
 };
 
 export function UnitCardBody({ unit, timeZone, unitPref, profileLabel, compact }: Omit<UnitCardProps, "from" | "lane">) {
@@ -66,12 +69,17 @@ export function UnitCardBody({ unit, timeZone, unitPref, profileLabel, compact }
   );
 }
 
-/** A unit that can be picked up and dropped on a wash batch or a furnace run. */
+/**
+ * A unit that can be picked up and dropped on a wash batch or a furnace run. Its accessible name
+ * is its visible text (WCAG 2.5.3); how to move it comes from the board's drag instructions
+ * (aria-describedby). The take-out button sits beside the card, not inside it, so that no
+ * button is nested in another.
+ */
 export function UnitCard(props: UnitCardProps) {
-  const { unit, from, lane, disabled, onRemove, compact } = props;
+  const { unit, from, lane, disabled, onRemove, compact, moveTargets, onMove } = props;
   const id = `${lane}:${from.kind === "waiting" ? "waiting" : from.id}:${unit.id}`;
   const { attributes, listeners, setNodeRef, isDragging } = useDraggable({ id, data: { unit, from, lane } satisfies DragData, disabled });
-  return (
+  const card = (
     <div
       ref={setNodeRef}
       {...attributes}
@@ -79,25 +87,47 @@ export function UnitCard(props: UnitCardProps) {
       data-testid="unit-card"
       data-unit-id={unit.id}
       data-serial={unit.serial}
-      aria-label={`${unit.serial}, ${unit.part_name}, ${unit.material_code}${disabled ? "" : ". Space picks it up, arrow keys move between targets, space drops it, escape puts it back"}`}
-      className={`relative rounded-md border bg-white shadow-card outline-none ${compact ? "inline-flex items-center gap-1 px-1.5 py-0.5" : "block px-2.5 py-1.5"} ${
+      className={`relative touch-manipulation select-none rounded-md border bg-white shadow-card outline-none ${compact ? "inline-flex items-center gap-1 px-1.5 py-0.5" : "block px-2.5 py-1.5"} ${
         isDragging ? "opacity-40" : ""
       } ${disabled ? "cursor-default border-soot-200" : "cursor-grab border-soot-200 hover:border-clay-400 focus-visible:border-ember-500"}`}
     >
       <UnitCardBody {...props} />
-      {onRemove && !disabled ? (
-        <button
-          type="button"
-          onPointerDown={(e) => e.stopPropagation()}
-          onKeyDown={(e) => e.stopPropagation()}
-          onClick={onRemove}
-          className="rounded px-1 text-xs leading-none text-soot-500 hover:bg-soot-100 hover:text-oxide-700"
-          aria-label={`Take ${unit.serial} out`}
-          title="Take out"
-        >
-          ×
-        </button>
-      ) : null}
     </div>
+  );
+  if (moveTargets?.length && onMove && !disabled) {
+    return (
+      <div className="flex items-stretch gap-1">
+        <div className="min-w-0 flex-1">{card}</div>
+        <select
+          aria-label={`Move ${unit.serial} to…`}
+          value=""
+          onChange={(e) => e.target.value && onMove(e.target.value)}
+          className="hidden w-24 shrink-0 rounded-md border border-soot-300 bg-white px-1 text-xs text-soot-800 pointer-coarse:block"
+          data-testid="move-to"
+        >
+          <option value="">Move to…</option>
+          {moveTargets.map((t) => (
+            <option key={t.id} value={t.id}>
+              {t.label}
+            </option>
+          ))}
+        </select>
+      </div>
+    );
+  }
+  if (!onRemove || disabled) return card;
+  return (
+    <span className="inline-flex items-center gap-0.5">
+      {card}
+      <button
+        type="button"
+        onClick={onRemove}
+        className="tap-target rounded px-1 text-xs leading-none text-soot-600 hover:bg-soot-100 hover:text-oxide-700"
+        aria-label={`Take ${unit.serial} out`}
+        title="Take out"
+      >
+        ×
+      </button>
+    </span>
   );
 }

@@ -1,5 +1,6 @@
 "use client";
 
+import { ScrollRegion } from "@/components/ui/scroll-region";
 import { useState } from "react";
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { can, type Role } from "@/lib/auth/permissions";
@@ -80,14 +81,14 @@ function WashViewInner({ batchId, role, timeZone }: WashViewProps) {
           ) : null}
         </div>
       ) : null}
-      <section className="grid gap-3 sm:grid-cols-2 lg:grid-cols-4" aria-label="Wash summary">
+      <section className="grid grid-cols-1 gap-3 sm:grid-cols-2 lg:grid-cols-4" aria-label="Wash summary">
         <Fact label="State" value={STATE_WORDS[batch.state]} testId="wash-state" />
         <Fact label="Station" value={station?.name ?? "—"} note={station ? `${station.solvent} · basket ${station.basket_x_mm}×${station.basket_y_mm}×${station.basket_z_mm} mm` : ""} />
         <Fact label="Wash time" value={duration(batch.est_minutes)} note={slowest ? `set by ${slowest.serial} (wall ${slowest.thickest_wall_mm} mm)` : "no units"} />
         <Fact label={batch.started_at ? "In the solvent" : "Booked"} value={batch.starts_at ? `${shopTime(batch.starts_at, timeZone)} → ${shopTime(batch.ends_at, timeZone, false)}` : "Not booked"} note={batch.finished_at ? `out ${shopTime(batch.finished_at, timeZone)}` : ""} />
       </section>
       {station ? (
-        <section className="grid gap-1.5 rounded-card border border-soot-200 bg-white p-4 shadow-card sm:grid-cols-3">
+        <section className="grid grid-cols-1 gap-1.5 rounded-card border border-soot-200 bg-white p-4 shadow-card sm:grid-cols-3">
           {washGauges(batch.units, station).map((g) => (
             <GaugeBar key={g.key} gauge={g} />
           ))}
@@ -98,7 +99,7 @@ function WashViewInner({ batchId, role, timeZone }: WashViewProps) {
         <p className="text-2xs text-soot-500">
           Mass loss = (green − brown) / green, against the material&apos;s minimum. A unit short of it is held when the wash is finished, with the reason, and goes back for another wash.
         </p>
-        <table className="mt-2 w-full text-left text-xs" data-testid="mass-table">
+        <ScrollRegion label="Masses"><table className="mt-2 w-full text-left text-xs" data-testid="mass-table">
           <thead className="text-2xs text-soot-500">
             <tr>
               <th className="py-1 font-medium">Unit</th>
@@ -160,14 +161,14 @@ function WashViewInner({ batchId, role, timeZone }: WashViewProps) {
                         <span className="rounded bg-oxide-100 px-1 text-oxide-700">Short by {check.shortByG.toFixed(1)} g</span>
                       )
                     ) : (
-                      <span className="text-soot-400">{u.state.replace(/_/g, " ")}</span>
+                      <span className="text-soot-500">{u.state.replace(/_/g, " ")}</span>
                     )}
                   </td>
                 </tr>
               );
             })}
           </tbody>
-        </table>
+        </table></ScrollRegion>
         <div className="mt-3 flex flex-wrap gap-2">
           {mayRecord ? (
             <button

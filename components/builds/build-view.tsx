@@ -5,6 +5,10 @@ import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useState } from "react";
 import { ApiError, apiJson } from "@/components/floor/api";
 import { formatDay, formatSlot, formatWhen, minutesLabel } from "@/components/floor/format";
+import { ScrollRegion } from "@/components/ui/scroll-region";
+import { NextStepCard } from "@/components/scan/next-step-card";
+import type { Role } from "@/lib/auth/permissions";
+import { buildNextStep } from "@/lib/scan/next-step";
 import { PlateDrawing, type PlateDrawingProps } from "./plate-drawing";
 
 type Detail = {
@@ -21,11 +25,11 @@ type Detail = {
 };
 
 /** timeZone: the shop's, so the booking reads as it does on the floor. */
-export type BuildViewProps = { buildId: string; canWrite: boolean; timeZone: string };
+export type BuildViewProps = { buildId: string; canWrite: boolean; timeZone: string; role: Role };
 
 const STATE_WORDS: Record<string, string> = { draft: "draft: not on the floor", scheduled: "booked on a printer", running: "printing", complete: "complete", cancelled: "cancelled" };
 
-export function BuildView({ buildId, canWrite, timeZone }: BuildViewProps) {
+export function BuildView({ buildId, canWrite, timeZone, role }: BuildViewProps) {
   const qc = useQueryClient();
   const q = useQuery({ queryKey: ["build", buildId], queryFn: ({ signal }) => apiJson<Detail>(`/api/builds/${buildId}`, { signal }), refetchInterval: 15_000 });
   const [message, setMessage] = useState<{ tone: "success" | "danger"; text: string } | null>(null);
@@ -34,8 +38,8 @@ export function BuildView({ buildId, canWrite, timeZone }: BuildViewProps) {
   const [lot, setLot] = useState<string | null>(null);
   const [busy, setBusy] = useState(false);
 
-  if (q.isLoading) return <p className="px-8 py-6 text-sm text-soot-500">Loading…</p>;
-  if (q.isError || !q.data) return <p role="alert" className="px-8 py-6 text-sm text-oxide-700">{(q.error as Error)?.message}</p>;
+  if (q.isLoading) return <p className="px-4 md:px-8 py-6 text-sm text-soot-500">Loading…</p>;
+  if (q.isError || !q.data) return <p role="alert" className="px-4 md:px-8 py-6 text-sm text-oxide-700">{(q.error as Error)?.message}</p>;
   const { build, units, verdicts, layout, history } = q.data;
 
   async function act(body: Record<string, unknown>, done: string) {
@@ -72,8 +76,14 @@ export function BuildView({ buildId, canWrite, timeZone }: BuildViewProps) {
 
   const button = "rounded-md px-3 py-1.5 text-sm font-semibold disabled:opacity-50";
   return (
-    <div className="grid gap-5 px-8 py-6 xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]" data-testid="build-view" data-state={build.state}>
+    <div className="grid grid-cols-1 gap-5 px-4 md:px-8 py-6 xl:grid-cols-[minmax(0,3fr)_minmax(0,2fr)]" data-testid="build-view" data-state={build.state}>
       <section className="space-y-4">
+        <NextStepCard
+          title={build.code}
+          subtitle={`${build.material_code} · ${units.length} unit${units.length === 1 ? "" : "s"}`}
+          step={buildNextStep(role, build, units)}
+          onDone={() => void qc.invalidateQueries({ queryKey: ["build", buildId] })}
+        />
         <div className="rounded-card border border-soot-200 bg-white p-4 shadow-card">
           <div className="flex flex-wrap items-start justify-between gap-3">
             <dl className="grid grid-cols-[auto_1fr] gap-x-4 gap-y-1 text-sm">
@@ -137,12 +147,13 @@ export function BuildView({ buildId, canWrite, timeZone }: BuildViewProps) {
 
         <div className="rounded-card border border-soot-200 bg-white p-4 shadow-card">
           <h2 className="mb-2 font-display text-base font-semibold text-soot-900">Units on this plate ({units.length})</h2>
-          <table className="w-full text-left text-sm">
+          <ScrollRegion label="Units on this plate">
+          <table className="w-full min-w-[36rem] text-left text-sm">
             <thead className="text-xs text-soot-500"><tr><th className="py-1">Unit</th><th>Part</th><th>Order, due</th><th className="text-right">Green size, mm</th><th className="pl-4">State</th></tr></thead>
             <tbody>
               {units.map((u) => (
                 <tr key={u.id} className="border-t border-soot-100">
-                  <td className="py-1 font-mono text-xs font-semibold">{u.serial}</td>
+                  <td className="py-1 font-mono text-xs font-semibold"><Link href={`/units/${u.id}`} className="inline-flex min-h-8 items-center text-clay-800 hover:underline">{u.serial}</Link></td>
                   <td><Link href={`/parts/${u.part_id}`} className="text-clay-800 hover:underline">{u.part_number}</Link> <span className="text-xs text-soot-500">rev {u.revision} · {u.part_name}</span></td>
                   <td className="text-xs">{u.order_code} · {formatDay(u.due_at, timeZone)}</td>
                   <td className="tabular text-right text-xs">{u.green_x_mm && u.green_y_mm && u.green_z_mm ? `${u.green_x_mm.toFixed(1)} × ${u.green_y_mm.toFixed(1)} × ${u.green_z_mm.toFixed(1)}` : "–"}</td>
@@ -151,6 +162,7 @@ export function BuildView({ buildId, canWrite, timeZone }: BuildViewProps) {
               ))}
             </tbody>
           </table>
+          </ScrollRegion>
         </div>
       </section>
 

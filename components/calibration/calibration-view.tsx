@@ -1,5 +1,6 @@
 "use client";
 
+import { ScrollRegion } from "@/components/ui/scroll-region";
 import Link from "next/link";
 import { useState } from "react";
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
@@ -121,7 +122,7 @@ function MaterialPanel({ materialId, canApply, timeZone }: { materialId: string;
 
   return (
     <div className="space-y-5" data-testid="calibration-panel" data-material={v.material.code}>
-      <div className="grid items-start gap-5 xl:grid-cols-[minmax(0,1.35fr)_minmax(0,1fr)]">
+      <div className="grid grid-cols-1 items-start gap-5 xl:grid-cols-[minmax(0,1.35fr)_minmax(0,1fr)]">
         <section className="rounded-card border border-soot-200 bg-white p-4 shadow-card" aria-label="Realized shrinkage over time">
           <h2 className="font-display text-lg font-semibold text-soot-900">
             {v.material.name}: realized shrinkage over time
@@ -192,7 +193,7 @@ function MaterialPanel({ materialId, canApply, timeZone }: { materialId: string;
             <div className="rounded-md border border-soot-200 p-3">
               <div className="flex flex-wrap gap-4 text-sm">
                 {(["xy", "z"] as const).map((a) => (
-                  <label key={a} className={`flex items-center gap-1.5 ${v.applicable[a] === undefined ? "text-soot-400" : ""}`}>
+                  <label key={a} className={`flex items-center gap-1.5 ${v.applicable[a] === undefined ? "text-soot-500" : ""}`}>
                     <input type="checkbox" checked={axes[a] && v.applicable[a] !== undefined} disabled={v.applicable[a] === undefined} onChange={(e) => setAxes({ ...axes, [a]: e.target.checked })} />
                     {a.toUpperCase()} → {pct(v.applicable[a], 3)}
                   </label>
@@ -214,10 +215,10 @@ function MaterialPanel({ materialId, canApply, timeZone }: { materialId: string;
         </section>
       </div>
 
-      <div className="grid gap-5 xl:grid-cols-2">
+      <div className="grid grid-cols-1 gap-5 xl:grid-cols-2">
         <section className="rounded-card border border-soot-200 bg-white p-4" aria-label="Latest measurements">
           <h3 className="text-sm font-semibold text-soot-800">Latest measurements</h3>
-          <table className="tabular mt-2 w-full text-sm" data-testid="calibration-recent">
+          <ScrollRegion label="Recent inspections"><table className="tabular mt-2 w-full text-sm" data-testid="calibration-recent">
             <thead className="text-left text-2xs uppercase tracking-wide text-soot-500">
               <tr>
                 <th className="py-1">Unit</th>
@@ -258,7 +259,7 @@ function MaterialPanel({ materialId, canApply, timeZone }: { materialId: string;
                 );
               })}
             </tbody>
-          </table>
+          </table></ScrollRegion>
           {v.excluded.length ? (
             <div className="mt-3 text-xs text-soot-600">
               <h4 className="font-semibold">Left out</h4>
@@ -316,7 +317,7 @@ function StatsTable({ v }: { v: MaterialCalibrationView }) {
     { key: "z", label: "Z", cal: v.calibration.z, current: v.material.shrink_z },
   ];
   return (
-    <table className="tabular w-full whitespace-nowrap text-xs" data-testid="calibration-stats">
+    <ScrollRegion label="Shrinkage per material"><table className="tabular w-full whitespace-nowrap text-xs" data-testid="calibration-stats">
       <thead className="text-left text-2xs uppercase tracking-wide text-soot-500">
         <tr>
           <th className="py-1 pr-2">Axis</th>
@@ -344,6 +345,6 @@ function StatsTable({ v }: { v: MaterialCalibrationView }) {
           </tr>
         ))}
       </tbody>
-    </table>
+    </table></ScrollRegion>
   );
 }

@@ -130,7 +130,7 @@ function Inner({ initialRange, today }: CapacityBoardProps) {
             actions={<><span className="text-xs text-soot-500">{onTime} open orders on time · at risk means less than {Math.round(v.at_risk_margin_minutes / 60)} h to spare</span><CsvLink range={range} table="orders" /></>}
           >
             {late.length ? (
-              <div className="overflow-x-auto">
+              <div className="overflow-x-auto" role="region" aria-label="Late and at-risk orders" tabIndex={0}>
                 <table className="tabular w-full text-sm">
                   <thead className="text-left text-2xs uppercase tracking-wide text-soot-500">
                     <tr>
@@ -190,7 +190,7 @@ function Inner({ initialRange, today }: CapacityBoardProps) {
             }
           >
             <p className="mb-3 text-xs text-soot-500">Booked hours over available hours (the period less maintenance). Ahead of today it is the load already booked.</p>
-            <div className="grid gap-5 xl:grid-cols-3">
+            <div className="grid grid-cols-1 gap-5 xl:grid-cols-3">
               {(["printer", "wash_station", "furnace"] as const).map((kind) => {
                 const rows = v.utilization[period].resources.filter((r) => r.kind === kind);
                 const pooled = v.utilization[period].kinds.find((k) => k.kind === kind);
@@ -205,7 +205,7 @@ function Inner({ initialRange, today }: CapacityBoardProps) {
             </div>
           </Panel>
 
-          <div className="grid gap-5 xl:grid-cols-2">
+          <div className="grid grid-cols-1 gap-5 xl:grid-cols-2">
             <Panel title="Booked work ahead" testId="queue" actions={<CsvLink range={range} table="queue" />}>
               <QueueChart rows={v.queue} />
               <ul className="mt-2 space-y-0.5 text-xs text-soot-600">
@@ -223,7 +223,7 @@ function Inner({ initialRange, today }: CapacityBoardProps) {
             </Panel>
           </div>
 
-          <div className="grid gap-5 xl:grid-cols-2">
+          <div className="grid grid-cols-1 gap-5 xl:grid-cols-2">
             <Panel title="Throughput per week" testId="throughput" actions={<CsvLink range={range} table="throughput" />}>
               <ThroughputChart rows={v.throughput} />
               <p className="text-xs text-soot-500">Units that came out of a furnace run sintered, and units finished, in each week of the range.</p>

@@ -1,5 +1,6 @@
 "use client";
 
+import { ScrollRegion } from "@/components/ui/scroll-region";
 import {
   Bar,
   BarChart,
@@ -72,7 +73,7 @@ export function UtilizationChart({ rows, kind, period, today }: { rows: Utilizat
 
 export function UtilizationTable({ rows, kind }: { rows: UtilizationRow[]; kind?: KindUtilizationRow }) {
   return (
-    <table className="tabular mt-2 w-full whitespace-nowrap text-xs">
+    <ScrollRegion label="Figures behind the chart"><table className="tabular mt-2 w-full whitespace-nowrap text-xs">
       <thead className="text-left text-2xs uppercase tracking-wide text-soot-500">
         <tr>
           <th className="py-1">Resource</th>
@@ -102,7 +103,7 @@ export function UtilizationTable({ rows, kind }: { rows: UtilizationRow[]; kind?
           </tr>
         ) : null}
       </tbody>
-    </table>
+    </table></ScrollRegion>
   );
 }
 

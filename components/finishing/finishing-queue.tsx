@@ -111,7 +111,7 @@ const Empty = ({ children }: { children: React.ReactNode }) => <p className="rou
 
 function ArrivingTable({ cards, units, timeZone, now }: { cards: FinishingCard[]; units: UnitSystem; timeZone: string; now: string }) {
   return (
-    <div className="overflow-x-auto rounded-card border border-soot-200 bg-white">
+    <div className="overflow-x-auto rounded-card border border-soot-200 bg-white" role="region" aria-label="Finishing queue" tabIndex={0}>
       <table className="tabular w-full text-sm">
         <thead className="bg-soot-50 text-left text-2xs uppercase tracking-wide text-soot-500">
           <tr>
@@ -183,7 +183,7 @@ type CardGridProps = {
 function CardGrid({ cards, empty, ...rest }: CardGridProps) {
   if (!cards.length) return <Empty>{empty}</Empty>;
   return (
-    <div className="grid gap-3 xl:grid-cols-2">
+    <div className="grid grid-cols-1 gap-3 xl:grid-cols-2">
       {cards.map((c) => (
         <UnitCard key={c.id} card={c} {...rest} />
       ))}

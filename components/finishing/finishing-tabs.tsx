@@ -13,7 +13,7 @@ export function FinishingTabs({ active }: { active: "queue" | "calibration" }) {
     </Link>
   );
   return (
-    <nav aria-label="Finishing" className="flex gap-1 border-b border-soot-200 bg-white px-8">
+    <nav aria-label="Finishing" className="flex gap-1 border-b border-soot-200 bg-white px-4 md:px-8">
       {tab("/finishing", "queue", "Queue")}
       {tab("/finishing/calibration", "calibration", "Calibration")}
     </nav>

@@ -64,7 +64,7 @@ function Inner({ unitId, units, timeZone, canWrite, canInspect }: FinishingUnitP
   const needsReason = (a: FinishingAction) => a === "hold";
 
   return (
-    <div className="grid gap-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,1.15fr)]">
+    <div className="grid grid-cols-1 gap-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,1.15fr)]">
       <div className="space-y-4">
         <section className="rounded-card border border-soot-200 bg-white p-4 shadow-card" aria-label="Unit">
           <div className="flex flex-wrap items-center gap-2">

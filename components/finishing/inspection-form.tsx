@@ -185,7 +185,7 @@ export function InspectionForm({ unit, units, onSaved }: InspectionFormProps) {
         {err("finished")}
       </fieldset>
 
-      <div className="grid gap-4 md:grid-cols-3">
+      <div className="grid grid-cols-1 gap-4 md:grid-cols-3">
         <label className="block text-sm">
           <span className="font-semibold text-soot-800">Ra ({raUnit})</span>
           <input inputMode="decimal" aria-label={`Ra in ${raUnit}`} className={`${input} mt-1`} {...register("ra")} />

@@ -105,7 +105,7 @@ function Attachments({ inspection, canAttach, onChanged }: { inspection: Inspect
       ) : null}
       {canAttach ? (
         <div className="mt-2 flex flex-wrap items-center gap-2 text-xs">
-          <label className="cursor-pointer rounded border border-dashed border-soot-300 px-2 py-1 text-soot-600 hover:border-clay-400">
+          <label className="tap-target inline-flex cursor-pointer items-center rounded border border-dashed border-soot-300 px-2 py-1 text-soot-600 hover:border-clay-400">
             Attach a photo or PDF
             <input
               ref={ref}
@@ -116,6 +116,23 @@ function Attachments({ inspection, canAttach, onChanged }: { inspection: Inspect
               onChange={(e) => {
                 const f = e.target.files?.[0];
                 if (f) void upload(f);
+              }}
+            />
+          </label>
+          {/* On a phone: straight to the rear camera; the photo goes through the same upload. */}
+          <label className="tap-target inline-flex cursor-pointer items-center rounded border border-soot-300 bg-white px-2 py-1 font-semibold text-soot-800 hover:border-clay-400">
+            Take a photo
+            <input
+              type="file"
+              accept="image/*"
+              capture="environment"
+              className="sr-only"
+              aria-label={`Take a photo for the inspection of ${formatDate(inspection.created_at)}`}
+              data-testid="inspection-camera"
+              onChange={(e) => {
+                const f = e.target.files?.[0];
+                if (f) void upload(f);
+                e.target.value = "";
               }}
             />
           </label>

@@ -43,8 +43,8 @@ export function StockTable({ unit, units }: { unit: FinishingCard; units: UnitSy
           <tr key={a} className="border-t border-soot-100">
             <td className="py-0.5 pr-2 font-semibold">{a.toUpperCase()}</td>
             <td className="py-0.5 pr-2">{len(p[`nominal_${a}_mm`], units)}</td>
-            <td className={`py-0.5 pr-2 ${p[`stock_${a}_neg_mm`] ? "" : "text-soot-400"}`}>{stockLen(p[`stock_${a}_neg_mm`], units)}</td>
-            <td className={`py-0.5 ${p[`stock_${a}_pos_mm`] ? "" : "text-soot-400"}`}>{stockLen(p[`stock_${a}_pos_mm`], units)}</td>
+            <td className={`py-0.5 pr-2 ${p[`stock_${a}_neg_mm`] ? "" : "text-soot-500"}`}>{stockLen(p[`stock_${a}_neg_mm`], units)}</td>
+            <td className={`py-0.5 ${p[`stock_${a}_pos_mm`] ? "" : "text-soot-500"}`}>{stockLen(p[`stock_${a}_pos_mm`], units)}</td>
           </tr>
         ))}
       </tbody>
@@ -64,7 +64,7 @@ export function UnitFacts({ unit, units, compact }: UnitFactsProps) {
         <dt className="text-soot-500">Target Ra</dt>
         <dd>{ra(unit.part.target_ra_um, units)}</dd>
         <dt className="text-soot-500">Notes</dt>
-        <dd className="text-soot-800">{unit.part.finishing_notes || <span className="text-soot-400">none</span>}</dd>
+        <dd className="text-soot-800">{unit.part.finishing_notes || <span className="text-soot-500">none</span>}</dd>
       </dl>
     </div>
   );

@@ -8,9 +8,10 @@ import type { CalendarOptions, DateSpanApi, DatesSetArg, EventApi, EventContentA
 import { keepPreviousData, useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { useRouter } from "next/navigation";
-import { useCallback, useEffect, useMemo, useRef, useState } from "react";
+import { useCallback, useEffect, useMemo, useRef, useState, useSyncExternalStore } from "react";
 import type { FloorData, FloorEvent, FloorResource, UnscheduledBuild } from "@/lib/floor/schemas";
 import { ApiError, apiJson } from "./api";
+import { useCalendarA11y } from "./calendar-a11y";
 import { PlanPanel, type Proposal } from "./plan-panel";
 import { ScheduleForm } from "./schedule-form";
 import { formatDay, formatSlot, minutesLabel } from "./format";
@@ -50,12 +51,36 @@ const STATE_WORDS: Record<FloorEvent["kind"], Record<string, string>> = {
 // it a named zone is "UTC-coercion", and the Date objects of drops and clicks are not instants.
 const PLUGINS = [resourceTimelinePlugin, interactionPlugin, luxonPlugin];
 const HEADER = { left: "prev,today,next", center: "title", right: "resourceTimelineDay,resourceTimelineWeek" };
-const BUTTONS = { today: "Now", resourceTimelineDay: "Day", resourceTimelineWeek: "Week" };
+// Worded arrows instead of FullCalendar's icon font: its icons are role="img" spans without a
+// name (axe-core role-img-alt), and words read aloud and on a phone alike.
+const BUTTONS = { today: "Now", prev: "‹ Earlier", next: "Later ›", resourceTimelineDay: "Day", resourceTimelineWeek: "Week" };
 const VIEWS: CalendarOptions["views"] = {
   resourceTimelineDay: { slotDuration: { hours: 1 }, slotLabelFormat: { hour: "2-digit", minute: "2-digit", hour12: false } },
   resourceTimelineWeek: { slotDuration: { hours: 6 }, slotLabelFormat: [{ weekday: "short", day: "numeric" }, { hour: "2-digit", hour12: false }] },
 };
 const SNAP = { minutes: 15 };
+/** Press-and-hold before a finger drags a booking, so that a swipe still scrolls the timeline. */
+const LONG_PRESS_MS = 250;
+const PHONE_QUERY = "(max-width: 767px)";
+const LANE_GROUPS = [
+  ["printer", "Printers"],
+  ["wash_station", "Wash stations"],
+  ["furnace", "Furnaces"],
+] as const;
+type LaneGroup = (typeof LANE_GROUPS)[number][0];
+
+/** Below the md breakpoint the floor shows one day and one group of lanes at a time. */
+function usePhone(): boolean {
+  return useSyncExternalStore(
+    (cb) => {
+      const m = window.matchMedia(PHONE_QUERY);
+      m.addEventListener("change", cb);
+      return () => m.removeEventListener("change", cb);
+    },
+    () => window.matchMedia(PHONE_QUERY).matches,
+    () => false,
+  );
+}
 const CALENDAR_STYLE = {
   "--fc-border-color": "#e9e6e1", "--fc-today-bg-color": "rgba(242,106,18,0.06)", "--fc-now-indicator-color": "#d0520a", "--fc-neutral-bg-color": "#f6f5f3",
   "--fc-button-bg-color": "#403a33", "--fc-button-border-color": "#403a33", "--fc-button-hover-bg-color": "#2b2723", "--fc-button-hover-border-color": "#2b2723",
@@ -162,6 +187,11 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
     // eslint-disable-next-line react-hooks/exhaustive-deps
     [laneKey],
   );
+  const phone = usePhone();
+  const calendarBox = useRef<HTMLDivElement>(null);
+  useCalendarA11y(calendarBox);
+  const [laneGroup, setLaneGroup] = useState<LaneGroup>("printer");
+  const shownResources = useMemo(() => (phone ? calendarResources.filter((r) => r.kind === laneGroup) : calendarResources), [phone, laneGroup, calendarResources]);
   const printerName = useCallback((id: string | null) => (id ? (resourceById.get(id)?.title ?? "a printer") : "nothing"), [resourceById]);
 
   const events = useMemo<EventInput[]>(() => {
@@ -239,6 +269,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
     if (!canSchedule || !listRef.current) return;
     const d = new Draggable(listRef.current, {
       itemSelector: "[data-build-id]",
+      longPressDelay: LONG_PRESS_MS,
       eventData: (el) => {
         const b = draftsRef.current.find((x) => x.id === (el as HTMLElement).dataset.buildId);
         const ok = (b?.printers ?? []).filter((p) => p.ok && p.est_minutes);
@@ -412,9 +443,20 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
   const ready = floor.isSuccess && !floor.isPlaceholderData;
 
   return (
-    <div className="flex flex-col gap-4 px-6 py-5 xl:flex-row" data-testid="floor-board" data-ready={ready ? "true" : "false"} data-event-count={floor.data?.events.length ?? 0}>
-      <section className="min-w-0 flex-1 rounded-card border border-soot-200 bg-white p-3 shadow-card" aria-label="Floor timeline">
+    <div className="flex flex-col gap-4 px-3 py-4 md:px-6 md:py-5 xl:flex-row" data-testid="floor-board" data-ready={ready ? "true" : "false"} data-event-count={floor.data?.events.length ?? 0}>
+      <section className="min-w-0 flex-1 rounded-card border border-soot-200 bg-white p-2 shadow-card md:p-3" aria-label="Floor timeline">
+        {phone ? (
+          <div role="group" aria-label="Lanes shown" className="mb-2 flex gap-1" data-testid="lane-groups">
+            {LANE_GROUPS.map(([key, label]) => (
+              <button key={key} type="button" aria-pressed={laneGroup === key} onClick={() => setLaneGroup(key)}
+                className={`flex-1 rounded-md border px-2 py-1.5 text-sm font-semibold ${laneGroup === key ? "border-soot-900 bg-soot-900 text-soot-50" : "border-soot-200 bg-white text-soot-700"}`}>
+                {label}
+              </button>
+            ))}
+          </div>
+        ) : null}
         <div
+          ref={calendarBox}
           className="hearth-floor"
           style={CALENDAR_STYLE}
         >
@@ -425,20 +467,23 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
             ref={calendarRef}
             plugins={PLUGINS}
             schedulerLicenseKey="GPL-My-Project-Is-Open-Source"
-            initialView="resourceTimelineWeek"
+            initialView={phone ? "resourceTimelineDay" : "resourceTimelineWeek"}
             timeZone={timeZone}
             height="auto"
             nowIndicator
             scrollTime="00:00:00"
             headerToolbar={HEADER}
             buttonText={BUTTONS}
+            buttonIcons={false}
             views={VIEWS}
-            resourceAreaWidth="150px"
+            resourceAreaWidth={phone ? "92px" : "150px"}
+            longPressDelay={LONG_PRESS_MS}
+            eventLongPressDelay={LONG_PRESS_MS}
             slotMinWidth={22}
             resourceAreaHeaderContent="Lane"
             resourceGroupField="group"
             resourceOrder="kindOrder,title"
-            resources={calendarResources}
+            resources={shownResources}
             resourceLabelContent={renderResourceLabel}
             events={events}
             eventContent={renderEvent}
@@ -492,7 +537,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
               const ok = b.printers.filter((p) => p.ok);
               return (
                 <li key={b.id} data-build-id={b.id} data-testid={`unscheduled-${b.code}`}
-                  className={`rounded-md border border-clay-300 bg-clay-50 px-2.5 py-1.5 text-sm ${canSchedule && ok.length ? "cursor-grab" : "opacity-70"}`}
+                  className={`rounded-md border border-clay-300 bg-clay-50 px-2.5 py-1.5 text-sm ${canSchedule && ok.length ? "cursor-grab" : ""}`}
                   title={ok.length ? "Drag onto a printer" : "No printer can take this build"}>
                   <div className="flex items-baseline justify-between gap-2">
                     <Link href={`/builds/${b.id}`} className="font-semibold text-clay-800 hover:underline">{b.code}</Link>

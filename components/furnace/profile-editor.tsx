@@ -1,5 +1,6 @@
 "use client";
 
+import { ScrollRegion } from "@/components/ui/scroll-region";
 import { useMemo, useState } from "react";
 import { useFieldArray, useForm, useWatch } from "react-hook-form";
 import { zodResolver } from "@hookform/resolvers/zod";
@@ -49,7 +50,7 @@ function ProfileEditorInner({ canEdit }: { canEdit: boolean }) {
   const shown = profiles.filter((p) => showRetired || !p.retired);
   const current = selected && selected !== "new" ? profiles.find((p) => p.id === selected) : undefined;
   return (
-    <div className="grid gap-5 xl:grid-cols-[minmax(22rem,30rem)_1fr]">
+    <div className="grid grid-cols-1 gap-5 xl:grid-cols-[minmax(22rem,30rem)_1fr]">
       <section aria-label="Sinter profiles" className="rounded-card border border-soot-200 bg-white p-3 shadow-card">
         <div className="mb-2 flex items-center justify-between gap-2">
           <label className="flex items-center gap-1.5 text-xs text-soot-600">
@@ -61,7 +62,7 @@ function ProfileEditorInner({ canEdit }: { canEdit: boolean }) {
             </button>
           ) : null}
         </div>
-        <table className="w-full text-left text-xs" data-testid="profile-list">
+        <ScrollRegion label="Sinter profiles"><table className="w-full text-left text-xs" data-testid="profile-list">
           <thead className="text-2xs text-soot-500">
             <tr>
               <th className="py-1 font-medium">Profile</th>
@@ -91,7 +92,7 @@ function ProfileEditorInner({ canEdit }: { canEdit: boolean }) {
               </tr>
             ))}
           </tbody>
-        </table>
+        </table></ScrollRegion>
       </section>
       {selected === "new" ? (
         <ProfileForm key="new" materials={materials} furnaces={furnaces} canEdit={canEdit} onSaved={(id) => setSelected(id)} />
@@ -186,7 +187,7 @@ function ProfileForm({ profile, materials, furnaces, canEdit, onSaved }: { profi
           {message.text}
         </p>
       ) : null}
-      <fieldset disabled={!canEdit} className="grid gap-3 sm:grid-cols-3">
+      <fieldset disabled={!canEdit} className="grid grid-cols-1 gap-3 sm:grid-cols-3">
         <Field label="Code" error={errors.code?.message}>
           <input {...register("code")} className={input} />
         </Field>
@@ -269,7 +270,7 @@ function ProfileForm({ profile, materials, furnaces, canEdit, onSaved }: { profi
         </div>
         {preview.ok ? <ProfileChart curve={preview.curve} height={220} /> : <p className="rounded bg-soot-50 px-3 py-6 text-center text-sm text-oxide-700" data-testid="preview-error">{preview.reason}</p>}
       </section>
-      <fieldset disabled={!canEdit} className="grid gap-4 sm:grid-cols-2">
+      <fieldset disabled={!canEdit} className="grid grid-cols-1 gap-4 sm:grid-cols-2">
         <div>
           <legend className="text-sm font-semibold text-soot-800">Compatible materials</legend>
           <div className="mt-1 grid gap-1">

@@ -1,5 +1,6 @@
 "use client";
 
+import { ScrollRegion } from "@/components/ui/scroll-region";
 import Link from "next/link";
 import { useEffect, useState } from "react";
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
@@ -74,7 +75,7 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
           {flash.text}
         </div>
       ) : null}
-      <section className="grid gap-3 sm:grid-cols-2 lg:grid-cols-5" aria-label="Run summary">
+      <section className="grid grid-cols-1 gap-3 sm:grid-cols-2 lg:grid-cols-5" aria-label="Run summary">
         <Fact label="State" value={STATE_WORDS[run.state]} testId="run-state" />
         <Fact label="Furnace" value={furnace.name} note={`${furnace.tray_count} trays of ${furnace.tray_x_mm}×${furnace.tray_y_mm} mm, ${furnace.usable_height_mm} mm high`} />
         <Fact label="Sinter profile" value={profile.label} note={`${profile.name} · ${profile.atmosphere}`} />
@@ -91,7 +92,7 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
         <ProfileChart curve={d.curve} nowMinute={nowMinute} startsAt={run.starts_at} timeZone={tz} />
       </section>
 
-      <div className="grid gap-4 lg:grid-cols-2">
+      <div className="grid grid-cols-1 gap-4 lg:grid-cols-2">
         <section className="rounded-card border border-soot-200 bg-white p-4 shadow-card">
           <h2 className="text-sm font-semibold text-soot-800">Trays</h2>
           <div className="mt-2 grid gap-1.5">
@@ -105,7 +106,7 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
         </section>
         <section className="rounded-card border border-soot-200 bg-white p-4 shadow-card">
           <h2 className="text-sm font-semibold text-soot-800">Units ({run.units.length})</h2>
-          <table className="mt-2 w-full text-left text-xs">
+          <ScrollRegion label="Units on the run"><table className="mt-2 w-full text-left text-xs">
             <thead className="text-2xs text-soot-500">
               <tr>
                 <th className="py-1 font-medium">Unit</th>
@@ -134,7 +135,7 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
                 );
               })}
             </tbody>
-          </table>
+          </table></ScrollRegion>
           {run.state === "draft" || run.state === "scheduled" ? (
             <p className="mt-2 text-2xs text-soot-500">
               Add or take out units on the <Link href="/batches" className="underline">batching board</Link>.
@@ -221,7 +222,7 @@ function UnloadForm({ units, busy, onSubmit }: { units: { id: string; serial: st
     <section className="rounded-card border border-clay-300 bg-white p-4 shadow-card" aria-label="Unload" data-testid="unload-form">
       <h2 className="text-sm font-semibold text-soot-800">Unload</h2>
       <p className="text-2xs text-soot-500">Unload only once the furnace reports the load cool enough to handle. Record each unit as it comes off the tray.</p>
-      <table className="mt-2 w-full text-left text-xs">
+      <ScrollRegion label="Unload outcomes"><table className="mt-2 w-full text-left text-xs">
         <tbody>
           {units.map((u) => {
             const r = rows[u.id] ?? { unit_id: u.id, outcome: "sintered" };
@@ -257,7 +258,7 @@ function UnloadForm({ units, busy, onSubmit }: { units: { id: string; serial: st
             );
           })}
         </tbody>
-      </table>
+      </table></ScrollRegion>
       <button
         type="button"
         disabled={busy || incomplete || units.length === 0}

@@ -95,7 +95,7 @@ export function CsvImport({ onImported }: CsvImportProps) {
         </div>
       ) : null}
       {rows.length ? (
-        <div className="max-h-96 overflow-auto rounded-md border border-soot-200">
+        <div className="max-h-96 overflow-auto rounded-md border border-soot-200" role="region" aria-label="Import preview" tabIndex={0}>
           <table className="w-full text-left text-xs" data-testid="csv-preview">
             <thead className="sticky top-0 bg-soot-50 text-soot-500">
               <tr>

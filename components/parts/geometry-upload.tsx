@@ -7,7 +7,11 @@ import { apiJson } from "@/components/floor/api";
 type FileInfo = { id: string; filename: string; status: "queued" | "analysing" | "done" | "failed"; error: string | null; analysis: unknown };
 
 export type GeometryUploadProps = {
-  partId: string;
+  partId?: string;
+  /** Where the file goes; a part's geometry by default. */
+  uploadUrl?: string;
+  /** Told the stored file's id as soon as the upload is accepted. */
+  onFile?: (id: string) => void;
   maxBytes: number;
   /** The part's current file, if any; its status is followed until the worker is done. */
   current: { id: string; status: string } | null;
@@ -17,7 +21,7 @@ export type GeometryUploadProps = {
 const STEPS = ["queued", "analysing", "done"] as const;
 
 /** Upload with a progress bar (XMLHttpRequest reports upload progress; fetch does not). */
-export function GeometryUpload({ partId, maxBytes, current, onAnalysed }: GeometryUploadProps) {
+export function GeometryUpload({ partId, uploadUrl, onFile, maxBytes, current, onAnalysed }: GeometryUploadProps) {
   const [progress, setProgress] = useState<number | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [fileId, setFileId] = useState<string | null>(current && (current.status === "queued" || current.status === "analysing") ? current.id : null);
@@ -50,7 +54,7 @@ export function GeometryUpload({ partId, maxBytes, current, onAnalysed }: Geomet
     }
     const req = new XMLHttpRequest();
     xhr.current = req;
-    req.open("POST", `/api/parts/${partId}/geometry`);
+    req.open("POST", uploadUrl ?? `/api/parts/${partId}/geometry`);
     req.setRequestHeader("content-type", "application/octet-stream");
     req.setRequestHeader("x-filename", encodeURIComponent(file.name));
     req.upload.onprogress = (e) => {
@@ -66,6 +70,7 @@ export function GeometryUpload({ partId, maxBytes, current, onAnalysed }: Geomet
       }
       if (req.status === 201 && body.file) {
         setFileId(body.file.id);
+        onFile?.(body.file.id);
         return;
       }
       setError(body.error?.message ?? `The upload was refused (${req.status}).`);
@@ -108,7 +113,7 @@ export function GeometryUpload({ partId, maxBytes, current, onAnalysed }: Geomet
             STEPS.map((s, i) => {
               const reached = STEPS.indexOf(state as (typeof STEPS)[number]) >= i;
               return (
-                <li key={s} className={`flex items-center gap-1 ${reached ? "font-semibold text-verdigris-700" : "text-soot-400"}`}>
+                <li key={s} className={`flex items-center gap-1 ${reached ? "font-semibold text-verdigris-700" : "text-soot-500"}`}>
                   <span className={`inline-block h-2 w-2 rounded-full ${reached ? "bg-verdigris-500" : "bg-soot-300"}`} />
                   {s}
                   {i < STEPS.length - 1 ? <span className="text-soot-300">→</span> : null}

@@ -1,5 +1,6 @@
 "use client";
 
+import { ScrollRegion } from "@/components/ui/scroll-region";
 import Link from "next/link";
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useCallback, useState } from "react";
@@ -38,8 +39,8 @@ export function PartDetailView({ partId, maxBytes, canEdit, canUpload, materials
   const q = useQuery({ queryKey: ["part", partId], queryFn: ({ signal }) => apiJson<Detail>(`/api/parts/${partId}`, { signal }) });
   const onAnalysed = useCallback(() => void qc.invalidateQueries({ queryKey: ["part", partId] }), [qc, partId]);
 
-  if (q.isLoading) return <p className="px-8 py-6 text-sm text-soot-500">Loading…</p>;
-  if (q.isError || !q.data) return <p role="alert" className="px-8 py-6 text-sm text-oxide-700">{(q.error as Error)?.message ?? "Not found"}</p>;
+  if (q.isLoading) return <p className="px-4 md:px-8 py-6 text-sm text-soot-500">Loading…</p>;
+  if (q.isError || !q.data) return <p role="alert" className="px-4 md:px-8 py-6 text-sm text-oxide-700">{(q.error as Error)?.message ?? "Not found"}</p>;
   const { part, scale, fits, geometry } = q.data;
   const a = geometry?.analysis ?? null;
   const stockOf = (axis: "x" | "y" | "z") => [part[`stock_${axis}_neg_mm`] as number, part[`stock_${axis}_pos_mm`] as number];
@@ -48,7 +49,7 @@ export function PartDetailView({ partId, maxBytes, canEdit, canUpload, materials
   const growth = Object.fromEntries(scale.axes.map((x) => [x.axis, x.green_mm / x.nominal_mm])) as { x: number; y: number; z: number };
 
   return (
-    <div className="grid gap-5 px-8 py-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
+    <div className="grid grid-cols-1 gap-5 px-4 md:px-8 py-6 xl:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
       <section className="space-y-4">
         <div className="rounded-card border border-soot-200 bg-white p-4 shadow-card">
           <div className="flex items-start justify-between gap-3">
@@ -77,7 +78,7 @@ export function PartDetailView({ partId, maxBytes, canEdit, canUpload, materials
           <p className="mb-2 text-xs text-soot-500">
             Green = (finished + stock on both faces) × f, with f = 1/(1 − s): s = {f(scale.shrink_xy * 100, 2)} % in X and Y, {f(scale.shrink_z * 100, 2)} % in Z for {part.material_code}.
           </p>
-          <table className="w-full text-right text-sm tabular">
+          <ScrollRegion label="Scale-up per axis"><table className="w-full text-right text-sm tabular">
             <thead className="text-xs text-soot-500">
               <tr><th className="text-left">Axis</th><th>Finished</th><th>Stock (− / +)</th><th>With stock</th><th>Factor</th><th>Green</th></tr>
             </thead>
@@ -96,7 +97,7 @@ export function PartDetailView({ partId, maxBytes, canEdit, canUpload, materials
                 );
               })}
             </tbody>
-          </table>
+          </table></ScrollRegion>
           <dl className="mt-3 grid grid-cols-2 gap-x-4 gap-y-1 text-sm">
             <dt className="text-soot-500">Finished volume</dt>
             <dd className="tabular" data-testid="finished-volume">{part.volume_mm3 ? cm3(part.volume_mm3) : "upload the STL to measure it"}</dd>
@@ -127,7 +128,7 @@ export function PartDetailView({ partId, maxBytes, canEdit, canUpload, materials
               </li>
             ))}
             {compatible.length === 0 ? <li className="text-sm text-oxide-700">No printer is set up for {part.material_code}.</li> : null}
-            {other.length ? <li className="text-2xs text-soot-400">Not set up for {part.material_code}: {other.map((p) => p.printer_name).join(", ")}</li> : null}
+            {other.length ? <li className="text-2xs text-soot-500">Not set up for {part.material_code}: {other.map((p) => p.printer_name).join(", ")}</li> : null}
           </ul>
         </div>
 

@@ -122,7 +122,7 @@ export function PartsWorkspace({ materials, orders, canWriteOrders, canWritePart
         uc.accessor("state", { header: "State", cell: (c) => <span className="text-xs">{STATE_LABEL(c.getValue())}{c.row.original.hold_reason ? <span className="block text-2xs text-brass-600">{c.row.original.hold_reason}</span> : null}{c.row.original.scrap_reason ? <span className="block text-2xs text-oxide-700">{STATE_LABEL(c.row.original.scrap_reason)}</span> : null}</span> }),
         uc.accessor("part_number", { header: "Part", cell: (c) => <Link href={`/parts/${c.row.original.part_id}`} className="text-clay-800 hover:underline">{c.getValue()}</Link> }),
         uc.accessor("material_code", { header: "Material" }),
-        uc.display({ id: "build", header: "Build", cell: (c) => (c.row.original.build_id ? <Link href={`/builds/${c.row.original.build_id}`} className="text-clay-800 hover:underline">{c.row.original.build_code}</Link> : <span className="text-soot-400">–</span>) }),
+        uc.display({ id: "build", header: "Build", cell: (c) => (c.row.original.build_id ? <Link href={`/builds/${c.row.original.build_id}`} className="text-clay-800 hover:underline">{c.row.original.build_code}</Link> : <span className="text-soot-500">–</span>) }),
         uc.accessor("due_at", { header: "Due", cell: (c) => <span className="tabular">{day(c.getValue())}<span className="block text-2xs text-soot-500">{c.row.original.order_code}</span></span> }),
         uc.display({ id: "projection", header: "Projected", cell: (c) => <ProjectionBadge projection={c.row.original.projection} /> }),
       ] as ColumnDef<UnitRow, unknown>[],
@@ -145,7 +145,7 @@ export function PartsWorkspace({ materials, orders, canWriteOrders, canWritePart
 
   const tabs: Array<[typeof tab, string]> = [["orders", "Orders"], ["parts", "Parts"], ["units", "Units"]];
   return (
-    <div className="space-y-4 px-8 py-6">
+    <div className="space-y-4 px-4 md:px-8 py-6">
       <div className="flex flex-wrap items-center gap-2">
         <div role="tablist" aria-label="Order book" className="flex rounded-md border border-soot-200 bg-white p-0.5">
           {tabs.map(([id, label]) => (

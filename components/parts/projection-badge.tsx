@@ -15,7 +15,7 @@ function days(minutes: number): string {
 
 /** On time / at risk / late, always as a word, with the projected end and the slack. */
 export function ProjectionBadge({ projection }: ProjectionBadgeProps) {
-  if (!projection) return <span className="text-xs text-soot-400">no units</span>;
+  if (!projection) return <span className="text-xs text-soot-500">no units</span>;
   const s = STYLES[projection.status] ?? STYLES.on_time;
   const end = projection.projected_end ? new Date(projection.projected_end) : null;
   return (

@@ -119,7 +119,7 @@ export function ServerTable<Row>({ path, queryKey, columns, filters = {}, defaul
           {total} {total === 1 ? "row" : "rows"}
         </span>
       </div>
-      <div className="overflow-x-auto">
+      <div className="overflow-x-auto" role="region" aria-label={caption} tabIndex={0}>
         <table className="w-full text-left text-sm">
           <caption className="sr-only">{caption}</caption>
           <thead className="bg-soot-50 text-xs text-soot-500">

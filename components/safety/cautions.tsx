@@ -54,7 +54,7 @@ export function Cautions({ topic, folded = false }: CautionsProps) {
   const items = CAUTIONS.filter((c) => topic === "both" || c.topics.includes(topic));
   const body = (
     <div className="mt-2 space-y-3">
-      <ul className="grid gap-x-6 gap-y-2 sm:grid-cols-2">
+      <ul className="grid grid-cols-1 gap-x-6 gap-y-2 sm:grid-cols-2">
         {items.map((c) => (
           <li key={c.key} data-caution={c.key} className="text-sm leading-snug text-soot-700">
             <span className="font-semibold text-oxide-700">{c.title}. </span>

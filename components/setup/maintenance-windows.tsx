@@ -1,5 +1,6 @@
 "use client";
 
+import { ScrollRegion } from "@/components/ui/scroll-region";
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 
@@ -81,7 +82,7 @@ export function MaintenanceWindows({ windows, resources, timeZone }: Maintenance
         </div>
       </form>
       {message ? <p role="alert" className="mb-3 text-sm text-oxide-700">{message}</p> : null}
-      <table className="w-full text-sm">
+      <ScrollRegion label="Maintenance windows"><table className="w-full text-sm">
         <thead>
           <tr className="border-b border-soot-200 text-left text-xs uppercase tracking-wide text-soot-500">
             <th className="px-2 py-1.5">Equipment</th>
@@ -106,7 +107,7 @@ export function MaintenanceWindows({ windows, resources, timeZone }: Maintenance
             </tr>
           ))}
         </tbody>
-      </table>
+      </table></ScrollRegion>
     </section>
   );
 }

@@ -92,7 +92,7 @@ export function RecordForm({ title, fields, initial, endpoint, method, version, 
               ) : (
                 <label htmlFor={id} className="block text-xs font-medium text-soot-600">
                   {f.label}
-                  {f.type === "number" && f.unit ? <span className="text-soot-400"> ({f.unit})</span> : null}
+                  {f.type === "number" && f.unit ? <span className="text-soot-500"> ({f.unit})</span> : null}
                   {f.type === "select" ? (
                     <select id={id} className={input} value={(values[f.name] as string) ?? ""} onChange={(e) => set(f.name, e.target.value || null)}>
                       {f.nullable ? <option value="">— none —</option> : null}
@@ -115,7 +115,7 @@ export function RecordForm({ title, fields, initial, endpoint, method, version, 
                   )}
                 </label>
               )}
-              {f.hint && !err ? <div className="mt-0.5 text-2xs text-soot-400">{f.hint}</div> : null}
+              {f.hint && !err ? <div className="mt-0.5 text-2xs text-soot-500">{f.hint}</div> : null}
               {err ? <div className="mt-0.5 text-xs text-oxide-700">{err}</div> : null}
             </div>
           );

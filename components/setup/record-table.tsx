@@ -1,5 +1,6 @@
 "use client";
 
+import { ScrollRegion } from "@/components/ui/scroll-region";
 import { useState } from "react";
 import { RecordForm, type FieldDef } from "./record-form";
 
@@ -32,7 +33,7 @@ export function RecordTable({ title, noun, rows, columns, fields, endpoint, blan
           <RecordForm title={`New ${noun}`} fields={fields} initial={blank} endpoint={endpoint} method="POST" submitLabel={`Add ${noun}`} onDone={() => setEditing(null)} />
         </div>
       ) : null}
-      <table className="w-full text-sm">
+      <ScrollRegion label={`${noun[0].toUpperCase()}${noun.slice(1)} list`}><table className="w-full text-sm">
         <thead>
           <tr className="border-b border-soot-200 text-left text-xs uppercase tracking-wide text-soot-500">
             {columns.map((c) => (
@@ -69,7 +70,7 @@ export function RecordTable({ title, noun, rows, columns, fields, endpoint, blan
             ];
           })}
         </tbody>
-      </table>
+      </table></ScrollRegion>
       {rows.length === 0 ? <p className="py-4 text-sm text-soot-500">None yet.</p> : null}
     </section>
   );

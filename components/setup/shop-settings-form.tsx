@@ -39,9 +39,9 @@ export function ShopSettingsForm({ settings }: ShopSettingsFormProps) {
   const input = "mt-1 block w-full rounded-md border border-soot-200 px-2.5 py-1.5 text-sm";
   const num = (k: "drying_minutes" | "finishing_lead_minutes" | "at_risk_margin_minutes" | "plate_clearance_mm" | "tray_clearance_mm", label: string, unit: string, hint: string) => (
     <label className="text-xs font-medium text-soot-600">
-      {label} <span className="text-soot-400">({unit})</span>
+      {label} <span className="text-soot-500">({unit})</span>
       <input type="number" step="any" className={`${input} tabular text-right`} value={String(v[k])} onChange={(e) => set(k, e.target.value as unknown as number)} />
-      {errors[k] ? <span className="text-oxide-700">{errors[k][0]}</span> : <span className="text-2xs text-soot-400">{hint}</span>}
+      {errors[k] ? <span className="text-oxide-700">{errors[k][0]}</span> : <span className="text-2xs text-soot-500">{hint}</span>}
     </label>
   );
   return (
@@ -55,7 +55,7 @@ export function ShopSettingsForm({ settings }: ShopSettingsFormProps) {
         <label className="text-xs font-medium text-soot-600">
           Time zone
           <input className={input} value={v.time_zone} onChange={(e) => set("time_zone", e.target.value)} />
-          {errors.time_zone ? <span className="text-oxide-700">{errors.time_zone[0]}</span> : <span className="text-2xs text-soot-400">IANA name; times are shown in it</span>}
+          {errors.time_zone ? <span className="text-oxide-700">{errors.time_zone[0]}</span> : <span className="text-2xs text-soot-500">IANA name; times are shown in it</span>}
         </label>
         {num("drying_minutes", "Drying after wash", "min", "before a brown part may go in a furnace")}
         {num("finishing_lead_minutes", "Finishing lead time", "min", "from sintered to done, for projections")}

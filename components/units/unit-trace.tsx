@@ -10,11 +10,14 @@ import { InspectionList } from "@/components/finishing/inspection-list";
 import { ShopQueryProvider } from "@/components/finishing/query-provider";
 import { StateBadge } from "@/components/finishing/state-badge";
 import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
+import { NextStepCard } from "@/components/scan/next-step-card";
+import type { Role } from "@/lib/auth/permissions";
+import { unitNextStep } from "@/lib/scan/next-step";
 
 // Where a unit came from and what happened to it: lot and build, wash and masses, furnace run
 // and profile, inspections, and every event of the unit and its bookings on one timeline.
 
-export type UnitTraceProps = { unitId: string; units: UnitSystem; timeZone: string; canAttach: boolean };
+export type UnitTraceProps = { unitId: string; units: UnitSystem; timeZone: string; canAttach: boolean; role: Role };
 
 export function UnitTrace(props: UnitTraceProps) {
   return (
@@ -47,7 +50,7 @@ const Row = ({ k, children }: { k: string; children: React.ReactNode }) => (
   </>
 );
 
-function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
+function Inner({ unitId, units, timeZone, canAttach, role }: UnitTraceProps) {
   const poll = useLivePoll();
   const trace = useQuery({ queryKey: ["trace", unitId], queryFn: () => getJson<Trace>(`/api/units/${unitId}/trace`), refetchInterval: poll(10_000) });
   if (trace.isPending) return <p className="text-sm text-soot-500">Loading the unit&rsquo;s history…</p>;
@@ -61,6 +64,12 @@ function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
 
   return (
     <div className="space-y-6">
+      <NextStepCard
+        title={t.unit.serial}
+        subtitle={`${t.part.part_number} rev ${t.part.revision} · ${t.part.name} · ${t.material.code} · order ${t.order.code}`}
+        step={unitNextStep(role, t.unit, t.build, t.wash, t.furnace_run)}
+        onDone={() => void trace.refetch()}
+      />
       <header className="flex flex-wrap items-center gap-3">
         <h2 className="font-mono text-xl font-semibold text-soot-900" data-testid="trace-serial">{t.unit.serial}</h2>
         <StateBadge state={t.unit.state} />
@@ -76,7 +85,7 @@ function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
         ) : null}
       </header>
 
-      <div className="grid gap-4 md:grid-cols-2 2xl:grid-cols-4">
+      <div className="grid grid-cols-1 gap-4 md:grid-cols-2 2xl:grid-cols-4">
         <Card title="Material and print" testId="trace-build">
           <Row k="Material">{t.material.name} ({t.material.code})</Row>
           <Row k="Feedstock lot">
@@ -166,7 +175,7 @@ function Inner({ unitId, units, timeZone, canAttach }: UnitTraceProps) {
         </Card>
       </div>
 
-      <div className="grid gap-6 xl:grid-cols-[minmax(0,1.2fr)_minmax(0,1fr)]">
+      <div className="grid grid-cols-1 gap-6 xl:grid-cols-[minmax(0,1.2fr)_minmax(0,1fr)]">
         <section aria-label="Timeline">
           <h2 className="mb-3 font-display text-lg font-semibold text-soot-900">Timeline</h2>
           <ol className="relative space-y-3 border-l border-soot-200 pl-5" data-testid="trace-timeline">

@@ -9,7 +9,7 @@ export type UserAction = (prev: ActionState, form: FormData) => Promise<ActionSt
 
 export type UsersAdminProps = {
   currentUserId: string;
-  actions: { createUser: UserAction; changeRole: UserAction; setActive: UserAction; sendLink: UserAction };
+  actions: { createUser: UserAction; changeRole: UserAction; setActive: UserAction; sendLink: UserAction; signOutEverywhere: UserAction };
 };
 
 export type UserRow = {
@@ -94,7 +94,7 @@ function UsersAdminInner({ currentUserId, actions }: UsersAdminProps) {
 
       {showNew ? <NewUserForm action={actions.createUser} onDone={(s) => { done(s); if (s.ok) setShowNew(false); }} /> : null}
 
-      <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card">
+      <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Users" tabIndex={0}>
         <table className="min-w-full text-sm">
           <thead className="border-b border-soot-200 bg-soot-50 text-left text-xs uppercase tracking-wide text-soot-500">
             <tr>
@@ -147,7 +147,7 @@ function NewUserForm({ action, onDone }: { action: UserAction; onDone: (s: Actio
   const [state, formAction, pending] = useActionDone(action, onDone);
   const err = (k: string) => (state.ok ? undefined : state.fieldErrors?.[k]?.[0]);
   return (
-    <form action={formAction} className="grid gap-4 rounded-card border border-soot-200 bg-white p-5 shadow-card sm:grid-cols-2 lg:grid-cols-5" aria-label="New user" noValidate>
+    <form action={formAction} className="grid grid-cols-1 gap-4 rounded-card border border-soot-200 bg-white p-5 shadow-card sm:grid-cols-2 lg:grid-cols-5" aria-label="New user" noValidate>
       <label className="text-sm font-medium text-soot-700 lg:col-span-2">
         Name
         <input name="name" required className={inputCls} aria-invalid={!!err("name")} autoComplete="off" />
@@ -201,6 +201,7 @@ function UserRowView({ user, self, actions, onDone, open, onToggle }: RowProps) 
   const [, roleAction, rolePending] = useActionDone(actions.changeRole, onDone);
   const [, activeAction, activePending] = useActionDone(actions.setActive, onDone);
   const [, linkAction, linkPending] = useActionDone(actions.sendLink, onDone);
+  const [, sessionsAction, sessionsPending] = useActionDone(actions.signOutEverywhere, onDone);
   const [confirming, setConfirming] = useState(false);
   // The row is keyed by id and version, so a saved change remounts it with the new role.
   const [role, setRole] = useState<Role>(user.role);
@@ -247,6 +248,12 @@ function UserRowView({ user, self, actions, onDone, open, onToggle }: RowProps) 
                 </button>
               </form>
             ) : null}
+            <form action={sessionsAction}>
+              <input type="hidden" name="id" value={user.id} />
+              <button type="submit" disabled={sessionsPending} className={secondary} title={self ? "Ends every session of yours, this one included" : undefined}>
+                {sessionsPending ? "Signing out…" : "Sign out everywhere"}
+              </button>
+            </form>
             {self ? null : user.active && !confirming ? (
               <button type="button" className={danger} onClick={() => setConfirming(true)}>
                 Deactivate

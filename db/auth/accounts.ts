@@ -4,7 +4,7 @@
 import { sql, type Transaction } from "kysely";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
-import { consumeAuthToken, deleteAttempt, insertAccountMail, insertAuthToken, insertUserEvent, reserveSignInAttempt, markAttemptSucceeded, revokeOpenTokens } from "@/db/auth/commands";
+import { revokeUserSessions, consumeAuthToken, deleteAttempt, insertAccountMail, insertAuthToken, insertUserEvent, reserveSignInAttempt, markAttemptSucceeded, revokeOpenTokens } from "@/db/auth/commands";
 import { countRecentTokens, countResetRequestsFromAddress, findAuthTokenByHash, findShopName } from "@/db/auth/reads";
 import { countOtherActiveAdmins, findPasswordHash, findUserByEmail, findUserById, type CurrentUser } from "@/db/users/reads";
 import { insertUser, lockUserById, recordSignIn, updateUser, type UserPatch } from "@/db/users/commands";
@@ -33,8 +33,10 @@ const pgCode = (err: unknown) => (err as { code?: string } | null)?.code;
 // Sign-in ---------------------------------------------------------------------------------
 
 export async function signInWithPassword(db: Database, input: { email: string; password: string; ip: string }) {
+  const { attempt, failures } = await reserveSignInAttempt(db, input.email, input.ip, new Date(Date.now() - THROTTLE_WINDOW_MS));
+  // "Now" is read after the reservation: waiting for the lock, earlier attempts may have been
+  // stamped later than a clock read before it, and a failure from the "future" would not count.
   const now = Date.now();
-  const { attempt, failures } = await reserveSignInAttempt(db, input.email, input.ip, new Date(now - THROTTLE_WINDOW_MS));
   const verdict = throttleVerdict(failures.account, failures.address, now);
   const user = await findUserByEmail(db, input.email);
   if (verdict.blocked) {
@@ -218,8 +220,10 @@ export async function setPasswordWithToken(db: Database, token: string, password
     const user = await lockUserById(trx, used.user_id);
     if (!user || !user.active) throw tokenProblem("inactive");
     await updateUser(trx, user.id, { password_hash: passwordHash, sessions_valid_after: new Date() });
+    const ended = await revokeUserSessions(trx, user.id, "password_reset");
     await revokeOpenTokens(trx, user.id, "reset");
     await revokeOpenTokens(trx, user.id, "invite");
+    if (ended) await insertUserEvent(trx, { user_id: user.id, kind: "sessions_revoked", actor_id: user.id, reason: "password_reset", data: { sessions: ended } });
     await insertUserEvent(trx, { user_id: user.id, kind: used.kind === "invite" ? "password_set" : "password_reset", actor_id: user.id, data: { token_id: used.id } });
     return { id: user.id, email: user.email, kind: used.kind };
   });
@@ -248,11 +252,14 @@ export async function updateUserByAdmin(db: Database, actor: Actor, id: string, 
     }
     const patch: UserPatch = {};
     if (input.name !== undefined && input.name !== user.name) patch.name = input.name;
-    if (roleChanges) patch.role = input.role;
+    // A new role or a deactivation ends every session the person has: they sign in again and
+    // see the pages of their new role (and a later reactivation revives no old cookie).
+    if (roleChanges) {
+      patch.role = input.role;
+      patch.sessions_valid_after = new Date();
+    }
     if (activeChanges) {
       patch.active = input.active;
-      // Deactivation already ends sessions (the user is re-read on every request); moving the
-      // cut-off as well means a later reactivation does not revive the old cookies.
       if (input.active === false) patch.sessions_valid_after = new Date();
     }
     if (Object.keys(patch).length === 0) return;
@@ -260,6 +267,11 @@ export async function updateUserByAdmin(db: Database, actor: Actor, id: string, 
     if (patch.name) await insertUserEvent(trx, { user_id: user.id, kind: "profile_change", actor_id: actor.id, from_state: user.name, to_state: patch.name, data: { field: "name" } });
     if (roleChanges) {
       await insertUserEvent(trx, { user_id: user.id, kind: "role_change", actor_id: actor.id, from_state: user.role, to_state: input.role!, reason: `${ROLE_LABELS[user.role]} → ${ROLE_LABELS[input.role!]}` });
+    }
+    if (patch.sessions_valid_after) {
+      const reason = activeChanges && input.active === false ? "deactivated" : "role_change";
+      const ended = await revokeUserSessions(trx, user.id, reason);
+      await insertUserEvent(trx, { user_id: user.id, kind: "sessions_revoked", actor_id: actor.id, reason, data: { sessions: ended } });
     }
     if (activeChanges) {
       await insertUserEvent(trx, { user_id: user.id, kind: input.active ? "reactivated" : "deactivated", actor_id: actor.id, from_state: user.active ? "active" : "inactive", to_state: input.active ? "active" : "inactive" });
@@ -293,8 +305,8 @@ export async function updateOwnProfile(db: Database, user: CurrentUser, input: U
  * the caller re-issues its own cookie from that instant, every other session ends.
  */
 export async function changeOwnPassword(db: Database, user: CurrentUser, current: string, next: string, ip: string): Promise<number> {
-  const now = Date.now();
-  const { attempt, failures } = await reserveSignInAttempt(db, user.email, ip, new Date(now - THROTTLE_WINDOW_MS));
+  const { attempt, failures } = await reserveSignInAttempt(db, user.email, ip, new Date(Date.now() - THROTTLE_WINDOW_MS));
+  const now = Date.now(); // after the reservation, as in signInWithPassword
   const verdict = throttleVerdict(failures.account, failures.address, now);
   if (verdict.blocked) {
     await deleteAttempt(db, attempt.id);
@@ -310,18 +322,29 @@ export async function changeOwnPassword(db: Database, user: CurrentUser, current
   const cutoff = Date.now();
   await db.transaction().execute(async (trx) => {
     await updateUser(trx, user.id, { password_hash: passwordHash, sessions_valid_after: new Date(cutoff) });
+    const ended = await revokeUserSessions(trx, user.id, "password_changed");
     await revokeOpenTokens(trx, user.id, "reset");
-    await insertUserEvent(trx, { user_id: user.id, kind: "password_changed", actor_id: user.id, data: { ip } });
+    await insertUserEvent(trx, { user_id: user.id, kind: "password_changed", actor_id: user.id, data: { ip, sessions_ended: ended } });
   });
   return cutoff;
 }
 
-/** "Sign out everywhere else": every session issued before now ends; the caller re-issues its own. */
+/** "Sign out other sessions": every session of the person but the one making the request ends. */
 export async function revokeOtherSessions(db: Database, user: CurrentUser): Promise<number> {
-  const cutoff = Date.now();
-  await db.transaction().execute(async (trx) => {
-    await updateUser(trx, user.id, { sessions_valid_after: new Date(cutoff) });
-    await insertUserEvent(trx, { user_id: user.id, kind: "sessions_revoked", actor_id: user.id });
+  return db.transaction().execute(async (trx) => {
+    const ended = await revokeUserSessions(trx, user.id, "other_sessions", user.session_id ?? undefined);
+    await insertUserEvent(trx, { user_id: user.id, kind: "sessions_revoked", actor_id: user.id, reason: "other_sessions", data: { sessions: ended } });
+    return ended;
   });
-  return cutoff;
+}
+
+/** An admin's "sign out everywhere" for a person (themselves included): every session ends at once. */
+export async function revokeAllSessions(db: Database, actor: Actor, userId: string): Promise<number> {
+  return db.transaction().execute(async (trx) => {
+    const user = await lockUserById(trx, userId);
+    if (!user) throw new AppError("not_found", "No such user.");
+    const ended = await revokeUserSessions(trx, user.id, "sign_out_everywhere");
+    await insertUserEvent(trx, { user_id: user.id, kind: "sessions_revoked", actor_id: actor.id, reason: "sign_out_everywhere", data: { sessions: ended } });
+    return ended;
+  });
 }

@@ -3,6 +3,7 @@ import type { Database } from "@/db/client";
 import type { TokenKind } from "@/lib/auth/tokens";
 import { type Executor, listRecentFailures } from "./reads";
 import { recordEvents } from "@/db/versioned";
+import { isUuid } from "@/lib/ids";
 
 // Sign-in attempts ----------------------------------------------------------------------------
 
@@ -58,7 +59,8 @@ export type UserEventKind =
   | "password_reset"
   | "password_changed"
   | "profile_change"
-  | "sessions_revoked";
+  | "sessions_revoked"
+  | "export";
 
 export async function insertUserEvent(
   db: Executor,
@@ -124,4 +126,36 @@ export async function insertAccountMail(
   row: { kind: "invite" | "password_reset"; subject_key: string; recipient_id: string; recipient_email: string; subject: string; text_body: string; html_body: string },
 ) {
   return db.insertInto("notification_outbox").values(row).returning(["id"]).executeTakeFirstOrThrow();
+}
+
+// Sessions (user_sessions) ----------------------------------------------------------------------
+
+export type SessionEndReason = "sign_out" | "password_changed" | "password_reset" | "role_change" | "deactivated" | "sign_out_everywhere" | "other_sessions";
+
+export async function insertUserSession(db: Executor, row: { user_id: string; ip: string; user_agent: string | null }) {
+  return db
+    .insertInto("user_sessions")
+    .values({ user_id: row.user_id, ip: row.ip.slice(0, 64), user_agent: row.user_agent?.slice(0, 300) ?? null })
+    .returning(["id", "created_at"])
+    .executeTakeFirstOrThrow();
+}
+
+/** Ends the user's open sessions (all, or all but `keep`); returns how many were open. */
+export async function revokeUserSessions(db: Executor, userId: string, reason: SessionEndReason, keep?: string): Promise<number> {
+  let q = db.updateTable("user_sessions").set({ revoked_at: sql`now()`, revoked_reason: reason }).where("user_id", "=", userId).where("revoked_at", "is", null);
+  if (keep && isUuid(keep)) q = q.where("id", "<>", keep);
+  const rows = await q.returning("id").execute();
+  return rows.length;
+}
+
+/** Ends one session (sign-out); false when it was not open. */
+export async function revokeUserSession(db: Executor, sessionId: string, reason: SessionEndReason): Promise<boolean> {
+  if (!isUuid(sessionId)) return false;
+  const row = await db.updateTable("user_sessions").set({ revoked_at: sql`now()`, revoked_reason: reason }).where("id", "=", sessionId).where("revoked_at", "is", null).returning("id").executeTakeFirst();
+  return !!row;
+}
+
+export async function touchUserSession(db: Executor, sessionId: string) {
+  if (!isUuid(sessionId)) return;
+  await db.updateTable("user_sessions").set({ last_seen_at: sql`now()` }).where("id", "=", sessionId).where("revoked_at", "is", null).execute();
 }

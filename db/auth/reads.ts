@@ -2,6 +2,7 @@ import { sql, type Transaction } from "kysely";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
 import type { TokenKind } from "@/lib/auth/tokens";
+import { SESSION_MAX_SECONDS } from "@/lib/auth/session-config";
 
 export type Executor = Database | Transaction<DB>;
 
@@ -92,4 +93,55 @@ export async function countRecentTokens(db: Executor, userId: string, kind: Toke
 export async function findShopName(db: Executor): Promise<string> {
   const row = await db.selectFrom("shop_settings").select("shop_name").where("id", "=", 1).executeTakeFirst();
   return row?.shop_name ?? "your shop";
+}
+
+/** A person's open sessions, newest first (the settings page). */
+export async function listOpenSessions(db: Executor, userId: string) {
+  return db
+    .selectFrom("user_sessions")
+    .select(["id", "created_at", "last_seen_at", "ip", "user_agent"])
+    .where("user_id", "=", userId)
+    .where("revoked_at", "is", null)
+    // a cookie past its absolute lifetime is dead even though nobody ended its row
+    .where("created_at", ">", sql<Date>`now() - make_interval(secs => ${SESSION_MAX_SECONDS})`)
+    .orderBy("last_seen_at", "desc")
+    .limit(50)
+    .execute();
+}
+
+export type SecurityEventFilter = { kind?: string; user?: string; from?: Date; to?: Date; limit: number };
+
+/**
+ * The security audit trail: every event about an account (sign-in and its failures, sign-out,
+ * role changes, resets, ended sessions, exports), newest first, with who it concerned and who
+ * acted. Filters: kind, a person by name or e-mail (or the address typed at a failed sign-in).
+ */
+export async function listSecurityEvents(db: Executor, f: SecurityEventFilter) {
+  let q = db
+    .selectFrom("events")
+    .leftJoin("users as subject", "subject.id", "events.entity_id")
+    .leftJoin("users as actor", "actor.id", "events.actor_id")
+    .select([
+      "events.id",
+      "events.kind",
+      "events.from_state",
+      "events.to_state",
+      "events.reason",
+      "events.data",
+      "events.created_at",
+      "subject.name as subject_name",
+      "subject.email as subject_email",
+      "actor.name as actor_name",
+    ])
+    .where("events.entity", "=", "user");
+  if (f.kind) q = q.where("events.kind", "=", f.kind);
+  if (f.user) {
+    const like = `%${f.user.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+    q = q.where((eb) =>
+      eb.or([eb("subject.email", "ilike", like), eb("subject.name", "ilike", like), eb(sql`events.data->>'email'`, "ilike", like)]),
+    );
+  }
+  if (f.from) q = q.where("events.created_at", ">=", f.from);
+  if (f.to) q = q.where("events.created_at", "<", f.to);
+  return q.orderBy("events.created_at", "desc").orderBy("events.id", "desc").limit(f.limit).execute();
 }

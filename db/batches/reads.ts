@@ -1,4 +1,5 @@
 import { sql, type Transaction } from "kysely";
+import { isUuid } from "@/lib/ids";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
 import { AppError } from "@/lib/errors";
@@ -480,7 +481,7 @@ export async function loadBoard(db: Db, now = new Date()): Promise<Board> {
 
 /** A path id that is not a uuid names nothing: 404, never a database error. */
 export function pathId(id: string, what: string): string {
-  if (!/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(id)) throw new AppError("not_found", `That ${what} does not exist.`);
+  if (!isUuid(id)) throw new AppError("not_found", `That ${what} does not exist.`);
   return id;
 }
 

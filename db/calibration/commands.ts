@@ -1,4 +1,5 @@
 import { sql } from "kysely";
+import { isUuid } from "@/lib/ids";
 import type { Database } from "@/db/client";
 import { AppError } from "@/lib/errors";
 import { getSender, inTrx } from "@/db/jobs/boss";
@@ -17,7 +18,7 @@ const roundShrinkage = (s: number) => Math.round(s * 1e5) / 1e5;
  * the new values; builds keep the scale_snapshot they were printed with.
  */
 export async function applyCalibration(db: Database, materialId: string, input: ApplyCalibrationInput, actorId: string) {
-  if (!/^[0-9a-f-]{36}$/i.test(materialId)) throw new AppError("not_found", "Material not found.");
+  if (!isUuid(materialId)) throw new AppError("not_found", "Material not found.");
   return db.transaction().execute(async (trx) => {
     const material = await trx
       .selectFrom("materials")

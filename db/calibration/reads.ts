@@ -1,4 +1,5 @@
 import { type Transaction } from "kysely";
+import { isUuid } from "@/lib/ids";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
 import { AppError } from "@/lib/errors";
@@ -54,7 +55,7 @@ export async function listCalibrationMaterials(db: Database): Promise<Calibratio
 }
 
 export async function loadMaterialCalibration(db: Database, materialId: string): Promise<MaterialCalibrationView> {
-  if (!/^[0-9a-f-]{36}$/i.test(materialId)) throw new AppError("not_found", "Material not found.");
+  if (!isUuid(materialId)) throw new AppError("not_found", "Material not found.");
   const material = await db
     .selectFrom("materials")
     .select(["id", "code", "name", "shrink_xy", "shrink_z", "version", "updated_at"])

@@ -1,4 +1,5 @@
 import { sql } from "kysely";
+import { isUuid } from "@/lib/ids";
 import type { Database } from "@/db/client";
 import { AppError } from "@/lib/errors";
 import { planFinishingChange, type UnitState } from "@/lib/finishing/transitions";
@@ -9,7 +10,7 @@ import { recordEvents } from "@/db/versioned";
 
 /** Locks the unit and checks the version the person saw; the caller holds the transaction. */
 export async function lockUnitAtVersion(trx: Trx, unitId: string, version: number) {
-  if (!/^[0-9a-f-]{36}$/i.test(unitId)) throw new AppError("not_found", "Unit not found.");
+  if (!isUuid(unitId)) throw new AppError("not_found", "Unit not found.");
   const unit = await trx
     .selectFrom("units")
     .select(["id", "serial", "state", "held_from", "version", "part_id", "build_id"])

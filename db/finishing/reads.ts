@@ -1,4 +1,5 @@
 import { sql, type Transaction } from "kysely";
+import { isUuid } from "@/lib/ids";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
 import { AppError } from "@/lib/errors";
@@ -122,7 +123,7 @@ export async function listFinishingQueue(db: Database, now = new Date()): Promis
 }
 
 export async function getFinishingCard(db: Database | Trx, unitId: string): Promise<FinishingCard> {
-  if (!/^[0-9a-f-]{36}$/i.test(unitId)) throw new AppError("not_found", "Unit not found.");
+  if (!isUuid(unitId)) throw new AppError("not_found", "Unit not found.");
   const row = await cardQuery(db).where("u.id", "=", unitId).executeTakeFirst();
   if (!row) throw new AppError("not_found", "Unit not found.");
   return toCard(row);

@@ -8,7 +8,7 @@ import { scaleUp } from "@/lib/process/scale-up";
 import type { Role } from "@/lib/auth/permissions";
 import { WindowBody } from "@/lib/floor/window-body";
 import { floorWindowCache } from "@/lib/floor/window-cache";
-import { isUuid } from "@/db/users/reads";
+import { isUuid, sessionOpenSql } from "@/db/users/reads";
 
 // The floor's data, one loader per kind of lane so that each kind can grow on its own
 // (the batching work makes wash and furnace lanes interactive through their own loaders).
@@ -176,23 +176,23 @@ export async function floorChangeStamp(db: Database): Promise<string> {
   return rows[0].v;
 }
 
-export type FloorViewer = { role: Role; sessions_valid_after: Date | number | null };
+export type FloorViewer = { role: Role; sessions_valid_after: Date | number | null; session_open: boolean };
 
 /**
  * The active user a session names and the floor's change stamp in one round trip: what the web
  * server's direct path needs before it may answer from the window cache.
  */
-export async function floorViewerAndStamp(db: Database, userId: string): Promise<{ viewer: FloorViewer | null; stamp: string }> {
+export async function floorViewerAndStamp(db: Database, userId: string, sid?: string | null): Promise<{ viewer: FloorViewer | null; stamp: string }> {
   const viewer = isUuid(userId)
-    ? sql`(select json_build_object('role', u.role, 'valid_after', floor(extract(epoch from u.sessions_valid_after) * 1000)) from users u where u.id = ${userId} and u.active)`
+    ? sql`(select json_build_object('role', u.role, 'valid_after', floor(extract(epoch from u.sessions_valid_after) * 1000), 'session_open', ${sessionOpenSql("u.id", sid)}) from users u where u.id = ${userId} and u.active)`
     : sql`null::json`;
-  const { rows } = await sql<{ viewer: { role: Role; valid_after: number | string | null } | null; stamp: string }>`select ${viewer} as viewer, (${STAMP_SQL}) as stamp`.execute(db);
+  const { rows } = await sql<{ viewer: { role: Role; valid_after: number | string | null; session_open: boolean } | null; stamp: string }>`select ${viewer} as viewer, (${STAMP_SQL}) as stamp`.execute(db);
   const v = rows[0].viewer;
   if (!v) return { viewer: null, stamp: rows[0].stamp };
   // Milliseconds, truncated as pg's Date would be; ±infinity (the default is -infinity) arrives
   // in JSON as a string.
   const after = typeof v.valid_after === "string" ? Number(v.valid_after) : v.valid_after;
-  return { viewer: { role: v.role, sessions_valid_after: after }, stamp: rows[0].stamp };
+  return { viewer: { role: v.role, sessions_valid_after: after, session_open: v.session_open === true }, stamp: rows[0].stamp };
 }
 
 /** The encoded body of one window, from the process-wide cache while the stamp holds. */

@@ -1,4 +1,5 @@
 import type { Database } from "@/db/client";
+import { isUuid } from "@/lib/ids";
 import { type StockCheck } from "@/lib/finishing/inspection";
 import type { InspectionView } from "@/lib/finishing/types";
 
@@ -47,12 +48,12 @@ export async function listInspectionsForUnit(db: Database, unitId: string): Prom
 }
 
 export async function findInspection(db: Database, id: string) {
-  if (!/^[0-9a-f-]{36}$/i.test(id)) return undefined;
+  if (!isUuid(id)) return undefined;
   return db.selectFrom("inspections").select(["id", "unit_id", "excluded_from_calibration"]).where("id", "=", id).executeTakeFirst();
 }
 
 export async function findInspectionFile(db: Database, inspectionId: string, fileId: string) {
-  if (!/^[0-9a-f-]{36}$/i.test(inspectionId) || !/^[0-9a-f-]{36}$/i.test(fileId)) return undefined;
+  if (!isUuid(inspectionId) || !isUuid(fileId)) return undefined;
   return db
     .selectFrom("inspection_files as inf")
     .innerJoin("files as f", "f.id", "inf.file_id")

@@ -1,5 +1,5 @@
 import type PgBoss from "pg-boss";
-import type { Transaction } from "kysely";
+import { sql, type Transaction } from "kysely";
 import type { DB } from "@/db/schema";
 import { getSender, inTrx } from "./boss";
 import { QUEUES, type AdvanceJob } from "@/lib/jobs/queues";
@@ -15,6 +15,13 @@ export async function scheduleAdvance(trx: Transaction<DB>, job: AdvanceJob): Pr
 
 /** scheduleAdvance with a given pg-boss instance (the worker's own, or a test's). */
 export async function sendAdvance(boss: PgBoss, trx: Transaction<DB>, job: AdvanceJob): Promise<void> {
+  // The booking's earlier jobs, still waiting for their time, are superseded by this one (the
+  // worker would only skip them): deleted in the same transaction, so a booking moved a hundred
+  // times leaves one waiting job, not a hundred. pg-boss's own deleteJob does the deleting.
+  const superseded = await sql<{ id: string }>`
+    select id from pgboss.job
+    where name = ${QUEUES.advance} and state = 'created' and singleton_key like ${`${job.entity}:${job.id}:%`}`.execute(trx);
+  if (superseded.rows.length) await boss.deleteJob(QUEUES.advance, superseded.rows.map((r) => r.id), { db: inTrx(trx) });
   await boss.send(QUEUES.advance, job, {
     startAfter: new Date(job.due_at),
     singletonKey: `${job.entity}:${job.id}:${job.version}`,

@@ -48,6 +48,7 @@ export async function sendOutboxRow(db: Database, id: string): Promise<SendOutco
       return { status: "skipped", reason: exists ? "locked" : "not_found" } as const;
     }
     if (row.status !== "pending") return { status: "skipped", reason: "not_pending" } as const;
+    const attachments = await trx.selectFrom("outbox_attachments").select(["filename", "content_type", "content"]).where("outbox_id", "=", id).execute();
     try {
       const info = await getMailTransport().sendMail({
         from: getEnv().MAIL_FROM,
@@ -57,6 +58,7 @@ export async function sendOutboxRow(db: Database, id: string): Promise<SendOutco
         text: row.text_body,
         html: row.html_body,
         headers: { "X-Hearth-Kind": row.kind, "X-Hearth-Subject": row.subject_key },
+        attachments: attachments.map((a) => ({ filename: a.filename, contentType: a.content_type, content: a.content })),
       });
       await trx
         .updateTable("notification_outbox")

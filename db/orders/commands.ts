@@ -1,6 +1,7 @@
 import { sql } from "kysely";
 import type { Database } from "@/db/client";
 import { AppError } from "@/lib/errors";
+import { orderPriorityRefusal, type Role } from "@/lib/auth/permissions";
 import type { CreateOrder, UpdateOrder } from "@/lib/parts/schemas";
 import { getOrderOrThrow, findOrderByCode } from "./reads";
 
@@ -11,7 +12,9 @@ function duplicateCode(err: unknown, code: string | undefined): never {
   throw err;
 }
 
-export async function insertOrder(db: Database, input: CreateOrder) {
+export async function insertOrder(db: Database, input: CreateOrder, role: Role) {
+  const refusal = orderPriorityRefusal(role, input.priority);
+  if (refusal) throw new AppError("forbidden", refusal, { priority: [refusal] });
   if (await findOrderByCode(db, input.code)) duplicateCode({ code: "23505" }, input.code);
   try {
     return await db.insertInto("orders").values(input).returningAll().executeTakeFirstOrThrow();
@@ -20,12 +23,11 @@ export async function insertOrder(db: Database, input: CreateOrder) {
   }
 }
 
-export async function updateOrder(db: Database, id: string, input: UpdateOrder, opts: { canPrioritize: boolean }) {
+export async function updateOrder(db: Database, id: string, input: UpdateOrder, role: Role) {
   const { version, ...values } = input;
   const current = await getOrderOrThrow(db, id);
-  if (values.priority !== undefined && values.priority !== current.priority && !opts.canPrioritize) {
-    throw new AppError("forbidden", "Only a manager or an admin changes an order's priority.");
-  }
+  const refusal = orderPriorityRefusal(role, values.priority, current.priority);
+  if (refusal) throw new AppError("forbidden", refusal, { priority: [refusal] });
   try {
     const row = await db
       .updateTable("orders")

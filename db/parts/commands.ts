@@ -2,6 +2,7 @@ import { sql, type Transaction } from "kysely";
 import type { Database } from "@/db/client";
 import type { DB } from "@/db/schema";
 import { AppError } from "@/lib/errors";
+import { orderPriorityRefusal, type Role } from "@/lib/auth/permissions";
 import { csvRowSchema, type CreatePart, type CsvRow, type ImportRequest, type RowResult, type UpdatePart } from "@/lib/parts/schemas";
 import { insertUnitsForPart } from "@/db/units/commands";
 import { scaleFields } from "./reads";
@@ -127,7 +128,8 @@ export type ImportOutcome = {
  * due date per order) and imports in the caller's transaction: all rows or none, or, when
  * asked, the valid ones only. Row numbers are file lines (the header is line 1).
  */
-export async function importPartRows(trx: Trx, req: ImportRequest, actorId: string | null): Promise<ImportOutcome> {
+export async function importPartRows(trx: Trx, req: ImportRequest, actor: { id: string; role: Role }): Promise<ImportOutcome> {
+  const actorId = actor.id;
   const materials = await trx.selectFrom("materials").select(["id", "code", "active"]).execute();
   const byCode = new Map(materials.map((m) => [m.code.toLowerCase(), m]));
   const known = materials.filter((m) => m.active).map((m) => m.code).join(", ");
@@ -162,6 +164,9 @@ export async function importPartRows(trx: Trx, req: ImportRequest, actorId: stri
     else if (material && !material.active) add("material", `${material.code} is retired`);
     if (result.success) {
       const r = result.data;
+      // the same field rule as creating an order by hand (an existing order keeps its priority)
+      const priorityRefusal = orderByCode.has(r.order_code.toLowerCase()) ? null : orderPriorityRefusal(actor.role, r.priority);
+      if (priorityRefusal) add("priority", priorityRefusal);
       const orderKey = r.order_code.toLowerCase();
       const key = `${orderKey}|${r.part_number}|${r.revision}`.toLowerCase();
       const first = seenParts.get(key);

@@ -1,4 +1,5 @@
 import type { Database } from "@/db/client";
+import { isUuid } from "@/lib/ids";
 import { AppError } from "@/lib/errors";
 import { massLossCheck } from "@/lib/process/wash";
 import { furnaceCycle } from "@/lib/process/furnace-profile";
@@ -13,7 +14,7 @@ const num = (v: unknown) => (v === null || v === undefined ? null : Number(v));
 const iso = (d: Date | string | null | undefined) => (d ? new Date(d).toISOString() : null);
 
 export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitTrace> {
-  if (!/^[0-9a-f-]{36}$/i.test(unitId)) throw new AppError("not_found", "Unit not found.");
+  if (!isUuid(unitId)) throw new AppError("not_found", "Unit not found.");
   const u = await db
     .selectFrom("units as u")
     .innerJoin("parts as p", "p.id", "u.part_id")

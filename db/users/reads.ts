@@ -13,16 +13,30 @@ export type CurrentUser = {
   unit_pref: "mm" | "in";
   muted_mail: string[];
   sessions_valid_after: Date | number | null; // -infinity arrives as a number
+  session_id: string | null; // the cookie's user_sessions row
+  session_open: boolean; // that row exists for this user and nobody has ended it
 };
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-export const isUuid = (id: string) => UUID.test(id);
+export { isUuid } from "@/lib/ids";
+import { isUuid } from "@/lib/ids";
 
-export async function findActiveUserById(db: Executor, id: string): Promise<CurrentUser | undefined> {
+/**
+ * Whether the session row `sid` is open for the user in `userIdColumn`: the same expression in
+ * every query that admits a request (findActiveUserById, db/floor/reads.ts floorViewerAndStamp).
+ */
+export function sessionOpenSql(userIdColumn: string, sid: string | null | undefined) {
+  if (!isUuid(sid)) return sql<boolean>`false`;
+  return sql<boolean>`exists (select 1 from user_sessions s where s.id = ${sid} and s.user_id = ${sql.ref(userIdColumn)} and s.revoked_at is null)`;
+}
+
+/** The active user and whether the cookie's session row (`sid`) is still open, in one query. */
+export async function findActiveUserById(db: Executor, id: string, sid?: string | null): Promise<CurrentUser | undefined> {
   if (!isUuid(id)) return undefined;
   return db
     .selectFrom("users")
     .select(["id", "email", "name", "role", "unit_pref", "muted_mail", "sessions_valid_after"])
+    .select(sql<string | null>`${isUuid(sid) ? sid : null}::uuid`.as("session_id"))
+    .select(sessionOpenSql("users.id", sid).as("session_open"))
     .where("id", "=", id)
     .where("active", "=", true)
     .executeTakeFirst();

@@ -33,6 +33,16 @@ export const API_SCOPES = {
     hint: "Receive, release and recall feedstock lots; record consumables.",
     permissions: ["inventory:write", "inventory:recall", "consumables:write"],
   },
+  "quotes:read": {
+    label: "Read quotes",
+    hint: "Read quotes, their prices and promise dates, and the quoting rates.",
+    permissions: ["quotes:read"],
+  },
+  "quotes:write": {
+    label: "Write quotes",
+    hint: "Create, price, send and convert quotes.",
+    permissions: ["quotes:read", "quotes:write"],
+  },
   "setup:write": {
     label: "Write set-up",
     hint: "Change equipment, materials, sinter profiles, shop settings; apply calibration.",
@@ -45,9 +55,10 @@ export const API_SCOPE_NAMES = Object.keys(API_SCOPES) as ApiScope[];
 
 /**
  * Permissions no token carries, whatever its scopes: managing people and tokens, reading captured
- * mail and the job queues, and changing the creator's own account stay with a signed-in person.
+ * mail and the job queues, changing the creator's own account, and the phone scanner page (a
+ * page for a person on the floor, with no API of its own) stay with a signed-in person.
  */
-export const SESSION_ONLY_PERMISSIONS: readonly Permission[] = ["users:admin", "mail:read", "jobs:read", "self:write"];
+export const SESSION_ONLY_PERMISSIONS: readonly Permission[] = ["users:admin", "mail:read", "jobs:read", "self:write", "floor:scan"];
 
 export function scopesAllow(scopes: readonly string[], permission: Permission): boolean {
   return scopes.some((s) => s in API_SCOPES && (API_SCOPES[s as ApiScope].permissions as readonly Permission[]).includes(permission));
@@ -93,9 +104,10 @@ export function tokenHint(token: string): string {
 /** The token in an `Authorization: Bearer …` header; null when the header is absent or another scheme. */
 export function bearerToken(authorization: string | null | undefined): string | null {
   if (!authorization) return null;
-  // "Bearer" with nothing after it is still a bearer attempt (and gets a 401), not a cookie request.
-  const m = /^Bearer(?:[ \t]+(\S*))?$/i.exec(authorization.trim());
-  return m ? (m[1] ?? "") : null;
+  // Any credentials after the Bearer scheme (RFC 6750 §2.1), even none or a malformed one, make a
+  // bearer attempt (a 401 when it is no token), never a cookie request.
+  const m = /^Bearer(?:\s+([\s\S]*))?$/i.exec(authorization.trim());
+  return m ? (m[1] ?? "").trim() : null;
 }
 
 export const RATE_WINDOW_SECONDS = 60;

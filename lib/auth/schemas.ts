@@ -1,8 +1,10 @@
 import { z } from "zod";
+import { rowVersion, singleLine } from "@/lib/input-fields";
 import { ROLES } from "./permissions";
+import { NOTIFICATION_KINDS } from "@/lib/notifications/kinds";
 
-const email = z.string().trim().min(1, "Enter an e-mail address").max(254).email("That is not an e-mail address");
-const name = z.string().trim().min(1, "Enter a name").max(120, "Keep the name under 120 characters");
+const email = singleLine().trim().min(1, "Enter an e-mail address").max(254).email("That is not an e-mail address");
+const name = singleLine().trim().min(1, "Enter a name").max(120, "Keep the name under 120 characters");
 
 /** Long enough to resist guessing; no composition rules (NIST SP 800-63B §5.1.1). */
 export const PASSWORD_MIN = 10;
@@ -13,7 +15,7 @@ const newPassword = z
 
 export const signInSchema = z.object({
   email,
-  password: z.string().min(1, "Enter your password").max(200),
+  password: singleLine().min(1, "Enter your password").max(200),
 });
 export type SignInInput = z.infer<typeof signInSchema>;
 
@@ -30,7 +32,7 @@ export type CreateUserInput = z.infer<typeof createUserSchema>;
 /** An admin's change to someone's account; `version` guards against two admins at once. */
 export const updateUserSchema = z
   .object({
-    version: z.coerce.number().int().positive(),
+    version: rowVersion(),
     name: name.optional(),
     role: roleSchema.optional(),
     active: z.boolean().optional(),
@@ -42,14 +44,14 @@ export const forgotPasswordSchema = z.object({ email });
 
 export const setPasswordSchema = z
   .object({
-    token: z.string().trim().min(1, "The link has no token").max(100),
+    token: singleLine().trim().min(1, "The link has no token").max(100),
     password: newPassword,
-    confirm: z.string(),
+    confirm: singleLine(),
   })
   .refine((v) => v.password === v.confirm, { message: "The two passwords differ", path: ["confirm"] });
 
 /** The e-mails a person may turn off for themselves; account mail (invites, resets) always goes. */
-export const MAIL_KINDS = ["furnace_run_finished", "ready_for_finishing", "wash_done", "build_finished", "build_failed"] as const;
+export const MAIL_KINDS = NOTIFICATION_KINDS;
 export type MailKind = (typeof MAIL_KINDS)[number];
 export const MAIL_KIND_LABELS: Record<MailKind, string> = {
   furnace_run_finished: "A furnace run has finished",
@@ -57,6 +59,8 @@ export const MAIL_KIND_LABELS: Record<MailKind, string> = {
   wash_done: "A wash batch is done",
   build_finished: "A build has finished printing",
   build_failed: "A build has failed",
+  feedstock_reorder: "A material's feedstock falls below its reorder point",
+  bath_change_due: "A solvent bath is due for a change",
 };
 
 export const updateProfileSchema = z
@@ -70,9 +74,9 @@ export type UpdateProfileInput = z.infer<typeof updateProfileSchema>;
 
 export const changePasswordSchema = z
   .object({
-    current_password: z.string().min(1, "Enter your current password").max(200),
+    current_password: singleLine().min(1, "Enter your current password").max(200),
     new_password: newPassword,
-    confirm: z.string(),
+    confirm: singleLine(),
   })
   .refine((v) => v.new_password === v.confirm, { message: "The two passwords differ", path: ["confirm"] })
   .refine((v) => v.new_password !== v.current_password, { message: "Choose a password other than the current one", path: ["new_password"] });

@@ -37,11 +37,3 @@ export function throttleMessage(verdict: Extract<ThrottleVerdict, { blocked: tru
   const who = verdict.scope === "account" ? "for this account" : "from this address";
   return `Too many failed sign-ins ${who}. Wait ${describeWait(verdict.retry_after_s)} and try again.`;
 }
-
-/** The client's address: the first hop of X-Forwarded-For (set by our proxy or by Next from the socket). */
-export function clientAddress(forwardedFor: string | null | undefined, realIp?: string | null): string {
-  const first = (forwardedFor ?? "").split(",")[0]?.trim();
-  const raw = first || realIp?.trim() || "unknown";
-  // IPv4-mapped IPv6 ("::ffff:10.0.0.1") is the same client as its IPv4 form.
-  return raw.replace(/^::ffff:(\d+\.\d+\.\d+\.\d+)$/i, "$1").slice(0, 64);
-}

@@ -1,25 +1,26 @@
 // Inputs of the batching API, shared by the route handlers and the forms.
 
 import { z } from "zod";
+import { boundedInstant, multiLine, rowVersion, singleLine } from "@/lib/input-fields";
 import { validateProfile } from "@/lib/process/furnace-profile";
 import { CHECKLIST_KEYS } from "./checklist";
 
 const id = z.uuid("not a valid id");
-const version = z.coerce.number().int().positive("the version you loaded is needed (a whole number ≥ 1)");
-const instant = z.iso.datetime({ offset: true, message: "a date and time with its offset, e.g. 2027-01-04T06:00:00Z" });
+const version = rowVersion();
+const instant = boundedInstant("a date and time with its offset, e.g. 2027-01-04T06:00:00Z");
 const mass = z.coerce.number().positive("a mass must be greater than 0 g").max(1_000_000, "a mass above 1000 kg is not a part");
 
 export const SCRAP_REASONS = ["print_failure", "crack", "slump", "warp", "out_of_tolerance", "other"] as const;
 
 export const createWashBatchSchema = z.object({
   wash_station_id: id,
-  notes: z.string().max(2000).default(""),
+  notes: multiLine().max(2000).default(""),
 });
 
 export const createFurnaceRunSchema = z.object({
   furnace_id: id,
   profile_id: id,
-  notes: z.string().max(2000).default(""),
+  notes: multiLine().max(2000).default(""),
 });
 
 export const scheduleWashBatchSchema = z.object({
@@ -49,7 +50,7 @@ export const removeUnitSchema = z.object({
 
 export const versionSchema = z.object({ version });
 
-export const cancelSchema = z.object({ version, reason: z.string().max(500).default("") });
+export const cancelSchema = z.object({ version, reason: singleLine().max(500).default("") });
 
 export const unitMassSchema = z.object({
   unit_id: id,
@@ -79,7 +80,7 @@ export const unloadOutcomeSchema = z
     unit_id: id,
     outcome: z.enum(["sintered", "scrapped"]),
     scrap_reason: z.enum(SCRAP_REASONS).optional(),
-    scrap_note: z.string().max(500).optional(),
+    scrap_note: multiLine().max(500).optional(),
   })
   .refine((o) => o.outcome !== "scrapped" || o.scrap_reason, { message: "a scrapped unit needs a reason", path: ["scrap_reason"] });
 
@@ -101,7 +102,7 @@ export const suggestSchema = z.object({
 
 export const applyProposalSchema = z.object({ proposal_id: id });
 
-export const refuseProposalSchema = z.object({ proposal_id: id, reason: z.string().max(500).default("") });
+export const refuseProposalSchema = z.object({ proposal_id: id, reason: singleLine().max(500).default("") });
 
 // Sinter profiles -----------------------------------------------------------------------------
 
@@ -114,13 +115,13 @@ export const profileSegmentInputSchema = z.object({
 });
 
 const profileFields = z.object({
-  code: z.string().trim().min(1, "a code is needed").max(40).regex(/^[A-Za-z0-9][A-Za-z0-9._-]*$/, "letters, digits, dot, dash and underscore"),
-  name: z.string().trim().min(1, "a name is needed").max(120),
-  atmosphere: z.string().trim().min(1, "say which atmosphere the run uses").max(200),
+  code: singleLine().trim().min(1, "a code is needed").max(40).regex(/^[A-Za-z0-9][A-Za-z0-9._-]*$/, "letters, digits, dot, dash and underscore"),
+  name: singleLine().trim().min(1, "a name is needed").max(120),
+  atmosphere: singleLine().trim().min(1, "say which atmosphere the run uses").max(200),
   start_temp_c: temperature.default(20),
   cool_rate_c_per_min: z.coerce.number().positive("the cool-down rate must be greater than 0 °C/min").max(100),
   cool_to_c: temperature.default(100),
-  notes: z.string().max(4000).default(""),
+  notes: multiLine().max(4000).default(""),
   segments: z.array(profileSegmentInputSchema).min(1, "a profile needs at least one segment").max(40),
   material_ids: z.array(id).default([]),
   furnace_ids: z.array(id).default([]),

@@ -1,21 +1,22 @@
 import { z } from "zod";
+import { boundedInstant, multiLine, rowVersionNumber, singleLine } from "@/lib/input-fields";
 
-const version = z.number({ error: "the row's version is required" }).int().positive();
-const instant = z.iso.datetime({ offset: true, error: "an ISO 8601 time with its offset, e.g. 2026-12-01T08:00:00Z" });
+const version = rowVersionNumber("the row's version is required");
+const instant = boundedInstant("an ISO 8601 time with its offset, e.g. 2026-12-01T08:00:00Z");
 
 export const createBuildSchema = z.object({
   unit_ids: z.array(z.string().uuid("not a unit id"), { error: "choose the units to print" }).min(1, "choose at least one unit").max(200, "at most 200 units on one plate"),
-  material_lot: z.string().trim().max(60).default(""),
-  notes: z.string().trim().max(2000).default(""),
+  material_lot: singleLine().trim().max(60).default(""),
+  notes: multiLine().trim().max(2000).default(""),
 });
 export type CreateBuild = z.output<typeof createBuildSchema>;
 
 export const updateBuildSchema = z.object({
   version,
-  material_lot: z.string().trim().max(60).optional(),
+  material_lot: singleLine().trim().max(60).optional(),
   /** The feedstock lot to print from; null leaves the choice to first-expiring-first-out at start. */
   feedstock_lot_id: z.string().uuid("choose a lot").nullable().optional(),
-  notes: z.string().trim().max(2000).optional(),
+  notes: multiLine().trim().max(2000).optional(),
   /** Replaces the build's units; only while the build is a draft or scheduled. */
   unit_ids: createBuildSchema.shape.unit_ids.optional(),
 });
@@ -27,7 +28,7 @@ const feedstockUsed = z.coerce.number({ error: "feedstock used must be a number 
 export const buildActionSchema = z.discriminatedUnion("action", [
   z.object({ action: z.literal("start"), version }),
   z.object({ action: z.literal("complete"), version, feedstock_used_kg: feedstockUsed }),
-  z.object({ action: z.literal("fail"), version, reason: z.string({ error: "say what went wrong" }).trim().min(3, "say what went wrong").max(500), feedstock_used_kg: feedstockUsed }),
+  z.object({ action: z.literal("fail"), version, reason: singleLine({ error: "say what went wrong" }).trim().min(3, "say what went wrong").max(500), feedstock_used_kg: feedstockUsed }),
   z.object({ action: z.literal("cancel"), version }),
 ], { error: "action must be start, complete, fail or cancel" });
 export type BuildAction = z.output<typeof buildActionSchema>;

@@ -69,7 +69,7 @@ export function drawQr(page: PDFPage, text: string, x: number, y: number, size: 
   }
 }
 
-function fit(font: PDFFont, text: string, size: number, width: number): string {
+export function fit(font: PDFFont, text: string, size: number, width: number): string {
   let t = safe(text);
   if (font.widthOfTextAtSize(t, size) <= width) return t;
   while (t.length > 1 && font.widthOfTextAtSize(`${t}…`, size) > width) t = t.slice(0, -1);

@@ -1,4 +1,4 @@
-import Papa from "papaparse";
+import { toCsv } from "@/lib/csv/safe-cell";
 import type { CsvTable } from "./schemas";
 import type { QueueRow, ThroughputRow, UtilizationRow } from "./summary";
 import type { OrderRisk } from "./projection-input";
@@ -73,8 +73,9 @@ export function capacityCsv(data: CapacityTables, table: CsvTable): { filename: 
       rows = data.throughput.map((w) => ({ week_starting: w.week, units_done: w.done, units_sintered: w.sintered }));
       break;
   }
-  // An empty table still gets its header, so a spreadsheet shows what was asked for.
-  const csv = rows.length ? Papa.unparse(rows) : Papa.unparse({ fields: headerFor(table), data: [] });
+  // An empty table still gets its header, so a spreadsheet shows what was asked for; every cell
+  // of text goes through the shared formula guard (lib/csv/safe-cell.ts).
+  const csv = toCsv(headerFor(table), rows);
   return { filename: `hearth-${table}-${data.range.from}-to-${data.range.to}.csv`, csv };
 }
 

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { multiLine, rowVersionNumber } from "@/lib/input-fields";
 
 // Inputs of the finishing queue, inspections and calibration, shared by the route handlers
 // and the forms. Lengths arrive in the unit system the person works in and are stored in mm;
@@ -19,7 +20,7 @@ export const createInspectionSchema = z
   .object({
     unit_id: z.uuid("not a unit id"),
     /** The unit's version as the inspector saw it. */
-    version: z.number().int().positive(),
+    version: rowVersionNumber(),
     /** Lengths in mm or in; Ra in µm or µin respectively. */
     units: unitsSchema,
     green: axesInput,
@@ -30,8 +31,8 @@ export const createInspectionSchema = z
     runout: z.number().nonnegative("cannot be negative").max(50, "too large for a runout reading").optional(),
     runout_axis: z.enum(AXES).optional(),
     passed: z.boolean({ error: "say whether the unit passed" }),
-    reason: z.string().trim().max(500).optional(),
-    notes: z.string().trim().max(2000).default(""),
+    reason: multiLine().trim().max(500).optional(),
+    notes: multiLine().trim().max(2000).default(""),
   })
   .superRefine((v, ctx) => {
     if (!v.passed && !v.reason) {
@@ -71,8 +72,8 @@ export type FinishingAction = (typeof FINISHING_ACTIONS)[number];
 export const finishingActionSchema = z
   .object({
     action: z.enum(FINISHING_ACTIONS),
-    version: z.number().int().positive(),
-    reason: z.string().trim().max(500).optional(),
+    version: rowVersionNumber(),
+    reason: multiLine().trim().max(500).optional(),
   })
   .superRefine((v, ctx) => {
     if (v.action === "hold" && !v.reason) {
@@ -84,7 +85,7 @@ export type FinishingActionInput = z.input<typeof finishingActionSchema>;
 export const excludeInspectionSchema = z
   .object({
     excluded_from_calibration: z.boolean(),
-    reason: z.string().trim().max(500).optional(),
+    reason: multiLine().trim().max(500).optional(),
   })
   .superRefine((v, ctx) => {
     if (v.excluded_from_calibration && !v.reason) {
@@ -94,7 +95,7 @@ export const excludeInspectionSchema = z
 
 export const applyCalibrationSchema = z.object({
   /** The material's version as the admin saw it. */
-  version: z.number().int().positive(),
+  version: rowVersionNumber(),
   axes: z.array(z.enum(["xy", "z"])).min(1, "choose at least one axis").max(2),
   /** The suggested shrinkage the admin saw per axis; a newer suggestion is a 409. */
   expected: z.object({ xy: z.number().gt(0).lt(0.5).optional(), z: z.number().gt(0).lt(0.5).optional() }),

@@ -1,6 +1,7 @@
 import { z } from "zod";
+import { boundedInstant } from "@/lib/input-fields";
 
-const instant = z.iso.datetime({ offset: true, error: "an ISO 8601 time with its offset" });
+const instant = boundedInstant("an ISO 8601 time with its offset");
 
 /** The most the floor loads at once: a little over a month, enough for any view with margin. */
 export const MAX_WINDOW_DAYS = 45;

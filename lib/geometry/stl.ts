@@ -333,3 +333,39 @@ export function analyzeStl(
     ...(closedCheck ? { closed: checkClosedMesh(parsed.positions) } : {}),
   };
 }
+
+/**
+ * The checks a file too large to parse in a request can pass from its first bytes, its size and
+ * its last bytes: a binary STL's size is 84 + 50·n for the count in its header; an ASCII STL
+ * begins with "solid" and ends with "endsolid". The worker measures the whole file afterwards
+ * and marks it failed with the parser's reason if the rest is broken. Returns the format and,
+ * for a binary file, its triangle count.
+ */
+export function checkStlShape(head: Uint8Array, size: number, tail: Uint8Array): { format: "binary" | "ascii"; triangles: number | null } {
+  if (size === 0) throw new StlError("empty", "the file is empty");
+  if (head.length >= BINARY_PREAMBLE_BYTES) {
+    const count = new DataView(head.buffer, head.byteOffset, head.byteLength).getUint32(BINARY_HEADER_BYTES, true);
+    if (binaryStlSize(count) === size) {
+      if (count === 0) throw new StlError("empty", "the file holds no triangles");
+      return { format: "binary", triangles: count };
+    }
+  }
+  if (startsWithSolid(head) && looksLikeText(head, 0, 4096)) {
+    const end = new TextDecoder().decode(tail).trimEnd();
+    if (!/endsolid[^\n]*$/i.test(end)) throw new StlError("truncated", "the file does not end with \"endsolid\": it was cut short");
+    return { format: "ascii", triangles: null };
+  }
+  if (looksLikeText(head, 0, Math.min(head.length, 4096))) {
+    throw new StlError("not_stl", "the file is text but does not begin with \"solid\": it is not an STL file");
+  }
+  if (head.length < BINARY_PREAMBLE_BYTES) {
+    throw new StlError("truncated", `the file is ${size} bytes, shorter than the 84-byte header and facet count of a binary STL`);
+  }
+  const count = new DataView(head.buffer, head.byteOffset, head.byteLength).getUint32(BINARY_HEADER_BYTES, true);
+  const expected = binaryStlSize(count);
+  throw new StlError(
+    expected > size ? "truncated" : "count_mismatch",
+    `the header announces ${count} triangles (${expected} bytes) but the file has ${size} bytes${expected > size ? ": it was cut short" : ""}`,
+    { declared: count, bytes: size },
+  );
+}

@@ -1,11 +1,11 @@
-import Papa from "papaparse";
+import { toCsv } from "@/lib/csv/safe-cell";
 import type { RecallResult } from "./types";
 
-// Genealogy and recall lists as CSV. Papa's escapeFormulae prefixes a quote to any cell that a
-// spreadsheet would run as a formula (=, +, −, @, tab, CR), per OWASP's "CSV Injection" advice.
+// Genealogy and recall lists as CSV, through the shared formula guard (lib/csv/safe-cell.ts,
+// OWASP "CSV Injection"). Papa's own escapeFormulae misses a formula followed by a line break.
 
 export function toSafeCsv(rows: Array<Record<string, string | number | boolean | null>>, columns: string[]): string {
-  return Papa.unparse({ fields: columns, data: rows.map((r) => columns.map((c) => r[c] ?? "")) }, { escapeFormulae: true });
+  return toCsv(columns, rows);
 }
 
 export type GenealogyCsvRow = {

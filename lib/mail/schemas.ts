@@ -17,6 +17,7 @@ export const capturedMessageSchema = z.object({
   text: z.string(),
   html: z.string(),
   message_id: z.string().nullable(),
+  attachments: z.array(z.object({ filename: z.string(), content_type: z.string(), size: z.number() })).default([]),
 });
 export type CapturedMessage = z.infer<typeof capturedMessageSchema>;
 export const capturedListSchema = z.object({ messages: z.array(capturedMessageSchema) });

@@ -1,4 +1,6 @@
 import { z } from "zod";
+import { YEAR_MESSAGE, inPlanningYears, multiLine, rowVersionNumber, singleLine } from "@/lib/input-fields";
+import { DEFAULT_ORDER_PRIORITY } from "@/lib/auth/permissions";
 
 // Orders, parts and units: one set of schemas for the API, the forms and the CSV import.
 // Form fields arrive as strings and JSON as numbers, so numeric fields take either; an empty
@@ -25,11 +27,12 @@ export const stockMm = z.preprocess(
   (v) => toNumber(v) ?? 0,
   z.number({ error: NUMBER }).finite(NUMBER).min(0, "stock cannot be negative").max(25, "more than 25 mm of stock: check the value"),
 );
-const optionalPositive = (label: string, max: number) =>
+export const optionalPositive = (label: string, max: number) =>
   z.preprocess(toNullableNumber, z.number({ error: NUMBER }).finite(NUMBER).positive(`${label} must be greater than 0`).max(max).nullable());
 
-const text = (max: number) => z.string().trim().max(max, `at most ${max} characters`);
-const required = (label: string, max: number) => z.string({ error: `${label} is required` }).trim().min(1, `${label} is required`).max(max, `at most ${max} characters`);
+const text = (max: number) => singleLine().trim().max(max, `at most ${max} characters`);
+const notesText = (max: number) => multiLine().trim().max(max, `at most ${max} characters`);
+const required = (label: string, max: number) => singleLine({ error: `${label} is required` }).trim().min(1, `${label} is required`).max(max, `at most ${max} characters`);
 
 /** Accepts an ISO instant or a calendar date (taken as the end of that day, UTC). */
 export const dueAtSchema = z.preprocess(
@@ -40,15 +43,15 @@ export const dueAtSchema = z.preprocess(
     if (t === "") return undefined;
     return new Date(t);
   },
-  z.date({ error: "enter a date (YYYY-MM-DD)" }).refine((d) => !Number.isNaN(d.getTime()), "enter a date (YYYY-MM-DD)"),
+  z.date({ error: "enter a date (YYYY-MM-DD)" }).refine((d) => !Number.isNaN(d.getTime()), "enter a date (YYYY-MM-DD)").refine((d) => inPlanningYears(d.getTime()), YEAR_MESSAGE),
 );
 
 export const prioritySchema = z.preprocess(
-  (v) => toNumber(v) ?? 3,
+  (v) => toNumber(v) ?? DEFAULT_ORDER_PRIORITY,
   z.number({ error: NUMBER }).int("a whole number from 1 to 5").min(1, "1 (most urgent) to 5").max(5, "1 (most urgent) to 5"),
 );
 
-export const versionSchema = z.preprocess(toNumber, z.number({ error: "the row's version is required" }).int().positive());
+export const versionSchema = z.preprocess(toNumber, rowVersionNumber("the row's version is required"));
 
 export const createOrderSchema = z.object({
   code: required("Work order number", 40).regex(/^[A-Za-z0-9][A-Za-z0-9._/-]*$/, "letters, digits and . _ / - only"),
@@ -56,7 +59,7 @@ export const createOrderSchema = z.object({
   project: text(120).default(""),
   due_at: dueAtSchema,
   priority: prioritySchema,
-  notes: text(2000).default(""),
+  notes: notesText(2000).default(""),
 });
 export type CreateOrderInput = z.input<typeof createOrderSchema>;
 export type CreateOrder = z.output<typeof createOrderSchema>;
@@ -70,7 +73,7 @@ const partFields = {
   part_number: required("Part number", 60),
   revision: text(12).default("A").transform((r) => r || "A"),
   name: required("Name", 120),
-  material_id: z.string({ error: "choose a material" }).uuid("choose a material"),
+  material_id: singleLine({ error: "choose a material" }).uuid("choose a material"),
   quantity: z.preprocess(toNumber, z.number({ error: NUMBER }).int("a whole number").min(1, "at least 1").max(500, "at most 500 units per part")),
   nominal_x_mm: lengthMm("X"),
   nominal_y_mm: lengthMm("Y"),
@@ -82,18 +85,18 @@ const partFields = {
   stock_y_pos_mm: stockMm,
   stock_z_neg_mm: stockMm,
   stock_z_pos_mm: stockMm,
-  finishing_notes: text(2000).default(""),
+  finishing_notes: notesText(2000).default(""),
   target_ra_um: optionalPositive("Ra", 50),
   tolerance_um: optionalPositive("the tolerance", 5000),
   tolerance_grade: z.preprocess(
     blankToNull,
-    z.string().trim().toUpperCase().regex(TOLERANCE_GRADE, "an ISO 286-1 grade, IT0 to IT18").nullable(),
+    singleLine().trim().toUpperCase().regex(TOLERANCE_GRADE, "an ISO 286-1 grade, IT0 to IT18").nullable(),
   ),
 };
 
 export const partBodySchema = z.object(partFields);
 
-export const createPartSchema = z.object({ order_id: z.string({ error: "choose an order" }).uuid("choose an order"), ...partFields });
+export const createPartSchema = z.object({ order_id: singleLine({ error: "choose an order" }).uuid("choose an order"), ...partFields });
 export type CreatePartInput = z.input<typeof createPartSchema>;
 export type CreatePart = z.output<typeof createPartSchema>;
 
@@ -108,7 +111,7 @@ export const partFormSchema = createPartSchema;
 const pageSchema = {
   page: z.preprocess((v) => toNumber(v) ?? 1, z.number().int().min(1).max(100_000)),
   page_size: z.preprocess((v) => toNumber(v) ?? 25, z.number().int().min(1).max(200)),
-  search: z.string().trim().max(100).optional(),
+  search: singleLine().trim().max(100).optional(),
   dir: z.enum(["asc", "desc"]).default("asc"),
 };
 

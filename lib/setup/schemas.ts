@@ -1,13 +1,14 @@
 import { z } from "zod";
+import { boundedDate, multiLine, rowVersion, singleLine } from "@/lib/input-fields";
 import { shiftSchema, timeZoneSchema } from "@/lib/process/time-zone";
 
 // Schemas for the admin's set-up of the shop, shared by the API and the forms.
 
 const positive = (what: string) => z.coerce.number({ error: `${what} must be a number` }).positive(`${what} must be more than 0`).finite();
 const nonNegative = (what: string) => z.coerce.number({ error: `${what} must be a number` }).min(0, `${what} cannot be negative`).finite();
-const name = z.string().trim().min(1, "Give it a name").max(80, "At most 80 characters");
+const name = singleLine().trim().min(1, "Give it a name").max(80, "At most 80 characters");
 const ids = z.array(z.string().uuid()).max(50);
-export const versionSchema = z.coerce.number().int().positive();
+export const versionSchema = rowVersion();
 
 /**
  * The PATCH form of a create schema: every field optional and no defaults, so a field the
@@ -20,7 +21,7 @@ function patchOf<T extends z.ZodObject>(schema: T): z.ZodType<Partial<z.infer<T>
 
 export const printerSchema = z.object({
   name,
-  model_note: z.string().trim().max(200).default(""),
+  model_note: multiLine().trim().max(200).default(""),
   build_x_mm: positive("Build volume X"),
   build_y_mm: positive("Build volume Y"),
   build_z_mm: positive("Build volume Z"),
@@ -34,7 +35,7 @@ export const updatePrinterSchema = patchOf(printerSchema);
 
 export const washStationSchema = z.object({
   name,
-  solvent: z.string().trim().min(1, "Name the solvent").max(120),
+  solvent: singleLine().trim().min(1, "Name the solvent").max(120),
   basket_x_mm: positive("Basket X"),
   basket_y_mm: positive("Basket Y"),
   basket_z_mm: positive("Basket Z"),
@@ -59,9 +60,9 @@ export const updateFurnaceSchema = patchOf(furnaceSchema);
 
 export const materialSchema = z
   .object({
-    code: z.string().trim().min(1, "Give it a short code").max(20).regex(/^[A-Za-z0-9.+-]+$/, "Letters, digits, '.', '+' and '-' only"),
+    code: singleLine().trim().min(1, "Give it a short code").max(20).regex(/^[A-Za-z0-9.+-]+$/, "Letters, digits, '.', '+' and '-' only"),
     name,
-    alloy_family: z.string().trim().min(1, "Name the alloy family").max(80),
+    alloy_family: singleLine().trim().min(1, "Name the alloy family").max(80),
     shrink_xy: z.coerce.number().gt(0, "Shrinkage must be above 0").lt(0.5, "Shrinkage must be below 0.5 (50 %)"),
     shrink_z: z.coerce.number().gt(0, "Shrinkage must be above 0").lt(0.5, "Shrinkage must be below 0.5 (50 %)"),
     green_density_g_cm3: positive("Green density"),
@@ -81,9 +82,9 @@ export const maintenanceWindowSchema = z
   .object({
     resource: z.enum(["printer", "wash_station", "furnace"]),
     resource_id: z.string().uuid("Choose the equipment"),
-    starts_at: z.coerce.date({ error: "Give a start time" }),
-    ends_at: z.coerce.date({ error: "Give an end time" }),
-    reason: z.string().trim().max(200).default(""),
+    starts_at: boundedDate("Give a start time"),
+    ends_at: boundedDate("Give an end time"),
+    reason: multiLine().trim().max(200).default(""),
   })
   .refine((w) => w.starts_at < w.ends_at, { message: "The window must end after it starts", path: ["ends_at"] });
 

@@ -13,6 +13,8 @@ export type CapturedMessage = {
   text: string;
   html: string;
   message_id: string | null;
+  /** Name, type and size of each attachment (the bytes are not kept). */
+  attachments?: Array<{ filename: string; content_type: string; size: number }>;
 };
 
 /**
@@ -52,6 +54,7 @@ export async function startMailCapture(opts: { smtpPort: number; apiPort: number
             text: parsed.text ?? "",
             html: typeof parsed.html === "string" ? parsed.html : "",
             message_id: parsed.messageId ?? null,
+            attachments: parsed.attachments.map((a) => ({ filename: a.filename ?? "", content_type: a.contentType, size: a.size })),
           };
           messages.push(msg);
           out.write(`${JSON.stringify(msg)}\n`);

@@ -1,7 +1,7 @@
 // Role × route: every API route and server action, every role, against the running app.
 // The table lives in tests/auth/route-permissions.ts; this file finds the routes and actions on
 // disk (and in the build's action manifest) and fails for any that the table does not list.
-import { existsSync, readFileSync, readdirSync, statSync } from "node:fs";
+import { existsSync, readFileSync } from "node:fs";
 import path from "node:path";
 import { randomUUID } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
@@ -11,50 +11,11 @@ import { appUrl } from "../helpers/browser";
 import { testDb } from "../helpers/db";
 import { signIn } from "../helpers/session";
 import { ACTION_PERMISSIONS, ROUTE_PERMISSIONS, type Gate, type HttpMethod, type RouteCheck } from "./route-permissions";
+import { exportedMethods, rel, routePattern, walk } from "../helpers/routes";
+
 
 const ROOT = process.cwd();
-const METHODS: HttpMethod[] = ["GET", "HEAD", "POST", "PUT", "PATCH", "DELETE", "OPTIONS"];
 const HOW_TO = "Add it to tests/auth/route-permissions.ts with the permission its handler checks first (see the comment at the top of that file).";
-
-function walk(dir: string, match: (file: string) => boolean, out: string[] = []): string[] {
-  if (!existsSync(dir)) return out;
-  for (const name of readdirSync(dir)) {
-    const full = path.join(dir, name);
-    if (name === "node_modules" || name.startsWith(".")) continue;
-    if (statSync(full).isDirectory()) walk(full, match, out);
-    else if (match(full)) out.push(full);
-  }
-  return out;
-}
-
-const rel = (file: string) => path.relative(ROOT, file).split(path.sep).join("/");
-
-/** app/api/(x)/users/[id]/route.ts → /api/users/[id] */
-export function routePattern(file: string): string {
-  const parts = rel(file).split("/").slice(1, -1).filter((p) => !/^\(.*\)$/.test(p));
-  return `/${parts.join("/")}`;
-}
-
-/** The HTTP methods a route module exports, however it spells the export. */
-export function exportedMethods(source: string): HttpMethod[] {
-  const found = new Set<string>();
-  const text = source.replace(/\/\*[\s\S]*?\*\//g, "").replace(/\/\/.*$/gm, "");
-  for (const m of text.matchAll(/export\s+(?:async\s+)?function\s+([A-Z]+)\b/g)) found.add(m[1]);
-  for (const m of text.matchAll(/export\s+(?:const|let|var)\s+([A-Z]+)\s*[=:]/g)) found.add(m[1]);
-  for (const m of text.matchAll(/export\s+(?:const|let|var)\s*\{([^}]*)\}\s*=/g)) {
-    for (const part of m[1].split(",")) {
-      const name = part.split(":").pop()!.split("=")[0].trim();
-      if (name) found.add(name);
-    }
-  }
-  for (const m of text.matchAll(/export\s*\{([^}]*)\}/g)) {
-    for (const part of m[1].split(",")) {
-      const name = part.split(/\s+as\s+/).pop()!.trim();
-      if (name) found.add(name);
-    }
-  }
-  return METHODS.filter((x) => found.has(x));
-}
 
 /** Files whose first statement is "use server", and the async functions they export. */
 function serverActionFiles(): { file: string; exports: string[] }[] {
@@ -166,14 +127,16 @@ describe("each role gets exactly its permission, against the running app", () =>
   });
 
   /** Keeps a role's cookie current when a route re-issues it (the proxy's renewal, "sign out elsewhere"). */
-  function remember(caller: Caller, res: Response) {
+  async function remember(caller: Caller, res: Response) {
     if (caller === "signed_out") return;
     const set = res.headers.getSetCookie().find((c) => c.startsWith("hearth_session="));
-    if (!set || /max-age=0/i.test(set) || set.startsWith("hearth_session=;")) return;
-    cookies.set(caller, set.split(";")[0]);
+    if (!set) return;
+    // Signing out ends the session on the server too: the role signs in again for the next route.
+    if (/max-age=0/i.test(set) || set.startsWith("hearth_session=;")) cookies.set(caller, await signIn(`rp-${caller}-${stamp}@test.hearth.test`, password));
+    else cookies.set(caller, set.split(";")[0]);
   }
 
-  async function call(caller: Caller, method: HttpMethod, url: string, body: string | Record<string, unknown> | null | undefined) {
+  async function call(caller: Caller, method: HttpMethod, url: string, body: string | Record<string, unknown> | null | undefined, stream = false) {
     const headers: Record<string, string> = { "x-forwarded-for": `10.9.${Math.floor(Math.random() * 250)}.${Math.floor(Math.random() * 250)}` };
     if (caller !== "signed_out") headers.cookie = cookies.get(caller)!;
     let payload: string | undefined;
@@ -182,7 +145,11 @@ describe("each role gets exactly its permission, against the running app", () =>
       headers["content-type"] = "application/json";
     }
     const res = await fetch(`${appUrl()}${url}`, { method, headers, body: payload, redirect: "manual" });
-    remember(caller, res);
+    await remember(caller, res);
+    if (stream && res.ok) {
+      await res.body?.cancel();
+      return { status: res.status, text: "(stream)" };
+    }
     return { status: res.status, text: brief(res, await res.text()) };
   }
 
@@ -192,7 +159,8 @@ describe("each role gets exactly its permission, against the running app", () =>
       it(`${method} ${pattern} – ${gate}`, async () => {
         const url = typeof check === "object" && check.path ? check.path : fill(pattern);
         const body = typeof check === "object" ? check.body : undefined;
-        const results = await Promise.all(CALLERS.map(async (caller) => ({ caller, ...(await call(caller, method, url, body)) })));
+        const stream = typeof check === "object" && check.stream === true;
+        const results = await Promise.all(CALLERS.map(async (caller) => ({ caller, ...(await call(caller, method, url, body, stream)) })));
         const wrong: string[] = [];
         for (const r of results) {
           const want = expected(gate, r.caller);

@@ -23,6 +23,8 @@ export type RouteCheck =
       /** A body instead of the default "not JSON" text; `null` for none. */
       body?: string | Record<string, unknown> | null;
       note?: string;
+      /** The answer is a stream that stays open: judge the status and headers, then hang up. */
+      stream?: boolean;
     };
 
 /** Keyed by the route's URL pattern: the file path without app/, route groups and /route.ts. */
@@ -34,7 +36,7 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/session/reset-requests": { POST: "public" },
   "/api/me": { GET: "self:write", PATCH: "self:write" },
   "/api/me/password": { POST: "self:write" },
-  "/api/me/sessions": { DELETE: { gate: "self:write", note: "ends the other sessions of the throwaway user only" } },
+  "/api/me/sessions": { GET: "self:write", DELETE: { gate: "self:write", note: "ends the other sessions of the throwaway user only" } },
   "/api/users": { GET: "users:admin", POST: "users:admin" },
   "/api/users/[id]": { GET: "users:admin", PATCH: "users:admin" },
   "/api/users/[id]/link": { POST: "users:admin" },
@@ -44,6 +46,25 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/webhooks/[id]": { PATCH: "setup:write" },
   "/api/webhooks/[id]/deliveries": { GET: "setup:write" },
   "/api/webhook-deliveries/[id]/redeliver": { POST: "setup:write" },
+  "/api/users/[id]/sessions": { DELETE: { gate: "users:admin", note: "a fresh id names nobody: a 404 after the gate" } },
+
+  "/api/events": { GET: { gate: "shop:read", stream: true, note: "server-sent events: an open stream once allowed" } },
+
+  // feedstock and consumables
+  "/api/inventory/lots": { GET: "shop:read", POST: "inventory:write" },
+  "/api/inventory/lots/import": { POST: "inventory:write" },
+  "/api/inventory/lots/[id]": { GET: "shop:read", PATCH: "inventory:write" },
+  "/api/inventory/lots/[id]/recall": { POST: "inventory:recall" },
+  "/api/inventory/lots/[id]/genealogy": { GET: "shop:read" },
+  "/api/inventory/lots/[id]/label": { GET: "shop:read" },
+  "/api/inventory/projection": { GET: "shop:read" },
+  "/api/inventory/shortfalls": { GET: "shop:read" },
+  "/api/inventory/forms": { GET: "shop:read", POST: "inventory:write" },
+  "/api/inventory/materials/[id]": { PATCH: "inventory:write" },
+  "/api/inventory/consumables": { GET: "shop:read" },
+  "/api/inventory/gas": { POST: "consumables:write" },
+  "/api/inventory/baths/[id]": { POST: "consumables:write" },
+  "/api/units/[id]/origin": { GET: "shop:read" },
 
   // set-up
   "/api/furnaces": { GET: "shop:read", POST: "setup:write" },
@@ -69,6 +90,7 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/parts/import": { POST: "parts:write" },
   "/api/units": { GET: "shop:read" },
   "/api/units/[id]/trace": { GET: "shop:read" },
+  "/api/scan": { GET: { gate: "shop:read", path: "/api/scan?code=NO-SUCH-CODE" } },
   "/api/files/[id]": { GET: "shop:read" },
   "/api/files/[id]/content": { GET: "shop:read" },
 
@@ -124,6 +146,18 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/calendar/feeds/[token]/[resource]": { GET: { gate: "public", note: "the secret in the address is the credential; an unknown one is a 404" } },
   "/api/mail": { GET: "mail:read" },
   "/api/jobs": { GET: "jobs:read" },
+  // quotes
+  "/api/quotes": { GET: "quotes:read", POST: "quotes:write" },
+  "/api/quotes/[id]": { GET: "quotes:read", PATCH: "quotes:write" },
+  "/api/quotes/[id]/lines": { POST: "quotes:write" },
+  "/api/quotes/[id]/lines/[lineId]": { DELETE: "quotes:write" },
+  "/api/quotes/[id]/actions": { POST: "quotes:write" },
+  "/api/quotes/[id]/pdf": { GET: "quotes:read" },
+  "/api/quotes/[id]/capable": { GET: "quotes:read" },
+  "/api/quotes/geometry": { POST: { gate: "quotes:write", body: null, note: "an empty upload is refused after the gate" } },
+  "/api/quotes/learning": { GET: "capacity:read" },
+  "/api/quote-settings": { GET: "quotes:read", PUT: "setup:write" },
+  "/api/quote-settings/materials": { PUT: "setup:write" },
 };
 
 /**
@@ -137,5 +171,6 @@ export const ACTION_PERMISSIONS: Record<string, Record<string, Gate>> = {
     changeRole: "users:admin",
     setActive: "users:admin",
     sendLink: "users:admin",
+    signOutEverywhere: "users:admin",
   },
 };

@@ -40,7 +40,8 @@ describe("accept → inspect → finish", () => {
     const { unit } = await readyUnit(db);
     // a role without finishing:write is refused before anything else
     expect((await act(unit.id, { action: "accept", version: 1 }, technician)).status).toBe(403);
-    expect((await act(unit.id, "not json")).status).toBe(400);
+    expect((await api(`/api/finishing/${unit.id}`, { method: "POST", body: "not json", cookie: machinist, headers: { "content-type": "application/json" } })).status).toBe(400);
+    expect((await act(unit.id, "not json")).status).toBe(415); // not sent as JSON at all
     const bad = await act(unit.id, { action: "polish", version: "one" });
     expect(bad.status).toBe(422);
     expect(Object.keys(bad.body.error.fieldErrors)).toEqual(expect.arrayContaining(["action", "version"]));

@@ -39,7 +39,15 @@ async function makeUser(role: Role, opts: { active?: boolean } = {}) {
   return row.id;
 }
 
+/** A user_sessions row for a hand-sealed cookie (as sign-in makes one); none for a user that does not exist. */
+async function openSessionRow(userId: unknown): Promise<string | undefined> {
+  if (typeof userId !== "string" || !/^[0-9a-f-]{36}$/i.test(userId)) return undefined;
+  const { rows } = await sql<{ id: string }>`insert into user_sessions (user_id) select id from users where id = ${userId} returning id`.execute(db);
+  return rows[0]?.id;
+}
+
 async function cookieFor(data: Record<string, unknown>, secret = SECRET) {
+  if (!("sid" in data)) data = { ...data, sid: await openSessionRow(data.userId) };
   return `hearth_session=${await sealData(data, { password: secret, ttl: SESSION_IDLE_SECONDS })}`;
 }
 

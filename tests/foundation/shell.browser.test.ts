@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Browser } from "playwright-core";
 import { appUrl, launchBrowser, screenshot } from "../helpers/browser";
+import { DEMO, signIn } from "../helpers/session";
 
 describe("the app shell in a browser", () => {
   let browser: Browser;
@@ -11,10 +12,14 @@ describe("the app shell in a browser", () => {
     await browser?.close();
   });
 
-  it("answers its health check", async () => {
-    const res = await fetch(`${appUrl()}/api/health`);
+  it("answers its health check: only up or down to the public, every check to an admin", async () => {
+    const open = await fetch(`${appUrl()}/api/health`);
+    expect(open.status).toBe(200);
+    expect(await open.json()).toEqual({ status: "up" });
+    const res = await fetch(`${appUrl()}/api/health`, { headers: { cookie: await signIn(DEMO.admin) } });
     const body = await res.json();
     expect(res.status, JSON.stringify(body)).toBe(200);
+    expect(body.status).toBe("up");
     expect(body.checks.database.ok).toBe(true);
     expect(body.checks.migrations.pending).toBe(0);
     expect(body.checks.worker.ok).toBe(true);

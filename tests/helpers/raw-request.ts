@@ -6,7 +6,7 @@ export type RawResponse = { status: number; headers: http.IncomingHttpHeaders; b
  * A request with exactly these headers and this path, as sent: fetch() would add
  * Accept-Encoding (and undo the coding) and would normalise ".." in the path.
  */
-export function rawRequest(origin: string, path: string, headers: Record<string, string> = {}, method = "GET"): Promise<RawResponse> {
+export function rawRequest(origin: string, path: string, headers: Record<string, string> = {}, method = "GET", body?: string | Buffer): Promise<RawResponse> {
   const { hostname, port } = new URL(origin);
   return new Promise((resolve, reject) => {
     const req = http.request({ host: hostname, port: Number(port), path, method, headers }, (res) => {
@@ -16,6 +16,6 @@ export function rawRequest(origin: string, path: string, headers: Record<string,
       res.on("error", reject);
     });
     req.on("error", reject);
-    req.end();
+    req.end(body);
   });
 }

@@ -30,6 +30,9 @@ describe("API token scopes", () => {
     expect(bearerToken("Basic YWxhZGRpbjpvcGVuc2VzYW1l")).toBeNull();
     expect(bearerToken(null)).toBeNull();
     expect(bearerToken("Bearer")).toBe("");
+    // a malformed credential is still a bearer attempt (a 401), never a cookie request
+    expect(bearerToken("Bearer a b")).toBe("a b");
+    expect(bearerToken("Bearerabc")).toBeNull();
   });
 
   it("issues 256-bit tokens with a recognisable prefix and keeps only their sha-256", () => {

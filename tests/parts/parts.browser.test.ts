@@ -84,9 +84,9 @@ describe("parts in a browser", () => {
     const code = uniq("CSV");
     const csv = [
       "order_code,customer,due_date,priority,part_number,revision,name,material,quantity,nominal_x_mm,nominal_y_mm,nominal_z_mm,thickest_wall_mm,stock_x_neg_mm,stock_x_pos_mm",
-      `${code},Csv Castings,2027-02-01,2,CV-1,A,valve seat,17-4PH,2,30,30,12,4,0.3,0.3`,
-      `${code},Csv Castings,2027-02-01,2,CV-2,A,drive dog,UNOBTAINIUM,1,25,20,15,5,0,0`,
-      `${code},Csv Castings,2027-02-01,2,CV-3,B,spacer ring,316L,3,40,40,8,3,0.2,0.2`,
+      `${code},Csv Castings,2027-02-01,3,CV-1,A,valve seat,17-4PH,2,30,30,12,4,0.3,0.3`,
+      `${code},Csv Castings,2027-02-01,3,CV-2,A,drive dog,UNOBTAINIUM,1,25,20,15,5,0,0`,
+      `${code},Csv Castings,2027-02-01,3,CV-3,B,spacer ring,316L,3,40,40,8,3,0.2,0.2`,
     ].join("\n");
     const file = path.join(dir, "parts.csv");
     writeFileSync(file, csv);

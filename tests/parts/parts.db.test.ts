@@ -20,7 +20,8 @@ afterAll(async () => {
 describe("orders", () => {
   it("creates an order and answers bad fields with 422 and the field's reason", async () => {
     const code = uniq("ORD");
-    const ok = await api("/api/orders", { method: "POST", cookie: tech, body: { code, customer: "Kiln Works", due_at: "2027-03-01", priority: "2" } });
+    // a priority other than the default is a manager's choice (tests/security/hardening.db.test.ts)
+    const ok = await api("/api/orders", { method: "POST", cookie: await signIn(DEMO.manager), body: { code, customer: "Kiln Works", due_at: "2027-03-01", priority: "2" } });
     expect(ok.status, JSON.stringify(ok.body)).toBe(201);
     expect(ok.body.order).toMatchObject({ code, priority: 2 });
     expect(new Date(ok.body.order.due_at).toISOString()).toBe("2027-03-01T23:59:00.000Z");

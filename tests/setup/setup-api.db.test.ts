@@ -47,7 +47,7 @@ describe("set-up API: equipment, materials, maintenance, settings", () => {
     expect(shrink.status).toBe(422);
     expect(shrink.body.error.fieldErrors.shrink_xy[0]).toMatch(/below 0.5/);
     const badId = await api("/api/printers/not-a-uuid", { method: "PATCH", cookie: admin, body: { version: 1 } });
-    expect(badId.status).toBe(422);
+    expect(badId.status).toBe(404); // an id that is not a uuid names nothing
   });
 
   it("lets only an admin change the set-up", async () => {

@@ -31,7 +31,7 @@ afterAll(async () => {
 
 describe("status and read APIs", () => {
   it("health reports queue depths, the oldest waiting job and the last sweep", async () => {
-    const res = await api("/api/health");
+    const res = await api("/api/health", { cookie: admin });
     expect(res.status).toBe(200);
     const jobs = res.body.checks.jobs;
     expect(jobs.ok).toBe(true);

@@ -13,7 +13,7 @@ export default async function BatchesPage() {
         title="Batches"
         lead="Fill wash batches with green units and furnace runs with brown ones. Drag a unit onto a batch or run; one that breaks a rule is refused before it lands."
       />
-      <div className="space-y-4 px-8 py-6">
+      <div className="space-y-4 px-4 md:px-8 py-6">
         <Cautions topic="both" folded />
         <BatchesBoard role={user.role} unitPref={user.unit_pref} />
       </div>

@@ -1,5 +1,6 @@
 import { CapacityBoard } from "@/components/capacity/capacity-board";
 import { PageHeader } from "@/components/ui/page-header";
+import { QuoteLearning } from "@/components/quotes/quote-learning";
 import { getDb } from "@/db/client";
 import { loadShopClock } from "@/db/capacity/reads";
 import { defaultRange } from "@/lib/capacity/summary";
@@ -15,8 +16,11 @@ export default async function CapacityPage() {
   return (
     <>
       <PageHeader title="Capacity" lead="Can the shop keep its promises? Late and at-risk orders, how busy each printer, wash station and furnace is, what is booked ahead and what came out." />
-      <div className="px-8 py-6">
+      <div className="px-4 md:px-8 py-6">
         <CapacityBoard initialRange={defaultRange(now, clock.time_zone)} today={formatLocalDate(localDateOf(now.getTime(), clock.time_zone))} />
+        <div className="mt-6">
+          <QuoteLearning />
+        </div>
       </div>
     </>
   );

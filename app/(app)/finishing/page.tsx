@@ -19,7 +19,7 @@ export default async function FinishingPage() {
         lead={`What comes out of the furnaces and when, with the stock left on each face. Lengths in ${user.unit_pref === "in" ? "inches" : "millimetres"}; times in ${clock.time_zone.replaceAll("_", " ")}.`}
       />
       <FinishingTabs active="queue" />
-      <div className="space-y-5 px-8 py-6">
+      <div className="space-y-5 px-4 md:px-8 py-6">
         <DustCaution />
         <FinishingQueue canWrite={can(user.role, "finishing:write")} units={user.unit_pref} timeZone={clock.time_zone} />
       </div>

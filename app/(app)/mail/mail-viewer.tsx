@@ -3,7 +3,7 @@
 import { useMemo, useState } from "react";
 import { QueryClient, QueryClientProvider, useQuery } from "@tanstack/react-query";
 
-type Message = { id: string; received_at: string; from: string; to: string[]; subject: string; text: string; html: string; message_id: string | null };
+type Message = { id: string; received_at: string; from: string; to: string[]; subject: string; text: string; html: string; message_id: string | null; attachments?: { filename: string; content_type: string; size: number }[] };
 type OutboxRow = {
   id: string;
   kind: string;
@@ -112,7 +112,7 @@ function MailViewerInner() {
       ) : null}
 
       {mail.data ? (
-        <div className="grid gap-4 lg:grid-cols-[minmax(18rem,26rem)_1fr]">
+        <div className="grid grid-cols-1 gap-4 lg:grid-cols-[minmax(18rem,26rem)_1fr]">
           <ul className="max-h-[36rem] divide-y divide-soot-100 overflow-y-auto rounded-card border border-soot-200 bg-white shadow-card" data-testid="mail-list">
             {messages.length === 0 ? (
               <li className="px-4 py-6 text-center text-sm text-soot-500">No messages{filter ? ` to ${filter}` : ""} yet.</li>
@@ -148,6 +148,12 @@ function MailViewerInner() {
                   <dd>{when(current.received_at)}</dd>
                   <dt className="text-soot-500">Message-ID</dt>
                   <dd className="break-all font-mono">{current.message_id ?? "—"}</dd>
+                  {current.attachments?.length ? (
+                    <>
+                      <dt className="text-soot-500">Attached</dt>
+                      <dd data-testid="mail-attachments">{current.attachments.map((a) => `${a.filename} (${a.content_type}, ${Math.ceil(a.size / 1024)} KB)`).join(", ")}</dd>
+                    </>
+                  ) : null}
                 </dl>
                 <div className="mt-3 inline-flex rounded-md border border-soot-200 text-xs font-semibold" role="group" aria-label="Show as">
                   {(["html", "text"] as const).map((v) => (
@@ -177,7 +183,7 @@ function MailViewerInner() {
       {mail.data && mail.data.outbox_recent.length ? (
         <section className="space-y-2">
           <h2 className="font-display text-lg font-semibold text-soot-900">Outbox</h2>
-          <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card">
+          <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Outbox" tabIndex={0}>
             <table className="min-w-full text-xs" data-testid="outbox-table">
               <thead className="border-b border-soot-200 bg-soot-50 text-left uppercase tracking-wide text-soot-500">
                 <tr>
@@ -224,7 +230,7 @@ function OutboxSummary({ data }: { data: MailResponse }) {
   ];
   return (
     <div className="space-y-2">
-      <div className="grid gap-3 sm:grid-cols-3" data-testid="outbox-summary">
+      <div className="grid grid-cols-1 gap-3 sm:grid-cols-3" data-testid="outbox-summary">
         {tiles.map((t) => (
           <div key={t.label} className="rounded-card border border-soot-200 bg-white px-4 py-3 shadow-card">
             <div className="text-xs font-semibold uppercase tracking-wide text-soot-500">{t.label}</div>

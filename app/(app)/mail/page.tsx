@@ -12,7 +12,7 @@ export default async function MailPage() {
         title="Mail"
         lead="Every message Hearth has sent through the local capture server, newest first, and the outbox behind them: a message waits there, pending, while the mail relay is down."
       />
-      <div className="px-8 py-6">
+      <div className="px-4 md:px-8 py-6">
         <MailViewer />
       </div>
     </>

@@ -17,9 +17,11 @@ const SECTIONS: Section[] = [
   { title: "Materials", href: "/setup/materials", lead: "Feedstocks: shrinkage, densities, wash rate and default sinter profile." },
   { title: "Sinter profiles", href: "/setup/profiles", lead: "Ramp, hold and cool-down segments, atmosphere and compatible materials." },
   { title: "Shrinkage calibration", href: "/finishing/calibration", lead: "Realized shrinkage from inspections per material, and the suggested factors to apply." },
+  { title: "Quoting rates", href: "/setup/quotes", lead: "Currency, machine and labour rates, furnace run and wash batch costs, overhead, margin and feedstock prices." },
   { title: "Shop settings", href: "/setup/settings", lead: "Shop name, time zone, staffed hours and planning margins." },
   { title: "API tokens", href: "/setup/tokens", lead: "Scoped tokens for other programs to call Hearth's API; shown once, revocable, rate-limited." },
   { title: "Webhooks", href: "/setup/webhooks", lead: "Signed notices to other programs when orders, builds, furnace runs, units and inspections change; delivery log." },
+  { title: "Security log", href: "/setup/security", lead: "Sign-ins, failures, sign-outs, ended sessions, role changes, resets and exports." },
   { title: "Background jobs", href: "/setup/jobs", lead: "The worker's queues, failed jobs and its last sweep for bookings whose end went by." },
 ];
 
@@ -34,7 +36,7 @@ export default async function SetupPage() {
   return (
     <>
       <PageHeader title="Set-up" lead="Users, equipment, materials, sinter profiles and shop settings: what the planner works from." />
-      <div className="grid gap-4 px-8 py-6 sm:grid-cols-2 xl:grid-cols-3">
+      <div className="grid grid-cols-1 gap-4 px-4 md:px-8 py-6 sm:grid-cols-2 xl:grid-cols-3">
         {SECTIONS.map((s) =>
           s.href ? (
             <Link key={s.title} href={s.href} className="group rounded-card border border-soot-200 bg-white p-5 shadow-card hover:border-clay-300">

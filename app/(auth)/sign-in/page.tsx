@@ -3,14 +3,10 @@ import { connection } from "next/server";
 import { DEMO_USERS, DEMO_PASSWORD } from "@/db/seed-users";
 import { showDemoSignIns } from "@/lib/auth/demo";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
+import { safeNextPath } from "@/lib/http/safe-next";
 import { SignInForm } from "./sign-in-form";
 
 export const metadata = { title: "Sign in" };
-
-function safeNext(next: string | undefined) {
-  // Only paths on this site: never an absolute or protocol-relative address.
-  return next && next.startsWith("/") && !next.startsWith("//") ? next : "";
-}
 
 export default async function SignInPage({ searchParams }: { searchParams: Promise<{ next?: string; password?: string; email?: string }> }) {
   await connection();
@@ -25,7 +21,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
           Your password is set. Sign in with it now.
         </p>
       ) : null}
-      <SignInForm next={safeNext(next)} email={typeof email === "string" ? email.slice(0, 254) : ""} />
+      <SignInForm next={safeNextPath(next)} email={typeof email === "string" ? email.slice(0, 254) : ""} />
       <Link href="/forgot-password" className="mt-4 inline-block text-sm font-semibold text-clay-700 hover:underline">
         Forgot your password?
       </Link>
@@ -35,7 +31,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
           <ul className="space-y-0.5 font-mono">
             {DEMO_USERS.map((u) => (
               <li key={u.email}>
-                {u.email} <span className="font-sans text-soot-400">· {ROLE_LABELS[u.role]}</span>
+                {u.email} <span className="font-sans text-soot-500">· {ROLE_LABELS[u.role]}</span>
               </li>
             ))}
           </ul>

@@ -1,6 +1,7 @@
 "use client";
 
 import { useState } from "react";
+import { safeNextPath } from "@/lib/http/safe-next";
 
 export type SignInFormProps = { next: string; email?: string };
 
@@ -28,7 +29,8 @@ export function SignInForm({ next, email = "" }: SignInFormProps) {
         setBusy(false);
         return;
       }
-      window.location.assign(next || body.home || "/");
+      // The page sent a checked path already; checked again here, where it is followed.
+      window.location.assign(safeNextPath(next) || safeNextPath(body.home) || "/");
     } catch {
       setError("The server did not answer; check the connection and try again.");
       setBusy(false);

@@ -19,17 +19,38 @@ const WORKER_STALE_SECONDS = 45;
 // The sweep runs every minute; five minutes without one means no worker is sweeping.
 const SWEEP_STALE_SECONDS = 300;
 
+// A load balancer's check must be answered whatever hangs behind it: each check gives up
+// after this long and counts as failed.
+const CHECK_TIMEOUT_MS = 4_000;
+
 async function timed<T>(fn: () => Promise<T>): Promise<{ ok: true; ms: number; value: T } | { ok: false; ms: number; error: string }> {
   const started = performance.now();
+  let timer: NodeJS.Timeout | undefined;
   try {
-    const value = await fn();
+    const value = await Promise.race([
+      fn(),
+      new Promise<never>((_, reject) => {
+        timer = setTimeout(() => reject(new Error(`no answer within ${CHECK_TIMEOUT_MS} ms`)), CHECK_TIMEOUT_MS);
+      }),
+    ]);
     return { ok: true, ms: Math.round(performance.now() - started), value };
   } catch (err) {
     return { ok: false, ms: Math.round(performance.now() - started), error: err instanceof Error ? err.message : String(err) };
+  } finally {
+    clearTimeout(timer);
   }
 }
 
-// GET /api/health – reachability of the database, the worker and the mail and file stores (public)
+/**
+ * Who may read the checks themselves (worker ids, queue counts, migration names): a signed-in
+ * admin. API tokens with a monitoring scope will be the second way in; their check goes here.
+ */
+async function mayReadHealthDetail(): Promise<boolean> {
+  const viewer = await getCurrentUser().catch(() => null);
+  return !!viewer && can(viewer.role, "jobs:read");
+}
+
+// GET /api/health – public: {status: "up" | "down"} (503 when down); an admin also gets every check's detail
 export async function GET() {
   const db = getDb();
   const [database, migration, worker, smtp, s3, jobs] = await Promise.all([
@@ -79,8 +100,10 @@ export async function GET() {
       : { ok: false, error: jobs.error },
   };
   const ok = Object.values(checks).every((c) => c.ok);
-  // For a signed-in admin only: this process's live-update streams and its LISTEN connection.
-  const viewer = await getCurrentUser().catch(() => null);
-  const detail = viewer && can(viewer.role, "jobs:read") ? { live: { pid: process.pid, ...liveHub().detail() } } : {};
-  return NextResponse.json({ ok, checked_at: new Date().toISOString(), checks, ...detail }, { status: ok ? 200 : 503, headers: { "cache-control": "no-store" } });
+  const status = ok ? "up" : "down";
+  // The checks, and this process's live-update streams and LISTEN connection, for an admin only.
+  const body = (await mayReadHealthDetail())
+    ? { status, ok, checked_at: new Date().toISOString(), checks, live: { pid: process.pid, ...liveHub().detail() } }
+    : { status };
+  return NextResponse.json(body, { status: ok ? 200 : 503, headers: { "cache-control": "no-store", ...(ok ? {} : { "retry-after": "5" }) } });
 }

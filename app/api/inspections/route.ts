@@ -1,4 +1,5 @@
 import { NextResponse } from "next/server";
+import { isUuid } from "@/lib/ids";
 import { getDb } from "@/db/client";
 import { insertInspection } from "@/db/inspections/commands";
 import { listInspectionsForUnit } from "@/db/inspections/reads";
@@ -12,7 +13,7 @@ export async function GET(req: Request) {
   try {
     await requireUser("shop:read");
     const unitId = new URL(req.url).searchParams.get("unit_id") ?? "";
-    if (!/^[0-9a-f-]{36}$/i.test(unitId)) throw new AppError("invalid", "Give the unit_id of a unit.", { unit_id: ["not a unit id"] });
+    if (!isUuid(unitId)) throw new AppError("invalid", "Give the unit_id of a unit.", { unit_id: ["not a unit id"] });
     return NextResponse.json({ inspections: await listInspectionsForUnit(getDb(), unitId) });
   } catch (err) {
     return toErrorResponse(err);

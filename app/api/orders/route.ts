@@ -21,9 +21,9 @@ export async function GET(req: Request) {
 // POST /api/orders – create an order (technician, manager, admin)
 export async function POST(req: Request) {
   try {
-    await requireUser("orders:write");
+    const user = await requireUser("orders:write");
     const input = createOrderSchema.parse(await readJson(req));
-    return NextResponse.json({ order: await insertOrder(getDb(), input) }, { status: 201 });
+    return NextResponse.json({ order: await insertOrder(getDb(), input, user.role) }, { status: 201 });
   } catch (err) {
     return toErrorResponse(err);
   }

@@ -30,7 +30,7 @@ export default async function BuildPage({ params }: { params: Promise<{ id: stri
     <>
       <PageHeader title={`Build ${build.code}`} lead="Units of one material on one plate: the layout, the print time on each printer, the material lot and the traveler that goes with it." />
       <QueryProvider>
-        <BuildView buildId={build.id} canWrite={can(user.role, "builds:write")} timeZone={timeZone} />
+        <BuildView buildId={build.id} canWrite={can(user.role, "builds:write")} timeZone={timeZone} role={user.role} />
       </QueryProvider>
       <BuildFeedstock
         buildId={build.id}

@@ -20,7 +20,7 @@ export default async function FinishingUnitPage({ params }: { params: Promise<{ 
         lead="Stock per face, the drawing's tolerance and Ra, and the inspection record."
         actions={<Link href="/finishing" className="text-sm font-semibold text-clay-700 hover:underline">Back to the queue</Link>}
       />
-      <div className="space-y-5 px-8 py-6">
+      <div className="space-y-5 px-4 md:px-8 py-6">
         <DustCaution />
         <FinishingUnit unitId={id} units={user.unit_pref} timeZone={clock.time_zone} canWrite={can(user.role, "finishing:write")} canInspect={can(user.role, "inspections:write")} />
       </div>

@@ -19,7 +19,7 @@ export default async function CalibrationPage({ searchParams }: { searchParams: 
         lead="Every inspection with a green and an as-sintered size tells how much the material really shrank. Here is what it adds up to, per material and axis."
       />
       <FinishingTabs active="calibration" />
-      <div className="px-8 py-6">
+      <div className="px-4 md:px-8 py-6">
         <CalibrationView canApply={can(user.role, "calibration:apply")} timeZone={clock.time_zone} initialMaterialId={material && /^[0-9a-f-]{36}$/i.test(material) ? material : undefined} />
       </div>
     </>

@@ -6,6 +6,7 @@ import { Cautions } from "@/components/safety/cautions";
 import { getDb } from "@/db/client";
 import { findRunCode } from "@/db/furnace-runs/reads";
 import { requirePageUser } from "@/app/_server/session";
+import { can } from "@/lib/auth/permissions";
 
 export const metadata = { title: "Furnace run" };
 
@@ -21,12 +22,19 @@ export default async function FurnaceRunPage({ params }: { params: Promise<{ id:
         title={`Furnace run ${code}`}
         lead="The profile's temperature curve, the trays as loaded, the loading checklist, and the unload."
         actions={
+          <>
+          {can(user.role, "furnace:write") ? (
+            <Link href={`/scan?run=${id}`} className="inline-flex min-h-11 items-center rounded-md bg-clay-600 px-3 text-sm font-semibold text-white hover:bg-clay-700">
+              Load by scanning
+            </Link>
+          ) : null}
           <Link href="/batches" className="rounded-md border border-soot-200 bg-white px-3 py-1.5 text-sm text-soot-700 hover:bg-soot-50">
             Back to the board
           </Link>
+          </>
         }
       />
-      <div className="space-y-4 px-8 py-6">
+      <div className="space-y-4 px-4 md:px-8 py-6">
         <Cautions topic="furnace" />
         <RunView runId={id} role={user.role} unitPref={user.unit_pref} />
       </div>

@@ -27,7 +27,7 @@ export default async function EquipmentPage() {
   return (
     <>
       <PageHeader title="Equipment" lead="Printers, wash stations and furnaces: sizes, rates and limits the planner relies on, and their maintenance windows." />
-      <div className="space-y-6 px-8 py-6">
+      <div className="space-y-6 px-4 md:px-8 py-6">
         <EquipmentTables printers={printers} washStations={washStations} furnaces={furnaces} materials={materials} profiles={profiles} />
         <MaintenanceWindows windows={windows.map((w) => ({ ...w, starts_at: w.starts_at.toISOString(), ends_at: w.ends_at.toISOString() }))} resources={resources} timeZone={settings.time_zone} />
       </div>

@@ -84,7 +84,7 @@ function JobsBoardInner() {
         </p>
       ) : null}
 
-      <section className="grid gap-4 lg:grid-cols-3">
+      <section className="grid grid-cols-1 gap-4 lg:grid-cols-3">
         <div className="rounded-card border border-soot-200 bg-white p-5 shadow-card" data-testid="last-sweep">
           <h2 className="text-xs font-semibold uppercase tracking-wide text-soot-500">Last sweep</h2>
           <p className={`mt-1 font-display text-2xl font-semibold ${sweepStale ? "text-oxide-700" : "text-soot-900"}`}>{ago(last_sweep?.finished_at ?? null, now)}</p>
@@ -122,7 +122,7 @@ function JobsBoardInner() {
         </div>
       </section>
 
-      <section className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card">
+      <section className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Queues" tabIndex={0}>
         <table className="min-w-full text-sm" data-testid="queue-table">
           <thead className="border-b border-soot-200 bg-soot-50 text-left text-xs uppercase tracking-wide text-soot-500">
             <tr>
@@ -171,7 +171,7 @@ function JobsBoardInner() {
             </select>
           </label>
         </div>
-        <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card">
+        <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Failed jobs" tabIndex={0}>
           <table className="min-w-full text-sm" data-testid="failed-jobs">
             <thead className="border-b border-soot-200 bg-soot-50 text-left text-xs uppercase tracking-wide text-soot-500">
               <tr>
@@ -238,7 +238,7 @@ function JobsBoardInner() {
 
       <section className="space-y-2">
         <h2 className="font-display text-lg font-semibold text-soot-900">Recent sweeps</h2>
-        <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card">
+        <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" role="region" aria-label="Sweeps" tabIndex={0}>
           <table className="min-w-full text-xs" data-testid="sweeps">
             <thead className="border-b border-soot-200 bg-soot-50 text-left uppercase tracking-wide text-soot-500">
               <tr>

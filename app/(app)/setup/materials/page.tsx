@@ -16,7 +16,7 @@ export default async function MaterialsPage() {
         title="Materials"
         lead="Shrinkage per axis, densities and wash constants. A change applies to new scale-ups; builds already printed keep the factors they were printed with."
       />
-      <div className="px-8 py-6">
+      <div className="px-4 md:px-8 py-6">
         <MaterialTable materials={materials} profiles={profiles} />
       </div>
     </>

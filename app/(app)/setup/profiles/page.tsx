@@ -20,7 +20,7 @@ export default async function ProfilesPage() {
           </Link>
         }
       />
-      <div className="space-y-4 px-8 py-6">
+      <div className="space-y-4 px-4 md:px-8 py-6">
         <Cautions topic="furnace" folded />
         <ProfileEditor canEdit={can(user.role, "setup:write")} />
       </div>

@@ -12,7 +12,7 @@ export default async function ShopSettingsPage() {
   return (
     <>
       <PageHeader title="Shop settings" lead="Time zone, staffed hours and the margins the planner and the projections use." />
-      <div className="px-8 py-6">
+      <div className="px-4 md:px-8 py-6">
         <ShopSettingsForm
           settings={{
             shop_name: s.shop_name, time_zone: s.time_zone, staffed_hours: s.staffed_hours, drying_minutes: s.drying_minutes,

@@ -3,7 +3,7 @@
 import { revalidatePath } from "next/cache";
 import { getDb } from "@/db/client";
 import { findUserById } from "@/db/users/reads";
-import { createUserAndInvite, sendAccountLink, updateUserByAdmin } from "@/db/auth/accounts";
+import { createUserAndInvite, revokeAllSessions, sendAccountLink, updateUserByAdmin } from "@/db/auth/accounts";
 import { actionFailure, actionSuccess, type ActionState } from "@/lib/auth/action-state";
 import { ROLE_LABELS } from "@/lib/auth/permissions";
 import { createUserSchema, roleSchema, updateUserSchema } from "@/lib/auth/schemas";
@@ -77,6 +77,18 @@ export async function sendLink(_prev: ActionState, form: FormData): Promise<Acti
     const { kind, mail } = await sendAccountLink(getDb(), actor, target.id);
     const what = kind === "reset" ? "A reset link" : "A new invitation";
     return actionSuccess(`${what} for ${target.name} (${target.email}). ${mailNote(mail)}`);
+  } catch (err) {
+    return actionFailure(err);
+  }
+}
+
+export async function signOutEverywhere(_prev: ActionState, form: FormData): Promise<ActionState> {
+  try {
+    const actor = await requireUser("users:admin");
+    const target = await loadTarget(field(form, "id") ?? "");
+    const ended = await revokeAllSessions(getDb(), actor, target.id);
+    revalidatePath("/setup/users");
+    return actionSuccess(`${target.name} is signed out everywhere (${ended} session${ended === 1 ? "" : "s"} ended).`);
   } catch (err) {
     return actionFailure(err);
   }

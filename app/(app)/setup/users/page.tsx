@@ -2,7 +2,7 @@ import Link from "next/link";
 import { PageHeader } from "@/components/ui/page-header";
 import { UsersAdmin } from "@/components/users/users-admin";
 import { requirePageUser } from "@/app/_server/session";
-import { changeRole, createUser, sendLink, setActive } from "./actions";
+import { changeRole, createUser, sendLink, setActive, signOutEverywhere } from "./actions";
 
 export const metadata = { title: "Users" };
 
@@ -19,8 +19,8 @@ export default async function UsersPage() {
           </Link>
         }
       />
-      <div className="px-8 py-6">
-        <UsersAdmin currentUserId={user.id} actions={{ createUser, changeRole, setActive, sendLink }} />
+      <div className="px-4 md:px-8 py-6">
+        <UsersAdmin currentUserId={user.id} actions={{ createUser, changeRole, setActive, sendLink, signOutEverywhere }} />
       </div>
     </>
   );

@@ -14,8 +14,8 @@ export default async function UnitPage({ params }: { params: Promise<{ id: strin
   return (
     <>
       <PageHeader title="Unit history" lead="Material lot, build and printer, wash and masses, furnace run and profile, inspections and every event, in one place." />
-      <div className="px-8 py-6">
-        <UnitTrace unitId={id} units={user.unit_pref} timeZone={clock.time_zone} canAttach={can(user.role, "inspections:write")} />
+      <div className="px-4 md:px-8 py-6">
+        <UnitTrace unitId={id} units={user.unit_pref} timeZone={clock.time_zone} canAttach={can(user.role, "inspections:write")} role={user.role} />
       </div>
     </>
   );

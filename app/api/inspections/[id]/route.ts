@@ -1,4 +1,5 @@
 import { NextResponse } from "next/server";
+import { isUuid } from "@/lib/ids";
 import { getDb } from "@/db/client";
 import { setCalibrationExclusion } from "@/db/inspections/commands";
 import { requireUser } from "@/app/_server/session";
@@ -11,7 +12,7 @@ export async function PATCH(req: Request, { params }: { params: Promise<{ id: st
   try {
     const user = await requireUser("calibration:apply");
     const { id } = await params;
-    if (!/^[0-9a-f-]{36}$/i.test(id)) throw new AppError("not_found", "Inspection not found.");
+    if (!isUuid(id)) throw new AppError("not_found", "Inspection not found.");
     const input = excludeInspectionSchema.parse(await readJson(req));
     return NextResponse.json(await setCalibrationExclusion(getDb(), id, input.excluded_from_calibration, input.reason, user.id));
   } catch (err) {

@@ -2,7 +2,6 @@ import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { getOrderOrThrow } from "@/db/orders/reads";
 import { updateOrder } from "@/db/orders/commands";
-import { actorCan } from "@/lib/auth/api-scopes";
 import { requireUser } from "@/app/_server/session";
 import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { updateOrderSchema } from "@/lib/parts/schemas";
@@ -24,7 +23,7 @@ export async function PATCH(req: Request, ctx: IdContext) {
     const user = await requireUser("orders:write");
     const id = await readId(ctx, "Order");
     const input = updateOrderSchema.parse(await readJson(req));
-    const order = await updateOrder(getDb(), id, input, { canPrioritize: actorCan(user, "orders:prioritize") });
+    const order = await updateOrder(getDb(), id, input, user.role);
     return NextResponse.json({ order });
   } catch (err) {
     return toErrorResponse(err);

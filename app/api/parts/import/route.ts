@@ -13,7 +13,7 @@ export async function POST(req: Request) {
     const user = await requireUser("parts:write");
     if (!actorCan(user, "orders:write")) throw new AppError("forbidden", "Importing creates orders, which your role may not do.");
     const input = importSchema.parse(await readJson(req));
-    const outcome = await getDb().transaction().execute((trx) => importPartRows(trx, input, user.id));
+    const outcome = await getDb().transaction().execute((trx) => importPartRows(trx, input, user));
     if (!input.dry_run && input.mode === "all" && outcome.invalid > 0) {
       return NextResponse.json(
         { error: { code: "invalid", message: `${outcome.invalid} of ${input.rows.length} rows have errors; nothing was imported.`, details: outcome } },

@@ -28,7 +28,7 @@ export default async function WashBatchPage({ params }: { params: Promise<{ id: 
           </Link>
         }
       />
-      <div className="space-y-4 px-8 py-6">
+      <div className="space-y-4 px-4 md:px-8 py-6">
         <Cautions topic="wash" />
         <WashView batchId={id} role={user.role} timeZone={timeZone} />
       </div>

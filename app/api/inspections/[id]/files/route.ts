@@ -1,6 +1,6 @@
 import { createHash, randomUUID } from "node:crypto";
 import { NextResponse } from "next/server";
-import { DeleteObjectCommand, PutObjectCommand } from "@aws-sdk/client-s3";
+import { PutObjectCommand } from "@aws-sdk/client-s3";
 import { getDb } from "@/db/client";
 import { findInspection } from "@/db/inspections/reads";
 import { insertInspectionFile } from "@/db/inspections/commands";
@@ -10,7 +10,7 @@ import { AppError } from "@/lib/errors";
 import { checkAttachment, safeFilename } from "@/lib/finishing/attachments";
 import { ATTACHMENT_MAX_BYTES } from "@/lib/finishing/schemas";
 import { toErrorResponse } from "@/app/_server/errors";
-import { getS3 } from "@/adapters/storage/s3";
+import { deleteObjectQuietly, getS3 } from "@/adapters/storage/s3";
 
 // POST /api/inspections/[id]/files – attach a photo (JPEG, PNG, WebP) or a PDF report, multipart field "file" (machinist, admin)
 export async function POST(req: Request, { params }: { params: Promise<{ id: string }> }) {
@@ -40,13 +40,20 @@ export async function POST(req: Request, { params }: { params: Promise<{ id: str
     const objectKey = `inspections/${id}/${randomUUID()}-${filename}`;
     const sha256 = createHash("sha256").update(bytes).digest("hex");
     const s3 = getS3();
-    await s3.send(new PutObjectCommand({ Bucket: bucket, Key: objectKey, Body: bytes, ContentType: contentType, ContentLength: bytes.byteLength }));
+    // Stored before the row, outside any transaction; a store that hangs is given up after the
+    // client's timeouts (adapters/storage/s3.ts) and holds no database connection meanwhile.
+    try {
+      await s3.send(new PutObjectCommand({ Bucket: bucket, Key: objectKey, Body: bytes, ContentType: contentType, ContentLength: bytes.byteLength }));
+    } catch (err) {
+      console.error("[storage] put failed:", err instanceof Error ? err.message : err);
+      throw new AppError("unavailable", "File storage did not answer; nothing was stored. Try again in a moment.");
+    }
     try {
       const row = await insertInspectionFile(db, id, { bucket, object_key: objectKey, filename, content_type: contentType, size_bytes: bytes.byteLength, sha256 }, user.id);
       return NextResponse.json(row, { status: 201 });
     } catch (err) {
       // The record did not land: take the object back out so nothing is left half-stored.
-      await s3.send(new DeleteObjectCommand({ Bucket: bucket, Key: objectKey })).catch(() => undefined);
+      await deleteObjectQuietly(bucket, objectKey);
       throw err;
     }
   } catch (err) {
