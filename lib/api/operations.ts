@@ -5,6 +5,7 @@
 // when a handler is missing here, or when the schema it parses is not the object listed for it.
 import type { z } from "zod";
 import type { Permission } from "@/lib/auth/permissions";
+import * as activitySchemas from "@/lib/activity/schemas";
 import * as authApiScopes from "@/lib/auth/api-scopes";
 import * as authSchemas from "@/lib/auth/schemas";
 import * as batchesSchemas from "@/lib/batches/schemas";
@@ -45,6 +46,8 @@ export type ApiOperation = {
 const op = (method: ApiMethod, path: string, gate: ApiGate, summary: string, more: Partial<ApiOperation> = {}): ApiOperation => ({ method, path, gate, summary, ...more });
 
 export const API_OPERATIONS: readonly ApiOperation[] = [
+  op("GET", "/api/activity", "activity:read", "the newest 500 recorded changes matching the filters, with the total (manager, admin)", { query: activitySchemas.activityFilterSchema, answers: ["events", "total"] }),
+  op("GET", "/api/activity/export", "activity:read", "the matching changes as CSV, formula-safe, newest first (manager, admin)", { query: activitySchemas.activityFilterSchema }),
   op("GET", "/api/api-tokens", "users:admin", "every token with its scopes, expiry, last use; never the token (admin)", { answers: ["tokens"] }),
   op("POST", "/api/api-tokens", "users:admin", "create a token; the answer holds the token, shown this once (admin)", { body: authApiScopes.createApiTokenSchema, answers: ["token"], status: 201 }),
   op("DELETE", "/api/api-tokens/[id]", "users:admin", "revoke a token; it stops working on its next request (admin)", { answers: ["token"] }),

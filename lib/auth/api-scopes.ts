@@ -33,6 +33,11 @@ export const API_SCOPES = {
     hint: "Receive, release and recall feedstock lots; record consumables.",
     permissions: ["inventory:write", "inventory:recall", "consumables:write"],
   },
+  "activity:read": {
+    label: "Read the activity log",
+    hint: "Read who changed what and when, and export it.",
+    permissions: ["activity:read"],
+  },
   "quotes:read": {
     label: "Read quotes",
     hint: "Read quotes, their prices and promise dates, and the quoting rates.",

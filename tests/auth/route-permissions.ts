@@ -41,6 +41,8 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/users/[id]": { GET: "users:admin", PATCH: "users:admin" },
   "/api/users/[id]/link": { POST: "users:admin" },
   "/api/openapi.json": { GET: "signed_in" },
+  "/api/activity": { GET: "activity:read" },
+  "/api/activity/export": { GET: "activity:read" },
   "/api/api-tokens": { GET: "users:admin", POST: "users:admin" },
   "/api/api-tokens/[id]": { DELETE: "users:admin" },
   "/api/webhooks": { GET: "setup:write", POST: "setup:write" },

@@ -13,6 +13,7 @@ import { runOutsideScript } from "./outside-script";
 const receiver = process.env.WEBHOOK_RECEIVER_URL ?? `http://127.0.0.1:${process.env.WEBHOOK_RECEIVER_PORT ?? 2527}`;
 const { db, close } = testDb();
 let restoreHours: () => Promise<void>;
+let restoreDrying: () => Promise<void>;
 let admin: string;
 const made = { printers: [] as string[], furnaces: [] as string[], stations: [] as string[], materials: [] as string[] };
 let shop: { printer: string; washStation: string; furnace: string; material: string };
@@ -44,6 +45,10 @@ async function oneMinuteProfileAndMaterial() {
 beforeAll(async () => {
   admin = await signIn(DEMO.admin);
   restoreHours = await staffAroundTheClock(db);
+  // Washed units dry before they count as brown; this shop dries them at once, so the run can be loaded.
+  const before = await db.selectFrom("shop_settings").select("drying_minutes").where("id", "=", 1).executeTakeFirstOrThrow();
+  await db.updateTable("shop_settings").set({ drying_minutes: 0 }).where("id", "=", 1).execute();
+  restoreDrying = async () => void (await db.updateTable("shop_settings").set({ drying_minutes: before.drying_minutes }).where("id", "=", 1).execute());
   const { profile_id, material_code } = await oneMinuteProfileAndMaterial();
   made.materials.push(material_code);
   const printer = await makePrinter(db, { materials: [material_code] });
@@ -61,6 +66,7 @@ afterAll(async () => {
   await retireEquipment(db, made.furnaces, made.stations);
   await retireMaterials(db, made.materials);
   await restoreHours();
+  await restoreDrying();
   await close();
 });
 

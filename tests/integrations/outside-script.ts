@@ -144,10 +144,15 @@ export async function runOutsideScript(cfg: OutsideConfig, opts: { waitMs: numbe
     body: { version: wash.version, masses: units.map((u) => ({ unit_id: u.id, green_mass_g: 50, brown_mass_g: Math.round(50 * (1 - loss) * 10) / 10 })) },
   }), "batch");
 
-  // Into the furnace: the loading checklist's items are the ones the description requires.
-  units = await unitsNow();
+  // Into the furnace once the washed units count as brown (after the shop's drying time).
+  const dryBy = Date.now() + opts.waitMs;
+  while ((units = await unitsNow()).some((u) => u.state !== "brown")) {
+    if (Date.now() > dryBy) throw new Error(`units not brown: ${units.map((u) => u.state).join(", ")}`);
+    await new Promise((r) => setTimeout(r, 1000));
+  }
   let run = one(await api.call("postFurnaceRuns", { body: { furnace_id: furnace.id, profile_id: material.default_profile_id, notes: "" } }), "run");
   for (const u of units) run = one(await api.call("postFurnaceRunsByIdUnits", { params: { id: run.id }, body: { version: run.version, unit_id: u.id, unit_version: u.version } }), "run");
+  // The loading checklist's items are the ones the description requires.
   const checklistSchema = (api.bodySchema("postFurnaceRunsByIdStart")!.properties as Record<string, { required?: string[] }>).checklist;
   const checklist = Object.fromEntries((checklistSchema.required ?? []).map((k) => [k, true]));
   run = one(await api.call("postFurnaceRunsByIdStart", { params: { id: run.id }, body: { version: run.version, checklist } }), "run");

@@ -10,7 +10,7 @@ import { API_SCOPE_NAMES } from "@/lib/auth/api-scopes";
 import type { Role } from "@/lib/auth/permissions";
 import { appUrl } from "../helpers/browser";
 import { testDb } from "../helpers/db";
-import { rawRequest } from "../helpers/raw-request";
+import { rawRequest, type RawResponse } from "../helpers/raw-request";
 import { signIn } from "../helpers/session";
 import { apiRoutes, type HttpMethod } from "../helpers/routes";
 
@@ -141,7 +141,7 @@ describe("no route answers hostile input with a 5xx", () => {
           headers["content-type"] = job.body[1];
           headers["content-length"] = String(Buffer.byteLength(job.body[0]));
         }
-        const res = await rawRequest(appUrl(), job.path, headers, job.method, job.body?.[0]);
+        const res = await rawRequest(appUrl(), job.path, headers, job.method, job.body?.[0]).catch((err: Error): RawResponse => ({ status: 0, headers: {}, bytes: Buffer.from(`(${err.message})`) }));
         if (res.status >= 500 || res.status === 0) failures.push(`${res.status} ${job.caller} ${job.method} ${job.path.slice(0, 120)} ${job.body ? job.body[0].slice(0, 60) : ""} → ${res.bytes.toString().slice(0, 160)}`);
         // Signing out ends the throwaway's session: sign in again, once per ended cookie (parallel
         // sign-ins of one account would count as guesses and be throttled).
