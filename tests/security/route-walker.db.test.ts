@@ -104,13 +104,16 @@ describe("no route answers hostile input with a 5xx", () => {
       for (const method of r.methods) {
         for (const caller of CALLERS) {
           const full = caller === "admin";
+          // The token goes through the same handlers as the admin's cookie: one bad segment, one
+          // bad query or body is enough to walk its own path (and keeps the walk inside its time).
+          const few = caller === "token";
           const paths = fills(r.pattern);
-          for (const p of full ? paths : paths.slice(0, 2)) jobs.push({ caller, method, path: p });
+          for (const p of full ? paths : paths.slice(0, few ? 1 : 2)) jobs.push({ caller, method, path: p });
           const base = paths[paths.length - 1].replace(/[A-F0-9-]{36}/g, () => randomUUID());
           if (method === "GET" || method === "HEAD") {
             for (const q of full ? QUERIES : QUERIES.slice(1, 2)) jobs.push({ caller, method, path: base + q });
           } else {
-            for (const b of full ? BODIES : FEWER_BODIES) jobs.push({ caller, method, path: base, body: b });
+            for (const b of full ? BODIES : few ? FEWER_BODIES.slice(0, 1) : FEWER_BODIES) jobs.push({ caller, method, path: base, body: b });
           }
         }
       }
