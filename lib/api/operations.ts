@@ -47,6 +47,9 @@ const op = (method: ApiMethod, path: string, gate: ApiGate, summary: string, mor
 
 export const API_OPERATIONS: readonly ApiOperation[] = [
   op("GET", "/api/activity", "activity:read", "the newest 500 recorded changes matching the filters, with the total (manager, admin)", { query: activitySchemas.activityFilterSchema, answers: ["events", "total"] }),
+  op("GET", "/api/orders/export", "shop:read", "every order the list's filters and sort select, as formula-safe CSV (every role)", { query: partsSchemas.listOrdersSchema }),
+  op("GET", "/api/parts/export", "shop:read", "every part the list's filters and sort select, as formula-safe CSV (every role)", { query: partsSchemas.listPartsSchema }),
+  op("GET", "/api/units/export", "shop:read", "every unit the list's filters select, with its build, wash and furnace run, as formula-safe CSV (every role)", { query: partsSchemas.listUnitsSchema }),
   op("GET", "/api/activity/export", "activity:read", "the matching changes as CSV, formula-safe, newest first (manager, admin)", { query: activitySchemas.activityFilterSchema }),
   op("GET", "/api/api-tokens", "users:admin", "every token with its scopes, expiry, last use; never the token (admin)", { answers: ["tokens"] }),
   op("POST", "/api/api-tokens", "users:admin", "create a token; the answer holds the token, shown this once (admin)", { body: authApiScopes.createApiTokenSchema, answers: ["token"], status: 201 }),
