@@ -108,6 +108,8 @@ export const API_OPERATIONS: readonly ApiOperation[] = [
   op("POST", "/api/inventory/lots", "inventory:write", "receive a lot into quarantine (technician, manager, admin)", { body: inventorySchemas.receiveLotSchema, answers: ["lot"], status: 201 }),
   op("GET", "/api/inventory/lots/[id]", "shop:read", "one lot with every unit and order it reached (every role)", { answers: ["genealogy","lot"] }),
   op("PATCH", "/api/inventory/lots/[id]", "inventory:write", "release, reject or requarantine, count what is left, notes, expiry, certificate; with its version (technician, manager, admin)", { body: inventorySchemas.updateLotSchema, answers: ["lot"] }),
+  op("GET", "/api/inventory/lots/[id]/certificate", "shop:read", "the lot's certificate of analysis, streamed from object storage (every role)"),
+  op("POST", "/api/inventory/lots/[id]/certificate", "inventory:write", "attach (or replace) the certificate of analysis: the raw file as the body, its type in Content-Type (PDF, JPEG, PNG, WebP), its name in x-filename, optionally ?version= of the lot as loaded (technician, manager, admin)", { query: inventorySchemas.certificateQuerySchema, answers: ["file", "lot"], status: 201 }),
   op("GET", "/api/inventory/lots/[id]/genealogy", "shop:read", "every unit the lot reached, with its path and order, as CSV (every role)"),
   op("GET", "/api/inventory/lots/[id]/label", "shop:read", "the container label PDF with a QR code that opens the lot (every role)"),
   op("POST", "/api/inventory/lots/[id]/recall", "inventory:recall", "hold every unit printed from the lot that is still in the shop; lists the rest (?format=csv for a file) (manager, admin)", { body: inventorySchemas.recallSchema }),
