@@ -57,6 +57,24 @@ export type UnitSystem = "in" | "mm";
 
 export type UserRole = "admin" | "furnace_operator" | "machinist" | "manager" | "technician";
 
+export interface ApiTokens {
+  created_at: Generated<Timestamp>;
+  created_by: string;
+  expires_at: Timestamp | null;
+  id: Generated<string>;
+  last_used_at: Timestamp | null;
+  last_used_from: string | null;
+  name: string;
+  rate_limit_per_minute: Generated<number>;
+  revoked_at: Timestamp | null;
+  revoked_by: string | null;
+  scopes: string[];
+  token_hash: string;
+  token_hint: string;
+  window_count: Generated<number>;
+  window_started_at: Timestamp | null;
+}
+
 export interface AuthTokens {
   created_at: Generated<Timestamp>;
   created_by: string | null;
@@ -648,6 +666,55 @@ export interface WashStations {
   version: Generated<number>;
 }
 
+export type WebhookDeliveryState = "delivered" | "failed" | "pending" | "sending";
+
+export interface WebhookAttempts {
+  attempted_at: Generated<Timestamp>;
+  delivery_id: string;
+  duration_ms: number;
+  error: string | null;
+  id: Generated<number>;
+  status: number | null;
+}
+
+export interface WebhookDeliveries {
+  attempts: Generated<number>;
+  created_at: Generated<Timestamp>;
+  delivered_at: Timestamp | null;
+  endpoint_id: string;
+  event_id: string;
+  id: Generated<string>;
+  last_error: string | null;
+  last_status: number | null;
+  lease_until: Timestamp | null;
+  next_attempt_at: Generated<Timestamp>;
+  state: Generated<WebhookDeliveryState>;
+}
+
+export interface WebhookEndpoints {
+  active: Generated<boolean>;
+  created_at: Generated<Timestamp>;
+  created_by: string | null;
+  description: Generated<string>;
+  events: string[];
+  failing_since: Timestamp | null;
+  id: Generated<string>;
+  pause_mailed_at: Timestamp | null;
+  paused_at: Timestamp | null;
+  secret: string;
+  url: string;
+  version: Generated<number>;
+}
+
+export interface WebhookEvents {
+  created_at: Generated<Timestamp>;
+  entity: string;
+  entity_id: string | null;
+  id: Generated<string>;
+  payload: Json;
+  type: string;
+}
+
 export interface WorkerHeartbeats {
   beat_at: Generated<Timestamp>;
   host: string;
@@ -669,6 +736,7 @@ export interface WorkerSweeps {
 }
 
 export interface DB {
+  api_tokens: ApiTokens;
   auth_tokens: AuthTokens;
   batch_proposals: BatchProposals;
   builds: Builds;
@@ -708,6 +776,10 @@ export interface DB {
   users: Users;
   wash_batches: WashBatches;
   wash_stations: WashStations;
+  webhook_attempts: WebhookAttempts;
+  webhook_deliveries: WebhookDeliveries;
+  webhook_endpoints: WebhookEndpoints;
+  webhook_events: WebhookEvents;
   worker_heartbeats: WorkerHeartbeats;
   worker_sweeps: WorkerSweeps;
 }
