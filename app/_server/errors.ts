@@ -5,7 +5,6 @@ import { logger } from "@/adapters/log/logger";
 import { currentRequest } from "./request-context";
 import { appErrorFromDatabase } from "@/lib/db-errors";
 import { getEnv } from "@/lib/env";
-import { readCappedBody } from "./capped-body";
 import { checkJsonShape, isJsonContentType } from "@/lib/http/json-body";
 
 // Seconds a client (or a load balancer) is asked to wait before trying again after a 503.
@@ -28,6 +27,9 @@ export function toErrorResponse(err: unknown): NextResponse<ErrorBody> {
   const headers: Record<string, string> = {};
   if (id) headers["x-request-id"] = id;
   if (status === 503) headers["retry-after"] = String(RETRY_AFTER_SECONDS);
+  // RFC 9110 §10.2.3: a 429 that knows the wait says it in Retry-After (seconds).
+  const wait = err instanceof AppError && status === 429 ? Number(err.details?.retry_after_s) : NaN;
+  if (Number.isFinite(wait) && wait > 0) headers["retry-after"] = String(Math.ceil(wait));
   return NextResponse.json({ error: id ? { ...error, request_id: id } : error }, { status, headers });
 }
 
@@ -76,10 +78,26 @@ function mapError(err: unknown, requestId: string | undefined): Mapped {
   return { status: 500, error: { code: "internal", message: "Something went wrong on our side; nothing was changed." } };
 }
 
-/** Reads the body as text, refusing more than `max` bytes before reading the rest (413). */
+/** Reads the body's bytes, refusing more than `max` before reading the rest (413). */
 async function readCapped(req: Request, max: number): Promise<string> {
   const tooLarge = () => new AppError("payload_too_large", `The request body is larger than ${max} bytes.`, undefined, { max_bytes: max });
-  return new TextDecoder().decode(await readCappedBody(req, max, tooLarge));
+  const declared = Number(req.headers.get("content-length"));
+  if (Number.isFinite(declared) && declared > max) throw tooLarge();
+  if (!req.body) return "";
+  const reader = req.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let size = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    size += value.byteLength;
+    if (size > max) {
+      await reader.cancel().catch(() => undefined);
+      throw tooLarge();
+    }
+    chunks.push(value);
+  }
+  return new TextDecoder().decode(Buffer.concat(chunks));
 }
 
 /**
