@@ -78,15 +78,36 @@ function appPages(): string[] {
     .map((f) => "/" + path.dirname(f).split(path.sep).filter((seg) => seg !== "." && !/^\(.*\)$/.test(seg)).join("/"));
 }
 
-/** Waits until the page's client data has arrived: the network quiet and no "Loading" line left. */
-async function settle(page: Page) {
-  await page.waitForLoadState("networkidle", { timeout: 8_000 }).catch(() => undefined);
+/**
+ * Requests in flight on a page, leaving out the live event stream: it stays open as long as the
+ * page does, so Playwright's "networkidle" never comes on a live page and would cost its whole
+ * timeout on each of them.
+ */
+function trackRequests(page: Page): () => number {
+  const open = new Set<unknown>();
+  const counts = (url: string) => !url.includes("/api/events");
+  page.on("request", (r) => counts(r.url()) && open.add(r));
+  page.on("requestfinished", (r) => open.delete(r));
+  page.on("requestfailed", (r) => open.delete(r));
+  return () => open.size;
+}
+
+/** Waits until the page's client data has arrived: no request in flight for 500 ms and no "Loading" line left. */
+async function settle(page: Page, inFlight: () => number) {
+  await page.waitForLoadState("load", { timeout: 15_000 }).catch(() => undefined);
+  const until = Date.now() + 8_000;
+  let quietSince = Date.now();
+  while (Date.now() < until) {
+    if (inFlight() > 0) quietSince = Date.now();
+    else if (Date.now() - quietSince >= 500) break;
+    await page.waitForTimeout(50);
+  }
   await page
     .waitForFunction(() => ![...document.querySelectorAll("main p, main div")].some((n) => n.childElementCount === 0 && /^Loading/.test(n.textContent ?? "")), undefined, { timeout: 15_000 })
     .catch(() => undefined);
 }
 
-const shotName = (role: string, width: Width, path: string) => `${width}-${role}-${path.replace(/^\//, "").replace(/[0-9a-f]{8}-[0-9a-f-]{27}/g, "id").replace(/\//g, "_") || "home"}`;
+const shotName = (role: string, width: Width, path: string) => `${width}-${role}-${path.replace(/\?.*$/, "").replace(/^\//, "").replace(/[0-9a-f]{8}-[0-9a-f-]{27}/g, "id").replace(/\//g, "_") || "home"}`;
 
 async function contextFor(role: Role | null, width: Width): Promise<BrowserContext> {
   const ctx = await browser.newContext({ ...WIDTHS[width] });
@@ -103,12 +124,13 @@ async function visitAll(role: Role | null, width: Width, paths: string[], opts: 
   const ctx = await contextFor(role, width);
   const page = await ctx.newPage();
   page.setDefaultTimeout(30_000);
+  const inFlight = trackRequests(page);
   const problems: Problem[] = [];
   try {
     for (const path of paths) {
       const res = await page.goto(`${appUrl()}${path}`, { waitUntil: "domcontentloaded" });
       expect(res?.status(), `${path} as ${role}`).toBeLessThan(400);
-      await settle(page);
+      await settle(page, inFlight);
       if (opts.overflow) {
         const { scrollWidth, innerWidth } = await page.evaluate(() => ({ scrollWidth: document.scrollingElement!.scrollWidth, innerWidth: window.innerWidth }));
         if (scrollWidth > innerWidth) problems.push({ page: path, what: `scrolls sideways: ${scrollWidth} px wide in a ${innerWidth} px window` });
