@@ -195,7 +195,7 @@ export const section: BenchSection = {
   name: "live",
   run: async () => {
     const rows: BenchRow[] = [];
-    const { url, drop } = await freshDatabase("hearth_bench_live");
+    const { url, drop } = await freshDatabase(process.env.HEARTH_BENCH_LIVE_DB ?? "hearth_bench_live");
     const { db } = createDb(url, 4);
     let procs: Proc[] = [];
     const streams: EventStream[] = [];

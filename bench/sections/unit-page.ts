@@ -17,7 +17,7 @@ import { launchChromium } from "../../scripts/chromium";
 import { ensureBuild } from "../floor-bench";
 import type { BenchRow, BenchSection } from "../types";
 
-const DB_NAME = "hearth_bench_unit";
+const DB_NAME = process.env.HEARTH_BENCH_UNIT_DB ?? "hearth_bench_unit";
 const PORT = Number(process.env.HEARTH_BENCH_UNIT_PORT ?? 3161);
 const RUNS = 5;
 const r1 = (x: number) => Math.round(x * 10) / 10;
