@@ -43,19 +43,28 @@ function closeWhenDue(req: http.IncomingMessage, res: http.ServerResponse, stopp
   res.writeHead = function (this: http.ServerResponse, ...args: Parameters<typeof writeHead>) {
     const hasBody = req.headers["transfer-encoding"] !== undefined || Number(req.headers["content-length"] ?? 0) > 0;
     if (hasBody && !req.complete) {
-      // A lingering close, as nginx does: Node goes on reading and dropping what the client is
-      // still sending, so that it can read this answer instead of failing on a reset (EPIPE);
-      // a client that stopped sending loses the connection a moment later instead of hanging
-      // on it until the server's timeouts.
-      res.once("finish", () => {
-        if (req.complete) return;
-        const linger = setTimeout(() => req.socket.destroy(), LINGER_MS);
-        linger.unref();
-        req.once("end", () => {
-          clearTimeout(linger);
-          req.socket.end();
-        });
-      });
+      // A lingering close, as nginx does. The answer says "Connection: close" so that no client
+      // sends another request on this connection; when the answer is out, Node would close at
+      // once and reset a client still sending its body (EPIPE before it reads the answer). So
+      // the close here sends FIN only and goes on reading and dropping until the client hangs up
+      // or LINGER_MS pass (a client that stopped sending is cut off then, not left hanging).
+      // The socket is the answer's: Next.js may already have destroyed the request stream (and
+      // with it req.socket) when the handler answered without reading the body.
+      const socket = res.socket;
+      res.shouldKeepAlive = false;
+      if (socket) {
+        socket.destroySoon = function lingeringClose(this: typeof socket) {
+          this.end();
+          const cut = setTimeout(() => this.destroy(), LINGER_MS);
+          cut.unref();
+          this.once("end", () => {
+            clearTimeout(cut);
+            this.destroy();
+          });
+          this.on("data", () => {});
+          this.resume();
+        };
+      }
     } else if (stopping()) {
       res.shouldKeepAlive = false;
     }

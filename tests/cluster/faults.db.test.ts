@@ -139,6 +139,27 @@ describe("an upload over the limit sent in chunks", () => {
   });
 });
 
+describe("an upload over the limit sent whole", () => {
+  it("is answered 413 that the client reads, not a reset, and the next request on a new connection is answered", async () => {
+    const cookie = await signInAt(HUNG_APP);
+    const part = await newPart();
+    // Eight megabytes against a one-megabyte limit, sent as fast as the client can: the answer
+    // comes long before the body is through.
+    for (let i = 0; i < 3; i++) {
+      const res = await fetch(`http://127.0.0.1:${HUNG_APP}/api/parts/${part.id}/geometry`, {
+        method: "POST",
+        headers: { cookie, "content-type": "application/octet-stream", "x-filename": "big.stl" },
+        body: Buffer.alloc(8 * 1024 * 1024, 7),
+      });
+      expect(res.status).toBe(413);
+      expect(res.headers.get("connection")).toBe("close");
+      expect((await res.json()).error).toBeTruthy();
+      const after = await fetch(`http://127.0.0.1:${HUNG_APP}/api/parts/${part.id}`, { headers: { cookie } });
+      expect(after.status).toBe(200);
+    }
+  });
+});
+
 describe("a large upload", () => {
   it("streams to the store: a 95 MB STL, twenty-four times the parse buffer, is stored whole while the app's peak memory rises by less than half the file", async () => {
     const cookie = await signInAt(ROOMY_APP);
