@@ -44,17 +44,21 @@ const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 class Recorder {
   times = new Map<string, number[]>();
   errors = new Map<string, number>();
+  /** What each failed request answered: "label: status" or "label: the fetch's error". */
+  reasons = new Map<string, number>();
   started = performance.now();
   async get(base: string, path: string, cookie: string, label: string): Promise<unknown> {
     const t0 = performance.now();
     try {
       const res = await fetch(`${base}${path}`, { headers: { cookie, "accept-encoding": "gzip, deflate, br" } });
       const text = await res.text();
-      if (res.status !== 200) throw new Error(`${res.status}`);
+      if (res.status !== 200) throw new Error(`${res.status} ${text.slice(0, 100)}`);
       this.add(label, performance.now() - t0);
       return JSON.parse(text);
-    } catch {
+    } catch (err) {
       this.errors.set(label, (this.errors.get(label) ?? 0) + 1);
+      const why = `${label}: ${err instanceof Error ? `${err.message}${err.cause instanceof Error ? ` (${err.cause.message})` : ""}` : String(err)}`;
+      this.reasons.set(why, (this.reasons.get(why) ?? 0) + 1);
       return null;
     }
   }
@@ -340,7 +344,7 @@ export const section: BenchSection = {
         const everything = all.flatMap(([, v]) => v);
         const errors = [...rec.errors.entries()].filter(([k]) => k !== "health").reduce((s, [, v]) => s + v, 0);
         const moveErrorKinds = Object.fromEntries([...new Set(moveErrors)].map((e) => [e, moveErrors.filter((x) => x === e).length]));
-        rows.push({ section: "live", name: `shift: ${PEOPLE} people × 3 pages (${PEOPLE * 3} streams) + ${MOVERS} moving bookings, ${SHIFT_S} s`, metric: "requests/s", value: r1(total / elapsed), detail: { requests: total, errors, move_errors: moveErrorKinds, open_streams_during: live?.live?.open_streams ?? null, load_average_1m: r1(os.loadavg()[0]) } });
+        rows.push({ section: "live", name: `shift: ${PEOPLE} people × 3 pages (${PEOPLE * 3} streams) + ${MOVERS} moving bookings, ${SHIFT_S} s`, metric: "requests/s", value: r1(total / elapsed), detail: { requests: total, errors, move_errors: moveErrorKinds, read_errors: Object.fromEntries(rec.reasons), open_streams_during: live?.live?.open_streams ?? null, load_average_1m: r1(os.loadavg()[0]) } });
         rows.push({ section: "live", name: "shift: every endpoint together", metric: "p95 ms", value: r1(pct(everything, 95)), target: "≤ 150", ok: pct(everything, 95) <= 150 && errors === 0 });
         for (const [label, times] of all) {
           const p95 = pct(times, 95);
