@@ -7,7 +7,7 @@
 // Server time is the whole call: loading the units and the shop, projecting each unit, the
 // furnace planner (tray packer + booking), and storing the proposal. Targets: < 1 s and
 // runs / lower bound ≤ 1.02 (mean over the seeds, as the packing section reports it).
-import pg from "pg";
+import { freshDatabase } from "./fresh-database";
 import { sql } from "kysely";
 import { createDb, type Database } from "@/db/client";
 import { proposeBatches } from "@/db/batches/commands";
@@ -24,22 +24,6 @@ const REPEATS = 3;
 const round = (x: number, d = 3) => Math.round(x * 10 ** d) / 10 ** d;
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
-async function freshDatabase(): Promise<string> {
-  const base = new URL(process.env.DATABASE_URL ?? "postgres://postgres@127.0.0.1:54329/hearth");
-  const admin = new URL(base);
-  admin.pathname = "/postgres";
-  const c = new pg.Client({ connectionString: admin.toString() });
-  await c.connect();
-  try {
-    await c.query(`drop database if exists "${DB_NAME}" with (force)`);
-    await c.query(`create database "${DB_NAME}"`);
-  } finally {
-    await c.end();
-  }
-  const url = new URL(base);
-  url.pathname = `/${DB_NAME}`;
-  return url.toString();
-}
 
 /** The bench furnaces in place of the demo's, with the profiles of the same codes. */
 async function setUpShop(db: Database): Promise<Map<string, string>> {
@@ -96,7 +80,7 @@ async function writeUnits(db: Database, seed: number, materialByProfile: Map<str
 }
 
 export async function runBatchesBench(): Promise<BenchRow[]> {
-  const url = await freshDatabase();
+  const { url } = await freshDatabase(DB_NAME);
   const { db } = createDb(url, 4);
   const rows: BenchRow[] = [];
   try {

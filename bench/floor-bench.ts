@@ -14,7 +14,7 @@ import os from "node:os";
 import { createRequire } from "node:module";
 import path from "node:path";
 import { spawnSync } from "node:child_process";
-import pg from "pg";
+import { freshDatabase as freshNamedDatabase } from "./fresh-database";
 import { sql } from "kysely";
 import { createDb, type Database } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
@@ -51,25 +51,9 @@ const pct = (xs: number[], p: number) => {
 };
 const r1 = (x: number) => Math.round(x * 10) / 10;
 
-export async function freshDatabase(dbName = DB_NAME): Promise<{ url: string; drop: () => Promise<void> }> {
-  const base = new URL(process.env.DATABASE_URL ?? "postgres://postgres@127.0.0.1:54329/hearth");
-  const admin = new URL(base);
-  admin.pathname = "/postgres";
-  const run = async (q: string) => {
-    const c = new pg.Client({ connectionString: admin.toString() });
-    await c.connect();
-    try {
-      await c.query(q);
-    } finally {
-      await c.end();
-    }
-  };
-  await run(`drop database if exists "${dbName}" with (force)`);
-  await run(`create database "${dbName}"`);
-  const url = new URL(base);
-  url.pathname = `/${dbName}`;
-  return { url: url.toString(), drop: () => run(`drop database if exists "${dbName}" with (force)`) };
-}
+
+/** The floor bench's database (or another name: the live and backup benches reuse the floor's seeding). */
+export const freshDatabase = (dbName = DB_NAME) => freshNamedDatabase(dbName);
 
 /** The floor's week around an instant: Sunday to Sunday in the shop's zone, as its week view shows it. */
 const weekAround = (t: number, timeZone: string) => openingWeek(timeZone, new Date(t));

@@ -52,3 +52,17 @@ export const boundedInstant = (message = "a date and time with its offset, e.g. 
 /** A Date (coerced from a string or a number) within the planning years. */
 export const boundedDate = (message = "give a date and time") =>
   z.coerce.date({ error: message }).refine((d) => inPlanningYears(d.getTime()), YEAR_MESSAGE);
+
+/**
+ * A calendar day as YYYY-MM-DD (ISO 8601 extended calendar date), real (no 31 April) and within
+ * the planning years: for a date column, a day that belongs to no time zone (received, expires).
+ */
+export const calendarDay = (what = "the date") =>
+  z
+    .string({ error: `${what} must be a date (YYYY-MM-DD)` })
+    .regex(/^\d{4}-\d{2}-\d{2}$/, `${what} must be a date (YYYY-MM-DD)`)
+    .refine((d) => {
+      const t = Date.parse(`${d}T00:00:00Z`);
+      return !Number.isNaN(t) && new Date(t).toISOString().startsWith(d);
+    }, `${what} is not a real date`)
+    .refine((d) => inPlanningYears(Date.parse(`${d}T00:00:00Z`)), `${what}: ${YEAR_MESSAGE}`);

@@ -29,6 +29,7 @@ const instance = process.env.HEARTH_INSTANCE || `${hostname}:${port}`;
 const graceMs = Number(process.env.HEARTH_STOP_GRACE_MS ?? 10_000);
 // How long an answer given before the request's body was read keeps reading (and dropping) it.
 const LINGER_MS = 500;
+const LINGER_MAX_MS = 30_000;
 
 /**
  * Answers that must end their connection: one given before the request's body was read to its
@@ -55,13 +56,29 @@ function closeWhenDue(req: http.IncomingMessage, res: http.ServerResponse, stopp
       if (socket) {
         socket.destroySoon = function lingeringClose(this: typeof socket) {
           this.end();
-          const cut = setTimeout(() => this.destroy(), LINGER_MS);
-          cut.unref();
-          this.once("end", () => {
-            clearTimeout(cut);
-            this.destroy();
+          // Node's HTTP parser stops reading once the request stream it feeds is gone; take the
+          // socket from it and drop what comes, cutting the connection LINGER_MS after the last
+          // byte (LINGER_MAX_MS at the most), as nginx's lingering_timeout and lingering_time do.
+          const parser = (this as unknown as { parser?: { _consumed?: boolean; unconsume?: () => void } }).parser;
+          if (parser?._consumed && parser.unconsume) {
+            parser.unconsume();
+            parser._consumed = false;
+          }
+          this.removeAllListeners("data");
+          const until = setTimeout(() => this.destroy(), LINGER_MAX_MS);
+          until.unref();
+          let idle = setTimeout(() => this.destroy(), LINGER_MS);
+          idle.unref();
+          this.on("data", () => {
+            clearTimeout(idle);
+            idle = setTimeout(() => this.destroy(), LINGER_MS);
+            idle.unref();
           });
-          this.on("data", () => {});
+          this.once("close", () => {
+            clearTimeout(idle);
+            clearTimeout(until);
+          });
+          this.once("end", () => this.destroy());
           this.resume();
         };
       }

@@ -2,6 +2,7 @@ import { DeleteObjectCommand, ListObjectsV2Command } from "@aws-sdk/client-s3";
 import type { Database } from "@/db/client";
 import { listKnownObjectKeys } from "@/db/files/reads";
 import { getEnv } from "@/lib/env";
+import { CERTIFICATE_PREFIX } from "@/lib/inventory/certificate";
 import { getS3 } from "@/adapters/storage/s3";
 
 // The object store and the files table cannot change in one transaction: an upload stores its
@@ -9,7 +10,7 @@ import { getS3 } from "@/adapters/storage/s3";
 // dies between the two, or the store refused the delete, an object is left that no row names.
 // This pass removes such objects once they are older than any upload still in progress could be.
 
-export const ORPHAN_PREFIXES = ["geometry/", "inspections/"];
+export const ORPHAN_PREFIXES = ["geometry/", "inspections/", CERTIFICATE_PREFIX];
 
 export type OrphanSweepResult = { listed: number; deleted: string[] };
 

@@ -5,12 +5,12 @@
 // builds of five units (5,000 units). Timed through the very functions the routes call
 // (projectStock for GET /api/inventory/projection?days=90, lotGenealogy for the lot page),
 // median of five calls after one warm-up. Targets: ≤ 200 ms each.
-import pg from "pg";
 import { sql } from "kysely";
 import { createDb, type Database } from "@/db/client";
 import { lotGenealogy, projectStock } from "@/db/inventory/reads";
 import { migrateToLatest } from "@/db/migrate";
 import { seedDemoShop } from "@/db/seed";
+import { freshDatabase } from "../fresh-database";
 import { mulberry32 } from "@/lib/random";
 import type { BenchRow, BenchSection } from "../types";
 
@@ -23,22 +23,6 @@ const HOUR = 3_600_000;
 
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
-async function freshDatabase(): Promise<string> {
-  const base = new URL(process.env.DATABASE_URL ?? "postgres://postgres@127.0.0.1:54329/hearth");
-  const admin = new URL(base);
-  admin.pathname = "/postgres";
-  const c = new pg.Client({ connectionString: admin.toString() });
-  await c.connect();
-  try {
-    await c.query(`drop database if exists "${DB_NAME}" with (force)`);
-    await c.query(`create database "${DB_NAME}"`);
-  } finally {
-    await c.end();
-  }
-  const url = new URL(base);
-  url.pathname = `/${DB_NAME}`;
-  return url.toString();
-}
 
 async function chunked<T>(rows: T[], size: number, write: (chunk: T[]) => Promise<unknown>) {
   for (let i = 0; i < rows.length; i += size) await write(rows.slice(i, i + size));
@@ -116,7 +100,8 @@ async function timed<T>(fn: () => Promise<T>, reps = 5): Promise<{ ms: number; v
 export const section: BenchSection = {
   name: "feedstock",
   async run(): Promise<BenchRow[]> {
-    const { db } = createDb(await freshDatabase(), 4);
+    const { url } = await freshDatabase(DB_NAME);
+    const { db } = createDb(url, 4);
     try {
       await migrateToLatest(db);
       const t = performance.now();

@@ -8,7 +8,7 @@
 import os from "node:os";
 import path from "node:path";
 import fs from "node:fs";
-import pg from "pg";
+import { freshDatabase } from "../fresh-database";
 import { createDb } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
 import { seedDemoShop } from "@/db/seed";
@@ -23,31 +23,12 @@ const RUNS = 5;
 const r1 = (x: number) => Math.round(x * 10) / 10;
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
-async function freshDatabase(): Promise<{ url: string; drop: () => Promise<void> }> {
-  const base = new URL(process.env.DATABASE_URL ?? "postgres://postgres@127.0.0.1:54329/hearth");
-  const admin = new URL(base);
-  admin.pathname = "/postgres";
-  const run = async (q: string) => {
-    const c = new pg.Client({ connectionString: admin.toString() });
-    await c.connect();
-    try {
-      await c.query(q);
-    } finally {
-      await c.end();
-    }
-  };
-  await run(`drop database if exists "${DB_NAME}" with (force)`);
-  await run(`create database "${DB_NAME}"`);
-  const url = new URL(base);
-  url.pathname = `/${DB_NAME}`;
-  return { url: url.toString(), drop: () => run(`drop database if exists "${DB_NAME}" with (force)`) };
-}
 
 export const section: BenchSection = {
   name: "unit-page",
   run: async () => {
     const rows: BenchRow[] = [];
-    const { url, drop } = await freshDatabase();
+    const { url, drop } = await freshDatabase(DB_NAME);
     const { db } = createDb(url, 2);
     let procs: Proc[] = [];
     try {

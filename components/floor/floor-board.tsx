@@ -63,6 +63,8 @@ const PHONE_VIEWS: CalendarOptions["views"] = { ...VIEWS, resourceTimelineDay: {
 const SNAP = { minutes: 15 };
 /** Press-and-hold before a finger drags a booking, so that a swipe still scrolls the timeline. */
 const LONG_PRESS_MS = 250;
+/** With live updates on, the feedstock marks are still refetched this often (expiry and the date move them). */
+const SHORTFALLS_FALLBACK_MS = 10 * 60_000;
 const PHONE_QUERY = "(max-width: 767px)";
 const LANE_GROUPS = [
   ["printer", "Printers"],
@@ -165,10 +167,13 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
     meta: { liveHold: () => dragging.current },
   });
   // Scheduled builds whose feedstock will not be on the shelf when they start (the projection).
+  // A change to a build, a unit, a lot or a material refetches it live (components/live); the
+  // minute's poll only while the stream is down, and a slow one always, because the calendar
+  // alone moves the answer (a lot expires, a day passes) without any row changing.
   const shortfalls = useQuery({
     queryKey: ["feedstock-shortfalls"],
     queryFn: ({ signal }) => apiJson<{ builds: { build_id: string; material_code: string; first_short_day: string }[] }>("/api/inventory/shortfalls", { signal }),
-    refetchInterval: 60_000,
+    refetchInterval: () => poll(60_000) || SHORTFALLS_FALLBACK_MS,
   });
   const short = useMemo(
     () => new Map((shortfalls.data?.builds ?? []).map((b) => [b.build_id, `no ${b.material_code} feedstock from ${b.first_short_day}`])),

@@ -21,6 +21,9 @@ export const LIVE_QUERIES: Record<string, Rule> = {
   build: { entities: new Set(["build", "unit"]), detail: true },
   trace: { entities: ALL, detail: true },
   "finishing-unit": { entities: ALL, detail: true },
+  // Which scheduled builds will find no feedstock: the schedule (builds, their units) against
+  // the lots on the shelf and each material's allowances.
+  "feedstock-shortfalls": { entities: new Set(["build", "unit", "feedstock_lot", "material"]) },
 };
 
 /** Ids of rows the query's data mentions, memoised per data object. */

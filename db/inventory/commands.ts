@@ -37,7 +37,7 @@ export async function receiveLot(db: Database, input: ReceiveLot, actorId: strin
       .values({
         code: await nextLotCode(trx), material_id: input.material_id, supplier: input.supplier, supplier_lot: input.supplier_lot, form_id: input.form_id ?? null,
         received_on: input.received_on, expires_on: input.expires_on ?? null, quantity_g: grams, remaining_g: grams, storage_notes: input.storage_notes,
-        certificate_file_id: input.certificate_file_id ?? null, created_by: actorId,
+        created_by: actorId,
       })
       .returning(["id", "code"])
       .executeTakeFirstOrThrow();
@@ -105,7 +105,6 @@ export async function updateLot(db: Database, id: string, input: UpdateLot, acto
     }
     if (input.storage_notes !== undefined) set.storage_notes = input.storage_notes;
     if (input.expires_on !== undefined) set.expires_on = input.expires_on;
-    if (input.certificate_file_id !== undefined) set.certificate_file_id = input.certificate_file_id;
     const row = await trx
       .updateTable("feedstock_lots")
       .set({ ...set, version: sql`version + 1`, updated_at: sql`now()` })
@@ -351,4 +350,38 @@ export async function checkStockAlerts(db: Database, boss: PgBoss, now = new Dat
     });
   }
   return { reorder, bath };
+}
+
+/**
+ * A lot's certificate of analysis, stored already (the object is put before this runs, outside
+ * any transaction): records the file and points the lot at it, in one transaction. The file it
+ * replaces loses its row here; the caller deletes its object after the commit.
+ */
+export async function attachCertificate(
+  db: Database,
+  lotId: string,
+  file: { bucket: string; object_key: string; filename: string; content_type: string; size_bytes: number; sha256: string },
+  actorId: string,
+  version?: number,
+) {
+  return db.transaction().execute(async (trx) => {
+    const lot = await lockRowOrThrow(trx, "feedstock_lots", lotId, "That feedstock lot does not exist.");
+    requireVersion(`Lot ${lot.code}`, lot.version, version);
+    const row = await trx
+      .insertInto("files")
+      .values({ ...file, kind: "attachment", status: "done", uploaded_by: actorId })
+      .returning(["id", "filename", "content_type", "size_bytes", "sha256", "created_at"])
+      .executeTakeFirstOrThrow();
+    const updated = await trx
+      .updateTable("feedstock_lots")
+      .set({ certificate_file_id: row.id, version: sql`version + 1`, updated_at: sql`now()` })
+      .where("id", "=", lotId)
+      .returning(["id", "code", "version"])
+      .executeTakeFirstOrThrow();
+    const replaced = lot.certificate_file_id
+      ? await trx.deleteFrom("files").where("id", "=", lot.certificate_file_id).returning(["bucket", "object_key"]).executeTakeFirst()
+      : undefined;
+    await recordEvents(trx, [{ entity: "feedstock_lot", entity_id: lotId, kind: "certificate", actor_id: actorId, data: { file_id: row.id, filename: row.filename, sha256: row.sha256, replaced: lot.certificate_file_id } }]);
+    return { lot: updated, file: row, replaced };
+  });
 }

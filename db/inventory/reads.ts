@@ -2,19 +2,20 @@ import { sql } from "kysely";
 import type { Database } from "@/db/client";
 import { greenVolumeOf } from "@/db/floor/reads";
 import { AppError } from "@/lib/errors";
-import { estimateDraw, type DrawEstimate } from "@/lib/inventory/consumption";
+import { estimateDrawOfTotal, type DrawEstimate } from "@/lib/inventory/consumption";
 import { drawRefusal, type LotState } from "@/lib/inventory/lots";
-import { projectOnHand } from "@/lib/inventory/projection";
+import { projectOnHand, type ProjectionBuild, type ProjectionLot } from "@/lib/inventory/projection";
+import { isUuid } from "@/lib/ids";
+import { formatLocalDate, localDateOf } from "@/lib/process/time-zone";
 import type { LotRow, MaterialProjection, MaterialStock } from "@/lib/inventory/types";
 export type { LotRow, MaterialProjection, MaterialStock };
 import { bathState, gasShortfalls, runGasLitres, type BathState, type GasWarning } from "@/lib/inventory/consumables";
 
 const num = (v: unknown) => (v === null || v === undefined ? null : Number(v));
-const isUuid = (s: string) => /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(s);
 
 /** Today in the shop's time zone, as YYYY-MM-DD (the day a lot expires or a build draws). */
 export function shopDay(at: Date, timeZone: string): string {
-  return new Intl.DateTimeFormat("en-CA", { timeZone, year: "numeric", month: "2-digit", day: "2-digit" }).format(at);
+  return formatLocalDate(localDateOf(at.getTime(), timeZone));
 }
 
 export async function findShopZone(db: Database): Promise<string> {
@@ -62,6 +63,17 @@ export async function getLotOrThrow(db: Database, id: string): Promise<LotRow> {
   return lotRow(row);
 }
 
+/** A lot's certificate of analysis: the stored file's name, type, size and place, or undefined. */
+export async function findLotCertificate(db: Database, lotId: string) {
+  if (!isUuid(lotId)) return undefined;
+  return db
+    .selectFrom("feedstock_lots as l")
+    .innerJoin("files as f", "f.id", "l.certificate_file_id")
+    .select(["f.id", "f.bucket", "f.object_key", "f.filename", "f.content_type", "f.size_bytes", "f.sha256", "f.created_at"])
+    .where("l.id", "=", lotId)
+    .executeTakeFirst();
+}
+
 export async function findLotByCode(db: Database, code: string): Promise<{ id: string } | undefined> {
   return db.selectFrom("feedstock_lots").select("id").where(sql`lower(code)`, "=", code.trim().toLowerCase()).executeTakeFirst();
 }
@@ -84,59 +96,79 @@ export async function listMaterialStock(db: Database): Promise<MaterialStock[]> 
   }));
 }
 
+type BuildDraw = DrawEstimate & { material_id: string; code: string; starts_at: Date | null; units: number };
+
 /**
  * What each build will draw, from its units' printed volume, the material's feedstock density
- * and its allowances. One row per build and part (units of a part share a volume), so a busy
- * schedule costs one grouped query.
+ * and its allowances. Two passes over the builds' units, so that a busy schedule moves one narrow
+ * row per build rather than one per unit: first the distinct parts printed in each material,
+ * whose green volume is worked out here once each (greenVolumeOf, the floor's rule); then, in the
+ * database, each build's units counted and their volumes summed.
  */
-export async function estimateBuildDraws(db: Database, filter: { buildIds?: string[]; scheduledOnly?: boolean }): Promise<Map<string, DrawEstimate & { material_id: string }>> {
-  const out = new Map<string, DrawEstimate & { material_id: string }>();
+async function loadBuildDraws(db: Database, filter: { buildIds?: string[]; scheduledOnly?: boolean }): Promise<Map<string, BuildDraw>> {
+  const out = new Map<string, BuildDraw>();
   if (filter.buildIds && !filter.buildIds.length) return out;
-  let q = db
-    .selectFrom("units as u")
-    .innerJoin("builds as b", "b.id", "u.build_id")
-    .innerJoin("parts as p", "p.id", "u.part_id")
-    .innerJoin("materials as m", "m.id", "b.material_id")
-    .select([
-      "u.build_id", "b.material_id", "p.id as part_id", "p.volume_mm3", "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm", "p.green_x_mm", "p.green_y_mm", "p.green_z_mm",
-      "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm", "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm",
-      "m.shrink_xy", "m.shrink_z", "m.green_density_g_cm3", "m.support_allowance", "m.purge_g",
-      sql<number>`count(*)::int`.as("units"),
-    ])
-    .where("u.state", "<>", "scrapped")
-    .groupBy(["u.build_id", "b.material_id", "p.id", "m.id"]);
-  if (filter.buildIds) q = q.where("u.build_id", "in", filter.buildIds);
-  if (filter.scheduledOnly) q = q.where("b.state", "=", "scheduled").where("b.starts_at", "is not", null);
-  const rows = await q.execute();
-  const byBuild = new Map<string, typeof rows>();
+  const scope = sql.join(
+    [
+      ...(filter.buildIds ? [sql`b.id = any(${filter.buildIds}::uuid[])`] : []),
+      ...(filter.scheduledOnly ? [sql`b.state = 'scheduled' and b.starts_at is not null`] : []),
+      sql`true`,
+    ],
+    sql` and `,
+  );
+  const { rows: printed } = await sql<{
+    part_id: string; material_id: string; volume_mm3: unknown; nominal_x_mm: unknown; nominal_y_mm: unknown; nominal_z_mm: unknown; green_x_mm: unknown; green_y_mm: unknown; green_z_mm: unknown;
+    stock_x_neg_mm: unknown; stock_x_pos_mm: unknown; stock_y_neg_mm: unknown; stock_y_pos_mm: unknown; stock_z_neg_mm: unknown; stock_z_pos_mm: unknown; shrink_xy: unknown; shrink_z: unknown;
+  }>`
+    select p.id as part_id, m.id as material_id, p.volume_mm3, p.nominal_x_mm, p.nominal_y_mm, p.nominal_z_mm, p.green_x_mm, p.green_y_mm, p.green_z_mm,
+      p.stock_x_neg_mm, p.stock_x_pos_mm, p.stock_y_neg_mm, p.stock_y_pos_mm, p.stock_z_neg_mm, p.stock_z_pos_mm, m.shrink_xy, m.shrink_z
+    from parts p
+    cross join materials m
+    where (p.id, m.id) in (select distinct u.part_id, b.material_id from units u join builds b on b.id = u.build_id where u.state <> 'scrapped' and ${scope})`.execute(db);
+  const volumes = printed.map((p) => greenVolumeOf(p));
+  const { rows } = await sql<{ id: string; code: string; material_id: string; starts_at: Date | null; units: number; volume_mm3: number; density: string; support_allowance: string; purge_g: string }>`
+    select b.id, b.code, b.material_id, b.starts_at, count(u.id)::int as units, coalesce(sum(v.volume_mm3), 0)::float8 as volume_mm3,
+      m.green_density_g_cm3 as density, m.support_allowance, m.purge_g
+    from builds b
+    join materials m on m.id = b.material_id
+    left join units u on u.build_id = b.id and u.state <> 'scrapped'
+    left join unnest(${printed.map((p) => p.part_id)}::uuid[], ${printed.map((p) => p.material_id)}::uuid[], ${volumes}::float8[]) as v(part_id, material_id, volume_mm3)
+      on v.part_id = u.part_id and v.material_id = b.material_id
+    where ${scope}
+    group by b.id, m.id`.execute(db);
+  const allowances = new Map<string, { feedstock_density_g_cm3: number; support_allowance: number; purge_g: number }>();
   for (const r of rows) {
-    const list = byBuild.get(r.build_id!);
-    if (list) list.push(r);
-    else byBuild.set(r.build_id!, [r]);
-  }
-  // A part's printed volume is the same in every build: worked out once per part.
-  const volumeOf = new Map<string, number>();
-  const partVolume = (p: (typeof rows)[number]) => {
-    let v = volumeOf.get(p.part_id);
-    if (v === undefined) volumeOf.set(p.part_id, (v = greenVolumeOf(p)));
-    return v;
-  };
-  for (const [buildId, parts] of byBuild) {
-    const m = parts[0];
-    const units = parts.flatMap((p) => Array.from({ length: Number(p.units) }, () => ({ green_volume_mm3: partVolume(p) })));
-    const est = estimateDraw(units, { feedstock_density_g_cm3: Number(m.green_density_g_cm3), support_allowance: Number(m.support_allowance), purge_g: Number(m.purge_g) });
-    out.set(buildId, { ...est, material_id: m.material_id });
+    let a = allowances.get(r.material_id);
+    if (!a) allowances.set(r.material_id, (a = { feedstock_density_g_cm3: Number(r.density), support_allowance: Number(r.support_allowance), purge_g: Number(r.purge_g) }));
+    out.set(r.id, { ...estimateDrawOfTotal(Number(r.volume_mm3), Number(r.units), a), material_id: r.material_id, code: r.code, starts_at: r.starts_at, units: Number(r.units) });
   }
   return out;
 }
 
+/** What each build will draw (a build without units is left out). */
+export async function estimateBuildDraws(db: Database, filter: { buildIds?: string[]; scheduledOnly?: boolean }): Promise<Map<string, DrawEstimate & { material_id: string }>> {
+  const out = new Map<string, DrawEstimate & { material_id: string }>();
+  for (const [id, d] of await loadBuildDraws(db, filter)) {
+    if (d.units > 0) out.set(id, { parts_g: d.parts_g, supports_g: d.supports_g, purge_g: d.purge_g, total_g: d.total_g, material_id: d.material_id });
+  }
+  return out;
+}
 
-/** On hand, committed and projected per material over `days`, from the live schedule. */
-export async function projectStock(db: Database, opts: { days: number; now?: Date; materialId?: string }): Promise<{ today: string; time_zone: string; materials: MaterialProjection[] }> {
-  const now = opts.now ?? new Date();
+type StockLot = ProjectionLot & { state: LotState };
+type MaterialInputs = MaterialStock & { tracked: boolean; lots: StockLot[]; builds: ProjectionBuild[] };
+
+/**
+ * What every projection of stock starts from, in one place: per material, its lots on the shelf
+ * (released and in date counts as usable) and the builds that will draw from it on their shop
+ * day — the scheduled ones, and, for a planning proposal, the proposed ones at their proposed
+ * start in place of where they are booked now. A material no lot was ever received for is not
+ * tracked (its builds start as before).
+ */
+async function loadStockInputs(db: Database, now: Date, proposed: Array<{ build_id: string; code: string; starts_at: string }> = []): Promise<{ today: string; zone: string; materials: MaterialInputs[] }> {
   const zone = await findShopZone(db);
   const today = shopDay(now, zone);
-  const [materials, lots, builds, draws] = await Promise.all([
+  const proposedIds = proposed.map((p) => p.build_id);
+  const [materials, lots, scheduled, proposedDraws, tracked] = await Promise.all([
     listMaterialStock(db),
     db
       .selectFrom("feedstock_lots")
@@ -144,23 +176,50 @@ export async function projectStock(db: Database, opts: { days: number; now?: Dat
       .where("state", "in", ["released", "quarantine"])
       .where("remaining_g", ">", 0)
       .execute(),
-    db.selectFrom("builds").select(["id", "code", "material_id", "starts_at"]).where("state", "=", "scheduled").where("starts_at", "is not", null).execute(),
-    estimateBuildDraws(db, { scheduledOnly: true }),
+    loadBuildDraws(db, { scheduledOnly: true }),
+    estimateBuildDraws(db, { buildIds: proposedIds }),
+    db.selectFrom("feedstock_lots").select("material_id").distinct().execute(),
   ]);
-  const out: MaterialProjection[] = [];
-  for (const m of materials) {
-    if (opts.materialId && m.id !== opts.materialId) continue;
-    const mine = lots.filter((l) => l.material_id === m.id);
-    const projection = projectOnHand({
-      today,
-      horizon_days: opts.days,
-      reorder_point_g: m.reorder_point_g,
-      lots: mine.map((l) => ({ remaining_g: Number(l.remaining_g), expires_on: l.expires_on, usable: l.state === "released" && !(l.expires_on && l.expires_on < today) })),
-      builds: builds
-        .filter((b) => b.material_id === m.id)
-        .map((b) => ({ id: b.id, code: b.code, day: shopDay(new Date(b.starts_at!), zone), grams: draws.get(b.id)?.total_g ?? 0 })),
+  const trackedIds = new Set(tracked.map((r) => r.material_id));
+  // Every offset from UTC in use since 1972 is a whole number of quarter hours (from memory of
+  // the IANA tz database: Liberia's −0:44:30 was the last odd one), so two starts in the same
+  // UTC quarter hour fall on the same shop day and the zone is asked once per quarter hour.
+  const days = new Map<number, string>();
+  const dayOf = (at: Date | string) => {
+    const bucket = Math.floor(new Date(at).getTime() / 900_000);
+    let day = days.get(bucket);
+    if (day === undefined) days.set(bucket, (day = shopDay(new Date(bucket * 900_000), zone)));
+    return day;
+  };
+  const skip = new Set(proposedIds);
+  const byMaterial = new Map<string, MaterialInputs>(materials.map((m) => [m.id, { ...m, tracked: trackedIds.has(m.id), lots: [], builds: [] }]));
+  for (const l of lots) {
+    byMaterial.get(l.material_id)?.lots.push({
+      state: l.state, remaining_g: Number(l.remaining_g), expires_on: l.expires_on, usable: l.state === "released" && !(l.expires_on && l.expires_on < today),
     });
-    const quarantine = mine.filter((l) => l.state === "quarantine").reduce((s, l) => s + Number(l.remaining_g), 0);
+  }
+  // In order of start: within a day, the build that starts first takes what the shelf holds first.
+  const drawing: Array<{ at: number; material_id: string; build: ProjectionBuild }> = [];
+  for (const [id, b] of scheduled) {
+    if (!skip.has(id)) drawing.push({ at: new Date(b.starts_at!).getTime(), material_id: b.material_id, build: { id, code: b.code, day: dayOf(b.starts_at!), grams: b.total_g } });
+  }
+  for (const p of proposed) {
+    const draw = proposedDraws.get(p.build_id);
+    if (draw) drawing.push({ at: Date.parse(p.starts_at), material_id: draw.material_id, build: { id: p.build_id, code: p.code, day: dayOf(p.starts_at), grams: draw.total_g } });
+  }
+  drawing.sort((a, b) => a.at - b.at || (a.build.code < b.build.code ? -1 : a.build.code > b.build.code ? 1 : 0));
+  for (const d of drawing) byMaterial.get(d.material_id)?.builds.push(d.build);
+  return { today, zone, materials: [...byMaterial.values()] };
+}
+
+/** On hand, committed and projected per material over `days`, from the live schedule. */
+export async function projectStock(db: Database, opts: { days: number; now?: Date; materialId?: string }): Promise<{ today: string; time_zone: string; materials: MaterialProjection[] }> {
+  const { today, zone, materials } = await loadStockInputs(db, opts.now ?? new Date());
+  const out: MaterialProjection[] = [];
+  for (const { lots, builds, ...m } of materials) {
+    if (opts.materialId && m.id !== opts.materialId) continue;
+    const projection = projectOnHand({ today, horizon_days: opts.days, reorder_point_g: m.reorder_point_g, lots, builds });
+    const quarantine = lots.filter((l) => l.state === "quarantine").reduce((s, l) => s + l.remaining_g, 0);
     out.push({ ...m, quarantine_g: Math.round(quarantine * 10) / 10, projection });
   }
   return { today, time_zone: zone, materials: out };
@@ -169,7 +228,7 @@ export async function projectStock(db: Database, opts: { days: number; now?: Dat
 /** Scheduled builds whose feedstock will not be on the shelf when they start, with the reason. */
 export async function listShortBuilds(db: Database, days = 90): Promise<Array<{ build_id: string; material_code: string; first_short_day: string }>> {
   const { materials } = await projectStock(db, { days });
-  return materials.flatMap((m) => m.projection.short_builds.map((id) => ({ build_id: id, material_code: m.code, first_short_day: m.projection.first_short_day! })));
+  return materials.filter((m) => m.tracked).flatMap((m) => m.projection.short_builds.map((id) => ({ build_id: id, material_code: m.code, first_short_day: m.projection.first_short_day! })));
 }
 
 export type GenealogyRow = {
@@ -178,29 +237,54 @@ export type GenealogyRow = {
   part_number: string; order_id: string; order_code: string; customer: string;
 };
 
-/** Every unit a lot reached, with its path through the shop, in one query. */
+/**
+ * Every unit a lot reached, with its path through the shop, in one query. The lot's units are
+ * gathered first (a materialized CTE: the lot's draws → their builds → units, by index) and only
+ * those meet the lookups, so the planner orders two small joins rather than ten; the lot's
+ * inspections are counted in one grouped pass (by the unit_id index) instead of two correlated
+ * subqueries per unit; and the order is by byte value ("C" collation: codes and serials are
+ * machine-made, and a linguistic sort of 5,000 keys costs more than the rest of the query).
+ */
 export async function lotGenealogy(db: Database, lotId: string): Promise<GenealogyRow[]> {
+  if (!isUuid(lotId)) return [];
   const rows = await db
-    .selectFrom("feedstock_draws as d")
-    .innerJoin("builds as b", "b.id", "d.build_id")
-    .innerJoin("units as u", "u.build_id", "b.id")
-    .innerJoin("parts as p", "p.id", "u.part_id")
+    .with(
+      (wb) => wb("lu").materialized(),
+      (qb) =>
+        qb
+          .selectFrom("feedstock_draws as d")
+          .innerJoin("builds as b", "b.id", "d.build_id")
+          .innerJoin("units as u", "u.build_id", "b.id")
+          .select([
+            "u.id as unit_id", "u.serial", "u.state", "u.part_id", "u.wash_batch_id", "u.furnace_run_id",
+            "b.id as build_id", "b.code as build_code", "b.printer_id", "d.drawn_g",
+          ])
+          .where("d.lot_id", "=", lotId),
+    )
+    .with("ins", (qb) =>
+      qb
+        .selectFrom("inspections as i")
+        .select(["i.unit_id", sql<number>`count(*)::int`.as("n"), sql<boolean | null>`(array_agg(i.passed order by i.created_at desc))[1]`.as("passed")])
+        .where("i.unit_id", "in", (eb) => eb.selectFrom("lu").select("lu.unit_id"))
+        .groupBy("i.unit_id"),
+    )
+    .selectFrom("lu")
+    .innerJoin("parts as p", "p.id", "lu.part_id")
     .innerJoin("orders as o", "o.id", "p.order_id")
-    .leftJoin("printers as pr", "pr.id", "b.printer_id")
-    .leftJoin("wash_batches as w", "w.id", "u.wash_batch_id")
-    .leftJoin("furnace_runs as r", "r.id", "u.furnace_run_id")
+    .leftJoin("printers as pr", "pr.id", "lu.printer_id")
+    .leftJoin("wash_batches as w", "w.id", "lu.wash_batch_id")
+    .leftJoin("furnace_runs as r", "r.id", "lu.furnace_run_id")
     .leftJoin("sinter_profiles as sp", "sp.id", "r.profile_id")
+    .leftJoin("ins", "ins.unit_id", "lu.unit_id")
     .select([
-      "u.id as unit_id", "u.serial", "u.state", "b.id as build_id", "b.code as build_code", "pr.name as printer", "d.drawn_g",
+      "lu.unit_id", "lu.serial", "lu.state", "lu.build_id", "lu.build_code", "pr.name as printer", "lu.drawn_g",
       "w.code as wash_batch_code", "r.code as furnace_run_code", "sp.code as profile_code", "p.part_number", "o.id as order_id", "o.code as order_code", "o.customer",
-      sql<number>`(select count(*)::int from inspections i where i.unit_id = u.id)`.as("inspections"),
-      sql<boolean | null>`(select i.passed from inspections i where i.unit_id = u.id order by i.created_at desc limit 1)`.as("passed"),
+      "ins.n as inspections", "ins.passed",
     ])
-    .where("d.lot_id", "=", lotId)
-    .orderBy("b.code")
-    .orderBy("u.serial")
+    .orderBy(sql`lu.build_code collate "C"`)
+    .orderBy(sql`lu.serial collate "C"`)
     .execute();
-  return rows.map((r) => ({ ...r, drawn_g: Number(r.drawn_g), inspections: Number(r.inspections) }));
+  return rows.map((r) => ({ ...r, drawn_g: Number(r.drawn_g), inspections: Number(r.inspections ?? 0) }));
 }
 
 /** From a unit back to its lots, printer, wash, run and profile. */
@@ -298,38 +382,14 @@ export { drawRefusal };
 export async function shortAmongProposed(db: Database, proposed: Array<{ build_id: string; code: string; starts_at: string }>, now = new Date()): Promise<Map<string, string>> {
   const out = new Map<string, string>();
   if (!proposed.length) return out;
-  const zone = await findShopZone(db);
-  const today = shopDay(now, zone);
   const last = proposed.reduce((m, p) => (p.starts_at > m ? p.starts_at : m), now.toISOString());
   const days = Math.min(400, Math.ceil((new Date(last).getTime() - now.getTime()) / 86_400_000) + 2);
-  const ids = proposed.map((p) => p.build_id);
-  const [materials, lots, scheduled] = await Promise.all([
-    listMaterialStock(db),
-    db
-      .selectFrom("feedstock_lots")
-      .select(["material_id", "remaining_g", sql<string | null>`to_char(expires_on, 'YYYY-MM-DD')`.as("expires_on")])
-      .where("state", "=", "released")
-      .where("remaining_g", ">", 0)
-      .execute(),
-    db.selectFrom("builds").select(["id", "code", "material_id", "starts_at"]).where("state", "=", "scheduled").where("starts_at", "is not", null).where("id", "not in", ids).execute(),
-  ]);
-  const draws = await estimateBuildDraws(db, { buildIds: [...scheduled.map((b) => b.id), ...ids] });
-  const tracked = new Set((await db.selectFrom("feedstock_lots").select("material_id").distinct().execute()).map((r) => r.material_id));
+  const ids = new Set(proposed.map((p) => p.build_id));
+  const { today, materials } = await loadStockInputs(db, now, proposed);
   for (const m of materials) {
-    if (!tracked.has(m.id)) continue;
-    const mineProposed = proposed.filter((p) => draws.get(p.build_id)?.material_id === m.id);
-    if (!mineProposed.length) continue;
-    const projection = projectOnHand({
-      today,
-      horizon_days: days,
-      reorder_point_g: 0,
-      lots: lots.filter((l) => l.material_id === m.id).map((l) => ({ remaining_g: Number(l.remaining_g), expires_on: l.expires_on, usable: !(l.expires_on && l.expires_on < today) })),
-      builds: [
-        ...scheduled.filter((b) => b.material_id === m.id).map((b) => ({ id: b.id, code: b.code, day: shopDay(new Date(b.starts_at!), zone), grams: draws.get(b.id)?.total_g ?? 0 })),
-        ...mineProposed.map((p) => ({ id: p.build_id, code: p.code, day: shopDay(new Date(p.starts_at), zone), grams: draws.get(p.build_id)?.total_g ?? 0 })),
-      ],
-    });
-    for (const id of projection.short_builds) if (ids.includes(id)) out.set(id, `${m.code} feedstock runs short on ${projection.first_short_day}`);
+    if (!m.tracked || !m.builds.some((b) => ids.has(b.id))) continue;
+    const projection = projectOnHand({ today, horizon_days: days, reorder_point_g: 0, lots: m.lots, builds: m.builds });
+    for (const id of projection.short_builds) if (ids.has(id)) out.set(id, `${m.code} feedstock runs short on ${projection.first_short_day}`);
   }
   return out;
 }

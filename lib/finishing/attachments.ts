@@ -15,21 +15,35 @@ export function sniffAttachmentType(bytes: Uint8Array): AttachmentType | undefin
   return undefined;
 }
 
-/** The stored type of an upload, or the right error: 413 too large, 415 not a kind we keep, 422 contents not what the type says. */
-export function checkAttachment(bytes: Uint8Array, declaredType: string, filename: string): AttachmentType {
-  if (bytes.byteLength === 0) throw new AppError("invalid", `${filename} is empty.`, { file: ["the file is empty"] });
-  if (bytes.byteLength > ATTACHMENT_MAX_BYTES) {
-    throw new AppError("payload_too_large", `${filename} is larger than ${ATTACHMENT_MAX_BYTES / 1024 / 1024} MB.`, { file: ["too large"] });
-  }
+/** 415 unless the declared type is one we keep: checked before the body is read. */
+export function acceptedAttachmentType(declaredType: string, filename: string): AttachmentType {
   const declared = declaredType.split(";")[0].trim().toLowerCase();
   if (!(ATTACHMENT_TYPES as readonly string[]).includes(declared)) {
     throw new AppError("unsupported_media_type", `Attach photos (JPEG, PNG, WebP) or PDF reports; ${filename} is ${declared || "of no stated type"}.`, { file: ["not a photo or PDF"] });
   }
-  const actual = sniffAttachmentType(bytes);
-  if (actual !== declared) {
+  return declared as AttachmentType;
+}
+
+/**
+ * The stored type of an upload from its size and first bytes (a streamed upload keeps no more),
+ * or the right error: 413 too large, 415 not a kind we keep, 422 empty or contents not what the
+ * type says.
+ */
+export function checkAttachmentHead(head: Uint8Array, size: number, declaredType: string, filename: string): AttachmentType {
+  if (size === 0) throw new AppError("invalid", `${filename} is empty.`, { file: ["the file is empty"] });
+  if (size > ATTACHMENT_MAX_BYTES) {
+    throw new AppError("payload_too_large", `${filename} is larger than ${ATTACHMENT_MAX_BYTES / 1024 / 1024} MB.`, { file: ["too large"] });
+  }
+  const declared = acceptedAttachmentType(declaredType, filename);
+  if (sniffAttachmentType(head) !== declared) {
     throw new AppError("invalid", `${filename} does not contain what its type says (${declared}); nothing was stored.`, { file: ["contents do not match the file type"] });
   }
-  return actual;
+  return declared;
+}
+
+/** The same for an upload held whole in memory. */
+export function checkAttachment(bytes: Uint8Array, declaredType: string, filename: string): AttachmentType {
+  return checkAttachmentHead(bytes, bytes.byteLength, declaredType, filename);
 }
 
 /** A name safe for an object key and a Content-Disposition header. */

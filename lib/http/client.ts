@@ -36,3 +36,14 @@ export async function sendJson<T>(url: string, method: "POST" | "PUT" | "PATCH" 
     }),
   );
 }
+
+/** A file as the raw request body (streamed to disk by the server), its type and name in the headers. */
+export async function sendFile<T>(url: string, file: File): Promise<T> {
+  return parse<T>(
+    await fetch(url, {
+      method: "POST",
+      headers: { "content-type": file.type || "application/octet-stream", "x-filename": encodeURIComponent(file.name), accept: "application/json" },
+      body: file,
+    }),
+  );
+}

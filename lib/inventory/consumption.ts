@@ -12,11 +12,15 @@ export type DrawEstimate = { parts_g: number; supports_g: number; purge_g: numbe
 export const roundGrams = (g: number) => Math.round(g * 10) / 10;
 
 export function estimateDraw(units: DrawUnit[], material: DrawMaterial): DrawEstimate {
+  return estimateDrawOfTotal(units.reduce((sum, u) => sum + Math.max(0, u.green_volume_mm3), 0), units.length, material);
+}
+
+/** The same from the units' summed green volume and their count (a schedule's builds, counted per part). */
+export function estimateDrawOfTotal(greenVolumeMm3: number, unitCount: number, material: DrawMaterial): DrawEstimate {
   if (!(material.feedstock_density_g_cm3 > 0)) throw new RangeError("the feedstock density must be greater than 0 g/cm³");
   if (!(material.support_allowance >= 0) || !(material.purge_g >= 0)) throw new RangeError("allowances cannot be negative");
-  const volumeCm3 = units.reduce((sum, u) => sum + Math.max(0, u.green_volume_mm3), 0) / 1000;
-  const parts = volumeCm3 * material.feedstock_density_g_cm3;
+  const parts = (Math.max(0, greenVolumeMm3) / 1000) * material.feedstock_density_g_cm3;
   const supports = parts * material.support_allowance;
-  const purge = units.length ? material.purge_g : 0;
+  const purge = unitCount > 0 ? material.purge_g : 0;
   return { parts_g: roundGrams(parts), supports_g: roundGrams(supports), purge_g: roundGrams(purge), total_g: roundGrams(parts + supports + purge) };
 }

@@ -43,7 +43,9 @@ export function projectOnHand(input: { today: string; horizon_days: number; lots
     const day = b.day < input.today ? input.today : b.day;
     if (day > last) continue;
     committed += b.grams;
-    byDay.set(day, [...(byDay.get(day) ?? []), b]);
+    const list = byDay.get(day);
+    if (list) list.push(b);
+    else byDay.set(day, [b]);
   }
   let deficit = 0; // drawn beyond what the shelf held
   let firstShort: string | null = null;

@@ -18,4 +18,5 @@ export type MaterialStock = {
   feedstock_density_g_cm3: number; reorder_alerted_at: Date | null;
 };
 
-export type MaterialProjection = MaterialStock & { quarantine_g: number; projection: Projection };
+/** tracked: a lot was ever received for the material (else its builds draw nothing). */
+export type MaterialProjection = MaterialStock & { tracked: boolean; quarantine_g: number; projection: Projection };

@@ -5,7 +5,7 @@ import { z } from "zod";
 
 export const CHANGE_CHANNEL = "hearth_changes";
 
-export const CHANGE_ENTITIES = ["build", "wash_batch", "furnace_run", "unit", "inspection", "maintenance", "equipment"] as const;
+export const CHANGE_ENTITIES = ["build", "wash_batch", "furnace_run", "unit", "inspection", "maintenance", "equipment", "feedstock_lot", "material"] as const;
 export type ChangeEntity = (typeof CHANGE_ENTITIES)[number];
 
 export const changeSchema = z.object({

@@ -22,7 +22,8 @@
 //   and the compositions u^(k)∘U^ε (a composition of DFFs is a DFF).
 // u^(1) on both axes counts the pieces over half the tray both ways (one per tray).
 
-import { ceilWithSlack } from "./one-dimensional";
+import { ceilWithSlack, martelloTothL2 } from "./one-dimensional";
+import { GEOMETRY_EPS } from "./rectangles";
 
 export type Dff = (x: number) => number;
 
@@ -172,6 +173,68 @@ export function shortSideTrayBound(pieces: readonly { w: number; h: number }[], 
     }
     const extra = Math.max(0, ceilWithSlack((a3 - spare) / A - 1e-9));
     best = Math.max(best, j1 + j2 + extra);
+  }
+  return best;
+}
+
+/**
+ * Enlarged-area bound for pieces that may turn, all on trays of one size W×D.
+ *
+ * Fix q ≥ 0 and keep only the pieces whose both sides are at least q (dropping pieces never needs
+ * more trays). A piece lying as a×b (a along W) claims the region X × Y, where X is the whole
+ * width when a > W − q (else its own x-range) and Y the whole depth when b > D − q (else its own
+ * y-range). In one tray the claimed regions of two kept pieces never overlap: the pieces lie apart
+ * along x or along y, say x; their claimed x-ranges can then only meet if one of them spans the
+ * width, a_k > W − q, and then a_l ≤ W − a_k < q, which no kept piece has. So every tray holds
+ * claimed areas e = (a > W − q ? W : a)·(b > D − q ? D : b) summing to at most W·D, a piece counted
+ * with the smaller e of the orientations that fit — a one-dimensional bin-packing instance with
+ * capacity W·D, to which Martello & Toth's L2 applies. Pieces over half the tray both ways in
+ * every fitting orientation cover the tray's centre, so no two share a tray: with k of them, the
+ * trays needed are also k + ⌈(Σ e of the others − Σ (W·D − e) of these k) / (W·D)⌉⁺.
+ *
+ * The claimed area is the product of the dual-feasible functions U^ε of Fekete & Schepers on both
+ * axes, and bounding the transformed sizes with a one-dimensional bound in place of their plain sum
+ * follows J. Carlier, F. Clautiaux & A. Moukrim, "New reduction procedures and lower bounds for
+ * the two-dimensional bin packing problem with fixed orientation", Computers & Operations Research
+ * 34(8):2223–2250 (2007), and the big-piece count the bound L2 of Martello & Vigo (1998) [all from
+ * memory; the argument above is self-contained]. It is what lifts the bound on pieces that are long
+ * one way (the tall and wide classes of Martello & Vigo), whose strips beside them nothing can use.
+ */
+export function claimedAreaTrayBound(pieces: readonly { w: number; h: number }[], W: number, D: number, maxQ = 128): number {
+  if (pieces.length === 0) return 0;
+  const eps = GEOMETRY_EPS;
+  const A = W * D;
+  const sides: number[] = [0];
+  for (const p of pieces) sides.push(p.w, p.h);
+  const qs = spread(sides, maxQ);
+  let best = 0;
+  const e: number[] = [];
+  for (const q of qs) {
+    e.length = 0;
+    let bigCount = 0;
+    let bigSpare = 0;
+    let restSum = 0;
+    for (const p of pieces) {
+      if (Math.min(p.w, p.h) < q - eps) continue;
+      let v = Infinity;
+      let big = true;
+      for (const [a, b] of [
+        [p.w, p.h],
+        [p.h, p.w],
+      ] as const) {
+        if (a > W + eps || b > D + eps) continue;
+        v = Math.min(v, (a > W - q + eps ? W : Math.min(a, W)) * (b > D - q + eps ? D : Math.min(b, D)));
+        if (!(a > W / 2 + eps && b > D / 2 + eps)) big = false;
+      }
+      if (v === Infinity) continue;
+      e.push(v);
+      if (big) {
+        bigCount++;
+        bigSpare += A - v;
+      } else restSum += v;
+    }
+    if (e.length === 0) continue;
+    best = Math.max(best, martelloTothL2(e, A), bigCount + Math.max(0, ceilWithSlack((restSum - bigSpare) / A - 1e-9)));
   }
   return best;
 }

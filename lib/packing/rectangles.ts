@@ -83,7 +83,11 @@ export class MaxRectsBin {
   find(w: number, h: number, rule: PlacementRule, allowRotate: boolean): Fit | null {
     if (Math.min(w, h) > this.maxShort + GEOMETRY_EPS || Math.max(w, h) > this.maxLong + GEOMETRY_EPS) return null;
     let best: Fit | null = null;
-    const tryOrientation = (ow: number, oh: number, rotated: boolean) => {
+    // Both orientations in one loop (no closure: this is the packer's innermost call).
+    const turns = allowRotate && Math.abs(w - h) > GEOMETRY_EPS ? 2 : 1;
+    for (let turn = 0; turn < turns; turn++) {
+      const ow = turn === 0 ? w : h;
+      const oh = turn === 0 ? h : w;
       for (const f of this.free) {
         if (ow > f.w + GEOMETRY_EPS || oh > f.h + GEOMETRY_EPS) continue;
         let s1: number;
@@ -121,12 +125,10 @@ export class MaxRectsBin {
           s1 < best.s1 - GEOMETRY_EPS ||
           (s1 <= best.s1 + GEOMETRY_EPS && s2 < best.s2 - GEOMETRY_EPS)
         ) {
-          best = { x: f.x, y: f.y, w: ow, h: oh, rotated, s1, s2 };
+          best = { x: f.x, y: f.y, w: ow, h: oh, rotated: turn === 1, s1, s2 };
         }
       }
-    };
-    tryOrientation(w, h, false);
-    if (allowRotate && Math.abs(w - h) > GEOMETRY_EPS) tryOrientation(h, w, true);
+    }
     return best;
   }
 

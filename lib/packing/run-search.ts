@@ -82,9 +82,15 @@ function insertInto(ctx: Ctx, run: RunState, it: ItemModel): RunState | null {
   if (!it.eligibleMask.has(run.f.idx) || !run.massFits(it)) return null;
   if (it.area > run.f.runArea - run.area + GEOMETRY_EPS) return null;
   ctx.work++;
-  for (const rule of ["short-side", "contact", "bottom-left"] as const) {
-    const c = run.clone();
-    if (c.tryAdd(it, rule, "best")) return c;
+  // Look first, copy only on success: most tries find no room. Whether a piece fits does not
+  // depend on the placement rule (each rule only ranks the free rectangles that can take it), so
+  // one rule answers for all.
+  for (let t = 0; t < run.bins.length; t++) {
+    if (it.area > run.bins[t].freeArea + GEOMETRY_EPS) continue;
+    if (run.bins[t].find(it.pw, it.ph, "short-side", true)) {
+      const c = run.clone();
+      if (c.tryAdd(it, "short-side", "best")) return c;
+    }
   }
   return null;
 }

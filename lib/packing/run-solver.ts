@@ -28,7 +28,8 @@ export type TrayChoice = "first" | "best";
 export class RunState {
   bins: MaxRectsBin[];
   placed: PlacedItem[] = [];
-  members = new Set<ItemModel>();
+  /** Built on first use: the search clones runs far more often than it asks who is in them. */
+  private memberSet: Set<ItemModel> | null = null;
   mass = 0;
   value = 0;
   area = 0;
@@ -48,11 +49,15 @@ export class RunState {
       this.bins.map((b) => b.clone()),
     );
     r.placed = [...this.placed];
-    r.members = new Set(this.members);
     r.mass = this.mass;
     r.value = this.value;
     r.area = this.area;
     return r;
+  }
+
+  get members(): ReadonlySet<ItemModel> {
+    this.memberSet ??= new Set(this.placed.map((p) => p.item));
+    return this.memberSet;
   }
 
   massFits(it: ItemModel): boolean {
@@ -87,7 +92,7 @@ export class RunState {
 
   record(it: ItemModel, tray: number, x: number, y: number, w: number, h: number, rotated: boolean): void {
     this.placed.push({ item: it, tray, x, y, w, h, rotated });
-    this.members.add(it);
+    this.memberSet?.add(it);
     this.mass += it.mass;
     this.value += it.size;
     this.area += it.area;
@@ -394,12 +399,12 @@ export function packSet(
 function findSpot(run: RunState, it: ItemModel): { tray: number; fit: NonNullable<ReturnType<MaxRectsBin["find"]>> } | null {
   if (!it.eligibleMask.has(run.f.idx) || !run.massFits(it)) return null;
   if (it.area > run.f.runArea - run.area + GEOMETRY_EPS) return null;
-  for (const rule of ["short-side", "contact", "bottom-left"] as const) {
-    for (let t = 0; t < run.bins.length; t++) {
-      if (it.area > run.bins[t].freeArea + GEOMETRY_EPS) continue;
-      const fit = run.bins[t].find(it.pw, it.ph, rule, true);
-      if (fit) return { tray: t, fit };
-    }
+  // Whether a piece fits does not depend on the rule (rules only rank the free rectangles that
+  // take it), so the first rule decides.
+  for (let t = 0; t < run.bins.length; t++) {
+    if (it.area > run.bins[t].freeArea + GEOMETRY_EPS) continue;
+    const fit = run.bins[t].find(it.pw, it.ph, "short-side", true);
+    if (fit) return { tray: t, fit };
   }
   return null;
 }

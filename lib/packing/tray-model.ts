@@ -14,7 +14,7 @@
 // overlap, or to cross the clearance line, by that much and no more.
 
 import { ComputationError } from "@/lib/errors";
-import { dffTrayBound, shortSideTrayBound } from "./dual-feasible";
+import { claimedAreaTrayBound, dffTrayBound, shortSideTrayBound } from "./dual-feasible";
 import { ceilWithSlack, martelloTothL2 } from "./one-dimensional";
 import { GEOMETRY_EPS } from "./rectangles";
 import type { PackFurnace, PackUnit, TrayLowerBound, TrayPackInput, Unplaced } from "./types";
@@ -285,7 +285,10 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
     const big = items.filter((it) => it.eligible.every((fi) => isBigOnTray(it.pw, it.ph, furnaces[fi]))).length;
     const count = big === 0 ? 0 : ceilWithSlack(big / maxTrays);
     // Trays needed by the pieces' shapes (dual-feasible functions, turning allowed), spread over
-    // the most trays a run of this profile can have.
+    // the most trays a run of this profile can have. Bound known to be weak where most pieces are
+    // long one way and turning is allowed (the 2-D bin-packing classes VII and VIII: several
+    // instances end two trays above it), and on pieces of random sizes (classes III and V); it
+    // counts area and claimed strips, not how long and short pieces interlock.
     const shapeTrays = dffTrayBound(
       items.map((it) => ({ w: it.pw, h: it.ph, trays: it.eligible.map((fi) => ({ W: furnaces[fi].W, D: furnaces[fi].D })) })),
       items.length <= 200 ? 24 : 8,
@@ -293,8 +296,10 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
     // The short-side bound needs one tray size for the whole profile.
     const t0 = pf[0];
     const oneSize = pf.every((f) => (f.W === t0.W && f.D === t0.D) || (f.W === t0.D && f.D === t0.W));
-    const sideTrays = oneSize ? shortSideTrayBound(items.map((it) => ({ w: it.pw, h: it.ph })), t0.W, t0.D) : 0;
-    const trayNeed = Math.max(shapeTrays, sideTrays);
+    const pieces = items.map((it) => ({ w: it.pw, h: it.ph }));
+    const sideTrays = oneSize ? shortSideTrayBound(pieces, t0.W, t0.D) : 0;
+    const claimedTrays = oneSize ? claimedAreaTrayBound(pieces, t0.W, t0.D, items.length <= 200 ? 128 : 32) : 0;
+    const trayNeed = Math.max(shapeTrays, sideTrays, claimedTrays);
     const shape = trayNeed === 0 ? 0 : ceilWithSlack(trayNeed / maxTrays);
     const largest = Math.max(area, mass, count, shape, items.length > 0 ? 1 : 0);
     const bound = { area, mass, count, shape, largest };

@@ -69,7 +69,7 @@ export interface TrayLowerBound {
   mass: number;
   /** Pieces over half a tray both ways, which cannot share a tray. */
   count: number;
-  /** Trays needed by the pieces' shapes (dual-feasible functions, turning allowed; dual-feasible.ts). */
+  /** Trays needed by the pieces' shapes (dual-feasible functions, short-side and claimed-area bounds, turning allowed; dual-feasible.ts). */
   shape: number;
   largest: number;
 }

@@ -51,6 +51,7 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/inventory/lots/[id]/recall": { POST: "inventory:recall" },
   "/api/inventory/lots/[id]/genealogy": { GET: "shop:read" },
   "/api/inventory/lots/[id]/label": { GET: "shop:read" },
+  "/api/inventory/lots/[id]/certificate": { GET: "shop:read", POST: "inventory:write" },
   "/api/inventory/projection": { GET: "shop:read" },
   "/api/inventory/shortfalls": { GET: "shop:read" },
   "/api/inventory/forms": { GET: "shop:read", POST: "inventory:write" },

@@ -79,7 +79,7 @@ describe("feedstock in the browser", () => {
     const row = page.locator("tr", { has: page.getByRole("link", { name: lotCode }) });
     const left = ((4000 - drawn) / 1000).toLocaleString("en-GB", { minimumFractionDigits: 1, maximumFractionDigits: 1 });
     expect(await row.textContent()).toContain(`${left} kg of 4.0 kg`);
-    await page.getByRole("button", { name: code }).click();
+    await page.getByRole("button", { name: code, exact: true }).click();
     // a flat projection draws a line of no height, which Playwright counts as hidden: attached is enough
     await page.locator(".recharts-line-curve").first().waitFor({ state: "attached" });
     expect(await page.getByRole("img", { name: new RegExp(`Projected ${code} on hand`) }).count()).toBe(1);

@@ -59,13 +59,17 @@ async function release(id: string) {
   expect(res.status, JSON.stringify(res.body)).toBe(200);
 }
 
-/** A build of `quantity` units scheduled to start `startH` hours from now on the material's printer. */
+/**
+ * A build of `quantity` units scheduled to start `startH` hours from now on the material's printer.
+ * By default it began three minutes ago: a start further back could put its end, a short print,
+ * in the past already, and the worker would complete it before the test starts it.
+ */
 async function scheduledBuild(m: { code: string; printer: { id: string } }, opts: { quantity?: number; startH?: number } = {}) {
   const order = await makeOrder(tech);
   const part = await makePart(tech, db, { order_id: order.id, material: m.code, quantity: opts.quantity ?? 2 });
   const units = await unitsOf(db, part.id);
   const build = await makeBuild(tech, units.map((u) => u.id));
-  const s = await api(`/api/builds/${build.id}/schedule`, { method: "PATCH", cookie: tech, body: { version: build.version, printer_id: m.printer.id, starts_at: hoursFromNow(opts.startH ?? -0.5).toISOString() } });
+  const s = await api(`/api/builds/${build.id}/schedule`, { method: "PATCH", cookie: tech, body: { version: build.version, printer_id: m.printer.id, starts_at: hoursFromNow(opts.startH ?? -0.05).toISOString() } });
   expect(s.status, JSON.stringify(s.body)).toBe(200);
   return { build: s.body.build as { id: string; code: string; version: number }, part, order, units };
 }
@@ -164,7 +168,7 @@ describe("a build draws its feedstock", () => {
 
   it("lets exactly one of two builds take the last kilograms when both start at once", async () => {
     const m = await ownMaterial();
-    const a = await scheduledBuild(m, { quantity: 3, startH: -0.5 });
+    const a = await scheduledBuild(m, { quantity: 3, startH: -0.05 });
     const b = await scheduledBuild(m, { quantity: 3, startH: 100 });
     const need = await expectedDrawG(a.part.id, 3, Number(m.green_density_g_cm3));
     // enough for one build and a half

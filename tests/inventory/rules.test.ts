@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { estimateDraw } from "@/lib/inventory/consumption";
+import { estimateDraw, estimateDrawOfTotal } from "@/lib/inventory/consumption";
+import { receiveLotSchema } from "@/lib/inventory/schemas";
 import { allocate, drawRefusal, fefo, type LotForDraw } from "@/lib/inventory/lots";
 import { dayRange, projectOnHand, reorderDecision } from "@/lib/inventory/projection";
 import { bathState, gasShortfalls, runGasLitres } from "@/lib/inventory/consumables";
@@ -22,6 +23,12 @@ describe("feedstock drawn by a build", () => {
       purge_g: 25,
     });
     expect(d).toEqual({ parts_g: 181.1, supports_g: 27.2, purge_g: 25, total_g: 233.2 });
+  });
+
+  it("gives the same figures from the summed volume and the unit count (a schedule counted per part)", () => {
+    const material = { feedstock_density_g_cm3: feedstockDensity(0.6, 7.75, 0.95), support_allowance: 0.15, purge_g: 25 };
+    expect(estimateDrawOfTotal(36_000, 3, material)).toEqual({ parts_g: 181.1, supports_g: 27.2, purge_g: 25, total_g: 233.2 });
+    expect(estimateDrawOfTotal(0, 0, material).total_g).toBe(0);
   });
 
   it("draws nothing for an empty build and refuses nonsense densities", () => {
@@ -129,5 +136,20 @@ describe("consumables", () => {
     );
     // R-1 takes 10 000 L of 20 000; R-2 needs 12 000 with 10 000 left → warned. R-3 needs 500 of 1 000.
     expect(w).toEqual([{ run_id: "r2", code: "R-2", gas: "argon", needed_l: 12_000, left_before_l: 10_000 }]);
+  });
+});
+
+describe("receiving a lot: the shared field rules", () => {
+  const base = { material_id: "7f1d2c9e-8a4b-4c3d-9e2f-1a2b3c4d5e6f", supplier: "Test Powders", supplier_lot: "B-17", received_on: "2026-11-01", quantity_kg: 5 };
+  it("refuses control characters in a name, keeps line breaks in the storage notes", () => {
+    expect(receiveLotSchema.safeParse({ ...base, supplier: "Test\u0007Powders" }).success).toBe(false);
+    expect(receiveLotSchema.parse({ ...base, storage_notes: "dry cabinet\nshelf 2" }).storage_notes).toBe("dry cabinet\nshelf 2");
+    expect(receiveLotSchema.safeParse({ ...base, storage_notes: "a\u0000b" }).success).toBe(false);
+  });
+  it("takes real calendar days only, within the planning years", () => {
+    expect(receiveLotSchema.safeParse({ ...base, received_on: "2026-02-30" }).success).toBe(false);
+    expect(receiveLotSchema.safeParse({ ...base, received_on: "3026-01-01" }).success).toBe(false);
+    expect(receiveLotSchema.safeParse({ ...base, expires_on: "2026-10-01" }).success).toBe(false);
+    expect(receiveLotSchema.parse({ ...base, expires_on: "2027-05-01" }).expires_on).toBe("2027-05-01");
   });
 });

@@ -81,6 +81,13 @@ describe("queryHears", () => {
     expect(queryHears(["trace", B], { build: { id: "other" } }, [build])).toBe(false);
     expect(queryHears(["trace", B], null, [{ e: "inspection", id: A, unit: B }])).toBe(true);
   });
+  it("the floor's feedstock marks refetch on a build, unit, lot or material change, not on a wash batch", () => {
+    expect(queryHears(["feedstock-shortfalls"], null, [{ e: "feedstock_lot", id: A, v: 3 }])).toBe(true);
+    expect(queryHears(["feedstock-shortfalls"], null, [{ e: "material", id: A, v: 2 }])).toBe(true);
+    expect(queryHears(["feedstock-shortfalls"], null, [build])).toBe(true);
+    expect(queryHears(["feedstock-shortfalls"], null, [{ e: "wash_batch", id: A, v: 2 }])).toBe(false);
+    expect(parseChange(JSON.stringify({ e: "feedstock_lot", id: A, v: 4 }))).toEqual({ e: "feedstock_lot", id: A, v: 4 });
+  });
   it("a resync refetches every live query and nothing else", () => {
     expect(queryHears(["trace", B], null, null)).toBe(true);
     expect(queryHears(["users"], null, null)).toBe(false);

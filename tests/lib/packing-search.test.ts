@@ -4,7 +4,7 @@
 
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
-import { dffTrayBound, shortSideTrayBound, stepDff, epsilonDff } from "@/lib/packing/dual-feasible";
+import { claimedAreaTrayBound, dffTrayBound, shortSideTrayBound, stepDff, epsilonDff } from "@/lib/packing/dual-feasible";
 import { packTrays, packTraysReported } from "@/lib/packing/trays";
 import type { TrayPackInput } from "@/lib/packing/types";
 import type { FurnaceRunsInstance } from "@/lib/planning/instances";
@@ -142,6 +142,92 @@ describe("shape bounds against exact optima (exhaustive search, turning allowed)
     const items = Array.from({ length: 5 }, () => ({ w: 60, h: 55, trays: [{ W: 100, D: 100 }] }));
     expect(dffTrayBound(items)).toBe(5);
     expect(shortSideTrayBound(items, 100, 100)).toBe(5);
+  });
+});
+
+/** One W×H tray cut by random guillotine cuts, every piece then trimmed a little: the pieces fit one tray. */
+function oneTrayPieces(rnd: () => number, W: number, H: number, pieces: number): { w: number; h: number }[] {
+  const parts = [{ w: W, h: H }];
+  while (parts.length < pieces) {
+    const i = Math.floor(rnd() * parts.length);
+    const p = parts[i];
+    const alongW = p.w >= p.h ? rnd() < 0.8 : rnd() < 0.2;
+    const side = alongW ? p.w : p.h;
+    if (side < 2) continue;
+    const cut = 1 + Math.floor(rnd() * (side - 1));
+    parts.splice(i, 1, ...(alongW ? [{ w: cut, h: p.h }, { w: p.w - cut, h: p.h }] : [{ w: p.w, h: cut }, { w: p.w, h: p.h - cut }]));
+  }
+  // Trimmed and turned at random: the set still fits one tray (turning allowed).
+  return parts.map((p) => {
+    const w = Math.max(0.5, p.w - rnd() * 0.5);
+    const h = Math.max(0.5, p.h - rnd() * 0.5);
+    return rnd() < 0.5 ? { w, h } : { w: h, h: w };
+  });
+}
+
+describe("claimed-area bound (U^ε on both axes, then Martello–Toth L2; Carlier, Clautiaux & Moukrim 2007)", () => {
+  it("three 8×4 strips need two 10×10 trays, though their area fits one (worked by hand)", () => {
+    // Stacked they are 12 high; one turned beside two flat ones is 8 + 4 = 12 wide. With q = 4 each
+    // strip claims a full band 10×4, 120 in all > 100.
+    const strips = [
+      { w: 8, h: 4 },
+      { w: 4, h: 8 },
+      { w: 8, h: 4 },
+    ];
+    expect(claimedAreaTrayBound(strips, 10, 10)).toBe(2);
+    expect(shortSideTrayBound(strips, 10, 10)).toBe(1);
+    expect(optimumBins(10, 10, [[8, 4], [4, 8], [8, 4]])).toBe(2);
+    expect(dffTrayBound(strips.map((p) => ({ ...p, trays: [{ W: 10, D: 10 }] })))).toBeLessThanOrEqual(2);
+  });
+
+  it("pieces cut from one tray always give 1 (the claimed regions of one tray never overlap)", () => {
+    const rnd = mulberry32(99);
+    for (let t = 0; t < 300; t++) {
+      const W = 20 + Math.floor(rnd() * 81);
+      const H = t % 2 === 0 ? W : 20 + Math.floor(rnd() * 81);
+      const pieces = oneTrayPieces(rnd, W, H, 2 + Math.floor(rnd() * 12));
+      expect(claimedAreaTrayBound(pieces, W, H)).toBe(1);
+    }
+  });
+
+  it("never exceeds the exact optimum on 80 tiny instances of long pieces, wide and tall mixed (classes VII/VIII shrunk to a 10×10 tray)", () => {
+    const rnd = mulberry32(77);
+    let tight = 0;
+    for (let t = 0; t < 80; t++) {
+      const W = 10;
+      const H = t % 4 === 0 ? 8 : 10;
+      const n = 4 + Math.floor(rnd() * 5);
+      const items: [number, number][] = [];
+      while (items.length < n) {
+        const r = rnd();
+        // Wide (7–10 × 1–5), tall, large (5–10 both ways) or small (1–5 both ways).
+        const long = 7 + Math.floor(rnd() * 4);
+        const short = 1 + Math.floor(rnd() * 5);
+        const big = () => 5 + Math.floor(rnd() * 6);
+        const little = () => 1 + Math.floor(rnd() * 5);
+        const [w, h]: [number, number] = r < 0.4 ? [long, short] : r < 0.8 ? [short, long] : r < 0.9 ? [big(), big()] : [little(), little()];
+        if ((w <= W && h <= H) || (h <= W && w <= H)) items.push([w, h]);
+      }
+      const opt = optimumBins(W, H, items);
+      const pieces = items.map(([w, h]) => ({ w, h }));
+      const claimed = claimedAreaTrayBound(pieces, W, H);
+      expect(claimed).toBeLessThanOrEqual(opt);
+      const res = packTrays(binInput(W, H, items));
+      expect(res.lowerBound.largest).toBeLessThanOrEqual(opt);
+      if (claimed === opt) tight++;
+    }
+    expect(tight).toBeGreaterThan(40);
+  });
+
+  it("lifts the bound to the packer's count on a class VII instance (n = 20), which proves that plan optimal", () => {
+    // Seed 5 of our class VII generator: area, dual-feasible and short-side bounds all say 5.
+    const inst = asTrayInstance(binInstance("VII", 20, 5));
+    const pieces = inst.units.map((u) => ({ w: u.footprint_mm[0] - 0.01, h: u.footprint_mm[1] - 0.01 }));
+    expect(Math.max(dffTrayBound(pieces.map((p) => ({ ...p, trays: [{ W: 100, D: 100 }] }))), shortSideTrayBound(pieces, 100, 100))).toBe(5);
+    expect(claimedAreaTrayBound(pieces, 100, 100)).toBe(6);
+    const res = packTrays(inst);
+    expect(res.lowerBound.largest).toBe(6);
+    expect(res.runs).toHaveLength(6);
   });
 });
 

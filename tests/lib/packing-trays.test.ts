@@ -6,6 +6,7 @@ import { canAddToRun, packTrays } from "@/lib/packing/trays";
 import type { PackFurnace, PackUnit } from "@/lib/packing/types";
 import { furnaceRunsInstanceSchema, planningInstanceSchema } from "@/lib/planning/instances";
 import { toInstanceRuns, verifyRuns } from "@/lib/planning/metrics";
+import { sharedFolder } from "@/tests/helpers/shared";
 
 const DAY = 86_400_000;
 const T0 = Date.parse("2027-01-04T06:00:00Z");
@@ -183,10 +184,11 @@ describe("canAddToRun", () => {
   });
 });
 
-const SHARED = path.resolve(process.cwd(), "../shared/bench/instances");
+// Beside the repository, or the machine-wide copy (tests/helpers/shared.ts); skipped when neither exists.
+const SHARED = sharedFolder("bench/instances") ?? "";
 
-describe.skipIf(!fs.existsSync(SHARED))("shared sample instances", () => {
-  const files = fs.existsSync(SHARED) ? fs.readdirSync(SHARED).filter((f) => f.endsWith(".json")) : [];
+describe.skipIf(SHARED === "")("shared sample instances", () => {
+  const files = SHARED ? fs.readdirSync(SHARED).filter((f) => f.endsWith(".json")) : [];
 
   it("all parse with the instance schema", () => {
     expect(files.length).toBeGreaterThan(0);

@@ -4,6 +4,7 @@ import { LotsTable } from "@/components/inventory/lots-table";
 import { ProjectionView } from "@/components/inventory/projection-view";
 import { ReceiveForm } from "@/components/inventory/receive-form";
 import { SolventGasCaution } from "@/components/inventory/solvent-gas-caution";
+import { StockSettings } from "@/components/inventory/stock-settings";
 import { PageHeader } from "@/components/ui/page-header";
 import { getDb } from "@/db/client";
 import { gasOutlook, listBaths, listForms, listLots, projectStock } from "@/db/inventory/reads";
@@ -26,6 +27,11 @@ export default async function InventoryPage() {
         <ProjectionView materials={outlook.materials} days={DAYS} />
         {can(user.role, "inventory:write") ? <ReceiveForm materials={outlook.materials.map((m) => ({ id: m.id, code: m.code, name: m.name }))} forms={forms} today={outlook.today} /> : null}
         <LotsTable lots={lots} today={outlook.today} />
+        <StockSettings
+          materials={outlook.materials.map((m) => ({ id: m.id, code: m.code, name: m.name, version: m.version, support_allowance: m.support_allowance, purge_g: m.purge_g, reorder_point_g: m.reorder_point_g, lead_time_days: m.lead_time_days }))}
+          forms={forms}
+          canWrite={can(user.role, "inventory:write")}
+        />
         <SolventGasCaution />
         <ConsumablesView
           baths={baths.map((b) => ({ ...b, bath_changed_at: new Date(b.bath_changed_at).toISOString() }))}

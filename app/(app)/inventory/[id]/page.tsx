@@ -1,11 +1,12 @@
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { connection } from "next/server";
+import { CertificatePanel } from "@/components/inventory/certificate-panel";
 import { LotActions } from "@/components/inventory/lot-actions";
 import { kg, STATE_CLASS, STATE_LABEL } from "@/components/inventory/format";
 import { PageHeader } from "@/components/ui/page-header";
 import { getDb } from "@/db/client";
-import { getLotOrThrow, lotGenealogy } from "@/db/inventory/reads";
+import { findLotCertificate, findShopZone, getLotOrThrow, lotGenealogy, shopDay } from "@/db/inventory/reads";
 import { can } from "@/lib/auth/permissions";
 import { AppError } from "@/lib/errors";
 import { requirePageUser } from "@/app/_server/session";
@@ -21,7 +22,7 @@ export default async function LotPage({ params }: { params: Promise<{ id: string
     if (err instanceof AppError && err.status === 404) notFound();
     throw err;
   });
-  const units = await lotGenealogy(db, id);
+  const [units, certificate, zone] = await Promise.all([lotGenealogy(db, id), findLotCertificate(db, id), findShopZone(db)]);
   const orders = [...new Map(units.map((u) => [u.order_id, u])).values()];
   const builds = [...new Map(units.map((u) => [u.build_id, u])).values()];
   return (
@@ -43,9 +44,14 @@ export default async function LotPage({ params }: { params: Promise<{ id: string
           <div><div className="text-xs text-soot-600">Use by</div><div>{lot.expires_on ?? "no shelf life given"}</div></div>
           <div><div className="text-xs text-soot-600">Form</div><div>{lot.form ?? "—"}</div></div>
           <div className="col-span-2"><div className="text-xs text-soot-600">Storage</div><div>{lot.storage_notes || "—"}</div></div>
-          <div><div className="text-xs text-soot-600">Certificate of analysis</div><div>{lot.certificate_file_id ? <a className="text-clay-800 underline" href={`/api/files/${lot.certificate_file_id}/content`}>open</a> : "not attached"}</div></div>
+          <div><div className="text-xs text-soot-600">Certificate of analysis</div><div>{certificate ? <a className="text-clay-800 underline" href={`/api/inventory/lots/${lot.id}/certificate`}>{certificate.filename}</a> : "not attached"}</div></div>
           {lot.recalled_at ? <div className="col-span-2 sm:col-span-4 font-semibold text-oxide-700">Recalled: {lot.recall_reason}</div> : null}
         </section>
+        <CertificatePanel
+          lot={{ id: lot.id, code: lot.code, version: lot.version }}
+          certificate={certificate ? { filename: certificate.filename, content_type: certificate.content_type, size_bytes: certificate.size_bytes, uploaded_at: shopDay(new Date(certificate.created_at), zone) } : null}
+          canWrite={can(user.role, "inventory:write")}
+        />
         <LotActions lot={lot} canWrite={can(user.role, "inventory:write")} canRecall={can(user.role, "inventory:recall")} />
         <section aria-labelledby="genealogy-heading" className="rounded-card bg-white p-4 shadow-card md:p-5">
           <div className="flex flex-wrap items-baseline justify-between gap-2">
