@@ -57,6 +57,24 @@ export type UnitSystem = "in" | "mm";
 
 export type UserRole = "admin" | "furnace_operator" | "machinist" | "manager" | "technician";
 
+export interface ApiTokens {
+  created_at: Generated<Timestamp>;
+  created_by: string;
+  expires_at: Timestamp | null;
+  id: Generated<string>;
+  last_used_at: Timestamp | null;
+  last_used_from: string | null;
+  name: string;
+  rate_limit_per_minute: Generated<number>;
+  revoked_at: Timestamp | null;
+  revoked_by: string | null;
+  scopes: string[];
+  token_hash: string;
+  token_hint: string;
+  window_count: Generated<number>;
+  window_started_at: Timestamp | null;
+}
+
 export interface AuthTokens {
   created_at: Generated<Timestamp>;
   created_by: string | null;
@@ -201,6 +219,15 @@ export interface FurnaceRuns {
   tray_layout: Json | null;
   unloaded_at: Timestamp | null;
   unloaded_by: string | null;
+  updated_at: Generated<Timestamp>;
+  version: Generated<number>;
+}
+
+export interface FurnaceQuoteRates {
+  energy_cost_minor: number | null;
+  furnace_id: string;
+  gas_cost_minor: number | null;
+  run_cost_minor: number | null;
   updated_at: Generated<Timestamp>;
   version: Generated<number>;
 }
@@ -400,6 +427,13 @@ export interface PlanProposals {
 export interface PrinterMaterials {
   material_id: string;
   printer_id: string;
+}
+
+export interface PrinterQuoteRates {
+  printer_id: string;
+  rate_minor_per_h: number;
+  updated_at: Generated<Timestamp>;
+  version: Generated<number>;
 }
 
 export interface Printers {
@@ -632,6 +666,55 @@ export interface WashStations {
   version: Generated<number>;
 }
 
+export type WebhookDeliveryState = "delivered" | "failed" | "pending" | "sending";
+
+export interface WebhookAttempts {
+  attempted_at: Generated<Timestamp>;
+  delivery_id: string;
+  duration_ms: number;
+  error: string | null;
+  id: Generated<number>;
+  status: number | null;
+}
+
+export interface WebhookDeliveries {
+  attempts: Generated<number>;
+  created_at: Generated<Timestamp>;
+  delivered_at: Timestamp | null;
+  endpoint_id: string;
+  event_id: string;
+  id: Generated<string>;
+  last_error: string | null;
+  last_status: number | null;
+  lease_until: Timestamp | null;
+  next_attempt_at: Generated<Timestamp>;
+  state: Generated<WebhookDeliveryState>;
+}
+
+export interface WebhookEndpoints {
+  active: Generated<boolean>;
+  created_at: Generated<Timestamp>;
+  created_by: string | null;
+  description: Generated<string>;
+  events: string[];
+  failing_since: Timestamp | null;
+  id: Generated<string>;
+  pause_mailed_at: Timestamp | null;
+  paused_at: Timestamp | null;
+  secret: string;
+  url: string;
+  version: Generated<number>;
+}
+
+export interface WebhookEvents {
+  created_at: Generated<Timestamp>;
+  entity: string;
+  entity_id: string | null;
+  id: Generated<string>;
+  payload: Json;
+  type: string;
+}
+
 export interface WorkerHeartbeats {
   beat_at: Generated<Timestamp>;
   host: string;
@@ -653,6 +736,7 @@ export interface WorkerSweeps {
 }
 
 export interface DB {
+  api_tokens: ApiTokens;
   auth_tokens: AuthTokens;
   batch_proposals: BatchProposals;
   builds: Builds;
@@ -663,6 +747,7 @@ export interface DB {
   files: Files;
   furnace_profiles: FurnaceProfiles;
   furnace_runs: FurnaceRuns;
+  furnace_quote_rates: FurnaceQuoteRates;
   furnaces: Furnaces;
   gas_supplies: GasSupplies;
   inspection_files: InspectionFiles;
@@ -676,6 +761,7 @@ export interface DB {
   parts: Parts;
   plan_proposals: PlanProposals;
   printer_materials: PrinterMaterials;
+  printer_quote_rates: PrinterQuoteRates;
   printers: Printers;
   quote_lines: QuoteLines;
   quote_settings: QuoteSettings;
@@ -690,6 +776,10 @@ export interface DB {
   users: Users;
   wash_batches: WashBatches;
   wash_stations: WashStations;
+  webhook_attempts: WebhookAttempts;
+  webhook_deliveries: WebhookDeliveries;
+  webhook_endpoints: WebhookEndpoints;
+  webhook_events: WebhookEvents;
   worker_heartbeats: WorkerHeartbeats;
   worker_sweeps: WorkerSweeps;
 }

@@ -192,6 +192,9 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
       ])
       .returning("id")
       .execute();
+    // The big printer and the big kiln cost more an hour or a run than the shop's default (invented).
+    await trx.insertInto("printer_quote_rates").values({ printer_id: printers[2].id, rate_minor_per_h: 2600 }).execute();
+    await trx.insertInto("furnace_quote_rates").values({ furnace_id: furnaces[1].id, run_cost_minor: 30000, gas_cost_minor: 9500, energy_cost_minor: null }).execute();
     await trx
       .insertInto("furnace_profiles")
       .values([

@@ -174,9 +174,11 @@ stack_env() {
   export SMTP_PORT="${SMTP_PORT:-$((2525 + base))}"
   export MAIL_CAPTURE_PORT="${MAIL_CAPTURE_PORT:-$((2526 + base))}"
   export S3_PORT="${S3_PORT:-$((4569 + base))}"
+  export WEBHOOK_RECEIVER_PORT="${WEBHOOK_RECEIVER_PORT:-$((2527 + base))}"
   export APP_URL="${APP_URL:-http://127.0.0.1:$PORT}"
   export MAIL_CAPTURE_URL="${MAIL_CAPTURE_URL:-http://127.0.0.1:$MAIL_CAPTURE_PORT}"
   export S3_ENDPOINT="${S3_ENDPOINT:-http://127.0.0.1:$S3_PORT}"
+  export WEBHOOK_RECEIVER_URL="${WEBHOOK_RECEIVER_URL:-http://127.0.0.1:$WEBHOOK_RECEIVER_PORT}"
   export SMTP_HOST="${SMTP_HOST:-127.0.0.1}"
 }
 

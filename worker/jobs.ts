@@ -6,6 +6,7 @@ import { advanceHandler } from "./handlers/advance";
 import { scaleUpHandler } from "./handlers/scale-up";
 import { drainOutbox, sendMailHandler } from "./handlers/send-mail";
 import { runSweep } from "./sweep";
+import { deliverDueWebhooks, webhookConfig } from "./webhooks";
 import { logJobs } from "./job-log";
 import { sweepOrphanObjects } from "./orphans";
 
@@ -58,6 +59,11 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
   const stopPump = every(cfg.mailPumpSeconds, "outbox", async () => {
     await drainOutbox(db, 200);
   });
+  const hooks = webhookConfig();
+  const stopWebhooks = every(Number(process.env.HEARTH_WEBHOOK_PUMP_SECONDS) || 2, "webhooks", async () => {
+    const r = await deliverDueWebhooks(db, hooks);
+    if (!cfg.quiet && (r.delivered || r.retry || r.failed)) console.log(`[worker] webhooks: ${r.delivered} delivered, ${r.retry} to retry, ${r.failed} given up`);
+  });
   const stopOrphans = every(cfg.orphanSweepSeconds, "orphan sweep", async () => {
     const r = await sweepOrphanObjects(db, { minAgeSeconds: cfg.orphanMinAgeSeconds });
     if (r.deleted.length) console.log(`[worker] orphan sweep: deleted ${r.deleted.length} of ${r.listed} stored objects that no file names`);
@@ -66,6 +72,6 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
     `[worker] sweep every ${cfg.sweepSeconds} s, outbox every ${cfg.mailPumpSeconds} s, polling ${cfg.pollSeconds} s, batch ${cfg.batchSize} × ${cfg.concurrency}`,
   );
   return async () => {
-    await Promise.all([stopSweep(), stopPump(), stopOrphans()]);
+    await Promise.all([stopSweep(), stopPump(), stopWebhooks(), stopOrphans()]);
   };
 }

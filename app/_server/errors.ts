@@ -27,6 +27,9 @@ export function toErrorResponse(err: unknown): NextResponse<ErrorBody> {
   const headers: Record<string, string> = {};
   if (id) headers["x-request-id"] = id;
   if (status === 503) headers["retry-after"] = String(RETRY_AFTER_SECONDS);
+  // RFC 9110 §10.2.3: a 429 that knows the wait says it in Retry-After (seconds).
+  const wait = err instanceof AppError && status === 429 ? Number(err.details?.retry_after_s) : NaN;
+  if (Number.isFinite(wait) && wait > 0) headers["retry-after"] = String(Math.ceil(wait));
   return NextResponse.json({ error: id ? { ...error, request_id: id } : error }, { status, headers });
 }
 

@@ -4,7 +4,7 @@
 // the rest is a cookie, one query and a write. Only the plain case is answered here: a well-formed
 // window and a session that app/_server/floor-access.ts allows (the rule the route handler uses
 // too) and that is not yet due for renewal. Anything else (signed out, refused, bad window, a
-// cookie to renew, an error) returns false and goes to the route handler, app/api/floor/route.ts,
+// cookie to renew, a bearer token, an error) returns false and goes to the route handler, app/api/floor/route.ts,
 // which answers it in full.
 import type { IncomingMessage, ServerResponse } from "node:http";
 import { parse as parseCookies } from "cookie";
@@ -22,6 +22,9 @@ export async function answerFloorWindow(req: IncomingMessage, res: ServerRespons
   if (req.method !== "GET" || !req.url) return false;
   const q = req.url.indexOf("?");
   if ((q < 0 ? req.url : req.url.slice(0, q)) !== FLOOR_WINDOW_PATH) return false;
+  // Only cookies are read here: a request with any Authorization header (an API token) is the
+  // route handler's, which authenticates it through requireUser like every other route.
+  if (req.headers.authorization !== undefined) return false;
 
   const w = floorWindowSchema.safeParse(Object.fromEntries(new URLSearchParams(q < 0 ? "" : req.url.slice(q + 1))));
   if (!w.success) return false;

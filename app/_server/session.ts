@@ -7,6 +7,8 @@ import { findActiveUserById, type CurrentUser } from "@/db/users/reads";
 import { insertUserSession, revokeUserSession, touchUserSession } from "@/db/auth/commands";
 import { AppError } from "@/lib/errors";
 import { can, type Permission, type Role } from "@/lib/auth/permissions";
+import { actorCan } from "@/lib/auth/api-scopes";
+import { authenticateBearer, currentBearer } from "@/app/_server/api-token-auth";
 import { PEER_HEADER, clientAddress, parseTrustedProxies, type TrustedProxies } from "@/lib/http/client-address";
 import { getEnv } from "@/lib/env";
 import { safeNextPath } from "@/lib/http/safe-next";
@@ -125,6 +127,18 @@ export function forbidden(role: Role, permission: Permission): AppError {
 
 /** For route handlers and server actions: 401 when signed out, 403 without the permission. */
 export async function requireUser(permission?: Permission): Promise<CurrentUser> {
+  // A bearer token replaces the cookie (app/_server/api-token-auth.ts): same checks, narrowed by
+  // its scopes. A request that names the Bearer scheme never falls back to the cookie, because
+  // the cross-site rule (lib/http/cross-site.ts) exempts exactly those requests.
+  const bearer = await currentBearer();
+  if (bearer !== null) {
+    const tokenUser = await authenticateBearer(bearer, await requestAddress());
+    noteUser(tokenUser.id);
+    if (permission && !actorCan(tokenUser, permission)) {
+      throw new AppError("forbidden", `This API token may not do this: it needs "${permission}", which its scopes or its creator's role do not give.`);
+    }
+    return tokenUser;
+  }
   const user = await getCurrentUser();
   if (!user) throw new AppError("unauthenticated", "Sign in to continue.");
   noteUser(user.id);

@@ -164,11 +164,11 @@ export function PartsWorkspace({ materials, orders, canWriteOrders, canWritePart
       {notice ? <div role={notice.tone === "danger" ? "alert" : "status"} data-testid="parts-notice" className={`rounded-card border px-3 py-2 text-sm ${notice.tone === "danger" ? "border-oxide-500/40 bg-oxide-100 text-oxide-700" : "border-verdigris-400/40 bg-verdigris-100 text-verdigris-700"}`}>{notice.text}</div> : null}
 
       {tab === "orders" ? (
-        <ServerTable<OrderRow> path="/api/orders" queryKey="orders" columns={orderColumns} defaultSort={{ id: "due_at", desc: false }} searchPlaceholder="Search work order, customer, project" getRowId={(r) => r.id} caption="Orders" testId="orders-table" />
+        <ServerTable<OrderRow> exportCsv path="/api/orders" queryKey="orders" columns={orderColumns} defaultSort={{ id: "due_at", desc: false }} searchPlaceholder="Search work order, customer, project" getRowId={(r) => r.id} caption="Orders" testId="orders-table" />
       ) : null}
       {tab === "parts" ? (
         <ServerTable<PartRow>
-          path="/api/parts" queryKey="parts" columns={partColumns} defaultSort={{ id: "due_at", desc: false }} searchPlaceholder="Search part number, name, order, customer" getRowId={(r) => r.id} caption="Parts" testId="parts-table"
+          exportCsv path="/api/parts" queryKey="parts" columns={partColumns} defaultSort={{ id: "due_at", desc: false }} searchPlaceholder="Search part number, name, order, customer" getRowId={(r) => r.id} caption="Parts" testId="parts-table"
           filters={{ order_id: orderFilter?.id, material_id: materialFilter || undefined }}
           toolbar={
             <>
@@ -187,7 +187,7 @@ export function PartsWorkspace({ materials, orders, canWriteOrders, canWritePart
       ) : null}
       {tab === "units" ? (
         <ServerTable<UnitRow>
-          path="/api/units" queryKey="units" columns={unitColumns} defaultSort={{ id: "due_at", desc: false }} searchPlaceholder="Search serial, part, order" getRowId={(r) => r.id} caption="Units" testId="units-table"
+          exportCsv path="/api/units" queryKey="units" columns={unitColumns} defaultSort={{ id: "due_at", desc: false }} searchPlaceholder="Search serial, part, order" getRowId={(r) => r.id} caption="Units" testId="units-table"
           filters={{ state: stateFilter || undefined, material_id: materialFilter || undefined, unbuilt: unbuilt ? "true" : undefined }}
           selectable={(u) => canBuild && u.state === "planned" && !u.build_id}
           onSelectionChange={setSelected}

@@ -22,6 +22,8 @@ export type ServerTableProps<Row> = {
   pageSize?: number;
   testId?: string;
   emptyText?: string;
+  /** Offer the rows as CSV from `${path}/export`, with the same search, filters and sort (all pages). */
+  exportCsv?: boolean;
 };
 
 type Page<Row> = { rows: Row[]; total: number };
@@ -30,7 +32,7 @@ type Page<Row> = { rows: Row[]; total: number };
  * A table whose sorting, search, filters and pages all happen on the server: the client only
  * keeps the state and asks the API for the one page it shows.
  */
-export function ServerTable<Row>({ path, queryKey, columns, filters = {}, defaultSort, searchPlaceholder, getRowId, selectable, onSelectionChange, toolbar, caption, pageSize = 25, testId, emptyText = "Nothing matches." }: ServerTableProps<Row>) {
+export function ServerTable<Row>({ path, queryKey, columns, filters = {}, defaultSort, searchPlaceholder, getRowId, selectable, onSelectionChange, toolbar, caption, pageSize = 25, testId, emptyText = "Nothing matches.", exportCsv = false }: ServerTableProps<Row>) {
   const [sorting, setSorting] = useState<SortingState>([defaultSort]);
   const [pageIndex, setPageIndex] = useState(0);
   const [searchInput, setSearchInput] = useState("");
@@ -114,6 +116,15 @@ export function ServerTable<Row>({ path, queryKey, columns, filters = {}, defaul
           />
         </label>
         {toolbar}
+        {exportCsv ? (
+          <a
+            href={`${path}/export?${new URLSearchParams([...new URLSearchParams(params)].filter(([k]) => k !== "page" && k !== "page_size")).toString()}`}
+            download
+            className="rounded-md border border-soot-200 px-2.5 py-1.5 text-sm font-semibold text-soot-700 hover:bg-soot-50"
+          >
+            CSV<span className="sr-only"> of the {caption.toLowerCase()} as filtered</span>
+          </a>
+        ) : null}
         <span className="ml-auto text-xs text-soot-500" aria-live="polite">
           {query.isFetching ? "Loading… " : ""}
           {total} {total === 1 ? "row" : "rows"}

@@ -161,7 +161,7 @@ export function QuoteEditor({ id, canWrite, maxUploadBytes }: QuoteEditorProps) 
                     <p className="text-sm">Complete {when(l.promise.completion, tz)} · P90 {when(l.promise.p90, tz)}
                       {l.meets_requested === false ? <span className="ml-2 font-semibold text-oxide-700">after the requested date</span> : null}
                     </p>
-                    <div className="overflow-x-auto">
+                    <div className="overflow-x-auto" tabIndex={0} role="region" aria-label={`Promise steps of ${l.name}`}>
                       <table className="mt-2 w-full text-xs">
                         <caption className="sr-only">Steps of {l.name}</caption>
                         <thead className="text-left text-soot-500"><tr><th scope="col" className="py-1 pr-2">Step</th><th scope="col" className="py-1 pr-2">Start</th><th scope="col" className="py-1 pr-2">End</th><th scope="col" className="py-1 text-right">Slack</th></tr></thead>

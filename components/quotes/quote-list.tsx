@@ -66,7 +66,7 @@ export function QuoteList({ canWrite }: QuoteListProps) {
         </form>
       ) : null}
       {error ? <p role="alert" className="rounded-md bg-oxide-100 px-3 py-2 text-sm text-oxide-700">{error}</p> : null}
-      <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card">
+      <div className="overflow-x-auto rounded-card border border-soot-200 bg-white shadow-card" tabIndex={0} role="region" aria-label="Quotes table (scrolls sideways)">
         <table className="w-full text-sm" data-testid="quote-table">
           <caption className="sr-only">Quotes</caption>
           <thead className="bg-soot-50 text-left text-xs text-soot-600">

@@ -4,6 +4,8 @@ import { useCallback, useEffect, useState } from "react";
 import { ApiError, getJson, sendJson } from "@/lib/http/client";
 
 type Settings = Record<string, number | string> & { version: number; currency: string; minor_digits: number };
+type PrinterRate = { id: string; name: string; active: boolean; rate_minor_per_h: number | null };
+type FurnaceRate = { id: string; name: string; active: boolean; run_cost_minor: number | null; gas_cost_minor: number | null; energy_cost_minor: number | null };
 type MaterialRate = { id: string; code: string; name: string; feedstock_minor_per_kg: number; infill_fraction: number; support_fraction: number; rates_set: boolean };
 
 const FIELDS: Array<[string, string]> = [
@@ -29,12 +31,16 @@ const FIELDS: Array<[string, string]> = [
 export function QuoteSettingsForm() {
   const [s, setS] = useState<Settings | null>(null);
   const [materials, setMaterials] = useState<MaterialRate[]>([]);
+  const [printers, setPrinters] = useState<PrinterRate[]>([]);
+  const [furnaces, setFurnaces] = useState<FurnaceRate[]>([]);
   const [msg, setMsg] = useState<{ ok: boolean; text: string } | null>(null);
   const [fieldErrors, setFieldErrors] = useState<Record<string, string[]>>({});
   const load = useCallback(() => {
-    getJson<{ settings: Settings; materials: MaterialRate[] }>("/api/quote-settings").then((d) => {
+    getJson<{ settings: Settings; materials: MaterialRate[]; printers: PrinterRate[]; furnaces: FurnaceRate[] }>("/api/quote-settings").then((d) => {
       setS(d.settings);
       setMaterials(d.materials);
+      setPrinters(d.printers);
+      setFurnaces(d.furnaces);
     }, (e) => setMsg({ ok: false, text: e.message }));
   }, []);
   useEffect(load, [load]);
@@ -62,7 +68,18 @@ export function QuoteSettingsForm() {
       setMsg({ ok: false, text: err instanceof Error ? err.message : String(err) });
     }
   }
+  async function saveEquipment(e: React.FormEvent<HTMLFormElement>, body: Record<string, string>) {
+    e.preventDefault();
+    try {
+      await sendJson("/api/quote-settings/equipment", "PUT", { ...Object.fromEntries(new FormData(e.currentTarget)), ...body });
+      setMsg({ ok: true, text: "Saved." });
+      load();
+    } catch (err) {
+      setMsg({ ok: false, text: err instanceof Error ? err.message : String(err) });
+    }
+  }
   const input = "w-full rounded-md border border-soot-300 px-2 py-2 text-sm";
+  const own = (v: number | null) => (v === null ? "" : String(v));
   return (
     <div className="space-y-6 px-4 py-6 sm:px-8">
       {msg ? <p role={msg.ok ? "status" : "alert"} className={`rounded-md px-3 py-2 text-sm ${msg.ok ? "bg-verdigris-50 text-verdigris-800" : "bg-oxide-100 text-oxide-700"}`}>{msg.text}</p> : null}
@@ -80,6 +97,28 @@ export function QuoteSettingsForm() {
         </div>
         <button type="submit" className="mt-3 min-h-11 rounded-md bg-clay-600 px-4 py-2 text-sm font-semibold text-white hover:bg-clay-700">Save rates</button>
       </form>
+      <section className="rounded-card border border-soot-200 bg-white p-4 shadow-card" aria-labelledby="equip-h">
+        <h2 id="equip-h" className="font-display text-base font-semibold text-soot-900">Rates per printer and furnace</h2>
+        <p className="text-xs text-soot-500">Leave a field empty to use the shop rate above (shown greyed in the field). A quote prices each line on the printer and furnace its plan chose.</p>
+        <div className="mt-2 space-y-3">
+          {printers.map((p) => (
+            <form key={p.id} onSubmit={(e) => saveEquipment(e, { kind: "printer", printer_id: p.id })} className="grid items-end gap-2 border-t border-soot-100 pt-3 sm:grid-cols-5" aria-label={`Rate for printer ${p.name}`}>
+              <p className="text-sm font-semibold sm:col-span-2">{p.name}<span className="block text-2xs font-normal text-soot-500">printer{p.active ? "" : ", inactive"}{p.rate_minor_per_h === null ? ", shop rate" : ""}</span></p>
+              <label className="block text-sm sm:col-span-2"><span className="block text-2xs text-soot-500">Minor units per hour</span><input name="rate_minor_per_h" inputMode="numeric" defaultValue={own(p.rate_minor_per_h)} placeholder={String(s.printer_rate_minor_per_h)} className={input} /></label>
+              <button type="submit" className="min-h-11 rounded-md border border-soot-300 px-3 py-2 text-sm font-semibold">Save {p.name}</button>
+            </form>
+          ))}
+          {furnaces.map((f) => (
+            <form key={f.id} onSubmit={(e) => saveEquipment(e, { kind: "furnace", furnace_id: f.id })} className="grid items-end gap-2 border-t border-soot-100 pt-3 sm:grid-cols-5" aria-label={`Run cost for furnace ${f.name}`}>
+              <p className="text-sm font-semibold">{f.name}<span className="block text-2xs font-normal text-soot-500">furnace{f.active ? "" : ", inactive"}</span></p>
+              <label className="block text-sm"><span className="block text-2xs text-soot-500">Run, minor units</span><input name="run_cost_minor" inputMode="numeric" defaultValue={own(f.run_cost_minor)} placeholder={String(s.furnace_run_cost_minor)} className={input} /></label>
+              <label className="block text-sm"><span className="block text-2xs text-soot-500">Process gas per run</span><input name="gas_cost_minor" inputMode="numeric" defaultValue={own(f.gas_cost_minor)} placeholder={String(s.furnace_gas_cost_minor)} className={input} /></label>
+              <label className="block text-sm"><span className="block text-2xs text-soot-500">Energy per run</span><input name="energy_cost_minor" inputMode="numeric" defaultValue={own(f.energy_cost_minor)} placeholder={String(s.furnace_energy_cost_minor)} className={input} /></label>
+              <button type="submit" className="min-h-11 rounded-md border border-soot-300 px-3 py-2 text-sm font-semibold">Save {f.name}</button>
+            </form>
+          ))}
+        </div>
+      </section>
       <section className="rounded-card border border-soot-200 bg-white p-4 shadow-card" aria-labelledby="mat-h">
         <h2 id="mat-h" className="font-display text-base font-semibold text-soot-900">Feedstock per material</h2>
         <div className="mt-2 space-y-3">

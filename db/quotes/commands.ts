@@ -14,7 +14,7 @@ import { getShopPlanning } from "@/db/floor/reads";
 import { evaluateQuote, type EvaluatedQuote } from "@/lib/quotes/evaluate";
 import { quotePdf } from "@/lib/quotes/pdf";
 import { quoteMail } from "@/lib/quotes/mail";
-import type { AddLine, CreateQuote, MaterialRateInput, QuoteSettingsInput, UpdateQuote } from "@/lib/quotes/schemas";
+import type { AddLine, CreateQuote, EquipmentRateInput, MaterialRateInput, QuoteSettingsInput, UpdateQuote } from "@/lib/quotes/schemas";
 import type { PlanProposalItem } from "@/db/builds/commands";
 import { getQuoteOrThrow, getQuoteSettings, lineSpecOf, loadQuoteContext } from "./reads";
 
@@ -279,3 +279,36 @@ export async function upsertMaterialRate(db: Database, input: MaterialRateInput)
     .executeTakeFirstOrThrow();
 }
 
+
+/** A printer's or furnace's own quoting rates; all empty removes them (the shop's rates stand). */
+export async function setEquipmentRate(db: Database, input: EquipmentRateInput) {
+  if (input.kind === "printer") {
+    const p = await db.selectFrom("printers").select("id").where("id", "=", input.printer_id).executeTakeFirst();
+    if (!p) throw new AppError("not_found", "That printer does not exist.", { printer_id: ["choose a printer"] });
+    if (input.rate_minor_per_h === null) {
+      await db.deleteFrom("printer_quote_rates").where("printer_id", "=", input.printer_id).execute();
+      return { printer_id: input.printer_id, rate_minor_per_h: null };
+    }
+    const values = { printer_id: input.printer_id, rate_minor_per_h: input.rate_minor_per_h };
+    return db
+      .insertInto("printer_quote_rates")
+      .values(values)
+      .onConflict((oc) => oc.column("printer_id").doUpdateSet({ rate_minor_per_h: input.rate_minor_per_h!, updated_at: sql`now()`, version: sql`printer_quote_rates.version + 1` }))
+      .returning(["printer_id", "rate_minor_per_h"])
+      .executeTakeFirstOrThrow();
+  }
+  const f = await db.selectFrom("furnaces").select("id").where("id", "=", input.furnace_id).executeTakeFirst();
+  if (!f) throw new AppError("not_found", "That furnace does not exist.", { furnace_id: ["choose a furnace"] });
+  const { run_cost_minor, gas_cost_minor, energy_cost_minor } = input;
+  if (run_cost_minor === null && gas_cost_minor === null && energy_cost_minor === null) {
+    await db.deleteFrom("furnace_quote_rates").where("furnace_id", "=", input.furnace_id).execute();
+    return { furnace_id: input.furnace_id, run_cost_minor, gas_cost_minor, energy_cost_minor };
+  }
+  const set = { run_cost_minor, gas_cost_minor, energy_cost_minor };
+  return db
+    .insertInto("furnace_quote_rates")
+    .values({ furnace_id: input.furnace_id, ...set })
+    .onConflict((oc) => oc.column("furnace_id").doUpdateSet({ ...set, updated_at: sql`now()`, version: sql`furnace_quote_rates.version + 1` }))
+    .returning(["furnace_id", "run_cost_minor", "gas_cost_minor", "energy_cost_minor"])
+    .executeTakeFirstOrThrow();
+}

@@ -7,6 +7,10 @@ import { currentLayout, packFurnace, packUnit, profileLabel } from "@/lib/batche
 import { staffedHoursFor } from "@/lib/floor/plan";
 import { spreadFrom, type PromiseOpenRun, type SpreadKind, type Spread } from "@/lib/quotes/promise";
 import type { QuoteContext, QuoteLineSpec, QuoteMaterial, QuoteRates } from "@/lib/quotes/evaluate";
+import { finishingMinutesPerUnit, type FurnaceRates } from "@/lib/quotes/cost";
+import { finishingQueue, type QueuedUnit } from "@/lib/quotes/finishing-queue";
+import { actualCost, quotedDirect, type ActualBuild, type ActualCost, type ActualRun, type ActualShare } from "@/lib/quotes/actual-cost";
+import type { StaffedHours } from "@/lib/planning/staffed-hours";
 
 const num = (v: unknown) => Number(v);
 const numOrNull = (v: unknown) => (v === null || v === undefined ? null : Number(v));
@@ -81,6 +85,62 @@ export async function listMaterialRates(db: Db) {
   })) satisfies (QuoteMaterial & { rates_set: boolean })[];
 }
 
+/** Printers and furnaces with their own quoting rates (null = the shop's rate). */
+export async function listEquipmentRates(db: Db) {
+  const [printers, furnaces] = await Promise.all([
+    db.selectFrom("printers as p").leftJoin("printer_quote_rates as r", "r.printer_id", "p.id")
+      .select(["p.id", "p.name", "p.active", "r.rate_minor_per_h", "r.version as rate_version"]).orderBy("p.name").execute(),
+    db.selectFrom("furnaces as f").leftJoin("furnace_quote_rates as r", "r.furnace_id", "f.id")
+      .select(["f.id", "f.name", "f.active", "r.run_cost_minor", "r.gas_cost_minor", "r.energy_cost_minor", "r.version as rate_version"]).orderBy("f.name").execute(),
+  ]);
+  const n = (v: unknown) => (v === null || v === undefined ? null : Number(v));
+  return {
+    printers: printers.map((p) => ({ id: p.id, name: p.name, active: p.active, rate_minor_per_h: n(p.rate_minor_per_h) })),
+    furnaces: furnaces.map((f) => ({ id: f.id, name: f.name, active: f.active, run_cost_minor: n(f.run_cost_minor), gas_cost_minor: n(f.gas_cost_minor), energy_cost_minor: n(f.energy_cost_minor) })),
+  };
+}
+
+async function equipmentRateMaps(db: Db): Promise<{ printer_rates: Map<string, number>; furnace_rates: Map<string, FurnaceRates> }> {
+  const { printers, furnaces } = await listEquipmentRates(db);
+  return {
+    printer_rates: new Map(printers.flatMap((p) => (p.rate_minor_per_h === null ? [] : [[p.id, p.rate_minor_per_h] as [string, number]]))),
+    furnace_rates: new Map(furnaces.map((f) => [f.id, { run_cost_minor: f.run_cost_minor, gas_cost_minor: f.gas_cost_minor, energy_cost_minor: f.energy_cost_minor }])),
+  };
+}
+
+/** Active machinists and the finishing work released to them or coming from booked furnace runs. */
+export async function loadFinishingQueue(db: Db, now: Date, leadMinutes: number, staffed: StaffedHours | null, minPerCm2: number) {
+  const [lanes, rows] = await Promise.all([
+    db.selectFrom("users").select(sql<number>`count(*)`.as("n")).where("role", "=", "machinist").where("active", "=", true).executeTakeFirstOrThrow(),
+    db
+      .selectFrom("units as u")
+      .innerJoin("parts as p", "p.id", "u.part_id")
+      .leftJoin("furnace_runs as r", "r.id", "u.furnace_run_id")
+      .select([
+        "u.state", "r.state as run_state", "r.ends_at as run_ends_at",
+        "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm", "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm",
+        "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm", "p.target_ra_um", "p.tolerance_um",
+      ])
+      .where((eb) =>
+        eb.or([
+          eb("u.state", "in", ["sintered", "ready_for_finishing", "finishing"]),
+          eb.and([eb("u.state", "in", ["planned", "printing", "green", "washing", "brown", "sintering"]), eb("r.state", "in", ["scheduled", "running"])]),
+        ]),
+      )
+      .execute(),
+  ]);
+  const units: QueuedUnit[] = rows.map((r) => ({
+    released: r.state === "sintered" || r.state === "ready_for_finishing" || r.state === "finishing",
+    run_ends_at: r.run_ends_at ? new Date(r.run_ends_at).getTime() : null,
+    minutes: finishingMinutesPerUnit(
+      { x: num(r.nominal_x_mm), y: num(r.nominal_y_mm), z: num(r.nominal_z_mm) },
+      { x_neg: num(r.stock_x_neg_mm), x_pos: num(r.stock_x_pos_mm), y_neg: num(r.stock_y_neg_mm), y_pos: num(r.stock_y_pos_mm), z_neg: num(r.stock_z_neg_mm), z_pos: num(r.stock_z_pos_mm) },
+      numOrNull(r.target_ra_um), numOrNull(r.tolerance_um), minPerCm2,
+    ),
+  }));
+  return { lanes: Math.max(1, Number(lanes.n)), queue: finishingQueue(units, now.getTime(), leadMinutes, staffed) };
+}
+
 /** Units with a verdict per material: done (good) or scrapped at any step. */
 export async function materialOutcomes(db: Db): Promise<Map<string, { good: number; scrapped: number }>> {
   const rows = await db
@@ -95,6 +155,54 @@ export async function materialOutcomes(db: Db): Promise<Map<string, { good: numb
     .groupBy("p.material_id")
     .execute();
   return new Map(rows.map((r) => [r.material_id, { good: Number(r.good), scrapped: Number(r.scrapped) }]));
+}
+
+/**
+ * Minutes each unit spent in finishing, from its recorded state changes: each stretch from a
+ * move into finishing to the next move out of it (done, held, scrapped or sent back); time on
+ * hold is not work.
+ */
+export async function recordedFinishingMinutes(db: Db, unitIds: string[]): Promise<Map<string, number>> {
+  const minutes = new Map<string, number>();
+  if (!unitIds.length) return minutes;
+  const events = await db.selectFrom("events").select(["entity_id", "to_state", "created_at"])
+    .where("entity", "=", "unit").where("kind", "=", "state").where("to_state", "in", ["finishing", "done", "on_hold", "scrapped", "ready_for_finishing"]).where("entity_id", "in", unitIds)
+    .orderBy("created_at").orderBy("id").execute();
+  const startedAt = new Map<string, number>();
+  for (const e of events) {
+    const t = new Date(e.created_at).getTime();
+    if (e.to_state === "finishing") startedAt.set(e.entity_id!, t);
+    else if (startedAt.has(e.entity_id!)) {
+      minutes.set(e.entity_id!, (minutes.get(e.entity_id!) ?? 0) + (t - startedAt.get(e.entity_id!)!) / 60_000);
+      startedAt.delete(e.entity_id!);
+    }
+  }
+  return minutes;
+}
+
+/** Recorded ÷ planned finishing minutes of the last 500 finished units whose parts carry finishing work. */
+async function finishingRatios(db: Db, minPerCm2: number): Promise<number[]> {
+  const done = await db
+    .selectFrom("units as u")
+    .innerJoin("parts as p", "p.id", "u.part_id")
+    .select([
+      "u.id", "p.nominal_x_mm", "p.nominal_y_mm", "p.nominal_z_mm", "p.stock_x_neg_mm", "p.stock_x_pos_mm", "p.stock_y_neg_mm",
+      "p.stock_y_pos_mm", "p.stock_z_neg_mm", "p.stock_z_pos_mm", "p.target_ra_um", "p.tolerance_um",
+    ])
+    .where("u.state", "=", "done")
+    .orderBy("u.state_changed_at", "desc")
+    .limit(500)
+    .execute();
+  const recorded = await recordedFinishingMinutes(db, done.map((u) => u.id));
+  return done.flatMap((u) => {
+    const planned = finishingMinutesPerUnit(
+      { x: num(u.nominal_x_mm), y: num(u.nominal_y_mm), z: num(u.nominal_z_mm) },
+      { x_neg: num(u.stock_x_neg_mm), x_pos: num(u.stock_x_pos_mm), y_neg: num(u.stock_y_neg_mm), y_pos: num(u.stock_y_pos_mm), z_neg: num(u.stock_z_neg_mm), z_pos: num(u.stock_z_pos_mm) },
+      numOrNull(u.target_ra_um), numOrNull(u.tolerance_um), minPerCm2,
+    );
+    const actual = recorded.get(u.id);
+    return planned > 0 && actual !== undefined && actual > 0 ? [actual / planned] : [];
+  });
 }
 
 /** Actual ÷ planned durations of finished builds, washes and furnace runs (the last 500 of each). */
@@ -116,7 +224,7 @@ export async function durationRatios(db: Db): Promise<Record<"print" | "wash" | 
 
 /** Everything a promise plans against: the live schedule, equipment, shop hours, rates, yields. */
 export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteContext> {
-  const [shop, printers, blocked, ctx, settings, materials, yields, ratios] = await Promise.all([
+  const [shop, printers, blocked, ctx, settings, materials, yields, ratios, equipmentRates] = await Promise.all([
     getShopPlanning(db as Database),
     listPrinterSpecs(db as Database, { activeOnly: true }),
     printerBlockedFrom(db as Database, now),
@@ -125,12 +233,18 @@ export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteC
     listMaterialRates(db),
     materialOutcomes(db),
     durationRatios(db),
+    equipmentRateMaps(db),
   ]);
+  const staffed = staffedHoursFor(shop.staffed_hours, shop.time_zone);
   const [washBusy, furnaceBusy, maint, openRuns] = await Promise.all([
     db.selectFrom("wash_batches").select(["wash_station_id", "starts_at", "ends_at"]).where("state", "in", ["scheduled", "running", "complete"]).where("ends_at", ">", now).execute(),
     db.selectFrom("furnace_runs").select(["furnace_id", "starts_at", "ends_at"]).where("state", "in", ["scheduled", "running", "complete"]).where("ends_at", ">", now).execute(),
     db.selectFrom("maintenance_windows").select(["wash_station_id", "furnace_id", "starts_at", "ends_at"]).where("resource", "in", ["wash_station", "furnace"]).where("ends_at", ">", now).execute(),
     listFurnaceRuns(db, ctx, { states: ["scheduled"] }),
+  ]);
+  const [finishing, finishingRatioList] = await Promise.all([
+    loadFinishingQueue(db, now, ctx.finishing_lead_minutes, staffed, settings.finishing_min_per_cm2),
+    finishingRatios(db, settings.finishing_min_per_cm2),
   ]);
   const intervals = (rows: { id: string | null; starts_at: Date | null; ends_at: Date | null }[], id: string): [number, number][] =>
     rows.filter((r) => r.id === id && r.starts_at && r.ends_at).map((r) => [new Date(r.starts_at!).getTime(), new Date(r.ends_at!).getTime()]);
@@ -160,13 +274,13 @@ export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteC
     print: spreadFrom(ratios.print, FALLBACK_P90_RATIO),
     wash: spreadFrom(ratios.wash, FALLBACK_P90_RATIO),
     furnace: spreadFrom(ratios.furnace, FALLBACK_P90_RATIO),
-    // Finishing is not booked, so there is nothing recorded to compare with.
-    finishing: spreadFrom([], FALLBACK_P90_RATIO),
+    // Finishing has no booking to compare with: its plan is the quote's own minutes per unit.
+    finishing: spreadFrom(finishingRatioList, FALLBACK_P90_RATIO),
   };
   return {
     now: now.getTime(),
     horizon_days: PROMISE_HORIZON_DAYS,
-    staffed: staffedHoursFor(shop.staffed_hours, shop.time_zone),
+    staffed,
     printers: printers.map((p) => ({ ...p, busy: blocked.get(p.id) ?? [] })),
     plate_clearance_mm: shop.plate_clearance_mm,
     wash_stations: ctx.stations.map((s) => ({ id: s.id, name: s.name, capacity_units: s.capacity_units, basket_mm: [s.basket_x_mm, s.basket_y_mm, s.basket_z_mm], busy: intervals(washRows, s.id) })),
@@ -183,8 +297,11 @@ export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteC
     open_runs,
     tray_clearance_mm: ctx.clearance_mm,
     finishing_lead_minutes: ctx.finishing_lead_minutes,
+    finishing_lanes: finishing.lanes,
+    finishing_queue: finishing.queue,
     spread,
     rates: ratesOf(settings),
+    ...equipmentRates,
     materials: materialMap,
     yields,
   };
@@ -248,6 +365,87 @@ export function lineSpecOf(l: QuoteDetail["lines"][number]): QuoteLineSpec {
   };
 }
 
+/**
+ * What finished orders really cost (lib/quotes/actual-cost.ts): their bookings, draws, finishing
+ * times and inspections, shared among orders by units, priced with today's rates.
+ */
+export async function actualCostsOf(db: Db, orderIds: string[], quoted: Map<string, { feedstock_minor_per_unit: number; setup_minor: number }>): Promise<Map<string, ActualCost>> {
+  const out = new Map<string, ActualCost>();
+  if (!orderIds.length) return out;
+  const units = await db
+    .selectFrom("units as u")
+    .innerJoin("parts as p", "p.id", "u.part_id")
+    .select(["u.id", "u.state", "u.build_id", "u.wash_batch_id", "u.furnace_run_id", "p.order_id"])
+    .where("p.order_id", "in", orderIds)
+    .execute();
+  const ids = (k: "build_id" | "wash_batch_id" | "furnace_run_id") => [...new Set(units.flatMap((u) => (u[k] ? [u[k]!] : [])))];
+  const buildIds = ids("build_id");
+  const washIds = ids("wash_batch_id");
+  const runIds = ids("furnace_run_id");
+  const unitIds = units.map((u) => u.id);
+  const [settings, equipment, materials, builds, washes, runs, finishingMin, inspections] = await Promise.all([
+    getQuoteSettings(db),
+    listEquipmentRates(db),
+    listMaterialRates(db),
+    buildIds.length
+      ? db.selectFrom("builds as b").innerJoin("printers as pr", "pr.id", "b.printer_id")
+          .select(["b.id", "b.code", "b.printer_id", "pr.name as printer_name", "b.material_id", "b.started_at", "b.finished_at", "b.est_minutes",
+            sql<number>`(select count(*) from units x where x.build_id = b.id)`.as("units_total"),
+            sql<string | null>`(select sum(d.drawn_g) from feedstock_draws d where d.build_id = b.id)`.as("drawn_g")])
+          .where("b.id", "in", buildIds).execute()
+      : [],
+    washIds.length
+      ? db.selectFrom("wash_batches as w").select(["w.id", "w.code", sql<number>`(select count(*) from units x where x.wash_batch_id = w.id)`.as("units_total")]).where("w.id", "in", washIds).execute()
+      : [],
+    runIds.length
+      ? db.selectFrom("furnace_runs as r").innerJoin("furnaces as f", "f.id", "r.furnace_id")
+          .select(["r.id", "r.code", "r.furnace_id", "f.name as furnace_name", sql<number>`(select count(*) from units x where x.furnace_run_id = r.id)`.as("units_total")])
+          .where("r.id", "in", runIds).execute()
+      : [],
+    recordedFinishingMinutes(db, unitIds),
+    db.selectFrom("inspections").select(["unit_id", sql<number>`count(*)`.as("n")]).where("unit_id", "in", unitIds).groupBy("unit_id").execute(),
+  ]);
+  const rates = ratesOf(settings);
+  const printerRate = new Map(equipment.printers.map((p) => [p.id, p.rate_minor_per_h]));
+  const furnaceRate = new Map(equipment.furnaces.map((f) => [f.id, f]));
+  const price = new Map(materials.map((m) => [m.id, m.feedstock_minor_per_kg]));
+  const inspected = new Map(inspections.map((i) => [i.unit_id, Number(i.n)]));
+  for (const orderId of orderIds) {
+    const mine = units.filter((u) => u.order_id === orderId);
+    const count = (k: "build_id" | "wash_batch_id" | "furnace_run_id", id: string) => mine.filter((u) => u[k] === id).length;
+    const aBuilds: ActualBuild[] = builds.filter((b) => count("build_id", b.id) > 0).map((b) => {
+      const recorded = !!(b.started_at && b.finished_at);
+      return {
+        code: b.code,
+        printer: { name: b.printer_name, rate_minor_per_h: printerRate.get(b.printer_id!) ?? null },
+        minutes: recorded ? (new Date(b.finished_at!).getTime() - new Date(b.started_at!).getTime()) / 60_000 : Number(b.est_minutes ?? 0),
+        recorded,
+        units: count("build_id", b.id),
+        units_total: Number(b.units_total),
+        drawn_g: b.drawn_g === null ? null : Number(b.drawn_g),
+        feedstock_minor_per_kg: price.get(b.material_id) ?? 0,
+      };
+    });
+    const aWashes: ActualShare[] = washes.filter((w) => count("wash_batch_id", w.id) > 0).map((w) => ({ code: w.code, units: count("wash_batch_id", w.id), units_total: Number(w.units_total) }));
+    const aRuns: ActualRun[] = runs.filter((r) => count("furnace_run_id", r.id) > 0).map((r) => {
+      const own = furnaceRate.get(r.furnace_id!);
+      return {
+        code: r.code, units: count("furnace_run_id", r.id), units_total: Number(r.units_total),
+        furnace: { name: r.furnace_name, run_cost_minor: own?.run_cost_minor ?? null, gas_cost_minor: own?.gas_cost_minor ?? null, energy_cost_minor: own?.energy_cost_minor ?? null },
+      };
+    });
+    const q = quoted.get(orderId) ?? { feedstock_minor_per_unit: 0, setup_minor: 0 };
+    out.set(orderId, actualCost({
+      builds: aBuilds, washes: aWashes, runs: aRuns,
+      finishing_minutes: mine.reduce((s, u) => s + (finishingMin.get(u.id) ?? 0), 0),
+      inspections: mine.reduce((s, u) => s + (inspected.get(u.id) ?? 0), 0),
+      setup_minor: q.setup_minor,
+      quoted_feedstock_minor_per_unit: q.feedstock_minor_per_unit,
+    }, rates));
+  }
+  return out;
+}
+
 /** What quoting has taught: quotes sent, won, and for finished orders quoted vs actual. */
 export async function quoteLearning(db: Db) {
   const counts = await db
@@ -260,21 +458,23 @@ export async function quoteLearning(db: Db) {
     ])
     .executeTakeFirstOrThrow();
   // Finished orders that came from a quote: promised vs the last unit's completion, and the
-  // quoted total vs the actual hours booked on printers (the only actual cost recorded so far).
+  // quoted direct cost vs the cost recorded on the floor.
   const finished = await sql<{
-    code: string; quote_code: string; promise_at: Date; completed_at: Date | null; total_minor: number; currency: string; minor_digits: number;
-    units: number; done: number; scrapped: number;
+    order_id: string; code: string; quote_code: string; promise_at: Date; completed_at: Date | null; total_minor: number; currency: string; minor_digits: number;
+    cost: unknown; units: number; done: number; scrapped: number;
   }>`
-    select o.code, q.code as quote_code, q.promise_at, q.total_minor, q.currency, q.minor_digits,
+    select o.id as order_id, o.code, q.code as quote_code, q.promise_at, q.total_minor, q.currency, q.minor_digits, q.cost,
       max(u.state_changed_at) filter (where u.state = 'done') as completed_at,
       count(u.id)::int as units,
       count(u.id) filter (where u.state = 'done')::int as done,
       count(u.id) filter (where u.state = 'scrapped')::int as scrapped
     from quotes q join orders o on o.id = q.order_id join parts p on p.order_id = o.id join units u on u.part_id = p.id
     where q.status = 'accepted'
-    group by o.code, q.code, q.promise_at, q.total_minor, q.currency, q.minor_digits
+    group by o.id, o.code, q.code, q.promise_at, q.total_minor, q.currency, q.minor_digits, q.cost
     having bool_and(u.state in ('done', 'scrapped'))
     order by max(u.state_changed_at) desc limit 50`.execute(db);
+  const quoted = new Map(finished.rows.map((r) => [r.order_id, quotedDirect(r.cost)]));
+  const actual = await actualCostsOf(db, finished.rows.map((r) => r.order_id), new Map([...quoted].flatMap(([k, v]) => (v ? [[k, v] as const] : []))));
   const sent = Number(counts.sent);
   const accepted = Number(counts.accepted);
   const decided = accepted + Number(counts.declined) + Number(counts.expired);
@@ -284,11 +484,18 @@ export async function quoteLearning(db: Db) {
     declined: Number(counts.declined),
     expired: Number(counts.expired),
     win_rate: decided ? accepted / decided : null,
-    finished: finished.rows.map((r) => ({
-      order_code: r.code, quote_code: r.quote_code, promise_at: r.promise_at, completed_at: r.completed_at,
-      late_minutes: r.completed_at && r.promise_at ? Math.round((new Date(r.completed_at).getTime() - new Date(r.promise_at).getTime()) / 60_000) : null,
-      quoted_total_minor: Number(r.total_minor), currency: r.currency, minor_digits: r.minor_digits,
-      units: r.units, done: r.done, scrapped: r.scrapped,
-    })),
+    finished: finished.rows.map((r) => {
+      const a = actual.get(r.order_id) ?? null;
+      const qd = quoted.get(r.order_id)?.direct_minor ?? null;
+      return {
+        order_code: r.code, quote_code: r.quote_code, promise_at: r.promise_at, completed_at: r.completed_at,
+        late_minutes: r.completed_at && r.promise_at ? Math.round((new Date(r.completed_at).getTime() - new Date(r.promise_at).getTime()) / 60_000) : null,
+        quoted_total_minor: Number(r.total_minor), currency: r.currency, minor_digits: r.minor_digits,
+        quoted_direct_minor: qd,
+        actual_direct_minor: a?.total_minor ?? null,
+        actual_figures: a?.figures ?? [],
+        units: r.units, done: r.done, scrapped: r.scrapped,
+      };
+    }),
   };
 }

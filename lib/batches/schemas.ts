@@ -70,9 +70,17 @@ export const finishWashSchema = z.object({
 
 export const startRunSchema = z.object({
   version,
-  checklist: z.record(z.string(), z.boolean()).refine((c) => CHECKLIST_KEYS.every((k) => c[k] === true), {
-    message: "every item of the loading checklist must be ticked before the run starts",
-  }),
+  checklist: z
+    .record(z.string(), z.boolean())
+    .refine((c) => CHECKLIST_KEYS.every((k) => c[k] === true), {
+      message: "every item of the loading checklist must be ticked before the run starts",
+    })
+    // The refinement is code, which JSON Schema cannot carry: say the same rule in the description.
+    .meta({
+      description: "Every item of the loading checklist, ticked (true).",
+      required: [...CHECKLIST_KEYS],
+      properties: Object.fromEntries(CHECKLIST_KEYS.map((k) => [k, { const: true }])),
+    }),
 });
 
 export const unloadOutcomeSchema = z

@@ -5,18 +5,21 @@
 // text/plain "simple request" needs no preflight. OWASP Cross-Site Request Forgery Prevention
 // Cheat Sheet: "Verifying Origin With Standard Headers" and "Fetch Metadata headers".
 
+import { bearerToken } from "@/lib/auth/api-scopes";
+
 export const SAFE_METHODS = new Set(["GET", "HEAD", "OPTIONS"]);
 
 type HeaderSource = { get(name: string): string | null };
 
 /**
- * Requests authenticated by a bearer token (API tokens, not yet issued) carry no ambient
+ * Requests authenticated by a bearer token (API tokens, lib/auth/api-scopes.ts) carry no ambient
  * credential a foreign page could borrow, so the Origin rule does not apply to them. A browser
  * cannot add an Authorization header cross-site without a CORS preflight, which Hearth never
- * grants. When tokens arrive, their check lives in the handler; this only exempts the request.
+ * grants. This is the one test for "a bearer request": requireUser (app/_server/session.ts)
+ * authenticates every request it exempts by its token alone, never by the cookie beside it.
  */
 export function isBearerTokenRequest(headers: HeaderSource): boolean {
-  return /^bearer\s+\S/i.test(headers.get("authorization") ?? "");
+  return bearerToken(headers.get("authorization")) !== null;
 }
 
 /** The request's own host as the browser addressed it (a reverse proxy's X-Forwarded-Host first). */

@@ -70,6 +70,31 @@ export class StaffedCalendar {
     }
   }
 
+  /** The instant `ms` of staffed time after `t` has been worked (a shift's gaps are skipped). */
+  addWork(t: number, ms: number): number {
+    if (ms <= 0) return t;
+    let left = ms;
+    for (;;) {
+      const s = this.nextStart(t);
+      const i = this.indexOf(s);
+      const e = this.ends[i];
+      if (e - s >= left) return s + left;
+      left -= e - s;
+      t = e;
+    }
+  }
+
+  private indexOf(start: number): number {
+    let lo = 0;
+    let hi = this.starts.length;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (this.ends[mid] <= start) lo = mid + 1;
+      else hi = mid;
+    }
+    return lo;
+  }
+
   isStaffed(t: number): boolean {
     return this.nextStart(t) === t;
   }

@@ -39,8 +39,44 @@ export type CostMaterial = {
   binder_density_g_cm3: number;
 };
 
-export type CostPrinter = { name: string; deposition_cm3_per_h: number; layer_height_mm: number; layer_overhead_s: number };
-export type CostFurnace = { name: string; tray_x_mm: number; tray_y_mm: number; tray_count: number };
+/** A machine's own rates; null = the shop's rate (quote_settings) for that figure. */
+export type PrinterRate = { rate_minor_per_h: number | null };
+export type FurnaceRates = { run_cost_minor: number | null; gas_cost_minor: number | null; energy_cost_minor: number | null };
+
+export type CostPrinter = PrinterRate & { name: string; deposition_cm3_per_h: number; layer_height_mm: number; layer_overhead_s: number };
+export type CostFurnace = FurnaceRates & { name: string; tray_x_mm: number; tray_y_mm: number; tray_count: number };
+
+type Sourced = { minor: number; source: string };
+
+/** The printer's own hourly rate, else the shop's; says which, for the figure's inputs. */
+export function printerRateOf(p: PrinterRate & { name: string }, rates: Pick<CostRates, "printer_rate_minor_per_h">): Sourced {
+  return p.rate_minor_per_h === null
+    ? { minor: rates.printer_rate_minor_per_h, source: `shop rate (${p.name} has none of its own)` }
+    : { minor: p.rate_minor_per_h, source: `${p.name}'s own rate` };
+}
+
+/** One run's cost on this furnace: its own run, gas and energy figures, each else the shop's. */
+export function furnaceRunCostOf(
+  f: FurnaceRates & { name: string },
+  rates: Pick<CostRates, "furnace_run_cost_minor" | "furnace_gas_cost_minor" | "furnace_energy_cost_minor">,
+): { run: Sourced; gas: Sourced; energy: Sourced; total_minor: number } {
+  const pick = (own: number | null, shop: number): Sourced => (own === null ? { minor: shop, source: "shop" } : { minor: own, source: f.name });
+  const run = pick(f.run_cost_minor, rates.furnace_run_cost_minor);
+  const gas = pick(f.gas_cost_minor, rates.furnace_gas_cost_minor);
+  const energy = pick(f.energy_cost_minor, rates.furnace_energy_cost_minor);
+  return { run, gas, energy, total_minor: run.minor + gas.minor + energy.minor };
+}
+
+/** Finishing minutes of one unit: stocked area × minutes per cm² × the Ra and tolerance factors. */
+export function finishingMinutesPerUnit(
+  nominal: { x: number; y: number; z: number },
+  stock: FaceStock,
+  targetRaUm: number | null,
+  toleranceUm: number | null,
+  minPerCm2: number,
+): number {
+  return (stockedAreaMm2(nominal, stock) / 100) * minPerCm2 * raFactor(targetRaUm) * toleranceFactor(toleranceUm);
+}
 
 export type CostLineInput = {
   quantity: number;
@@ -118,7 +154,8 @@ export function lineCost(input: CostLineInput, rates: CostRates): LineCost {
   const p = input.printer;
   const layers = Math.ceil(input.green_mm.z / p.layer_height_mm - 1e-9);
   const printMinUnit = (vFeedCm3 / p.deposition_cm3_per_h) * 60 + (layers * p.layer_overhead_s) / 60 / input.units_per_plate;
-  const printUnit = (printMinUnit / 60) * rates.printer_rate_minor_per_h;
+  const pRate = printerRateOf(p, rates);
+  const printUnit = (printMinUnit / 60) * pRate.minor;
 
   const washShare = vGreenCm3 / rates.wash_batch_volume_cm3;
   const washUnit = washShare * rates.wash_batch_cost_minor;
@@ -127,14 +164,15 @@ export function lineCost(input: CostLineInput, rates: CostRates): LineCost {
   const c = input.tray_clearance_mm;
   const footprint = (input.green_mm.x + 2 * c) * (input.green_mm.y + 2 * c);
   const trayArea = f.tray_x_mm * f.tray_y_mm * f.tray_count;
-  const runCost = rates.furnace_run_cost_minor + rates.furnace_gas_cost_minor + rates.furnace_energy_cost_minor;
+  const fCost = furnaceRunCostOf(f, rates);
+  const runCost = fCost.total_minor;
   const furnaceShare = footprint / trayArea;
   const furnaceUnit = furnaceShare * runCost;
 
   const areaCm2 = stockedAreaMm2(input.nominal_mm, input.stock) / 100;
   const fRa = raFactor(input.target_ra_um);
   const fTol = toleranceFactor(input.tolerance_um);
-  const finishMinUnit = areaCm2 * rates.finishing_min_per_cm2 * fRa * fTol;
+  const finishMinUnit = finishingMinutesPerUnit(input.nominal_mm, input.stock, input.target_ra_um, input.tolerance_um, rates.finishing_min_per_cm2);
 
   const y = input.yield;
   const yieldText = y.interval
@@ -156,10 +194,10 @@ export function lineCost(input: CostLineInput, rates: CostRates): LineCost {
     {
       key: "printing",
       label: `Printing (${p.name})`,
-      formula: "q × (V_feed / deposition rate × 60 + layers × overhead s / 60 / units per plate) / 60 × rate per h",
+      formula: `q × (V_feed / deposition rate × 60 + layers × overhead s / 60 / units per plate) / 60 × rate per h (${pRate.source})`,
       inputs: {
         q, V_feed_cm3: r4(vFeedCm3), deposition_cm3_per_h: p.deposition_cm3_per_h, layers, layer_overhead_s: p.layer_overhead_s,
-        units_per_plate: input.units_per_plate, minutes_per_unit: r4(printMinUnit), rate_minor_per_h: rates.printer_rate_minor_per_h,
+        units_per_plate: input.units_per_plate, minutes_per_unit: r4(printMinUnit), rate_minor_per_h: pRate.minor, rate_source: pRate.source,
       },
       minor: roundMinor(q * printUnit),
     },
@@ -173,10 +211,11 @@ export function lineCost(input: CostLineInput, rates: CostRates): LineCost {
     {
       key: "furnace",
       label: `Furnace (tray-area share of a run, ${f.name})`,
-      formula: "q × (x + 2c)(y + 2c) / (tray x × tray y × trays) × (run + gas + energy)",
+      formula: `q × (x + 2c)(y + 2c) / (tray x × tray y × trays) × (run + gas + energy) (run: ${fCost.run.source}, gas: ${fCost.gas.source}, energy: ${fCost.energy.source})`,
       inputs: {
         q, green_x_mm: r4(input.green_mm.x), green_y_mm: r4(input.green_mm.y), clearance_mm: c, tray_area_mm2: trayArea, share: r4(furnaceShare),
-        run_minor: rates.furnace_run_cost_minor, gas_minor: rates.furnace_gas_cost_minor, energy_minor: rates.furnace_energy_cost_minor,
+        run_minor: fCost.run.minor, run_source: fCost.run.source, gas_minor: fCost.gas.minor, gas_source: fCost.gas.source,
+        energy_minor: fCost.energy.minor, energy_source: fCost.energy.source,
       },
       minor: roundMinor(q * furnaceUnit),
     },

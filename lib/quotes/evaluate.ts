@@ -6,9 +6,9 @@
 
 import { feedstockDensity, scaleUp, type FaceStock } from "@/lib/process/scale-up";
 import { washMinutes } from "@/lib/process/wash";
-import { lineCost, raFactor, stockedAreaMm2, toleranceFactor, type CostMaterial, type CostRates, type LineCost } from "./cost";
+import { finishingMinutesPerUnit, lineCost, type CostMaterial, type CostRates, type FurnaceRates, type LineCost } from "./cost";
 import { materialYield, quantityToStart, type MaterialYield } from "./yield";
-import { planPromise, type PromiseFurnace, type PromiseInput, type PromiseOpenRun, type PromisePrinter, type PromiseResult, type PromiseWashStation, type Spread, type SpreadKind } from "./promise";
+import { planPromise, type FinishingJob, type PromiseFurnace, type PromiseInput, type PromiseOpenRun, type PromisePrinter, type PromiseResult, type PromiseWashStation, type Spread, type SpreadKind } from "./promise";
 import type { StaffedHours } from "@/lib/planning/staffed-hours";
 
 export type QuoteRates = CostRates & { setup_minor_per_order: number; fallback_yield: number };
@@ -36,8 +36,15 @@ export type QuoteContext = {
   open_runs: PromiseOpenRun[];
   tray_clearance_mm: number;
   finishing_lead_minutes: number;
+  /** Active machinists, who finish in parallel in staffed hours. */
+  finishing_lanes: number;
+  /** Finishing work released to the machinists or on its way from booked furnace runs. */
+  finishing_queue: FinishingJob[];
   spread: Record<SpreadKind, Spread>;
   rates: QuoteRates;
+  /** Printers' and furnaces' own rates by id; a missing one takes the shop's (lib/quotes/cost). */
+  printer_rates: Map<string, number>;
+  furnace_rates: Map<string, FurnaceRates>;
   materials: Map<string, QuoteMaterial>;
   yields: Map<string, { good: number; scrapped: number }>;
 };
@@ -99,7 +106,7 @@ export function lineUnit(line: QuoteLineSpec, m: QuoteMaterial, rates: Pick<Cost
   // Without geometry: half the bounding box, as the build estimate does (lib/builds/estimate).
   const vol = estimated ? 0.5 * green.x * green.y * green.z : line.volume_mm3! * grow;
   const rho = feedstockDensity(m.solids_loading, m.theoretical_density_g_cm3, m.binder_density_g_cm3);
-  const finishing = (stockedAreaMm2(line.nominal, line.stock) / 100) * rates.finishing_min_per_cm2 * raFactor(line.target_ra_um) * toleranceFactor(line.tolerance_um);
+  const finishing = finishingMinutesPerUnit(line.nominal, line.stock, line.target_ra_um, line.tolerance_um, rates.finishing_min_per_cm2);
   return {
     green_mm: green,
     green_volume_mm3: vol,
@@ -130,7 +137,9 @@ function withBookings(ctx: QuoteContext, promise: PromiseResult): QuoteContext {
   });
   // A run this line joined has less room now; the next line plans around it rather than in it.
   const joined = new Set(promise.steps.map((s) => s.joins_run).filter(Boolean));
-  return { ...ctx, printers, wash_stations, furnaces, open_runs: ctx.open_runs.filter((r) => !joined.has(r.id)) };
+  // This line's finishing joins the machinists' queue ahead of any later line released after it.
+  const finishing_queue = [...ctx.finishing_queue, { release: promise.finishing.release, minutes: promise.finishing.minutes }];
+  return { ...ctx, printers, wash_stations, furnaces, finishing_queue, open_runs: ctx.open_runs.filter((r) => !joined.has(r.id)) };
 }
 
 export function promiseInputFor(line: QuoteLineSpec, unit: LineUnit, m: QuoteMaterial, ctx: QuoteContext, startQuantity: number, finishQuantity: number): PromiseInput {
@@ -157,6 +166,8 @@ export function promiseInputFor(line: QuoteLineSpec, unit: LineUnit, m: QuoteMat
     open_runs: ctx.open_runs,
     tray_clearance_mm: ctx.tray_clearance_mm,
     finishing_lead_minutes: ctx.finishing_lead_minutes,
+    finishing_lanes: ctx.finishing_lanes,
+    finishing_queue: ctx.finishing_queue,
     spread: ctx.spread,
   };
 }
@@ -189,9 +200,12 @@ export function evaluateQuote(lines: QuoteLineSpec[], ctx0: QuoteContext): Evalu
           target_ra_um: line.target_ra_um,
           tolerance_um: line.tolerance_um,
           material: m,
-          printer,
+          printer: { ...printer, rate_minor_per_h: ctx.printer_rates.get(printer.id) ?? null },
           units_per_plate: plate.units,
-          furnace: { name: furnace.name, tray_x_mm: furnace.spec.tray_mm[0], tray_y_mm: furnace.spec.tray_mm[1], tray_count: furnace.spec.tray_count },
+          furnace: {
+            name: furnace.name, tray_x_mm: furnace.spec.tray_mm[0], tray_y_mm: furnace.spec.tray_mm[1], tray_count: furnace.spec.tray_count,
+            ...(ctx.furnace_rates.get(furnace.spec.id) ?? { run_cost_minor: null, gas_cost_minor: null, energy_cost_minor: null }),
+          },
           tray_clearance_mm: ctx.tray_clearance_mm,
         },
         ctx.rates,

@@ -9,17 +9,18 @@
 //            and end no later than a new run would (lib/packing canAddToRun), the rest go into
 //            new runs packed with packTrays, each on the furnace where it ends first; unloaded in
 //            staffed hours;
-//   finishing – the lead time, then the finishing minutes worked inside staffed hours.
-// Every step ends at the earliest time its resources allow, so adding bookings to the schedule
-// can only move a step later (the monotonicity the tests check). Finishing capacity is not
-// booked anywhere yet, so the finishing queue of other work is not modelled.
+//   finishing – released after the lead time; the machinists work their queue first come,
+//            first served in staffed hours: every unit already released before this lot (units
+//            waiting or being finished, units in booked furnace runs that end earlier) is
+//            finished first, then this lot's units, a machinist on each unit.
+// Every step ends at the earliest time its resources allow, so adding bookings or queued
+// finishing work can only move a step later (the monotonicity the tests check).
 
 import { ComputationError } from "@/lib/errors";
 import { judgePrinter, type BuildUnitSpec, type PrinterSpec } from "@/lib/builds/estimate";
 import { earliestGap } from "@/lib/floor/plan";
 import { canAddToRun, packTrays, type PackFurnace, type PackUnit, type TrayRun } from "@/lib/packing/trays";
 import { StaffedCalendar, type StaffedHours } from "@/lib/planning/staffed-hours";
-import { addLocalDays, localDateOf, staffedIntervals } from "@/lib/process/time-zone";
 
 const MIN = 60_000;
 
@@ -46,6 +47,9 @@ export type PromiseOpenRun = {
 };
 
 export type SpreadKind = "print" | "wash" | "furnace" | "finishing";
+
+/** Finishing work already on its way to the machinists: released at `release`, machinist-minutes. */
+export type FinishingJob = { release: number; minutes: number };
 export type Spread = { p90_ratio: number; samples: number; source: "history" | "fallback" };
 
 export type PromiseInput = {
@@ -72,6 +76,9 @@ export type PromiseInput = {
   open_runs: PromiseOpenRun[];
   tray_clearance_mm: number;
   finishing_lead_minutes: number;
+  /** Machinists who finish in parallel during staffed hours (at least 1 is assumed). */
+  finishing_lanes: number;
+  finishing_queue: FinishingJob[];
   spread: Record<SpreadKind, Spread>;
   /** The plates are already booked and end at this instant: plan the rest of the chain from it. */
   printed_at?: number;
@@ -104,6 +111,8 @@ export type PromiseResult =
       steps: PromiseStep[];
       plates: PlannedPlate[];
       critical_path: string[];
+      /** This lot's finishing as a queue job, for the next line of the same quote to plan behind. */
+      finishing: FinishingJob & { queued_ahead_min: number; wait_min: number; lanes: number };
     }
   | { feasible: false; reason: string; step: PromiseStep["kind"] };
 
@@ -120,25 +129,6 @@ function insertSorted(list: Interval[], iv: Interval) {
   let i = list.length;
   while (i > 0 && list[i - 1][0] > iv[0]) i--;
   list.splice(i, 0, iv);
-}
-
-/** Work `minutes` inside staffed hours from `t`; without staffed hours, plain elapsed time. */
-export function addStaffedWork(t: number, minutes: number, staffed: StaffedHours | null): number {
-  if (minutes <= 0) return t;
-  if (!staffed) return t + minutes * MIN;
-  let left = minutes * MIN;
-  let day = addLocalDays(localDateOf(t, staffed.timeZone), -1);
-  for (let chunk = 0; chunk < 200; chunk++) {
-    for (const [s, e] of staffedIntervals(day, 28, staffed.pattern, staffed.timeZone)) {
-      const from = Math.max(s, t);
-      if (e <= from) continue;
-      if (e - from >= left) return from + left;
-      left -= e - from;
-      t = e;
-    }
-    day = addLocalDays(day, 28);
-  }
-  throw new ComputationError("staffed hours ran out before the finishing work did", "staffed");
 }
 
 /** Largest number of these units one plate of `printer` holds (0 when not even one). */
@@ -345,35 +335,72 @@ function plan(input: PromiseInput): PromiseResult {
   const unloaded = Math.max(...furnaceSteps.map((s) => nextStart(Date.parse(s.end))));
 
   // Finishing ------------------------------------------------------------------------------
-  const finishStart = unloaded + input.finishing_lead_minutes * MIN;
-  const finishMinutes = Math.ceil(unit.finishing_minutes * input.finish_quantity);
-  const completion = addStaffedWork(finishStart, finishMinutes, input.staffed);
+  const release = unloaded + input.finishing_lead_minutes * MIN;
+  const lanes = Math.max(1, Math.floor(input.finishing_lanes));
+  const work = (t: number, minutes: number) => (cal ? cal.addWork(t, minutes * MIN) : t + minutes * MIN);
+  // The machinists as one pool working `lanes` minutes per staffed minute, first come first
+  // served. The pool never idles while released work waits, so more work released ahead, a
+  // later release or fewer machinists can only make it free later: the date stays monotone.
+  const ahead = input.finishing_queue.filter((j) => j.release <= release && j.minutes > 0).sort((a, b) => a.release - b.release);
+  let poolFree = now;
+  let queuedAhead = 0;
+  for (const j of ahead) {
+    poolFree = work(Math.max(poolFree, j.release), j.minutes / lanes);
+    queuedAhead += j.minutes;
+    if (poolFree > limit) throw new Infeasible("finishing", `The finishing queue ahead runs past the ${input.horizon_days}-day planning horizon.`);
+  }
+  const lotMinutes = unit.finishing_minutes * input.finish_quantity;
+  // A unit is one machinist's work: the lot takes ⌈units / machinists⌉ units' time at least.
+  const finishMinutes = Math.ceil(Math.ceil(input.finish_quantity / lanes) * unit.finishing_minutes);
+  const workStart = finishMinutes > 0 ? nextStart(Math.max(poolFree, release)) : release;
+  const completion = work(workStart, finishMinutes);
   if (completion > limit) throw new Infeasible("finishing", `Finishing would end after the ${input.horizon_days}-day planning horizon.`);
-  steps.push({ kind: "finishing", label: `Finish ${input.finish_quantity}`, resource_id: null, resource_name: null, units: input.finish_quantity, start: iso(finishStart), end: iso(completion), slack_min: 0, critical: true, joins_run: null, minutes: finishMinutes });
+  const waitMin = Math.max(0, Math.round((workStart - (finishMinutes > 0 ? nextStart(release) : release)) / MIN));
+  const queueText = queuedAhead > 0 ? `; ${(queuedAhead / 60).toFixed(1)} h queued ahead` : "";
+  steps.push({
+    kind: "finishing", label: `Finish ${input.finish_quantity} (${lanes} machinist${lanes === 1 ? "" : "s"}${queueText})`, resource_id: null, resource_name: null,
+    units: input.finish_quantity, start: iso(workStart), end: iso(completion), slack_min: 0, critical: true, joins_run: null, minutes: finishMinutes,
+  });
 
-  // Slack: the time from a step's end to the start of the first step of the next phase.
+  // Slack: the time from a step's end to the start of the first step of the next phase; the
+  // furnace's next phase is the finishing work, which may wait for the queue ahead.
   const firstStart = (kind: PromiseStep["kind"]) => Math.min(...steps.filter((s) => s.kind === kind).map((s) => Date.parse(s.start)));
   const nextPhase: Record<PromiseStep["kind"], number> = {
     print: firstStart("wash"),
     wash: washDone,
     drying: firstStart("furnace"),
-    furnace: unloaded,
+    // Only a wait for the queue counts; the hours between the release and the next shift do not,
+    // since a later unload would meet the same shift change.
+    furnace: unloaded + waitMin * MIN,
     finishing: completion,
   };
+  const gateOf = (kind: PromiseStep["kind"]) => (kind === "wash" ? washDone : kind === "print" ? printDone : kind === "furnace" ? unloaded : kind === "drying" ? dryDone : completion);
   for (const s of steps) {
     if (s.kind === "finishing") continue;
     const end = Date.parse(s.end);
     const own = s.kind === "furnace" ? nextStart(end) : end;
-    const gateEnd = s.kind === "wash" ? washDone : s.kind === "print" ? printDone : s.kind === "furnace" ? unloaded : dryDone;
     s.slack_min = Math.max(0, Math.round((nextPhase[s.kind] - own) / MIN));
-    s.critical = own === gateEnd;
   }
+  // Critical: the step that closes its phase with no slack, and every later phase's closing
+  // step has none either (a wait anywhere after it, e.g. for the finishing queue, takes it off).
+  const order: PromiseStep["kind"][] = ["print", "wash", "drying", "furnace", "finishing"];
+  const gateSlack = new Map(order.map((k) => {
+    const gates = steps.filter((s) => s.kind === k && (k === "finishing" || (k === "furnace" ? nextStart(Date.parse(s.end)) : Date.parse(s.end)) === gateOf(k)));
+    return [k, gates.length ? Math.min(...gates.map((g) => g.slack_min)) : 0] as const;
+  }));
+  for (const s of steps) {
+    if (s.kind === "finishing") continue;
+    const own = s.kind === "furnace" ? nextStart(Date.parse(s.end)) : Date.parse(s.end);
+    const later = order.slice(order.indexOf(s.kind) + 1);
+    s.critical = own === gateOf(s.kind) && s.slack_min === 0 && later.every((k) => gateSlack.get(k) === 0);
+  }
+  // The printed-at variant has no print steps; the gate of a phase without steps counts as 0.
   const critical = steps.filter((s) => s.critical);
 
-  // P90: stretch each phase's critical step by its recorded p90 ratio of actual to planned.
+  // P90: stretch each phase's closing step by its recorded p90 ratio of actual to planned.
   const stretch = (kind: SpreadKind) => {
-    const step = critical.find((s) => s.kind === kind);
-    return step ? Math.max(0, input.spread[kind].p90_ratio - 1) * step.minutes : 0;
+    const gate = steps.filter((s) => s.kind === kind).sort((a, b) => Date.parse(b.end) - Date.parse(a.end))[0];
+    return gate ? Math.max(0, input.spread[kind].p90_ratio - 1) * gate.minutes : 0;
   };
   const extra = stretch("print") + stretch("wash") + stretch("furnace") + stretch("finishing");
   const p90 = completion + Math.ceil(extra) * MIN;
@@ -386,6 +413,7 @@ function plan(input: PromiseInput): PromiseResult {
     steps,
     plates: planned,
     critical_path: critical.map((s) => s.label),
+    finishing: { release, minutes: lotMinutes, queued_ahead_min: Math.round(queuedAhead), wait_min: waitMin, lanes },
   };
 }
 

@@ -93,3 +93,15 @@ export const materialRateSchema = z.object({
   support_fraction: z.preprocess((v) => (typeof v === "string" ? Number(v) : v), z.number().min(0).max(2)),
 });
 export type MaterialRateInput = z.infer<typeof materialRateSchema>;
+
+// A machine's own rate; an empty field (or null) leaves that figure to the shop's rate.
+const minorOrShop = z.preprocess(
+  (v) => (v === "" || v === undefined ? null : typeof v === "string" && v.trim() !== "" ? Number(v) : v),
+  z.number({ error: "enter a whole number of minor units, or leave empty for the shop's rate" }).int("a whole number of minor units").min(0, "at least 0").max(1e12).nullable(),
+);
+
+export const equipmentRateSchema = z.discriminatedUnion("kind", [
+  z.object({ kind: z.literal("printer"), printer_id: uuid, rate_minor_per_h: minorOrShop }),
+  z.object({ kind: z.literal("furnace"), furnace_id: uuid, run_cost_minor: minorOrShop, gas_cost_minor: minorOrShop, energy_cost_minor: minorOrShop }),
+]);
+export type EquipmentRateInput = z.infer<typeof equipmentRateSchema>;

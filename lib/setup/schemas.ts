@@ -88,6 +88,14 @@ export const maintenanceWindowSchema = z
   })
   .refine((w) => w.starts_at < w.ends_at, { message: "The window must end after it starts", path: ["ends_at"] });
 
+/** GET /api/maintenance-windows?from&to: a week back to two months ahead unless given. */
+export const maintenanceWindowQuerySchema = z
+  .object({
+    from: z.coerce.date({ error: "from must be a date" }).default(() => new Date(Date.now() - 7 * 86_400_000)),
+    to: z.coerce.date({ error: "to must be a date" }).default(() => new Date(Date.now() + 60 * 86_400_000)),
+  })
+  .refine((q) => q.from < q.to, { message: "from must be before to", path: ["to"] });
+
 export const shopSettingsSchema = z.object({
   shop_name: name,
   time_zone: timeZoneSchema,

@@ -40,6 +40,18 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/users": { GET: "users:admin", POST: "users:admin" },
   "/api/users/[id]": { GET: "users:admin", PATCH: "users:admin" },
   "/api/users/[id]/link": { POST: "users:admin" },
+  "/api/openapi.json": { GET: "signed_in" },
+  "/api/activity": { GET: "activity:read" },
+  "/api/activity/export": { GET: "activity:read" },
+  "/api/orders/export": { GET: "shop:read" },
+  "/api/parts/export": { GET: "shop:read" },
+  "/api/units/export": { GET: "shop:read" },
+  "/api/api-tokens": { GET: "users:admin", POST: "users:admin" },
+  "/api/api-tokens/[id]": { DELETE: "users:admin" },
+  "/api/webhooks": { GET: "setup:write", POST: "setup:write" },
+  "/api/webhooks/[id]": { PATCH: "setup:write" },
+  "/api/webhooks/[id]/deliveries": { GET: "setup:write" },
+  "/api/webhook-deliveries/[id]/redeliver": { POST: "setup:write" },
   "/api/users/[id]/sessions": { DELETE: { gate: "users:admin", note: "a fresh id names nobody: a 404 after the gate" } },
 
   "/api/events": { GET: { gate: "shop:read", stream: true, note: "server-sent events: an open stream once allowed" } },
@@ -153,6 +165,7 @@ export const ROUTE_PERMISSIONS: Record<string, Partial<Record<HttpMethod, RouteC
   "/api/quotes/learning": { GET: "capacity:read" },
   "/api/quote-settings": { GET: "quotes:read", PUT: "setup:write" },
   "/api/quote-settings/materials": { PUT: "setup:write" },
+  "/api/quote-settings/equipment": { PUT: "setup:write" },
 };
 
 /**

@@ -53,7 +53,7 @@ afterAll(async () => {
 /** The pages a role can open: its navigation, its own settings, the record pages every role reads, and the scan page. */
 function pagesFor(role: Role): string[] {
   const pages = navFor(role).map((n) => n.href);
-  if (can(role, "setup:write")) pages.push("/setup/users", "/setup/equipment", "/setup/materials", "/setup/profiles", "/setup/settings", "/setup/quotes", "/setup/jobs");
+  if (can(role, "setup:write")) pages.push("/setup/users", "/setup/equipment", "/setup/materials", "/setup/profiles", "/setup/settings", "/setup/quotes", "/setup/jobs", "/setup/tokens", "/setup/webhooks", "/setup/api");
   if (can(role, "users:admin")) pages.push("/setup/security");
   if (can(role, "shop:read")) pages.push("/finishing/calibration");
   pages.push("/settings");

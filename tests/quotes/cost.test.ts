@@ -41,9 +41,9 @@ const input: CostLineInput = {
     code: "17-4PH", feedstock_minor_per_kg: 20_000, infill_fraction: 0.8, support_fraction: 0.2,
     solids_loading: PHI, theoretical_density_g_cm3: RHO_174PH, binder_density_g_cm3: RHO_BINDER,
   },
-  printer: { name: "P1", deposition_cm3_per_h: 20, layer_height_mm: 0.2, layer_overhead_s: 6 },
+  printer: { name: "P1", deposition_cm3_per_h: 20, layer_height_mm: 0.2, layer_overhead_s: 6, rate_minor_per_h: null },
   units_per_plate: 10,
-  furnace: { name: "F1", tray_x_mm: 300, tray_y_mm: 200, tray_count: 2 },
+  furnace: { name: "F1", tray_x_mm: 300, tray_y_mm: 200, tray_count: 2, run_cost_minor: null, gas_cost_minor: null, energy_cost_minor: null },
   tray_clearance_mm: 5,
 };
 
@@ -96,6 +96,47 @@ describe("line cost: a worked example by hand", () => {
   it("shows each figure's formula and inputs", () => {
     for (const f of c.figures) expect(f.formula.length).toBeGreaterThan(5);
     expect(c.figures.find((f) => f.key === "feedstock")!.inputs.rho_feed_g_cm3).toBe(5.03);
+  });
+});
+
+describe("line cost: a printer's and a furnace's own rates, by hand", () => {
+  // The same line as above on a printer with its own rate of 2400 per hour and a furnace whose
+  // own run cost is 26 000 and gas 7000, its energy left to the shop (5000).
+  const own = lineCost(
+    {
+      ...input,
+      printer: { ...input.printer, name: "Big P", rate_minor_per_h: 2400 },
+      furnace: { ...input.furnace, name: "Big F", run_cost_minor: 26_000, gas_cost_minor: 7000, energy_cost_minor: null },
+    },
+    rates,
+  );
+  const fig = (k: string) => own.figures.find((f) => f.key === k)!;
+
+  it("prices printing and the furnace share with the machine's rates and says whose rate it used", () => {
+    // printing: 31 min per unit (as above) / 60 × 2400 = 1240 per unit; × 10 = 12 400
+    expect(fig("printing").minor).toBe(12_400);
+    expect(fig("printing").inputs).toMatchObject({ rate_minor_per_h: 2400, rate_source: "Big P's own rate" });
+    expect(fig("printing").formula).toContain("Big P's own rate");
+    // furnace: share 0.01 (as above) × (26 000 + 7000 + 5000 = 38 000) = 380 per unit; × 10 = 3800
+    expect(fig("furnace").minor).toBe(3_800);
+    expect(fig("furnace").inputs).toMatchObject({ run_minor: 26_000, run_source: "Big F", gas_minor: 7000, gas_source: "Big F", energy_minor: 5000, energy_source: "shop" });
+    expect(fig("furnace").formula).toContain("energy: shop");
+  });
+  it("carries the machine's rates into the scrap allowance and the totals", () => {
+    // scrap: (12 − 10) × (1006 + 1240 + 50 + 380 = 2676) = 5352
+    expect(fig("scrap").minor).toBe(5_352);
+    // direct: 10 060 + 12 400 + 500 + 3800 + 6000 + 12 000 + 5352 = 50 112
+    expect(fig("subtotal").minor).toBe(50_112);
+    // overhead: 50 112 × 15 % = 7516.8 → 7517; margin: (50 112 + 7517) × 20 % = 11 525.8 → 11 526
+    expect(fig("overhead").minor).toBe(7_517);
+    expect(fig("margin").minor).toBe(11_526);
+    // total: 50 112 + 7517 + 11 526 = 69 155; per unit 6915.5 → 6916 (halves up)
+    expect(own.total_minor).toBe(69_155);
+    expect(own.unit_price_minor).toBe(6_916);
+  });
+  it("falls back to the shop's rate and says so", () => {
+    const shop = lineCost(input, rates).figures.find((f) => f.key === "printing")!;
+    expect(shop.inputs).toMatchObject({ rate_minor_per_h: 1800, rate_source: "shop rate (P1 has none of its own)" });
   });
 });
 

@@ -3,6 +3,7 @@ import { describe, expect, it } from "vitest";
 import { maxQuantityBy, planPromise, type PromiseInput, type PromiseOpenRun } from "@/lib/quotes/promise";
 import { packTrays } from "@/lib/packing/trays";
 import { isStaffed } from "@/lib/process/time-zone";
+import { finishingQueue } from "@/lib/quotes/finishing-queue";
 
 const H = 3_600_000;
 const NOW = Date.parse("2026-12-07T08:00:00Z"); // a Monday
@@ -28,6 +29,8 @@ function base(overrides: Partial<PromiseInput> = {}): PromiseInput {
     open_runs: [],
     tray_clearance_mm: 5,
     finishing_lead_minutes: 1440,
+    finishing_lanes: 1,
+    finishing_queue: [],
     spread: { print: { p90_ratio: 1.2, samples: 10, source: "history" }, wash: { p90_ratio: 1.1, samples: 10, source: "history" }, furnace: { p90_ratio: 1.05, samples: 10, source: "history" }, finishing: { p90_ratio: 1.25, samples: 0, source: "fallback" } },
     ...overrides,
   };
@@ -60,20 +63,44 @@ describe("capable-to-promise", () => {
     expect(byKind("furnace").reduce((s, x) => s + x.units, 0)).toBe(10);
     expect(Date.parse(r.completion)).toBeGreaterThan(Math.max(...byKind("furnace").map((s) => Date.parse(s.end))));
     expect(Date.parse(r.p90)).toBeGreaterThanOrEqual(Date.parse(r.completion));
-    expect(steps.some((s) => s.critical && s.kind === "print")).toBe(true);
+    // The wash station is booked from hour 40 to 50 and the furnace from 60 to 80: the lot waits
+    // for them, so printing has room to slip and the furnace closes the chain into finishing.
     for (const s of steps) expect(s.slack_min).toBeGreaterThanOrEqual(0);
+    for (const s of steps.filter((x) => x.critical)) expect(s.slack_min).toBe(0);
+    expect(steps.some((s) => s.critical && s.kind === "print")).toBe(false);
+    expect(steps.filter((s) => s.kind === "furnace").every((s) => s.critical)).toBe(true);
+    expect(steps.find((s) => s.kind === "finishing")!.critical).toBe(true);
+    expect(r.critical_path.at(-1)).toMatch(/^Finish 9/);
+  });
+
+  it("in an empty shop the whole chain from the first plate is critical", () => {
+    const a = base();
+    const r = planPromise({
+      ...a,
+      printers: a.printers.map((p) => ({ ...p, busy: [] })),
+      wash_stations: a.wash_stations.map((w) => ({ ...w, busy: [] })),
+      furnaces: a.furnaces.map((f) => ({ ...f, busy: [] })),
+    });
+    expect(r.feasible).toBe(true);
+    if (!r.feasible) return;
+    for (const kind of ["print", "wash", "drying", "furnace", "finishing"]) expect(r.steps.some((s) => s.kind === kind && s.critical)).toBe(true);
   });
 
   it("a fuller schedule never gives an earlier date (monotonicity)", () => {
     const interval = fc.tuple(fc.integer({ min: 0, max: 400 }), fc.integer({ min: 1, max: 40 })).map(([s, d]) => [NOW + s * H, NOW + (s + d) * H] as [number, number]);
     fc.assert(
       fc.property(
-        fc.record({ p1: fc.array(interval, { maxLength: 6 }), p2: fc.array(interval, { maxLength: 6 }), w: fc.array(interval, { maxLength: 6 }), f: fc.array(interval, { maxLength: 6 }) }),
+        fc.record({
+          p1: fc.array(interval, { maxLength: 6 }), p2: fc.array(interval, { maxLength: 6 }), w: fc.array(interval, { maxLength: 6 }), f: fc.array(interval, { maxLength: 6 }),
+          // finishing work already queued: released at some hour, some machinist-minutes
+          finish: fc.array(fc.record({ release: fc.integer({ min: -48, max: 400 }).map((h) => NOW + h * H), minutes: fc.integer({ min: 1, max: 3000 }) }), { maxLength: 8 }),
+        }),
         fc.integer({ min: 1, max: 30 }),
         (extra, q) => {
           const a = base({ start_quantity: q, finish_quantity: q });
           const b: PromiseInput = {
             ...a,
+            finishing_queue: extra.finish,
             printers: [{ ...a.printers[0], busy: [...a.printers[0].busy, ...extra.p1] }, { ...a.printers[1], busy: [...a.printers[1].busy, ...extra.p2] }],
             wash_stations: [{ ...a.wash_stations[0], busy: [...a.wash_stations[0].busy, ...extra.w] }],
             furnaces: [{ ...a.furnaces[0], busy: [...a.furnaces[0].busy, ...extra.f] }],
@@ -86,6 +113,67 @@ describe("capable-to-promise", () => {
       ),
       { numRuns: 60 },
     );
+  });
+
+  it("fewer machinists or more queued finishing never give an earlier date", () => {
+    fc.assert(
+      fc.property(
+        fc.array(fc.record({ release: fc.integer({ min: 0, max: 300 }).map((h) => NOW + h * H), minutes: fc.integer({ min: 1, max: 2000 }) }), { maxLength: 6 }),
+        fc.record({ release: fc.integer({ min: 0, max: 300 }).map((h) => NOW + h * H), minutes: fc.integer({ min: 1, max: 2000 }) }),
+        fc.integer({ min: 1, max: 4 }),
+        fc.integer({ min: 1, max: 30 }),
+        (queue, more, lanes, q) => {
+          const a = planPromise(base({ start_quantity: q, finish_quantity: q, finishing_queue: queue, finishing_lanes: lanes + 1 }));
+          const fewer = planPromise(base({ start_quantity: q, finish_quantity: q, finishing_queue: queue, finishing_lanes: lanes }));
+          const fuller = planPromise(base({ start_quantity: q, finish_quantity: q, finishing_queue: [...queue, more], finishing_lanes: lanes + 1 }));
+          expect(a.feasible && fewer.feasible && fuller.feasible).toBe(true);
+          if (!a.feasible || !fewer.feasible || !fuller.feasible) return;
+          expect(Date.parse(fewer.completion)).toBeGreaterThanOrEqual(Date.parse(a.completion));
+          expect(Date.parse(fuller.completion)).toBeGreaterThanOrEqual(Date.parse(a.completion));
+        },
+      ),
+      { numRuns: 80 },
+    );
+  });
+
+  it("a full finishing queue pushes the date, by the hours worked off first", () => {
+    // Without a queue: the furnace run ends Fri 11 Dec 12:00, the lot is released 24 h later
+    // (Sat 12:00), the next shift is Mon 14 Dec 06:00, and 9 units × 10 min = 90 min end at 07:30.
+    const plain = planPromise(base());
+    expect(plain.feasible && plain.completion).toBe("2026-12-14T07:30:00.000Z");
+    // 120 h of work waiting now (Mon 7 Dec 08:00) for one machinist, 06:00–22:00 on weekdays:
+    // Mon 14 h + Tue–Fri 4 × 16 h = 78 h by Fri 22:00; Mon 14 Dec 16 h → 94 h; Tue 16 h → 110 h;
+    // the last 10 h end Wed 16 Dec 16:00. The lot then starts and ends 90 min later, 17:30.
+    const full = planPromise(base({ finishing_queue: [{ release: NOW, minutes: 120 * 60 }] }));
+    expect(full.feasible).toBe(true);
+    if (!full.feasible) return;
+    const fin = full.steps.find((s) => s.kind === "finishing")!;
+    expect(fin.start).toBe("2026-12-16T16:00:00.000Z");
+    expect(full.completion).toBe("2026-12-16T17:30:00.000Z");
+    expect(fin.label).toBe("Finish 9 (1 machinist; 120.0 h queued ahead)");
+    // The wait is the queue's: Mon 06:00 → Wed 16:00 = 58 h, and it is the furnace run's slack now.
+    expect(full.finishing).toMatchObject({ wait_min: 58 * 60, queued_ahead_min: 7200, lanes: 1 });
+    for (const s of full.steps.filter((x) => x.kind === "furnace")) {
+      expect(s.slack_min).toBe(58 * 60);
+      expect(s.critical).toBe(false);
+    }
+    expect(full.critical_path).toEqual([fin.label]);
+    // Two machinists work the 120 h off as 60 h: Mon 14 h + Tue 16 h + Wed 16 h = 46 h, the
+    // last 14 h end Thu 10 Dec 20:00, before the lot's release; ⌈9 / 2⌉ = 5 units × 10 min = 50 min.
+    const two = planPromise(base({ finishing_queue: [{ release: NOW, minutes: 120 * 60 }], finishing_lanes: 2 }));
+    expect(two.feasible && two.completion).toBe("2026-12-14T06:50:00.000Z");
+  });
+
+  it("says so when the finishing queue alone runs past the horizon", () => {
+    // 60 days × 16 h at most are staffed in the 60-day horizon; 1000 h of work cannot fit.
+    const r = planPromise(base({ finishing_queue: [{ release: NOW, minutes: 1000 * 60 }] }));
+    expect(r).toMatchObject({ feasible: false, step: "finishing" });
+    if (!r.feasible) expect(r.reason).toMatch(/60-day planning horizon/);
+  });
+
+  it("work released after the lot does not hold it up (first come, first served)", () => {
+    const later = planPromise(base({ finishing_queue: [{ release: Date.parse("2026-12-14T06:00:00Z"), minutes: 100 * 60 }] }));
+    expect(later.feasible && later.completion).toBe("2026-12-14T07:30:00.000Z");
   });
 
   it("says so when the line cannot fit before the horizon", () => {
@@ -131,5 +219,29 @@ describe("capable-to-promise", () => {
       const over = planPromise(base({ start_quantity: r.quantity + 1, finish_quantity: r.quantity + 1 }));
       expect(over.feasible && Date.parse(over.completion) <= deadline).toBe(false);
     }
+  });
+});
+
+describe("the finishing queue a promise plans behind", () => {
+  it("releases waiting units now and units in booked runs at the unload plus the lead time, grouped", () => {
+    // A run ending Sat 12 Dec 10:00 is unloaded at the next shift, Mon 14 Dec 06:00, and released 1440 min later.
+    const runEnd = Date.parse("2026-12-12T10:00:00Z");
+    const jobs = finishingQueue(
+      [
+        { released: true, run_ends_at: null, minutes: 30 },
+        { released: true, run_ends_at: null, minutes: 15 },
+        { released: false, run_ends_at: runEnd, minutes: 20 },
+        { released: false, run_ends_at: runEnd, minutes: 25 },
+        { released: false, run_ends_at: null, minutes: 99 }, // no run booked: not in the queue yet
+        { released: true, run_ends_at: null, minutes: 0 }, // nothing to finish
+      ],
+      NOW,
+      1440,
+      staffed,
+    );
+    expect(jobs).toEqual([
+      { release: NOW, minutes: 45 },
+      { release: Date.parse("2026-12-15T06:00:00Z"), minutes: 45 },
+    ]);
   });
 });

@@ -1,4 +1,6 @@
+import { createHash } from "node:crypto";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { getEnv } from "@/lib/env";
 import { boxMesh, writeBinaryStl } from "@/lib/geometry/generate";
 import { lineUnit, promiseInputFor } from "@/lib/quotes/evaluate";
 import { planPromise } from "@/lib/quotes/promise";
@@ -68,6 +70,23 @@ describe("quotes", () => {
     const notStl = await api("/api/quotes/geometry", { method: "POST", cookie: manager, body: "hello", headers: { "content-type": "image/png", "x-filename": "x.stl" } });
     expect(notStl.status).toBe(415);
   });
+
+  it("spools the STL upload: the stored size and SHA-256 are the body's, and a body over the limit is 413", async () => {
+    const body = writeBinaryStl(boxMesh(25, 15, 10));
+    const res = await api("/api/quotes/geometry", { method: "POST", cookie: manager, body, headers: { "content-type": "model/stl", "x-filename": "spooled.stl" } });
+    expect(res.status, JSON.stringify(res.body)).toBe(201);
+    expect(res.body.file.triangles).toBe(12);
+    const row = await db.selectFrom("files").select(["size_bytes", "sha256", "object_key"]).where("id", "=", res.body.file.id).executeTakeFirstOrThrow();
+    expect(Number(row.size_bytes)).toBe(body.byteLength);
+    expect(row.sha256).toBe(createHash("sha256").update(body).digest("hex"));
+    expect(row.object_key).toMatch(/^geometry\/quotes\//);
+    const before = await db.selectFrom("files").select((eb) => eb.fn.countAll<number>().as("n")).executeTakeFirstOrThrow();
+    const tooBig = await api("/api/quotes/geometry", { method: "POST", cookie: manager, body: new Uint8Array(getEnv().UPLOAD_MAX_BYTES + 1), headers: { "content-type": "application/octet-stream", "x-filename": "huge.stl" } });
+    expect(tooBig.status).toBe(413);
+    expect(tooBig.body.error.fieldErrors.file).toEqual(["over the size limit"]);
+    const after = await db.selectFrom("files").select((eb) => eb.fn.countAll<number>().as("n")).executeTakeFirstOrThrow();
+    expect(Number(after.n)).toBe(Number(before.n));
+  }, 60_000);
 
   it("prices an uploaded STL, sends it with its PDF, accepts it once, and the applied plan meets the promise", async () => {
     const created = await api("/api/quotes", { method: "POST", cookie: manager, body: { customer: "Ostrander Valve Co.", contact_email: `buyer-${Date.now()}@ostrander.test` } });

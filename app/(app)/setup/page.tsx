@@ -19,6 +19,9 @@ const SECTIONS: Section[] = [
   { title: "Shrinkage calibration", href: "/finishing/calibration", lead: "Realized shrinkage from inspections per material, and the suggested factors to apply." },
   { title: "Quoting rates", href: "/setup/quotes", lead: "Currency, machine and labour rates, furnace run and wash batch costs, overhead, margin and feedstock prices." },
   { title: "Shop settings", href: "/setup/settings", lead: "Shop name, time zone, staffed hours and planning margins." },
+  { title: "API tokens", href: "/setup/tokens", lead: "Scoped tokens for other programs to call Hearth's API; shown once, revocable, rate-limited." },
+  { title: "API reference", href: "/setup/api", lead: "The routes other programs call, their permissions, token scopes and fields; the OpenAPI 3.1 description behind it." },
+  { title: "Webhooks", href: "/setup/webhooks", lead: "Signed notices to other programs when orders, builds, furnace runs, units and inspections change; delivery log." },
   { title: "Security log", href: "/setup/security", lead: "Sign-ins, failures, sign-outs, ended sessions, role changes, resets and exports." },
   { title: "Background jobs", href: "/setup/jobs", lead: "The worker's queues, failed jobs and its last sweep for bookings whose end went by." },
 ];

@@ -1,7 +1,8 @@
 import { cookies } from "next/headers";
 import { getDb } from "@/db/client";
-import { floorWindowBody } from "@/db/floor/reads";
-import { SESSION_COOKIE, forbidden, renewIfDue, sessionOptions } from "@/app/_server/session";
+import { floorChangeStamp, floorWindowBody } from "@/db/floor/reads";
+import { SESSION_COOKIE, forbidden, renewIfDue, requireUser, sessionOptions } from "@/app/_server/session";
+import { currentBearer } from "@/app/_server/api-token-auth";
 import { toErrorResponse } from "@/app/_server/errors";
 import { cachedBody } from "@/app/_server/cached-body";
 import { FLOOR_PERMISSION, authorizeFloorRead } from "@/app/_server/floor-access";
@@ -16,16 +17,24 @@ import { searchParams } from "@/app/api/builds/_helpers";
 export async function GET(req: Request) {
   try {
     const db = getDb();
-    const seal = (await cookies()).get(SESSION_COOKIE)?.value;
+    let stamp: string;
+    if ((await currentBearer()) !== null) {
+      // Another program with an API token: the same checks as every route (app/_server/session.ts).
+      await requireUser(FLOOR_PERMISSION);
+      stamp = await floorChangeStamp(db);
+    } else {
+      const seal = (await cookies()).get(SESSION_COOKIE)?.value;
+      const access = await authorizeFloorRead(db, seal, sessionOptions(false).password as string);
+      if (access.kind === "signed-out") throw new AppError("unauthenticated", "Sign in to continue.");
+      if (access.kind === "forbidden") throw forbidden(access.role, FLOOR_PERMISSION);
+      if (access.renewalDue) await renewIfDue();
+      stamp = access.stamp;
+    }
+    const w = floorWindowSchema.parse(searchParams(req));
     // Everyone on the floor asks for the same few windows: one load serves them until anything on
     // the floor changes (the stamp moves, or the live listener hears of it) or two seconds pass.
-    const access = await authorizeFloorRead(db, seal, sessionOptions(false).password as string);
-    if (access.kind === "signed-out") throw new AppError("unauthenticated", "Sign in to continue.");
-    if (access.kind === "forbidden") throw forbidden(access.role, FLOOR_PERMISSION);
-    if (access.renewalDue) await renewIfDue();
-    const w = floorWindowSchema.parse(searchParams(req));
     // Plain bytes: Next.js compresses a handler's response itself (and would do it twice).
-    const { bytes, headers } = (await floorWindowBody(db, w, access.stamp)).encoded(false);
+    const { bytes, headers } = (await floorWindowBody(db, w, stamp)).encoded(false);
     return new Response(cachedBody(bytes), { headers });
   } catch (err) {
     return toErrorResponse(err);

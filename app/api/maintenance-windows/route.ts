@@ -1,24 +1,16 @@
 import { NextResponse } from "next/server";
-import { z } from "zod";
 import { getDb } from "@/db/client";
 import { insertMaintenanceWindow } from "@/db/equipment/commands";
 import { listMaintenanceWindows } from "@/db/equipment/reads";
 import { requireUser } from "@/app/_server/session";
 import { readJson, toErrorResponse } from "@/app/_server/errors";
-import { maintenanceWindowSchema } from "@/lib/setup/schemas";
-
-const windowQuery = z
-  .object({
-    from: z.coerce.date({ error: "from must be a date" }).default(() => new Date(Date.now() - 7 * 86_400_000)),
-    to: z.coerce.date({ error: "to must be a date" }).default(() => new Date(Date.now() + 60 * 86_400_000)),
-  })
-  .refine((q) => q.from < q.to, { message: "from must be before to", path: ["to"] });
+import { maintenanceWindowQuerySchema, maintenanceWindowSchema } from "@/lib/setup/schemas";
 
 // GET /api/maintenance-windows?from&to – maintenance windows overlapping a time window (every role)
 export async function GET(req: Request) {
   try {
     await requireUser("shop:read");
-    const q = windowQuery.parse(Object.fromEntries(new URL(req.url).searchParams));
+    const q = maintenanceWindowQuerySchema.parse(Object.fromEntries(new URL(req.url).searchParams));
     return NextResponse.json({ maintenance_windows: await listMaintenanceWindows(getDb(), q.from, q.to) });
   } catch (err) {
     return toErrorResponse(err);

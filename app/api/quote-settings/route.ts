@@ -1,18 +1,18 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { updateQuoteSettings } from "@/db/quotes/commands";
-import { getQuoteSettings, listMaterialRates } from "@/db/quotes/reads";
+import { getQuoteSettings, listEquipmentRates, listMaterialRates } from "@/db/quotes/reads";
 import { requireUser } from "@/app/_server/session";
 import { readJson, toErrorResponse } from "@/app/_server/errors";
 import { quoteSettingsSchema } from "@/lib/quotes/schemas";
 
-// GET /api/quote-settings – quoting rates, currency and per-material feedstock rates (manager, admin, technician)
+// GET /api/quote-settings – quoting rates, currency, per-material feedstock rates and per-printer and per-furnace rates (manager, admin, technician)
 export async function GET() {
   try {
     await requireUser("quotes:read");
     const db = getDb();
-    const [settings, materials] = await Promise.all([getQuoteSettings(db), listMaterialRates(db)]);
-    return NextResponse.json({ settings, materials });
+    const [settings, materials, equipment] = await Promise.all([getQuoteSettings(db), listMaterialRates(db), listEquipmentRates(db)]);
+    return NextResponse.json({ settings, materials, ...equipment });
   } catch (err) {
     return toErrorResponse(err);
   }

@@ -1,7 +1,7 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { importPartRows } from "@/db/parts/commands";
-import { can } from "@/lib/auth/permissions";
+import { actorCan } from "@/lib/auth/api-scopes";
 import { requireUser } from "@/app/_server/session";
 import { AppError } from "@/lib/errors";
 import { readJson, toErrorResponse } from "@/app/_server/errors";
@@ -11,7 +11,7 @@ import { importSchema } from "@/lib/parts/schemas";
 export async function POST(req: Request) {
   try {
     const user = await requireUser("parts:write");
-    if (!can(user.role, "orders:write")) throw new AppError("forbidden", "Importing creates orders, which your role may not do.");
+    if (!actorCan(user, "orders:write")) throw new AppError("forbidden", "Importing creates orders, which your role may not do.");
     const input = importSchema.parse(await readJson(req));
     const outcome = await getDb().transaction().execute((trx) => importPartRows(trx, input, user));
     if (!input.dry_run && input.mode === "all" && outcome.invalid > 0) {

@@ -2,7 +2,7 @@ import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { withBatchTransaction } from "@/db/batches/commands";
 import { applyProposal } from "@/db/furnace-runs/commands";
-import { can } from "@/lib/auth/permissions";
+import { actorCan } from "@/lib/auth/api-scopes";
 import { requireUser } from "@/app/_server/session";
 import { applyProposalSchema } from "@/lib/batches/schemas";
 import { AppError } from "@/lib/errors";
@@ -16,7 +16,7 @@ export async function POST(req: Request) {
     const db = getDb();
     const p = await db.selectFrom("batch_proposals").select(["furnace", "wash"]).where("id", "=", proposal_id).executeTakeFirst();
     if (!p) throw new AppError("not_found", "That proposal does not exist.");
-    if ((p.furnace as unknown[]).length && !can(user.role, "furnace:write")) {
+    if ((p.furnace as unknown[]).length && !actorCan(user, "furnace:write")) {
       throw new AppError("forbidden", "Booking furnace runs needs a furnace operator or an admin; accept only the wash batches, or ask one of them.");
     }
     const created = await withBatchTransaction(db, (trx, ctx) => applyProposal(trx, ctx, proposal_id, user.id));
