@@ -18,7 +18,7 @@ import { ensureBuild } from "../setup";
 import { median, r1 } from "../stats";
 import type { BenchRow, BenchSection } from "../types";
 
-const DB_NAME = "hearth_bench_unit";
+const DB_NAME = process.env.HEARTH_BENCH_UNIT_DB ?? "hearth_bench_unit";
 const PORT = Number(process.env.HEARTH_BENCH_UNIT_PORT ?? 3161);
 const RUNS = 5;
 

@@ -58,6 +58,8 @@ const VIEWS: CalendarOptions["views"] = {
   resourceTimelineDay: { slotDuration: { hours: 1 }, slotLabelFormat: { hour: "2-digit", minute: "2-digit", hour12: false } },
   resourceTimelineWeek: { slotDuration: { hours: 6 }, slotLabelFormat: [{ weekday: "short", day: "numeric" }, { hour: "2-digit", hour12: false }] },
 };
+/** On a phone a day's hour slots are about 18 px wide: "06" fits there, "06:00" ran into its neighbour. */
+const PHONE_VIEWS: CalendarOptions["views"] = { ...VIEWS, resourceTimelineDay: { slotDuration: { hours: 1 }, slotLabelFormat: { hour: "2-digit", hour12: false } } };
 const SNAP = { minutes: 15 };
 /** Press-and-hold before a finger drags a booking, so that a swipe still scrolls the timeline. */
 const LONG_PRESS_MS = 250;
@@ -480,7 +482,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
             headerToolbar={HEADER}
             buttonText={BUTTONS}
             buttonIcons={false}
-            views={VIEWS}
+            views={phone ? PHONE_VIEWS : VIEWS}
             resourceAreaWidth={phone ? "92px" : "150px"}
             longPressDelay={LONG_PRESS_MS}
             eventLongPressDelay={LONG_PRESS_MS}

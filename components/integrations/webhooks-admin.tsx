@@ -3,6 +3,7 @@
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { Notice } from "@/components/ui/notice";
+import { ScrollRegion } from "@/components/ui/scroll-region";
 
 type Endpoint = { id: string; url: string; description: string; events: string[]; active: boolean; paused_at: string | null; failing_since: string | null; version: number; waiting: number; failed: number };
 type Delivery = { id: string; endpoint_id: string; event_id: string; type: string; state: string; attempts: number; last_status: number | null; last_error: string | null; created_at: string; delivered_at: string | null };
@@ -124,7 +125,7 @@ export function WebhooksAdmin({ endpoints, deliveries, eventTypes }: { endpoints
 
       <section aria-label="Recent deliveries">
         <h2 className="font-display text-lg font-semibold text-soot-900">Recent deliveries</h2>
-        <div className="mt-2 overflow-x-auto rounded-card bg-white shadow-card">
+        <ScrollRegion label="Recent deliveries, scrolls sideways" className="mt-2 rounded-card bg-white shadow-card">
           <table className="w-full min-w-[36rem] text-left text-sm">
             <thead className="text-xs text-soot-500">
               <tr><th className="p-2">When</th><th className="p-2">Event</th><th className="p-2">State</th><th className="p-2">Tries</th><th className="p-2">Answer</th><th className="p-2"><span className="sr-only">Actions</span></th></tr>
@@ -148,7 +149,7 @@ export function WebhooksAdmin({ endpoints, deliveries, eventTypes }: { endpoints
               ))}
             </tbody>
           </table>
-        </div>
+        </ScrollRegion>
       </section>
     </div>
   );

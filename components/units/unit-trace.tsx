@@ -17,7 +17,11 @@ import { unitNextStep } from "@/lib/scan/next-step";
 // Where a unit came from and what happened to it: lot and build, wash and masses, furnace run
 // and profile, inspections, and every event of the unit and its bookings on one timeline.
 
-export type UnitTraceProps = { unitId: string; units: UnitSystem; timeZone: string; canAttach: boolean; role: Role };
+export type UnitTraceProps = {
+  unitId: string; units: UnitSystem; timeZone: string; canAttach: boolean; role: Role;
+  /** The history as the server read it for the page's HTML; refreshed through the API after. */
+  initial?: Trace;
+};
 
 export function UnitTrace(props: UnitTraceProps) {
   return (
@@ -50,9 +54,9 @@ const Row = ({ k, children }: { k: string; children: React.ReactNode }) => (
   </>
 );
 
-function Inner({ unitId, units, timeZone, canAttach, role }: UnitTraceProps) {
+function Inner({ unitId, units, timeZone, canAttach, role, initial }: UnitTraceProps) {
   const poll = useLivePoll();
-  const trace = useQuery({ queryKey: ["trace", unitId], queryFn: () => getJson<Trace>(`/api/units/${unitId}/trace`), refetchInterval: poll(10_000) });
+  const trace = useQuery({ queryKey: ["trace", unitId], queryFn: () => getJson<Trace>(`/api/units/${unitId}/trace`), initialData: initial, refetchInterval: poll(10_000) });
   if (trace.isPending) return <p className="text-sm text-soot-500">Loading the unit&rsquo;s history…</p>;
   if (trace.isError) return <p className="text-sm text-oxide-700">{trace.error.message}</p>;
   const t = trace.data;
