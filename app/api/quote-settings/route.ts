@@ -12,7 +12,7 @@ export async function GET() {
     await requireUser("quotes:read");
     const db = getDb();
     const [settings, materials, equipment] = await Promise.all([getQuoteSettings(db), listMaterialRates(db), listEquipmentRates(db)]);
-    return NextResponse.json({ settings, materials, ...equipment });
+    return NextResponse.json({ settings, materials, printers: equipment.printers, furnaces: equipment.furnaces });
   } catch (err) {
     return toErrorResponse(err);
   }
