@@ -41,7 +41,9 @@ describe("capacity in the browser", () => {
     expect(await row.textContent()).toContain(`Late browser customer ${t}`);
     expect(await row.textContent()).toMatch(/over/);
     // charts drew: one line per printer on the day chart
-    await page.getByTestId("utilization-printer").locator(".recharts-line").first().waitFor();
+    // attached, not visible: a printer with no booked hours draws a line of zero height, which
+    // the browser reports as hidden
+    await page.getByTestId("utilization-printer").locator(".recharts-line").first().waitFor({ state: "attached" });
     expect(await page.getByTestId("utilization-printer").locator(".recharts-line").count()).toBeGreaterThanOrEqual(2);
     await page.getByTestId("wip").locator(".recharts-bar-rectangle").first().waitFor();
     await screenshot(page, "capacity-manager");

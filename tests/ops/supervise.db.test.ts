@@ -84,4 +84,4 @@ it("starts a SIGKILLed worker again while the app keeps answering", async () => 
     .filter((l) => l.includes('"msg":"job"'))
     .map((l) => JSON.parse(l));
   expect(jobs.find((j) => j.queue === "heartbeat")).toMatchObject({ outcome: "completed", job_id: expect.any(String), ms: expect.any(Number) });
-});
+}, 300_000); // the stack starts from scratch (up to 120 s on a loaded machine) before the kill
