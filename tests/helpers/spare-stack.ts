@@ -12,7 +12,10 @@ export function spareStackEnv(offset: number): Record<string, string> {
   const smtp = from("SMTP_PORT", 2625);
   const capture = from("MAIL_CAPTURE_PORT", 2626);
   const s3 = from("S3_PORT", 4669);
+  const webhooks = from("WEBHOOK_RECEIVER_PORT", 2527);
   return {
+    WEBHOOK_RECEIVER_PORT: webhooks,
+    WEBHOOK_RECEIVER_URL: `http://127.0.0.1:${webhooks}`,
     PORT: port,
     SMTP_PORT: smtp,
     MAIL_CAPTURE_PORT: capture,

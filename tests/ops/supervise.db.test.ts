@@ -35,7 +35,9 @@ it("starts a SIGKILLed worker again while the app keeps answering", async () => 
   stack = spawnCollecting(process.execPath, ["--import", "tsx", "scripts/run-stack.ts"], {
     env: { ...process.env, ...env, DATABASE_URL: scratch.url, HEARTH_DATA_DIR: dataDir },
   });
-  await waitUntil("the stack is up", async () => stack!.output().includes("Hearth is running"), 120_000, 300);
+  await waitUntil("the stack is up", async () => stack!.output().includes("Hearth is running"), 120_000, 300).catch((err) => {
+    throw new Error(`${err instanceof Error ? err.message : err}; the stack said:\n${stack!.output().split("\n").filter((l) => !l.includes("\"path\":\"/api/health\"")).slice(-40).join("\n")}`);
+  });
   const [first] = await waitUntil("the worker is ready", async () => workerPids(stack!.output()).length > 0 && workerPids(stack!.output()), 30_000);
 
   const killedAt = Date.now();
