@@ -80,7 +80,11 @@ export default async function ActivityPage({ searchParams }: { searchParams: Pro
                   {" "}
                   · {ACTIVITY_ENTITIES[e.entity as keyof typeof ACTIVITY_ENTITIES] ?? words(e.entity)}{" "}
                   {e.entity_id ? (
-                    <Link href={`/activity?record=${e.entity_id}`} className="font-mono text-xs text-clay-700 hover:underline">
+                    <Link
+                      href={`/activity?record=${e.entity_id}`}
+                      aria-label={`Every change to this record (${e.entity_id.slice(0, 8)})`}
+                      className="relative font-mono text-xs text-clay-700 hover:underline after:absolute after:-inset-x-1 after:-inset-y-3.5 after:content-['']"
+                    >
                       {e.entity_id.slice(0, 8)}
                     </Link>
                   ) : null}

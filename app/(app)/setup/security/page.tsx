@@ -37,7 +37,7 @@ export default async function SecurityLogPage({ searchParams }: { searchParams: 
         title="Security log"
         lead="Sign-ins and their failures, sign-outs, ended sessions, role changes, password resets and exports, newest first. Times in UTC."
         actions={
-          <Link href="/setup" className="text-sm font-semibold text-clay-700 hover:underline">
+          <Link href="/setup" className="inline-flex min-h-11 items-center text-sm font-semibold text-clay-700 hover:underline">
             ← Set-up
           </Link>
         }
