@@ -98,7 +98,7 @@ export function ApiTokensAdmin({ tokens, scopes }: { tokens: ApiTokenRow[]; scop
               <label key={s.name} className="flex min-h-11 items-start gap-2 rounded-md border border-soot-200 p-2.5 text-sm">
                 <input
                   type="checkbox"
-                  className="mt-0.5 h-4 w-4"
+                  className="mt-0.5 h-4 w-4 shrink-0"
                   checked={picked.includes(s.name)}
                   onChange={(e) => setPicked((p) => (e.target.checked ? [...p, s.name] : p.filter((x) => x !== s.name)))}
                 />

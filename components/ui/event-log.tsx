@@ -12,7 +12,7 @@ export type LogFilterFormProps = { label: string; clearHref: string; className: 
 /** The filter form with its Filter and Clear buttons after the given fields. */
 export function LogFilterForm({ label, clearHref, className, children }: LogFilterFormProps) {
   return (
-    <form method="get" className={`grid gap-3 rounded-card border border-soot-200 bg-white p-4 ${className}`} aria-label={label}>
+    <form method="get" className={`grid items-end gap-3 rounded-card border border-soot-200 bg-white p-4 ${className}`} aria-label={label}>
       {children}
       <div className="flex items-end gap-2">
         <button type="submit" className="min-h-11 rounded-md bg-clay-600 px-3.5 py-2 text-sm font-semibold text-white hover:bg-clay-700">

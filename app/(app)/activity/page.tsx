@@ -44,7 +44,7 @@ export default async function ActivityPage({ searchParams }: { searchParams: Pro
         }
       />
       <div className="space-y-4 px-4 py-6 sm:px-8">
-        <section className="flex flex-wrap items-end justify-between gap-3 rounded-card border border-soot-200 bg-white p-4" aria-label="Retention" data-testid="activity-retention">
+        <section className="flex flex-wrap items-center justify-between gap-3 rounded-card border border-soot-200 bg-white p-4" aria-label="Retention" data-testid="activity-retention">
           <p className="max-w-2xl text-sm text-soot-700">
             <span className="font-semibold text-soot-900">Retention: events are {retentionLabel(retention)}.</span>{" "}
             {retention === null
@@ -82,7 +82,7 @@ export default async function ActivityPage({ searchParams }: { searchParams: Pro
                   {e.entity_id ? (
                     <Link
                       href={`/activity?record=${e.entity_id}`}
-                      aria-label={`Every change to this record (${e.entity_id.slice(0, 8)})`}
+                      title="Every change to this record"
                       className="relative font-mono text-xs text-clay-700 hover:underline after:absolute after:-inset-x-1 after:-inset-y-3.5 after:content-['']"
                     >
                       {e.entity_id.slice(0, 8)}
