@@ -39,7 +39,7 @@ export async function recordLateOrders(db: Database, now = new Date()): Promise<
         units_scrapped: o.units_scrapped,
         projected_end: o.projected_end,
       };
-      const open = o.units_total - o.units_done - o.units_scrapped;
+      const unfinished = o.units_total - o.units_done - o.units_scrapped;
       await trx
         .insertInto("events")
         .values({
@@ -47,7 +47,7 @@ export async function recordLateOrders(db: Database, now = new Date()): Promise<
           entity_id: o.id,
           kind: "late",
           actor_id: null,
-          reason: `Due ${data.due_at} passed with ${open} of ${o.units_total} unit${o.units_total === 1 ? "" : "s"} unfinished`,
+          reason: `Due ${data.due_at} passed with ${unfinished} of ${o.units_total} unit${o.units_total === 1 ? "" : "s"} unfinished`,
           data: JSON.stringify(data),
         })
         .execute();
