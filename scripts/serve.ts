@@ -15,6 +15,7 @@ import { closeDb, getDb } from "@/db/client";
 import { answerFloorWindow } from "@/app/_server/floor-window-direct";
 import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
 import { PEER_HEADER } from "@/lib/http/client-address";
+import { DECLARED_LENGTH_HEADER, declaredLength } from "@/lib/http/declared-length";
 import { baseSecurityHeaders } from "@/lib/http/security-headers";
 import { pathDecodes } from "@/lib/http/request-target";
 import { crossSiteRefusal } from "@/lib/http/cross-site";
@@ -84,6 +85,12 @@ function closeWhenDue(req: http.IncomingMessage, res: http.ServerResponse, stopp
       }
     } else if (stopping()) {
       res.shouldKeepAlive = false;
+    }
+    // A streamed file's length, which Next.js would not pass on (lib/http/declared-length.ts).
+    if (res.hasHeader(DECLARED_LENGTH_HEADER)) {
+      const length = declaredLength(res.getHeader(DECLARED_LENGTH_HEADER));
+      res.removeHeader(DECLARED_LENGTH_HEADER);
+      if (length !== null && !res.hasHeader("content-encoding") && !res.hasHeader("transfer-encoding")) res.setHeader("content-length", length);
     }
     return writeHead.apply(this, args);
   } as typeof res.writeHead;

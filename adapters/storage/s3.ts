@@ -1,4 +1,5 @@
-import { CreateBucketCommand, DeleteObjectCommand, HeadBucketCommand, S3Client } from "@aws-sdk/client-s3";
+import { Readable } from "node:stream";
+import { CreateBucketCommand, DeleteObjectCommand, GetObjectCommand, HeadBucketCommand, S3Client } from "@aws-sdk/client-s3";
 import { NodeHttpHandler } from "@smithy/node-http-handler";
 import { getEnv } from "@/lib/env";
 
@@ -53,5 +54,38 @@ export async function deleteObjectQuietly(bucket: string, key: string): Promise<
   } catch (err) {
     console.error(`[storage] could not delete ${key}; the orphan sweep will:`, err instanceof Error ? err.message : err);
     return false;
+  }
+}
+
+/** How long the store may take to start answering a read (its headers); the body then streams under S3_IDLE_TIMEOUT_MS. */
+export const OPEN_OBJECT_MS = 10_000;
+
+export type OpenedObject = { body: ReadableStream<Uint8Array>; length: number | undefined };
+
+/**
+ * Opens a stored object as a stream instead of holding it in memory. The wait for the store's
+ * answer is bounded by OPEN_OBJECT_MS (not the whole transfer, which may rightly be long on a slow
+ * link; a silent socket mid-body fails by the client's socketTimeout). When `signal` aborts (the
+ * reader went away) or the returned stream is cancelled, the store's response is destroyed, so a
+ * dropped download leaves no open socket behind.
+ */
+export async function openObject(bucket: string, key: string, signal?: AbortSignal): Promise<OpenedObject> {
+  const abort = new AbortController();
+  const onGone = () => abort.abort(signal?.reason);
+  if (signal?.aborted) onGone();
+  signal?.addEventListener("abort", onGone, { once: true });
+  const timer = setTimeout(() => abort.abort(new Error(`object store did not answer within ${OPEN_OBJECT_MS} ms`)), OPEN_OBJECT_MS);
+  try {
+    const res = await getS3().send(new GetObjectCommand({ Bucket: bucket, Key: key }), { abortSignal: abort.signal });
+    if (!res.Body) throw new Error(`object store returned no body for ${key}`);
+    const node = res.Body as unknown as Readable;
+    // The abort listener stays until the body ends: a reader leaving mid-body destroys the socket.
+    node.once("close", () => signal?.removeEventListener("abort", onGone));
+    return { body: Readable.toWeb(node) as ReadableStream<Uint8Array>, length: res.ContentLength };
+  } catch (err) {
+    signal?.removeEventListener("abort", onGone);
+    throw err;
+  } finally {
+    clearTimeout(timer);
   }
 }
