@@ -1,3 +1,4 @@
+import http from "node:http";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { testDb } from "../helpers/db";
 import { api, DEMO, signIn } from "../helpers/session";
@@ -187,5 +188,36 @@ describe("attachments", () => {
 
     const list = await api(`/api/inspections?unit_id=${unit.id}`, { cookie: machinist });
     expect(list.body.inspections[0].files.map((f: { content_type: string }) => f.content_type).sort()).toEqual(["application/pdf", "image/png"]);
+  });
+
+  it("an oversized form sent without a Content-Length (chunked, as a phone may) is cut off at the limit: 413 naming the field, nothing stored", async () => {
+    const { unit } = await readyUnit(db);
+    const saved = await inspect({ unit_id: unit.id, version: 1, units: "mm", passed: true, finished: { x: 25 } });
+    const before = await db.selectFrom("files").select((eb) => eb.fn.countAll<number>().as("n")).executeTakeFirstOrThrow();
+    const boundary = "----hearth-test-boundary";
+    const head = Buffer.from(`--${boundary}\r\ncontent-disposition: form-data; name="file"; filename="huge.png"\r\ncontent-type: image/png\r\n\r\n`);
+    const url = new URL(`${appUrl()}/api/inspections/${saved.body.id}/files`);
+    const res = await new Promise<{ status: number; body: string }>((resolve, reject) => {
+      const req = http.request(
+        { host: url.hostname, port: url.port, path: url.pathname, method: "POST", headers: { cookie: machinist, "content-type": `multipart/form-data; boundary=${boundary}`, "transfer-encoding": "chunked" } },
+        (r) => {
+          let body = "";
+          r.on("data", (d) => (body += d));
+          r.on("end", () => resolve({ status: r.statusCode!, body }));
+        },
+      );
+      req.on("error", (err) => (req.writableEnded ? undefined : reject(err)));
+      (async () => {
+        req.write(head);
+        const chunk = Buffer.alloc(1024 * 1024, 1);
+        // 20 MB against the 15 MB limit; the answer may come before the body is through.
+        for (let i = 0; i < 20 && !req.destroyed; i++) if (!req.write(chunk)) await new Promise((r) => req.once("drain", r));
+        req.end(`\r\n--${boundary}--\r\n`);
+      })().catch(() => undefined);
+    });
+    expect(res.status, res.body).toBe(413);
+    expect(JSON.parse(res.body).error.fieldErrors.file).toBeDefined();
+    const after = await db.selectFrom("files").select((eb) => eb.fn.countAll<number>().as("n")).executeTakeFirstOrThrow();
+    expect(Number(after.n)).toBe(Number(before.n));
   });
 });

@@ -10,6 +10,7 @@ import { AppError } from "@/lib/errors";
 import { checkAttachment, safeFilename } from "@/lib/finishing/attachments";
 import { ATTACHMENT_MAX_BYTES } from "@/lib/finishing/schemas";
 import { toErrorResponse } from "@/app/_server/errors";
+import { readLimitedForm } from "@/app/_server/limited-form";
 import { deleteObjectQuietly, getS3 } from "@/adapters/storage/s3";
 
 // POST /api/inspections/[id]/files – attach a photo (JPEG, PNG, WebP) or a PDF report, multipart field "file" (machinist, admin)
@@ -20,17 +21,8 @@ export async function POST(req: Request, { params }: { params: Promise<{ id: str
     const db = getDb();
     const inspection = await findInspection(db, id);
     if (!inspection) throw new AppError("not_found", "Inspection not found.");
-    // Refuse an oversized body before reading it; the multipart envelope adds a little.
-    const declared = Number(req.headers.get("content-length") ?? 0);
-    if (declared > ATTACHMENT_MAX_BYTES + 64 * 1024) {
-      throw new AppError("payload_too_large", `Attachments are limited to ${ATTACHMENT_MAX_BYTES / 1024 / 1024} MB.`, { file: ["too large"] });
-    }
-    let form: FormData;
-    try {
-      form = await req.formData();
-    } catch {
-      throw new AppError("bad_request", "Send the file as multipart/form-data in a field named \"file\".");
-    }
+    // The multipart envelope adds a little to the attachment's own limit; the count stops an oversized body as it arrives.
+    const form = await readLimitedForm(req, ATTACHMENT_MAX_BYTES + 64 * 1024, "file");
     const file = form.get("file");
     if (!(file instanceof File)) throw new AppError("invalid", "Choose a file to attach.", { file: ["no file in the field \"file\""] });
     const bytes = new Uint8Array(await file.arrayBuffer());
