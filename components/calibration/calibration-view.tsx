@@ -245,7 +245,7 @@ function MaterialPanel({ materialId, canApply, timeZone }: { materialId: string;
                 const of = (a: "x" | "y" | "z") => v.points.find((q) => q.inspection_id === p.inspection_id && q.axis === a)?.shrinkage;
                 return (
                   <tr key={p.inspection_id} className="border-t border-soot-100">
-                    <td className="py-1"><Link href={`/units/${p.unit_id}`} className="font-mono text-xs text-clay-700 hover:underline">{p.serial}</Link></td>
+                    <td className="py-1"><Link href={`/units/${p.unit_id}`} className="tap-target inline-flex items-center font-mono text-xs text-clay-700 hover:underline">{p.serial}</Link></td>
                     <td className="py-1 text-xs">{formatWhen(p.at, timeZone)}</td>
                     <td className="py-1">{pct(of("x"))}</td>
                     <td className="py-1">{pct(of("y"))}</td>
