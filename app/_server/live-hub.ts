@@ -5,7 +5,7 @@
 import { randomBytes } from "node:crypto";
 import { getEnv } from "@/lib/env";
 import { BOARD_ENTITIES, ChangeBatcher, FLOOR_ENTITIES, ReplayLog, parseChange, sseFrame, type Change } from "@/lib/live/changes";
-import { floorWindowCache } from "@/lib/floor/window-cache";
+import { floorWindowCache, sharedReadCache } from "@/lib/floor/window-cache";
 import { boardCache } from "@/lib/batches/board-cache";
 import { ChangeListener, type ListenerState } from "@/db/live/listener";
 
@@ -28,6 +28,8 @@ const encoder = new TextEncoder();
 function forget(change: Change): void {
   if (FLOOR_ENTITIES.has(change.e)) floorWindowCache().clear();
   if (BOARD_ENTITIES.has(change.e)) boardCache().clear();
+  // The unscheduled builds and the units' traces show a bit of everything announced.
+  sharedReadCache().clear();
 }
 
 export class LiveHub {
@@ -93,6 +95,7 @@ export class LiveHub {
   private resync(): void {
     floorWindowCache().clear();
     boardCache().clear();
+    sharedReadCache().clear();
     this.broadcast(sseFrame({ id: this.log.lastId, event: "resync", data: "{}" }));
   }
 

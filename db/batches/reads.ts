@@ -24,6 +24,7 @@ import { projectionStatus, projectUnit, type StepState } from "@/lib/process/pro
 import { washMinutes } from "@/lib/process/wash";
 import type { TrayRun } from "@/lib/packing/types";
 import { boardCache } from "@/lib/batches/board-cache";
+import { changeStamp } from "@/db/live/stamps";
 import { WindowBody } from "@/lib/floor/window-body";
 
 export type Db = Database | Transaction<DB>;
@@ -431,9 +432,8 @@ async function listActive(db: Db, now: Date): Promise<BoardActive[]> {
 }
 
 /** Moves on every change to anything the board shows (migration 202612040510). */
-export async function boardChangeStamp(db: Db): Promise<string> {
-  const { rows } = await sql<{ v: string }>`select last_value::text || ':' || is_called::text as v from board_change_seq`.execute(db);
-  return rows[0].v;
+export function boardChangeStamp(db: Db): Promise<string> {
+  return changeStamp(db, "board");
 }
 
 /** The board's encoded body, from the process-wide cache while the stamp holds. */

@@ -47,9 +47,18 @@ export class WindowCache<T = string> {
 // On globalThis: the web server's direct path (scripts/serve.ts) and the route handlers that
 // Next.js bundled separately run in one process and must share one cache, so that a booking
 // change clearing it is seen by both.
-const globalForCache = globalThis as unknown as { hearthFloorCache?: WindowCache<WindowBody> };
+const globalForCache = globalThis as unknown as { hearthFloorCache?: WindowCache<WindowBody>; hearthSharedReadCache?: WindowCache<WindowBody> };
 
 /** The process-wide cache of floor windows, as encoded response bodies. */
 export function floorWindowCache(): WindowCache<WindowBody> {
   return (globalForCache.hearthFloorCache ??= new WindowCache<WindowBody>());
+}
+
+/**
+ * The process-wide cache of the other shared reads that every open page asks for again after
+ * each change it hears of (the unscheduled builds, a unit's trace; app/_server/shared-reads.ts):
+ * keyed by the read and everything its answer depends on, cleared on every change announced.
+ */
+export function sharedReadCache(): WindowCache<WindowBody> {
+  return (globalForCache.hearthSharedReadCache ??= new WindowCache<WindowBody>(2_000, 1_000));
 }

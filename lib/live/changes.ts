@@ -13,6 +13,8 @@ export const changeSchema = z.object({
   id: z.string().uuid().optional(),
   v: z.number().int().optional(),
   unit: z.string().uuid().optional(),
+  /** A build's state after the change (migration 202612041152): whether it is, or stays, a draft. */
+  s: z.string().max(40).optional(),
 });
 export type Change = z.infer<typeof changeSchema>;
 
