@@ -93,3 +93,18 @@ describe("queryHears", () => {
     expect(queryHears(["users"], null, null)).toBe(false);
   });
 });
+
+describe("the draft list hears builds that are, or were, drafts", () => {
+  const list = { builds: [{ id: A, code: "B-1" }] };
+  it("refetches for a new or changed draft and for a build leaving the list, not for a booked build's move", () => {
+    expect(parseChange(JSON.stringify({ e: "build", id: B, v: 2, s: "scheduled" }))).toEqual({ e: "build", id: B, v: 2, s: "scheduled" });
+    expect(queryHears(["unscheduled"], list, [{ e: "build", id: B, v: 1, s: "draft" }])).toBe(true); // joins the list
+    expect(queryHears(["unscheduled"], list, [{ e: "build", id: A, v: 2, s: "scheduled" }])).toBe(true); // leaves it
+    expect(queryHears(["unscheduled"], list, [{ e: "build", id: B, v: 7, s: "scheduled" }])).toBe(false); // a booked build moved
+    expect(queryHears(["unscheduled"], list, [{ e: "build", id: B, v: 7 }])).toBe(true); // no state said: as before
+    expect(queryHears(["unscheduled"], list, [{ e: "unit", id: B, v: 7 }])).toBe(false);
+    expect(queryHears(["unscheduled"], list, null)).toBe(true); // a resync
+    // The floor's window still hears every build change.
+    expect(queryHears(["floor", "a", "b"], null, [{ e: "build", id: B, v: 7, s: "scheduled" }])).toBe(true);
+  });
+});
