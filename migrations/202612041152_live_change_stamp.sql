@@ -5,9 +5,10 @@
 -- still sees the stamp move and loads afresh. Like floor_change_seq, a sequence never blocks and
 -- is not rolled back: a bump costs no lock and at worst a needless reload.
 --
--- A build's announcement also names its state ("s"): a page listing draft builds then refetches
--- only when a build becomes, stays or stops being a draft (its id is on the list, or "s" is
--- "draft"), not on every move of a booked build.
+-- A booking's announcement (build, wash batch, furnace run) also names its state ("s"): a page
+-- listing draft builds then refetches only when a build becomes, stays or stops being a draft
+-- (its id is on the list, or "s" is "draft"), not on every move of a booked build; and a web
+-- process keeps its list of units waiting for a wash while a wash batch only moves in time.
 create sequence live_change_seq;
 
 create or replace function notify_hearth_row_change() returns trigger language plpgsql as $$
@@ -22,8 +23,8 @@ begin
   perform nextval('live_change_seq');
   if tg_argv[0] = 'inspection' then
     perform pg_notify('hearth_changes', json_build_object('e', 'inspection', 'id', r.id, 'unit', r.unit_id)::text);
-  elsif tg_argv[0] = 'build' then
-    perform pg_notify('hearth_changes', json_build_object('e', 'build', 'id', r.id, 'v', r.version, 's', r.state)::text);
+  elsif tg_argv[0] in ('build', 'wash_batch', 'furnace_run') then
+    perform pg_notify('hearth_changes', json_build_object('e', tg_argv[0], 'id', r.id, 'v', r.version, 's', r.state)::text);
   else
     perform pg_notify('hearth_changes', json_build_object('e', tg_argv[0], 'id', r.id, 'v', r.version)::text);
   end if;
@@ -38,3 +39,31 @@ begin
   return null;
 end
 $$;
+
+-- The batching board's costliest part, the units waiting for a wash with every one's projection
+-- (db/batches/reads.ts), is kept per its own stamp: waiting_wash_seq moves with everything that
+-- list shows (units, their parts, orders and materials, the sinter profiles and furnaces that
+-- give the furnace step's length, a furnace run that holds a unit, the shop's settings) and with
+-- a wash batch's state (a batch that completes or is cancelled gives its units back to the list),
+-- but not when a booked wash batch only moves to another slot.
+create sequence waiting_wash_seq;
+
+create function bump_waiting_wash() returns trigger language plpgsql as $$
+begin
+  perform nextval('waiting_wash_seq');
+  return null;
+end
+$$;
+
+create trigger units_waiting_wash after insert or update or delete on units for each statement execute function bump_waiting_wash();
+create trigger parts_waiting_wash after insert or update or delete on parts for each statement execute function bump_waiting_wash();
+create trigger orders_waiting_wash after insert or update or delete on orders for each statement execute function bump_waiting_wash();
+create trigger materials_waiting_wash after insert or update or delete on materials for each statement execute function bump_waiting_wash();
+create trigger sinter_profiles_waiting_wash after insert or update or delete on sinter_profiles for each statement execute function bump_waiting_wash();
+create trigger sinter_profile_segments_waiting_wash after insert or update or delete on sinter_profile_segments for each statement execute function bump_waiting_wash();
+create trigger furnaces_waiting_wash after insert or update or delete on furnaces for each statement execute function bump_waiting_wash();
+create trigger furnace_profiles_waiting_wash after insert or update or delete on furnace_profiles for each statement execute function bump_waiting_wash();
+create trigger furnace_runs_waiting_wash after insert or update or delete on furnace_runs for each statement execute function bump_waiting_wash();
+create trigger shop_settings_waiting_wash after insert or update or delete on shop_settings for each statement execute function bump_waiting_wash();
+create trigger wash_batches_waiting_wash_rows after insert or delete on wash_batches for each statement execute function bump_waiting_wash();
+create trigger wash_batches_waiting_wash_state after update on wash_batches for each row when (old.state is distinct from new.state) execute function bump_waiting_wash();

@@ -4,9 +4,9 @@
 // Next.js bundled separately (app/api/events/route.ts) load this module apart and must share it.
 import { randomBytes } from "node:crypto";
 import { getEnv } from "@/lib/env";
-import { BOARD_ENTITIES, ChangeBatcher, FLOOR_ENTITIES, ReplayLog, parseChange, sseFrame, type Change } from "@/lib/live/changes";
+import { BOARD_ENTITIES, ChangeBatcher, FLOOR_ENTITIES, ReplayLog, WAITING_WASH_ENTITIES, parseChange, sseFrame, type Change } from "@/lib/live/changes";
 import { floorWindowCache, sharedReadCache } from "@/lib/floor/window-cache";
-import { boardCache } from "@/lib/batches/board-cache";
+import { boardCache, waitingWashCache } from "@/lib/batches/board-cache";
 import { ChangeListener, type ListenerState } from "@/db/live/listener";
 
 /** Browsers wait this long before reconnecting a dropped stream. */
@@ -30,6 +30,8 @@ function forget(change: Change): void {
   if (BOARD_ENTITIES.has(change.e)) boardCache().clear();
   // The unscheduled builds and the units' traces show a bit of everything announced.
   sharedReadCache().clear();
+  // The units waiting for a wash: not when a booked wash batch only moves (db/batches/reads.ts).
+  if (WAITING_WASH_ENTITIES.has(change.e) || (change.e === "wash_batch" && change.s !== "draft" && change.s !== "scheduled")) waitingWashCache().clear();
 }
 
 export class LiveHub {
@@ -95,6 +97,7 @@ export class LiveHub {
   private resync(): void {
     floorWindowCache().clear();
     boardCache().clear();
+    waitingWashCache().clear();
     sharedReadCache().clear();
     this.broadcast(sseFrame({ id: this.log.lastId, event: "resync", data: "{}" }));
   }

@@ -3,11 +3,17 @@
 // after each change every open board asks again at once, and one load serves them all.
 import { WindowCache } from "@/lib/floor/window-cache";
 import type { WindowBody } from "@/lib/floor/window-body";
+import type { BoardUnit } from "@/lib/batches/types";
 
 // On globalThis for the same reason as the floor's window cache: the route handler and the live
 // listener's module copy must share it.
-const globalForCache = globalThis as unknown as { hearthBoardCache?: WindowCache<WindowBody> };
+const globalForCache = globalThis as unknown as { hearthBoardCache?: WindowCache<WindowBody>; hearthWaitingWashCache?: WindowCache<BoardUnit[]> };
 
 export function boardCache(): WindowCache<WindowBody> {
   return (globalForCache.hearthBoardCache ??= new WindowCache<WindowBody>(2_000, 4));
+}
+
+/** The units waiting for a wash, projected (db/batches/reads.ts sharedWaitingWash): the board's costliest part. */
+export function waitingWashCache(): WindowCache<BoardUnit[]> {
+  return (globalForCache.hearthWaitingWashCache ??= new WindowCache<BoardUnit[]>(2_000, 2));
 }

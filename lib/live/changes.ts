@@ -13,7 +13,7 @@ export const changeSchema = z.object({
   id: z.string().uuid().optional(),
   v: z.number().int().optional(),
   unit: z.string().uuid().optional(),
-  /** A build's state after the change (migration 202612041152): whether it is, or stays, a draft. */
+  /** A booking's state after the change (migration 202612041152): build, wash batch, furnace run. */
   s: z.string().max(40).optional(),
 });
 export type Change = z.infer<typeof changeSchema>;
@@ -34,6 +34,9 @@ export const FLOOR_ENTITIES: ReadonlySet<ChangeEntity> = new Set(["build", "wash
 
 /** Changes to what the batching board shows (its cache must forget); a booked build is not one. */
 export const BOARD_ENTITIES: ReadonlySet<ChangeEntity> = new Set(["unit", "wash_batch", "furnace_run", "maintenance", "equipment"]);
+
+/** Changes that may alter the units waiting for a wash (besides a wash batch's change of state). */
+export const WAITING_WASH_ENTITIES: ReadonlySet<ChangeEntity> = new Set(["unit", "furnace_run", "material", "equipment"]);
 
 /**
  * Collects changes for a short window and hands them over as one group, one entry per row

@@ -13,7 +13,8 @@ import { appUrl } from "../helpers/browser";
 import { rawRequest } from "../helpers/raw-request";
 import { names, openEventStream, type EventStream } from "../helpers/event-stream";
 import { hoursFromNow, makeDraftBuild, makePrinter, retirePrinters } from "../floor/fixtures";
-import { makeStation, retireEquipment } from "../batches/fixtures";
+import { makeStation, makeUnits, retireEquipment } from "../batches/fixtures";
+import { isStaffedAt, staffingOf } from "@/lib/batches/staffed";
 
 const { db, close } = testDb();
 const urlA = appUrl();
@@ -117,6 +118,61 @@ describe("shared reads after a change", () => {
       const board = await read(base, "/api/batches", manager);
       expect(board.status).toBe(200);
       expect(board.text).toContain(made.body.id);
+    }
+  });
+});
+
+describe("the board's units waiting for a wash (kept apart while a batch only moves)", () => {
+  type Board = { wash_waiting: { id: string }[]; wash_batches: { id: string; starts_at: string | null; units: { id: string }[] }[] };
+  const board = async (base: string) => JSON.parse((await read(base, "/api/batches", manager)).text) as Board;
+  const waiting = (b: Board) => b.wash_waiting.map((u) => u.id);
+
+  it("a unit put into a batch leaves the list, the batch's move shows at once, and a cancelled batch gives its unit back, on both instances", async () => {
+    const station = await makeStation(db, { capacity: 4, load: 50_000 });
+    stations.push(station.id);
+    // Long overdue: at the head of the list (most at risk first), however many others wait.
+    const [unit] = await makeUnits(db, { material: "17-4PH", state: "green", green: [40, 30, 20], mass_g: 60, due: new Date(Date.now() - 30 * 86_400_000) });
+    const sA = await stream(urlA, manager);
+    for (const base of [urlA, urlB]) expect(waiting(await board(base))).toContain(unit.id);
+
+    const made = await api("/api/wash-batches", { method: "POST", cookie: tech, body: { wash_station_id: station.id } });
+    expect(made.status).toBe(201);
+    const added = await api(`/api/wash-batches/${made.body.id}/units`, { method: "POST", cookie: tech, body: { version: made.body.version, unit_id: unit.id, unit_version: unit.version } });
+    expect(added.status, JSON.stringify(added.body)).toBeLessThan(300);
+    await sA.waitFor(names("unit", unit.id), 5_000);
+    for (const base of [urlB, urlA]) {
+      const b = await board(base);
+      expect(waiting(b)).not.toContain(unit.id);
+      expect(b.wash_batches.find((w) => w.id === made.body.id)?.units.map((u) => u.id)).toEqual([unit.id]);
+    }
+
+    // Booked, then moved an hour on: the list of waiting units is not reloaded for a move, but the
+    // batch's own slot on the board is the new one.
+    const settings = await db.selectFrom("shop_settings").select(["staffed_hours", "time_zone"]).where("id", "=", 1).executeTakeFirst();
+    const staffing = staffingOf(settings?.staffed_hours, settings?.time_zone ?? "UTC");
+    let at = hoursFromNow(48).getTime();
+    while (!(isStaffedAt(new Date(at), staffing) && isStaffedAt(new Date(at + 3_600_000), staffing))) at += 3_600_000;
+    let version = added.body.version ?? made.body.version + 1;
+    for (const start of [at, at + 3_600_000]) {
+      const moved = await api(`/api/wash-batches/${made.body.id}/schedule`, { method: "PATCH", cookie: tech, body: { version, wash_station_id: station.id, starts_at: new Date(start).toISOString() } });
+      expect(moved.status, JSON.stringify(moved.body)).toBe(200);
+      version = moved.body.version;
+      await sA.waitFor(names("wash_batch", made.body.id, version), 5_000);
+      for (const base of [urlB, urlA]) {
+        const b = await board(base);
+        expect(b.wash_batches.find((w) => w.id === made.body.id)?.starts_at).toBe(new Date(start).toISOString());
+        expect(waiting(b)).not.toContain(unit.id);
+      }
+    }
+
+    // Cancelled: only the batch's state changes, and its unit waits again.
+    const cancelled = await api(`/api/wash-batches/${made.body.id}/cancel`, { method: "POST", cookie: tech, body: { version, reason: "test" } });
+    expect(cancelled.status, JSON.stringify(cancelled.body)).toBe(200);
+    await sA.waitFor(names("wash_batch", made.body.id, cancelled.body.version), 5_000);
+    for (const base of [urlB, urlA]) {
+      const b = await board(base);
+      expect(waiting(b)).toContain(unit.id);
+      expect(b.wash_batches.map((w) => w.id)).not.toContain(made.body.id);
     }
   });
 });
