@@ -5,10 +5,11 @@
 -- still sees the stamp move and loads afresh. Like floor_change_seq, a sequence never blocks and
 -- is not rolled back: a bump costs no lock and at worst a needless reload.
 --
--- A booking's announcement (build, wash batch, furnace run) also names its state ("s"): a page
--- listing draft builds then refetches only when a build becomes, stays or stops being a draft
--- (its id is on the list, or "s" is "draft"), not on every move of a booked build; and a web
--- process keeps its list of units waiting for a wash while a wash batch only moves in time.
+-- The announcement of a booking (build, wash batch, furnace run) or a unit also names its state
+-- ("s"): a page listing draft builds then refetches only when a build becomes, stays or stops
+-- being a draft (its id is on the list, or "s" is "draft"), not on every move of a booked build;
+-- and a web process keeps its list of units waiting for a wash while a wash batch only moves in
+-- time and while only units not yet printed change (a build booked or moved with its units).
 create sequence live_change_seq;
 
 create or replace function notify_hearth_row_change() returns trigger language plpgsql as $$
@@ -23,7 +24,7 @@ begin
   perform nextval('live_change_seq');
   if tg_argv[0] = 'inspection' then
     perform pg_notify('hearth_changes', json_build_object('e', 'inspection', 'id', r.id, 'unit', r.unit_id)::text);
-  elsif tg_argv[0] in ('build', 'wash_batch', 'furnace_run') then
+  elsif tg_argv[0] in ('build', 'wash_batch', 'furnace_run', 'unit') then
     perform pg_notify('hearth_changes', json_build_object('e', tg_argv[0], 'id', r.id, 'v', r.version, 's', r.state)::text);
   else
     perform pg_notify('hearth_changes', json_build_object('e', tg_argv[0], 'id', r.id, 'v', r.version)::text);
@@ -42,7 +43,7 @@ $$;
 
 -- The batching board's costliest part, the units waiting for a wash with every one's projection
 -- (db/batches/reads.ts), is kept per its own stamp: waiting_wash_seq moves with everything that
--- list shows (units, their parts, orders and materials, the sinter profiles and furnaces that
+-- list shows (green units, their parts, orders and materials, the sinter profiles and furnaces that
 -- give the furnace step's length, a furnace run that holds a unit, the shop's settings) and with
 -- a wash batch's state (a batch that completes or is cancelled gives its units back to the list),
 -- but not when a booked wash batch only moves to another slot.
@@ -55,7 +56,11 @@ begin
 end
 $$;
 
-create trigger units_waiting_wash after insert or update or delete on units for each statement execute function bump_waiting_wash();
+-- Only a unit that is or was green can be on the list (a build booked or moved changes its
+-- planned units, and that must not reload the list).
+create trigger units_waiting_wash_insert after insert on units for each row when (new.state = 'green') execute function bump_waiting_wash();
+create trigger units_waiting_wash_update after update on units for each row when (old.state = 'green' or new.state = 'green') execute function bump_waiting_wash();
+create trigger units_waiting_wash_delete after delete on units for each row when (old.state = 'green') execute function bump_waiting_wash();
 create trigger parts_waiting_wash after insert or update or delete on parts for each statement execute function bump_waiting_wash();
 create trigger orders_waiting_wash after insert or update or delete on orders for each statement execute function bump_waiting_wash();
 create trigger materials_waiting_wash after insert or update or delete on materials for each statement execute function bump_waiting_wash();

@@ -4,7 +4,7 @@
 // Next.js bundled separately (app/api/events/route.ts) load this module apart and must share it.
 import { randomBytes } from "node:crypto";
 import { getEnv } from "@/lib/env";
-import { BOARD_ENTITIES, ChangeBatcher, FLOOR_ENTITIES, ReplayLog, WAITING_WASH_ENTITIES, parseChange, sseFrame, type Change } from "@/lib/live/changes";
+import { BOARD_ENTITIES, ChangeBatcher, FLOOR_ENTITIES, ReplayLog, parseChange, touchesWaitingWash, sseFrame, type Change } from "@/lib/live/changes";
 import { floorWindowCache, sharedReadCache } from "@/lib/floor/window-cache";
 import { boardCache, waitingWashCache } from "@/lib/batches/board-cache";
 import { ChangeListener, type ListenerState } from "@/db/live/listener";
@@ -31,7 +31,7 @@ function forget(change: Change): void {
   // The unscheduled builds and the units' traces show a bit of everything announced.
   sharedReadCache().clear();
   // The units waiting for a wash: not when a booked wash batch only moves (db/batches/reads.ts).
-  if (WAITING_WASH_ENTITIES.has(change.e) || (change.e === "wash_batch" && change.s !== "draft" && change.s !== "scheduled")) waitingWashCache().clear();
+  if (touchesWaitingWash(change)) waitingWashCache().clear();
 }
 
 export class LiveHub {

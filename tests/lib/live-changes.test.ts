@@ -2,7 +2,7 @@
 // event-stream framing (HTML Living Standard, "Server-sent events", event stream format) and
 // the replay log behind Last-Event-ID; and which of a page's queries a change refetches.
 import { describe, expect, it } from "vitest";
-import { ChangeBatcher, ReplayLog, parseChange, sseFrame, type Change } from "@/lib/live/changes";
+import { ChangeBatcher, ReplayLog, parseChange, sseFrame, touchesWaitingWash, type Change } from "@/lib/live/changes";
 import { queryHears } from "@/components/live/query-map";
 
 const A = "0b6f5f2e-8d7a-4c1e-9d2b-1f0e3a4b5c6d";
@@ -106,5 +106,24 @@ describe("the draft list hears builds that are, or were, drafts", () => {
     expect(queryHears(["unscheduled"], list, null)).toBe(true); // a resync
     // The floor's window still hears every build change.
     expect(queryHears(["floor", "a", "b"], null, [{ e: "build", id: B, v: 7, s: "scheduled" }])).toBe(true);
+  });
+});
+
+describe("touchesWaitingWash", () => {
+  it("keeps the board's waiting units for a wash batch's move and for units not yet printed, not for anything else", () => {
+    expect(touchesWaitingWash({ e: "wash_batch", id: A, v: 3, s: "scheduled" })).toBe(false);
+    expect(touchesWaitingWash({ e: "wash_batch", id: A, v: 2, s: "draft" })).toBe(false);
+    expect(touchesWaitingWash({ e: "wash_batch", id: A, v: 4, s: "cancelled" })).toBe(true);
+    expect(touchesWaitingWash({ e: "wash_batch", id: A, v: 4, s: "complete" })).toBe(true);
+    expect(touchesWaitingWash({ e: "wash_batch", id: A, v: 4 })).toBe(true);
+    expect(touchesWaitingWash({ e: "unit", id: A, v: 2, s: "planned" })).toBe(false);
+    expect(touchesWaitingWash({ e: "unit", id: A, v: 2, s: "printing" })).toBe(false);
+    expect(touchesWaitingWash({ e: "unit", id: A, v: 3, s: "green" })).toBe(true);
+    expect(touchesWaitingWash({ e: "unit", id: A, v: 3, s: "scrapped" })).toBe(true);
+    expect(touchesWaitingWash({ e: "unit", id: A, v: 3 })).toBe(true);
+    expect(touchesWaitingWash({ e: "furnace_run", id: A, v: 3, s: "scheduled" })).toBe(true);
+    expect(touchesWaitingWash({ e: "equipment" })).toBe(true);
+    expect(touchesWaitingWash({ e: "build", id: A, v: 3, s: "scheduled" })).toBe(false);
+    expect(touchesWaitingWash({ e: "inspection", id: A, unit: B })).toBe(false);
   });
 });
