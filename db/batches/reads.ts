@@ -447,7 +447,7 @@ export function boardBody(db: Db, stamp: string): Promise<WindowBody> {
  * third of a second of CPU on it), and one that a booked wash batch moving in time does not
  * touch. So it is kept apart, per its own stamp (waiting_wash_seq, migration 202612041152: units,
  * parts, orders, materials, profiles, settings, furnace runs, and a wash batch's state, not its
- * slot), for at most the board's two seconds, and the live listener clears it on any change that
+ * slot), for at most ten seconds (lib/batches/board-cache.ts), and the live listener clears it on any change that
  * can alter it (app/_server/live-hub.ts).
  */
 async function sharedWaitingWash(db: Db, ctx: ShopContext): Promise<BoardUnit[]> {

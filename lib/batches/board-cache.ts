@@ -13,7 +13,13 @@ export function boardCache(): WindowCache<WindowBody> {
   return (globalForCache.hearthBoardCache ??= new WindowCache<WindowBody>(2_000, 4));
 }
 
-/** The units waiting for a wash, projected (db/batches/reads.ts sharedWaitingWash): the board's costliest part. */
+/**
+ * The units waiting for a wash, projected (db/batches/reads.ts sharedWaitingWash): the board's
+ * costliest part. Kept up to ten seconds, not two: its stamp and the live listener end it at
+ * any change it shows, so the age only bounds how far its projections' "now" lags the board's
+ * (the slack is in whole minutes), and how long a change made in the instant between its stamp's
+ * bump and its commit can go unseen while the listener is down (it resyncs when back).
+ */
 export function waitingWashCache(): WindowCache<BoardUnit[]> {
-  return (globalForCache.hearthWaitingWashCache ??= new WindowCache<BoardUnit[]>(2_000, 2));
+  return (globalForCache.hearthWaitingWashCache ??= new WindowCache<BoardUnit[]>(10_000, 2));
 }
