@@ -50,6 +50,12 @@ function dataText(data: unknown): string {
   return text;
 }
 
+/** Whether queryHears looks at the query's data for this key (a detail page, a list of some rows). */
+export function queryReadsData(key: readonly unknown[]): boolean {
+  const rule = typeof key[0] === "string" ? LIVE_QUERIES[key[0]] : undefined;
+  return !!rule && (!!rule.detail || !!rule.touches);
+}
+
 /** True when the query should refetch for these changes; null changes means "everything" (a resync). */
 export function queryHears(key: readonly unknown[], data: unknown, changes: readonly Change[] | null): boolean {
   const rule = typeof key[0] === "string" ? LIVE_QUERIES[key[0]] : undefined;
