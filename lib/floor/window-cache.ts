@@ -6,21 +6,43 @@
 
 import type { WindowBody } from "./window-body";
 
-type Entry<T> = { stamp: string; at: number; value: Promise<T> };
+type Entry<T> = { stamp: string; at: number; value: Promise<T>; refreshing?: boolean };
 
 export class WindowCache<T = string> {
   private entries = new Map<string, Entry<T>>();
 
+  /**
+   * refreshMs: for a value whose stamp still holds, past maxAgeMs (and up to refreshMs more) the
+   * old value is answered while one load of the new runs behind it, so that requests do not wait
+   * for a value that only aged (a changed stamp, or a clear, always waits for the new load).
+   */
   constructor(
     private readonly maxAgeMs = 2_000,
     private readonly maxEntries = 200,
     private readonly now: () => number = Date.now,
+    private readonly refreshMs = 0,
   ) {}
 
   async get(key: string, stamp: string, load: () => Promise<T>): Promise<T> {
     const hit = this.entries.get(key);
     const t = this.now();
     if (hit && hit.stamp === stamp && t - hit.at <= this.maxAgeMs) return hit.value;
+    if (hit && hit.stamp === stamp && t - hit.at <= this.maxAgeMs + this.refreshMs) {
+      if (!hit.refreshing) {
+        hit.refreshing = true;
+        const next = load();
+        next.then(
+          () => {
+            // Only if nothing replaced or cleared the entry meanwhile.
+            if (this.entries.get(key) === hit) this.entries.set(key, { stamp, at: t, value: next });
+          },
+          () => {
+            hit.refreshing = false;
+          },
+        );
+      }
+      return hit.value;
+    }
     const value = load();
     this.entries.set(key, { stamp, at: t, value });
     // A failed load is not kept: the next request tries again.
