@@ -344,11 +344,15 @@ export async function checkStockAlerts(db: Database, boss: PgBoss, now = new Dat
         );
         return;
       }
+      // The mail names builds as the floor and the travelers do, by code.
+      const shortIds = m.projection.short_builds;
+      const codeOf = new Map(shortIds.length ? (await trx.selectFrom("builds").select(["id", "code"]).where("id", "in", shortIds).execute()).map((b) => [b.id, b.code]) : []);
+      const shortCodes = shortIds.map((id) => codeOf.get(id) ?? id);
       reorder += await notifyRoles(trx, boss, "feedstock_reorder", `material:${m.id}:reorder:${at.toISOString()}`, ctx, (r, c) =>
         feedstockReorderMail(
           {
             material_code: m.code, material_name: m.name, on_hand_g: m.projection.on_hand_g, reorder_point_g: m.reorder_point_g, lead_time_days: m.lead_time_days,
-            first_below_day: m.projection.first_below_reorder_day!, first_short_day: m.projection.first_short_day, short_builds: m.projection.short_builds,
+            first_below_day: m.projection.first_below_reorder_day!, first_short_day: m.projection.first_short_day, short_builds: shortCodes,
           },
           r,
           c,

@@ -239,6 +239,22 @@ describe("projection and reorder", () => {
   });
 });
 
+describe("the reorder mail", () => {
+  it("names the builds that would run short by their codes", async () => {
+    const m = await ownMaterial({ reorder_point_g: 100_000, lead_time_days: 10 });
+    const lot = await receive(m.id, { quantity_kg: 2 });
+    await release(lot.id);
+    const b = await scheduledBuild(m, { quantity: 2, startH: 48 });
+    // far less on the shelf than the build draws: it is short on its day
+    await db.updateTable("feedstock_lots").set({ remaining_g: 30 }).where("id", "=", lot.id).execute();
+    await checkStockAlerts(db, await getSender());
+    const rows = await db.selectFrom("notification_outbox").select(["text_body"]).where("kind", "=", "feedstock_reorder").where("subject_key", "like", `material:${m.id}:%`).execute();
+    expect(rows.length).toBeGreaterThan(0);
+    expect(rows[0].text_body).toContain(b.build.code);
+    expect(rows[0].text_body).not.toContain(b.build.id);
+  });
+});
+
 describe("a material never received", () => {
   it("mails nothing while no build needs it, then once that there is no stock for the first build that does", async () => {
     const m = await ownMaterial({ reorder_point_g: 100_000, lead_time_days: 10 });
