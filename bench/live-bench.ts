@@ -18,7 +18,7 @@ import { createDb } from "@/db/client";
 import { migrateToLatest } from "@/db/migrate";
 import { startApp, stopProcs, waitFor, type Proc } from "../scripts/stack";
 import { changesOf, openEventStream, type EventStream, type StreamEvent } from "../tests/helpers/event-stream";
-import { queryHears } from "@/components/live/query-map";
+import { queryHears, queryReadsData } from "@/components/live/query-map";
 import { isStaffedAt, staffingOf, type Staffing } from "@/lib/batches/staffed";
 import { seedFloor } from "./floor-bench";
 import { freshDatabase } from "./fresh-database";
@@ -44,14 +44,20 @@ class Recorder {
   /** What each failed request answered: "label: status" or "label: the fetch's error". */
   reasons = new Map<string, number>();
   started = performance.now();
-  async get(base: string, path: string, cookie: string, label: string): Promise<unknown> {
+  /**
+   * The answer's text, parsed only when asked for (Answer.json): 150 simulated pages share this
+   * one process, and parsing every floor window and board they fetch (about 200 kB each) took more
+   * of its CPU than the app took to answer them, slowing every other page's timers and reads. The
+   * pages whose refetch rule never looks at the data (components/live/query-map.ts) never parse it.
+   */
+  async get(base: string, path: string, cookie: string, label: string): Promise<Answer | null> {
     const t0 = performance.now();
     try {
       const res = await fetch(`${base}${path}`, { headers: { cookie, "accept-encoding": "gzip, deflate, br" } });
       const text = await res.text();
       if (res.status !== 200) throw new Error(`${res.status} ${text.slice(0, 100)}`);
       this.add(label, performance.now() - t0);
-      return JSON.parse(text);
+      return new Answer(text);
     } catch (err) {
       this.errors.set(label, (this.errors.get(label) ?? 0) + 1);
       const why = `${label}: ${err instanceof Error ? `${err.message}${err.cause instanceof Error ? ` (${err.cause.message})` : ""}` : String(err)}`;
@@ -66,15 +72,25 @@ class Recorder {
   }
 }
 
+/** A response body, parsed on first use. */
+class Answer {
+  private parsed?: unknown;
+  constructor(readonly text: string) {}
+  get json(): unknown {
+    if (this.parsed === undefined) this.parsed = JSON.parse(this.text);
+    return this.parsed;
+  }
+}
+
 /** One query of a simulated page: at most one request in flight and one waiting behind it. */
 class SimQuery {
   private inflight = false;
   private again = false;
   private waiting: number[] = [];
-  data: unknown = null;
+  answer: Answer | null = null;
   constructor(
     readonly key: unknown[],
-    private readonly run: () => Promise<unknown>,
+    private readonly run: () => Promise<Answer | null>,
     private readonly onDone?: (latencies: number[]) => void,
   ) {}
   /** sentAt: when the change that caused this was sent (for change-to-screen). */
@@ -87,7 +103,7 @@ class SimQuery {
     this.inflight = true;
     const covered = this.waiting.splice(0);
     void this.run().then((d) => {
-      if (d !== null) this.data = d;
+      if (d !== null) this.answer = d;
       const now = performance.now();
       this.onDone?.(covered.map((t) => now - t));
       this.inflight = false;
@@ -307,7 +323,7 @@ export const section: BenchSection = {
               const e = events[k];
               const changes = e.event === "resync" ? null : changesOf(e);
               if (changes && !changes.length) continue;
-              for (const q of t.queries) if (queryHears(q.key, q.data, changes as never)) q.refetch();
+              for (const q of t.queries) if (queryHears(q.key, queryReadsData(q.key) ? (q.answer?.json ?? null) : null, changes as never)) q.refetch();
             }
             seen.set(t, events.length);
           }
@@ -331,7 +347,7 @@ export const section: BenchSection = {
         const elapsed = (performance.now() - t0) / 1000;
         await sleep(1_000);
         clearInterval(ticker);
-        const live = (await rec.get(base, "/api/health", admin, "health")) as { live?: { open_streams: number } } | null;
+        const live = (await rec.get(base, "/api/health", admin, "health"))?.json as { live?: { open_streams: number } } | null | undefined;
         for (const s of streams) s.close();
         streams.length = 0;
         rec.times.set("PATCH …/schedule (builds, wash batches)", moveTimes);

@@ -1,8 +1,9 @@
 // The web server of a built Hearth (`npm run serve`, `npm start`, the tests and the benchmarks):
 // Next.js's request handler behind Node's own HTTP server, the framework's "custom server"
 // (https://nextjs.org/docs/app/guides/custom-server). It answers two kinds of request before the
-// framework's per-request work: the floor's window, which every open floor polls, from its
-// cache (app/_server/floor-window-direct.ts), and the build's hashed static files from memory, gzipped
+// framework's per-request work: the shared reads that every open page asks for again after each
+// change it hears of (the floor's window, the board, the unscheduled builds, a unit's trace), from
+// their caches (app/_server/shared-read-direct.ts), and the build's hashed static files from memory, gzipped
 // once (app/_server/static-assets.ts). Everything else is Next.js's, unchanged.
 // PORT (3000) and HOSTNAME (127.0.0.1) say where it listens; the build is NEXT_DIST_DIR (.next).
 // Every answer names the instance in X-Hearth-Instance (HEARTH_INSTANCE, else host:port), so
@@ -12,7 +13,7 @@ import path from "node:path";
 import { fileURLToPath } from "node:url";
 import next from "next";
 import { closeDb, getDb } from "@/db/client";
-import { answerFloorWindow } from "@/app/_server/floor-window-direct";
+import { answerSharedRead } from "@/app/_server/shared-read-direct";
 import { STATIC_PREFIX, StaticAssets } from "@/app/_server/static-assets";
 import { PEER_HEADER } from "@/lib/http/client-address";
 import { DECLARED_LENGTH_HEADER, declaredLength } from "@/lib/http/declared-length";
@@ -132,7 +133,7 @@ async function main() {
     const direct = assets && req.url?.startsWith(STATIC_PREFIX)
       ? assets.answer(req, res)
       : secret
-        ? answerFloorWindow(req, res, getDb(), secret)
+        ? answerSharedRead(req, res, getDb(), secret)
         : Promise.resolve(false);
     direct
       .catch((err: unknown) => {

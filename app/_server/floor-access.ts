@@ -1,23 +1,26 @@
-// Who may read the floor's window: the one copy of the rule, used by the route handler
-// (app/api/floor/route.ts) and by the web server's direct path (app/_server/floor-window-direct.ts).
-// A session seal that opens, names an active user, is still live for that user (not revoked by a
-// password change or a sign-out everywhere), and a role that may read the shop. The floor's
-// change stamp comes back from the same round trip: it tells nothing to someone who is refused.
+// Who may read the shared reads (the floor's window, the board, the unscheduled builds, a unit's
+// trace): the one copy of the rule, used by the route handlers and by the web server's direct path
+// (app/_server/shared-read-direct.ts). A session seal that opens, names an active user, is still
+// live for that user (not revoked by a password change or a sign-out everywhere), and a role that
+// may read the shop. The read's change stamp comes back from the same round trip: it tells
+// nothing to someone who is refused.
 import type { Database } from "@/db/client";
-import { floorViewerAndStamp } from "@/db/floor/reads";
+import { viewerAndStamp, type StampKind } from "@/db/live/stamps";
 import { can, type Role } from "@/lib/auth/permissions";
 import { unsealSession } from "@/lib/auth/seal-cache";
 import { renewalDue, sessionIsLive, type SessionData } from "@/lib/auth/session-config";
 
 export const FLOOR_PERMISSION = "shop:read" as const;
+/** Every shared read is the shop's to read. */
+export const SHARED_READ_PERMISSION = FLOOR_PERMISSION;
 
 export type FloorAccess =
   | { kind: "signed-out" }
   | { kind: "forbidden"; role: Role }
   /** renewalDue: the cookie's idle lifetime should slide, which only the route handler can do. */
-  | { kind: "allowed"; stamp: string; renewalDue: boolean };
+  | { kind: "allowed"; role: Role; stamp: string; renewalDue: boolean };
 
-export async function authorizeFloorRead(db: Database, seal: string | undefined, secret: string, now = Date.now()): Promise<FloorAccess> {
+export async function authorizeSharedRead(db: Database, stampKind: StampKind, seal: string | undefined, secret: string, now = Date.now()): Promise<FloorAccess> {
   if (!seal) return { kind: "signed-out" };
   let session: SessionData;
   try {
@@ -26,8 +29,12 @@ export async function authorizeFloorRead(db: Database, seal: string | undefined,
     return { kind: "signed-out" };
   }
   if (!session.userId) return { kind: "signed-out" };
-  const { viewer, stamp } = await floorViewerAndStamp(db, session.userId, session.sid);
+  const { viewer, stamp } = await viewerAndStamp(db, stampKind, session.userId, session.sid);
   if (!viewer || !sessionIsLive(session, viewer.sessions_valid_after, now, viewer.session_open)) return { kind: "signed-out" };
-  if (!can(viewer.role, FLOOR_PERMISSION)) return { kind: "forbidden", role: viewer.role };
-  return { kind: "allowed", stamp, renewalDue: renewalDue(session, now) };
+  if (!can(viewer.role, SHARED_READ_PERMISSION)) return { kind: "forbidden", role: viewer.role };
+  return { kind: "allowed", role: viewer.role, stamp, renewalDue: renewalDue(session, now) };
+}
+
+export function authorizeFloorRead(db: Database, seal: string | undefined, secret: string, now = Date.now()): Promise<FloorAccess> {
+  return authorizeSharedRead(db, "floor", seal, secret, now);
 }

@@ -4,9 +4,9 @@
 // Next.js bundled separately (app/api/events/route.ts) load this module apart and must share it.
 import { randomBytes } from "node:crypto";
 import { getEnv } from "@/lib/env";
-import { BOARD_ENTITIES, ChangeBatcher, FLOOR_ENTITIES, ReplayLog, parseChange, sseFrame, type Change } from "@/lib/live/changes";
-import { floorWindowCache } from "@/lib/floor/window-cache";
-import { boardCache } from "@/lib/batches/board-cache";
+import { BOARD_ENTITIES, ChangeBatcher, FLOOR_ENTITIES, ReplayLog, parseChange, touchesWaitingWash, sseFrame, type Change } from "@/lib/live/changes";
+import { floorWindowCache, sharedReadCache } from "@/lib/floor/window-cache";
+import { boardCache, waitingWashCache } from "@/lib/batches/board-cache";
 import { ChangeListener, type ListenerState } from "@/db/live/listener";
 
 /** Browsers wait this long before reconnecting a dropped stream. */
@@ -28,6 +28,10 @@ const encoder = new TextEncoder();
 function forget(change: Change): void {
   if (FLOOR_ENTITIES.has(change.e)) floorWindowCache().clear();
   if (BOARD_ENTITIES.has(change.e)) boardCache().clear();
+  // The unscheduled builds and the units' traces show a bit of everything announced.
+  sharedReadCache().clear();
+  // The units waiting for a wash: not when a booked wash batch only moves (db/batches/reads.ts).
+  if (touchesWaitingWash(change)) waitingWashCache().clear();
 }
 
 export class LiveHub {
@@ -93,6 +97,8 @@ export class LiveHub {
   private resync(): void {
     floorWindowCache().clear();
     boardCache().clear();
+    waitingWashCache().clear();
+    sharedReadCache().clear();
     this.broadcast(sseFrame({ id: this.log.lastId, event: "resync", data: "{}" }));
   }
 

@@ -14,7 +14,8 @@ import { freshDatabase } from "../fresh-database";
 import { mulberry32 } from "@/lib/random";
 import type { BenchRow, BenchSection } from "../types";
 
-const DB_NAME = "hearth_bench_feedstock";
+// one per test slot, so that two runs on a shared server do not drop each other's database
+const DB_NAME = `hearth_bench_feedstock${process.env.HEARTH_TEST_SLOT ?? ""}`;
 const BUILDS = Number(process.env.HEARTH_BENCH_FEEDSTOCK_BUILDS ?? 10_000);
 const GENEALOGY_BUILDS = 1_000;
 const UNITS_PER_GENEALOGY_BUILD = 5;

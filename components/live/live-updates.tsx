@@ -6,6 +6,9 @@ import type { Change } from "@/lib/live/changes";
 import { liveStatus, subscribeLive, subscribeLiveStatus, type LiveStatus } from "./live-connection";
 import { queryHears } from "./query-map";
 
+/** How long the first change of a burst waits for the rest before its queries refetch. */
+const COALESCE_MS = 75;
+
 /**
  * Mounted once under a page's QueryClientProvider: refetches the page's queries that a change
  * touches. A query may say it is busy (meta.liveHold, e.g. while a booking is being dragged):
@@ -43,11 +46,23 @@ export function LiveUpdates() {
         if (state.again) refetch(query);
       })();
     };
+    // Changes that arrive within COALESCE_MS of each other make one refetch per query, not one
+    // each: a burst (a proposal applied, several people moving bookings) asks once.
+    const due = new Set<Query>();
+    let flush: ReturnType<typeof setTimeout> | null = null;
     const stop = subscribeLive((m) => {
-      for (const query of matching(qc, m.kind === "resync" ? null : m.changes)) refetch(query);
+      for (const query of matching(qc, m.kind === "resync" ? null : m.changes)) due.add(query);
+      if (!due.size || flush) return;
+      flush = setTimeout(() => {
+        flush = null;
+        const queries = [...due];
+        due.clear();
+        for (const query of queries) refetch(query);
+      }, COALESCE_MS);
     });
     return () => {
       stop();
+      if (flush) clearTimeout(flush);
       for (const t of held.values()) clearTimeout(t);
     };
   }, [qc]);

@@ -23,7 +23,8 @@ import { furnaceCycle, type SinterProfile } from "@/lib/process/furnace-profile"
 import { projectionStatus, projectUnit, type StepState } from "@/lib/process/projection";
 import { washMinutes } from "@/lib/process/wash";
 import type { TrayRun } from "@/lib/packing/types";
-import { boardCache } from "@/lib/batches/board-cache";
+import { boardCache, waitingWashCache } from "@/lib/batches/board-cache";
+import { changeStamp } from "@/db/live/stamps";
 import { WindowBody } from "@/lib/floor/window-body";
 
 export type Db = Database | Transaction<DB>;
@@ -431,23 +432,36 @@ async function listActive(db: Db, now: Date): Promise<BoardActive[]> {
 }
 
 /** Moves on every change to anything the board shows (migration 202612040510). */
-export async function boardChangeStamp(db: Db): Promise<string> {
-  const { rows } = await sql<{ v: string }>`select last_value::text || ':' || is_called::text as v from board_change_seq`.execute(db);
-  return rows[0].v;
+export function boardChangeStamp(db: Db): Promise<string> {
+  return changeStamp(db, "board");
 }
 
 /** The board's encoded body, from the process-wide cache while the stamp holds. */
 export function boardBody(db: Db, stamp: string): Promise<WindowBody> {
-  return boardCache().get("board", stamp, async () => WindowBody.fromJson(JSON.stringify(await loadBoard(db))));
+  return boardCache().get("board", stamp, async () => WindowBody.fromJson(JSON.stringify(await loadBoard(db, new Date(), sharedWaitingWash))));
+}
+
+/**
+ * The units waiting for a wash, every one projected (the board shows the 200 most at risk and
+ * the total): by far the board's costliest part (a shop with ten thousand green parts spends a
+ * third of a second of CPU on it), and one that a booked wash batch moving in time does not
+ * touch. So it is kept apart, per its own stamp (waiting_wash_seq, migration 202612041152: units,
+ * parts, orders, materials, profiles, settings, furnace runs, and a wash batch's state, not its
+ * slot), for at most ten seconds (lib/batches/board-cache.ts), and the live listener clears it on any change that
+ * can alter it (app/_server/live-hub.ts).
+ */
+async function sharedWaitingWash(db: Db, ctx: ShopContext): Promise<BoardUnit[]> {
+  const { rows } = await sql<{ v: string }>`select last_value::text || ':' || is_called::text as v from waiting_wash_seq`.execute(db);
+  return waitingWashCache().get("waiting_wash", rows[0].v, () => listBoardUnits(db, ctx, { kind: "waiting_wash" }));
 }
 
 /** Waiting units the board lists per lane, most at risk first (the suggestions still see all). */
 export const BOARD_WAITING_LIMIT = 200;
 
-export async function loadBoard(db: Db, now = new Date()): Promise<Board> {
+export async function loadBoard(db: Db, now = new Date(), waitingWash = (d: Db, ctx: ShopContext) => listBoardUnits(d, ctx, { kind: "waiting_wash" })): Promise<Board> {
   const ctx = await loadShopContext(db, now);
   const [washWaiting, furnaceWaiting, washes, runs, active] = await Promise.all([
-    listBoardUnits(db, ctx, { kind: "waiting_wash" }),
+    waitingWash(db, ctx),
     listBoardUnits(db, ctx, { kind: "waiting_furnace" }),
     listWashBatches(db, ctx, { states: ["draft", "scheduled"] }),
     listFurnaceRuns(db, ctx, { states: ["draft", "scheduled"] }),

@@ -5,10 +5,9 @@ import type { ShopTiming } from "@/lib/parts/projection";
 import type { FloorData, FloorWindow } from "@/lib/floor/schemas";
 import type { WeeklyPattern } from "@/lib/process/time-zone";
 import { scaleUp } from "@/lib/process/scale-up";
-import type { Role } from "@/lib/auth/permissions";
 import { WindowBody } from "@/lib/floor/window-body";
 import { floorWindowCache } from "@/lib/floor/window-cache";
-import { isUuid, sessionOpenSql } from "@/db/users/reads";
+import { changeStamp, viewerAndStamp, type Viewer } from "@/db/live/stamps";
 
 // The floor's data, one loader per kind of lane so that each kind can grow on its own
 // (the batching work makes wash and furnace lanes interactive through their own loaders).
@@ -168,31 +167,16 @@ export async function loadFloorJson(db: Database, w: FloorWindow): Promise<strin
   return `{"from":${JSON.stringify(w.from)},"to":${JSON.stringify(w.to)},"resources":${concat("resources")},"events":${concat("events")},"blocks":${concat("blocks")},"stamp":${JSON.stringify(new Date().toISOString())}}`;
 }
 
-const STAMP_SQL = sql`select last_value::text || ':' || is_called::text from floor_change_seq`;
-
 /** Moves on every change to anything the floor shows (migration 202612012302). */
-export async function floorChangeStamp(db: Database): Promise<string> {
-  const { rows } = await sql<{ v: string }>`select (${STAMP_SQL}) as v`.execute(db);
-  return rows[0].v;
+export function floorChangeStamp(db: Database): Promise<string> {
+  return changeStamp(db, "floor");
 }
 
-export type FloorViewer = { role: Role; sessions_valid_after: Date | number | null; session_open: boolean };
+export type FloorViewer = Viewer;
 
-/**
- * The active user a session names and the floor's change stamp in one round trip: what the web
- * server's direct path needs before it may answer from the window cache.
- */
-export async function floorViewerAndStamp(db: Database, userId: string, sid?: string | null): Promise<{ viewer: FloorViewer | null; stamp: string }> {
-  const viewer = isUuid(userId)
-    ? sql`(select json_build_object('role', u.role, 'valid_after', floor(extract(epoch from u.sessions_valid_after) * 1000), 'session_open', ${sessionOpenSql("u.id", sid)}) from users u where u.id = ${userId} and u.active)`
-    : sql`null::json`;
-  const { rows } = await sql<{ viewer: { role: Role; valid_after: number | string | null; session_open: boolean } | null; stamp: string }>`select ${viewer} as viewer, (${STAMP_SQL}) as stamp`.execute(db);
-  const v = rows[0].viewer;
-  if (!v) return { viewer: null, stamp: rows[0].stamp };
-  // Milliseconds, truncated as pg's Date would be; ±infinity (the default is -infinity) arrives
-  // in JSON as a string.
-  const after = typeof v.valid_after === "string" ? Number(v.valid_after) : v.valid_after;
-  return { viewer: { role: v.role, sessions_valid_after: after, session_open: v.session_open === true }, stamp: rows[0].stamp };
+/** The active user a session names and the floor's change stamp in one round trip (db/live/stamps.ts). */
+export function floorViewerAndStamp(db: Database, userId: string, sid?: string | null): Promise<{ viewer: FloorViewer | null; stamp: string }> {
+  return viewerAndStamp(db, "floor", userId, sid);
 }
 
 /** The encoded body of one window, from the process-wide cache while the stamp holds. */

@@ -8,11 +8,11 @@ import { lockRowOrThrow, recordEvents, requireVersion } from "@/db/versioned";
 import { AppError } from "@/lib/errors";
 import { roundGrams } from "@/lib/inventory/consumption";
 import { allocate, drawRefusal, LOT_TRANSITIONS, type LotForDraw, type LotState } from "@/lib/inventory/lots";
-import { reorderDecision } from "@/lib/inventory/projection";
+import { noStockDecision, reorderDecision } from "@/lib/inventory/projection";
 import type { LotCsvRow, ReceiveLot, UpdateLot } from "@/lib/inventory/schemas";
 import type { RecallResult } from "@/lib/inventory/types";
 import { NOTIFICATION_RECIPIENTS, type NotificationKind } from "@/lib/notifications/kinds";
-import { bathChangeDueMail, feedstockReorderMail, type MailContent, type MailContext, type MailRecipient } from "@/lib/notifications/templates";
+import { bathChangeDueMail, feedstockNoStockMail, feedstockReorderMail, type MailContent, type MailContext, type MailRecipient } from "@/lib/notifications/templates";
 import { estimateBuildDraws, findShopZone, listBaths, projectStock, shopDay } from "./reads";
 
 type Trx = Transaction<DB>;
@@ -308,14 +308,21 @@ async function notifyRoles(trx: Trx, boss: PgBoss, kind: NotificationKind, key: 
  * Run by the worker's sweep: mails managers once when a material's projection crosses its
  * reorder point within the lead time (and re-arms when it recovers), and operators once when a
  * bath reaches its change-out point. The flag on the row is set in the same transaction as the
- * outbox rows, so two workers sweeping at once send one message.
+ * outbox rows, so two workers sweeping at once send one message. A material no lot was ever
+ * received for is not tracked: it mails nothing while no build needs it, and once when a
+ * scheduled build within the horizon does ("no stock on hand, needed by build B on day D").
  */
 export async function checkStockAlerts(db: Database, boss: PgBoss, now = new Date()): Promise<{ reorder: number; bath: number }> {
   const { today, materials } = await projectStock(db, { days: 90, now });
   let reorder = 0, bath = 0;
   const ctx = await findMailContext(db);
   for (const m of materials) {
-    const decision = reorderDecision({ first_below_reorder_day: m.projection.first_below_reorder_day, today, lead_time_days: m.lead_time_days, alerted: m.reorder_alerted_at !== null });
+    // the first scheduled build that will draw on the material (its code, day and draw)
+    const firstNeed = m.projection.days.find((d) => d.builds.length > 0);
+    const alerted = m.reorder_alerted_at !== null;
+    const decision = m.tracked
+      ? reorderDecision({ first_below_reorder_day: m.projection.first_below_reorder_day, today, lead_time_days: m.lead_time_days, alerted })
+      : noStockDecision({ first_need_day: firstNeed?.day ?? null, alerted });
     if (decision === "none") continue;
     await db.transaction().execute(async (trx) => {
       const row = await trx.selectFrom("materials").select(["reorder_alerted_at"]).where("id", "=", m.id).forUpdate().executeTakeFirstOrThrow();
@@ -326,11 +333,26 @@ export async function checkStockAlerts(db: Database, boss: PgBoss, now = new Dat
       if (row.reorder_alerted_at) return;
       const at = new Date(now);
       await trx.updateTable("materials").set({ reorder_alerted_at: at }).where("id", "=", m.id).execute();
+      if (!m.tracked) {
+        const builds = m.projection.days.reduce((n, d) => n + d.builds.length, 0);
+        reorder += await notifyRoles(trx, boss, "feedstock_reorder", `material:${m.id}:no-stock:${at.toISOString()}`, ctx, (r, c) =>
+          feedstockNoStockMail(
+            { material_code: m.code, material_name: m.name, first_build: firstNeed!.builds[0], first_day: firstNeed!.day, first_day_g: firstNeed!.drawn_g, builds, needed_g: m.projection.committed_g },
+            r,
+            c,
+          ),
+        );
+        return;
+      }
+      // The mail names builds as the floor and the travelers do, by code.
+      const shortIds = m.projection.short_builds;
+      const codeOf = new Map(shortIds.length ? (await trx.selectFrom("builds").select(["id", "code"]).where("id", "in", shortIds).execute()).map((b) => [b.id, b.code]) : []);
+      const shortCodes = shortIds.map((id) => codeOf.get(id) ?? id);
       reorder += await notifyRoles(trx, boss, "feedstock_reorder", `material:${m.id}:reorder:${at.toISOString()}`, ctx, (r, c) =>
         feedstockReorderMail(
           {
             material_code: m.code, material_name: m.name, on_hand_g: m.projection.on_hand_g, reorder_point_g: m.reorder_point_g, lead_time_days: m.lead_time_days,
-            first_below_day: m.projection.first_below_reorder_day!, first_short_day: m.projection.first_short_day, short_builds: m.projection.short_builds,
+            first_below_day: m.projection.first_below_reorder_day!, first_short_day: m.projection.first_short_day, short_builds: shortCodes,
           },
           r,
           c,

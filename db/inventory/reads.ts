@@ -96,14 +96,17 @@ export async function listMaterialStock(db: Database): Promise<MaterialStock[]> 
   }));
 }
 
-type BuildDraw = DrawEstimate & { material_id: string; code: string; starts_at: Date | null; units: number };
+type BuildDraw = DrawEstimate & { material_id: string; code: string; starts_at_ms: number | null; units: number };
 
 /**
  * What each build will draw, from its units' printed volume, the material's feedstock density
  * and its allowances. Two passes over the builds' units, so that a busy schedule moves one narrow
  * row per build rather than one per unit: first the distinct parts printed in each material,
  * whose green volume is worked out here once each (greenVolumeOf, the floor's rule); then, in the
- * database, each build's units counted and their volumes summed.
+ * database, each build's units counted and their volumes summed, grouped on the units' build id
+ * alone before the builds are met (one hash of narrow rows rather than of whole build rows), and
+ * the start sent as epoch milliseconds. The density and allowances are read once per material
+ * and applied here (estimateDrawOfTotal), so the rule has one copy, in lib/.
  */
 async function loadBuildDraws(db: Database, filter: { buildIds?: string[]; scheduledOnly?: boolean }): Promise<Map<string, BuildDraw>> {
   const out = new Map<string, BuildDraw>();
@@ -116,31 +119,38 @@ async function loadBuildDraws(db: Database, filter: { buildIds?: string[]; sched
     ],
     sql` and `,
   );
-  const { rows: printed } = await sql<{
-    part_id: string; material_id: string; volume_mm3: unknown; nominal_x_mm: unknown; nominal_y_mm: unknown; nominal_z_mm: unknown; green_x_mm: unknown; green_y_mm: unknown; green_z_mm: unknown;
-    stock_x_neg_mm: unknown; stock_x_pos_mm: unknown; stock_y_neg_mm: unknown; stock_y_pos_mm: unknown; stock_z_neg_mm: unknown; stock_z_pos_mm: unknown; shrink_xy: unknown; shrink_z: unknown;
-  }>`
+  const [{ rows: printed }, materials] = await Promise.all([
+    sql<{
+      part_id: string; material_id: string; volume_mm3: unknown; nominal_x_mm: unknown; nominal_y_mm: unknown; nominal_z_mm: unknown; green_x_mm: unknown; green_y_mm: unknown; green_z_mm: unknown;
+      stock_x_neg_mm: unknown; stock_x_pos_mm: unknown; stock_y_neg_mm: unknown; stock_y_pos_mm: unknown; stock_z_neg_mm: unknown; stock_z_pos_mm: unknown; shrink_xy: unknown; shrink_z: unknown;
+    }>`
     select p.id as part_id, m.id as material_id, p.volume_mm3, p.nominal_x_mm, p.nominal_y_mm, p.nominal_z_mm, p.green_x_mm, p.green_y_mm, p.green_z_mm,
       p.stock_x_neg_mm, p.stock_x_pos_mm, p.stock_y_neg_mm, p.stock_y_pos_mm, p.stock_z_neg_mm, p.stock_z_pos_mm, m.shrink_xy, m.shrink_z
     from parts p
     cross join materials m
-    where (p.id, m.id) in (select distinct u.part_id, b.material_id from units u join builds b on b.id = u.build_id where u.state <> 'scrapped' and ${scope})`.execute(db);
+    where (p.id, m.id) in (select distinct u.part_id, b.material_id from units u join builds b on b.id = u.build_id where u.state <> 'scrapped' and ${scope})`.execute(db),
+    db.selectFrom("materials").select(["id", "green_density_g_cm3", "support_allowance", "purge_g"]).execute(),
+  ]);
   const volumes = printed.map((p) => greenVolumeOf(p));
-  const { rows } = await sql<{ id: string; code: string; material_id: string; starts_at: Date | null; units: number; volume_mm3: number; density: string; support_allowance: string; purge_g: string }>`
-    select b.id, b.code, b.material_id, b.starts_at, count(u.id)::int as units, coalesce(sum(v.volume_mm3), 0)::float8 as volume_mm3,
-      m.green_density_g_cm3 as density, m.support_allowance, m.purge_g
+  const { rows } = await sql<{ id: string; code: string; material_id: string; starts_at_ms: number | null; units: number | null; volume_mm3: number | null }>`
+    select b.id, b.code, b.material_id, (extract(epoch from b.starts_at) * 1000)::float8 as starts_at_ms, x.units, x.volume_mm3
     from builds b
-    join materials m on m.id = b.material_id
-    left join units u on u.build_id = b.id and u.state <> 'scrapped'
-    left join unnest(${printed.map((p) => p.part_id)}::uuid[], ${printed.map((p) => p.material_id)}::uuid[], ${volumes}::float8[]) as v(part_id, material_id, volume_mm3)
-      on v.part_id = u.part_id and v.material_id = b.material_id
-    where ${scope}
-    group by b.id, m.id`.execute(db);
-  const allowances = new Map<string, { feedstock_density_g_cm3: number; support_allowance: number; purge_g: number }>();
+    left join (
+      select u.build_id, count(*)::int as units, sum(v.volume_mm3)::float8 as volume_mm3
+      from units u
+      join builds b on b.id = u.build_id
+      join unnest(${printed.map((p) => p.part_id)}::uuid[], ${printed.map((p) => p.material_id)}::uuid[], ${volumes}::float8[]) as v(part_id, material_id, volume_mm3)
+        on v.part_id = u.part_id and v.material_id = b.material_id
+      where u.state <> 'scrapped' and ${scope}
+      group by u.build_id
+    ) x on x.build_id = b.id
+    where ${scope}`.execute(db);
+  const allowances = new Map(materials.map((m) => [m.id, { feedstock_density_g_cm3: Number(m.green_density_g_cm3), support_allowance: Number(m.support_allowance), purge_g: Number(m.purge_g) }]));
   for (const r of rows) {
-    let a = allowances.get(r.material_id);
-    if (!a) allowances.set(r.material_id, (a = { feedstock_density_g_cm3: Number(r.density), support_allowance: Number(r.support_allowance), purge_g: Number(r.purge_g) }));
-    out.set(r.id, { ...estimateDrawOfTotal(Number(r.volume_mm3), Number(r.units), a), material_id: r.material_id, code: r.code, starts_at: r.starts_at, units: Number(r.units) });
+    const units = r.units ?? 0;
+    const e = estimateDrawOfTotal(r.volume_mm3 ?? 0, units, allowances.get(r.material_id)!);
+    // fields named one by one: a spread per build cost more than the rest of this loop
+    out.set(r.id, { parts_g: e.parts_g, supports_g: e.supports_g, purge_g: e.purge_g, total_g: e.total_g, material_id: r.material_id, code: r.code, starts_at_ms: r.starts_at_ms, units });
   }
   return out;
 }
@@ -185,8 +195,8 @@ async function loadStockInputs(db: Database, now: Date, proposed: Array<{ build_
   // the IANA tz database: Liberia's −0:44:30 was the last odd one), so two starts in the same
   // UTC quarter hour fall on the same shop day and the zone is asked once per quarter hour.
   const days = new Map<number, string>();
-  const dayOf = (at: Date | string) => {
-    const bucket = Math.floor(new Date(at).getTime() / 900_000);
+  const dayOf = (at: number | string) => {
+    const bucket = Math.floor((typeof at === "number" ? at : Date.parse(at)) / 900_000);
     let day = days.get(bucket);
     if (day === undefined) days.set(bucket, (day = shopDay(new Date(bucket * 900_000), zone)));
     return day;
@@ -201,7 +211,7 @@ async function loadStockInputs(db: Database, now: Date, proposed: Array<{ build_
   // In order of start: within a day, the build that starts first takes what the shelf holds first.
   const drawing: Array<{ at: number; material_id: string; build: ProjectionBuild }> = [];
   for (const [id, b] of scheduled) {
-    if (!skip.has(id)) drawing.push({ at: new Date(b.starts_at!).getTime(), material_id: b.material_id, build: { id, code: b.code, day: dayOf(b.starts_at!), grams: b.total_g } });
+    if (!skip.has(id)) drawing.push({ at: b.starts_at_ms!, material_id: b.material_id, build: { id, code: b.code, day: dayOf(b.starts_at_ms!), grams: b.total_g } });
   }
   for (const p of proposed) {
     const draw = proposedDraws.get(p.build_id);

@@ -6,6 +6,8 @@ import { massLossCheck } from "@/lib/process/wash";
 import { furnaceCycle } from "@/lib/process/furnace-profile";
 import type { TimelineEntry, UnitTrace } from "@/lib/finishing/types";
 import { listInspectionsForUnit } from "@/db/inspections/reads";
+import { WindowBody } from "@/lib/floor/window-body";
+import { sharedReadCache } from "@/lib/floor/window-cache";
 
 // A unit's whole history in one place: the material lot and build it was printed in, the
 // wash batch and its masses, the furnace run and profile, its inspections, and every event of
@@ -220,4 +222,13 @@ export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitT
     inspections,
     timeline,
   };
+}
+
+/**
+ * A unit's trace as an encoded body, from the process-wide cache while the "shop" stamp holds
+ * (db/live/stamps.ts): an open unit page asks again after each change to anything it shows.
+ * The answer depends on the unit alone (not on who asks), so the unit is the whole key.
+ */
+export function unitTraceBody(db: Database, unitId: string, stamp: string): Promise<WindowBody> {
+  return sharedReadCache().get(`trace:${unitId.toLowerCase()}`, stamp, async () => WindowBody.fromJson(JSON.stringify(await loadUnitTrace(db, unitId))));
 }

@@ -17,7 +17,7 @@ export const SESSION_RENEW_SECONDS = 5 * 60;
 
 /**
  * The one rule for "is this cookie still a session", for every door that checks one
- * (app/_server/session.ts for pages, handlers and actions; app/_server/floor-window-direct.ts for
+ * (app/_server/session.ts for pages, handlers and actions; app/_server/shared-read-direct.ts for
  * the web server's direct floor answer). `sessionOpen` is whether the cookie's user_sessions row
  * is still open, read in the same query as the user (db/users/reads.ts sessionOpenSql); only
  * proxy.ts, whose check is optimistic, passes "unchecked".

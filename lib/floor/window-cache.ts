@@ -6,21 +6,43 @@
 
 import type { WindowBody } from "./window-body";
 
-type Entry<T> = { stamp: string; at: number; value: Promise<T> };
+type Entry<T> = { stamp: string; at: number; value: Promise<T>; refreshing?: boolean };
 
 export class WindowCache<T = string> {
   private entries = new Map<string, Entry<T>>();
 
+  /**
+   * refreshMs: for a value whose stamp still holds, past maxAgeMs (and up to refreshMs more) the
+   * old value is answered while one load of the new runs behind it, so that requests do not wait
+   * for a value that only aged (a changed stamp, or a clear, always waits for the new load).
+   */
   constructor(
     private readonly maxAgeMs = 2_000,
     private readonly maxEntries = 200,
     private readonly now: () => number = Date.now,
+    private readonly refreshMs = 0,
   ) {}
 
   async get(key: string, stamp: string, load: () => Promise<T>): Promise<T> {
     const hit = this.entries.get(key);
     const t = this.now();
     if (hit && hit.stamp === stamp && t - hit.at <= this.maxAgeMs) return hit.value;
+    if (hit && hit.stamp === stamp && t - hit.at <= this.maxAgeMs + this.refreshMs) {
+      if (!hit.refreshing) {
+        hit.refreshing = true;
+        const next = load();
+        next.then(
+          () => {
+            // Only if nothing replaced or cleared the entry meanwhile.
+            if (this.entries.get(key) === hit) this.entries.set(key, { stamp, at: t, value: next });
+          },
+          () => {
+            hit.refreshing = false;
+          },
+        );
+      }
+      return hit.value;
+    }
     const value = load();
     this.entries.set(key, { stamp, at: t, value });
     // A failed load is not kept: the next request tries again.
@@ -47,9 +69,18 @@ export class WindowCache<T = string> {
 // On globalThis: the web server's direct path (scripts/serve.ts) and the route handlers that
 // Next.js bundled separately run in one process and must share one cache, so that a booking
 // change clearing it is seen by both.
-const globalForCache = globalThis as unknown as { hearthFloorCache?: WindowCache<WindowBody> };
+const globalForCache = globalThis as unknown as { hearthFloorCache?: WindowCache<WindowBody>; hearthSharedReadCache?: WindowCache<WindowBody> };
 
 /** The process-wide cache of floor windows, as encoded response bodies. */
 export function floorWindowCache(): WindowCache<WindowBody> {
   return (globalForCache.hearthFloorCache ??= new WindowCache<WindowBody>());
+}
+
+/**
+ * The process-wide cache of the other shared reads that every open page asks for again after
+ * each change it hears of (the unscheduled builds, a unit's trace; app/_server/shared-reads.ts):
+ * keyed by the read and everything its answer depends on, cleared on every change announced.
+ */
+export function sharedReadCache(): WindowCache<WindowBody> {
+  return (globalForCache.hearthSharedReadCache ??= new WindowCache<WindowBody>(2_000, 1_000));
 }

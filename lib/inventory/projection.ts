@@ -94,3 +94,15 @@ export function reorderDecision(input: { first_below_reorder_day: string | null;
   if (!within && input.alerted) return "clear";
   return "none";
 }
+
+/**
+ * A material no lot was ever received for has no stock to fall below a reorder point: it is not
+ * tracked, and alone it is no reason to mail. Once a scheduled build within the horizon needs it,
+ * the shop has to hear once that there is nothing on hand (at whatever lead time: nothing was
+ * ever bought); the flag re-arms when no build needs it any more.
+ */
+export function noStockDecision(input: { first_need_day: string | null; alerted: boolean }): "alert" | "clear" | "none" {
+  if (input.first_need_day !== null && !input.alerted) return "alert";
+  if (input.first_need_day === null && input.alerted) return "clear";
+  return "none";
+}

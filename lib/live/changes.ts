@@ -13,6 +13,8 @@ export const changeSchema = z.object({
   id: z.string().uuid().optional(),
   v: z.number().int().optional(),
   unit: z.string().uuid().optional(),
+  /** A booking's state after the change (migration 202612041152): build, wash batch, furnace run. */
+  s: z.string().max(40).optional(),
 });
 export type Change = z.infer<typeof changeSchema>;
 
@@ -32,6 +34,27 @@ export const FLOOR_ENTITIES: ReadonlySet<ChangeEntity> = new Set(["build", "wash
 
 /** Changes to what the batching board shows (its cache must forget); a booked build is not one. */
 export const BOARD_ENTITIES: ReadonlySet<ChangeEntity> = new Set(["unit", "wash_batch", "furnace_run", "maintenance", "equipment"]);
+
+/**
+ * Whether a change may alter the units waiting for a wash (the board's list kept apart, db/batches/reads.ts):
+ * not a booked wash batch moving to another slot, and not a unit that is not yet printed (a unit
+ * is planned, then printing, then green; it never goes back), whose build was booked or moved.
+ * A change that does not say its state is taken to touch it.
+ */
+export function touchesWaitingWash(c: Change): boolean {
+  switch (c.e) {
+    case "wash_batch":
+      return c.s !== "draft" && c.s !== "scheduled";
+    case "unit":
+      return c.s !== "planned" && c.s !== "printing";
+    case "furnace_run":
+    case "material":
+    case "equipment":
+      return true;
+    default:
+      return false;
+  }
+}
 
 /**
  * Collects changes for a short window and hands them over as one group, one entry per row

@@ -331,6 +331,31 @@ export function feedstockReorderMail(data: ReorderMailData, recipient: MailRecip
   ]);
 }
 
+export type NoStockMailData = { material_code: string; material_name: string; first_build: string; first_day: string; first_day_g: number; builds: number; needed_g: number };
+
+/** A material the shop has never received a lot of, needed by scheduled builds: nothing to reorder from, so it says so. */
+export function feedstockNoStockMail(data: NoStockMailData, recipient: MailRecipient, ctx: MailContext): MailContent {
+  const subject = `No ${data.material_code} feedstock on hand: needed by build ${data.first_build} on ${data.first_day}`;
+  return render(subject, recipient, ctx, [
+    {
+      kind: "p",
+      text: `No lot of ${data.material_name} feedstock has ever been received, yet ${plural(data.builds, "scheduled build")} will print in it, the first (${data.first_build}) on ${data.first_day}. Receive a lot before then, or move the builds to a material on the shelf.`,
+    },
+    {
+      kind: "facts",
+      rows: [
+        ["Material", `${data.material_code} (${data.material_name})`],
+        ["On hand", "none (no lot received)"],
+        ["First build", `${data.first_build} on ${data.first_day}`],
+        ["Needed that day", kgText(data.first_day_g)],
+        ["Scheduled builds", String(data.builds)],
+        ["Needed in all", kgText(data.needed_g)],
+      ],
+    },
+    { kind: "link", label: "Open feedstock", href: link(ctx, "/inventory") },
+  ]);
+}
+
 export type BathMailData = { station: string; solvent: string; dissolved_g: number; limit_g: number; saturation: number };
 
 export function bathChangeDueMail(data: BathMailData, recipient: MailRecipient, ctx: MailContext): MailContent {

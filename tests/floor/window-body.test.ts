@@ -46,3 +46,24 @@ describe("WindowBody", () => {
     expect(body.encoded(true).bytes).toBe(first.bytes);
   });
 });
+
+describe("WindowBody entity tag", () => {
+  it("tags the bytes (weak: plain and gzip are one answer) and matches If-None-Match as RFC 9110 §13.1.2 says", () => {
+    const a = WindowBody.fromJson('{"builds":[1]}');
+    const b = WindowBody.fromJson('{"builds":[2]}');
+    expect(a.etag).toMatch(/^W\/"[A-Za-z0-9_-]{32}"$/);
+    expect(a.etag).toBe(WindowBody.fromJson('{"builds":[1]}').etag);
+    expect(a.etag).not.toBe(b.etag);
+    expect(a.encoded(true).headers.etag).toBe(a.etag);
+    expect(a.encoded(false).headers.etag).toBe(a.etag);
+    expect(a.encoded(false).headers["cache-control"]).toBe("private, no-cache");
+    expect(a.notModified(a.etag)).toBe(true);
+    expect(a.notModified(a.etag.slice(2))).toBe(true); // weak comparison ignores W/
+    expect(a.notModified(`${b.etag}, ${a.etag}`)).toBe(true);
+    expect(a.notModified("*")).toBe(true);
+    expect(a.notModified(b.etag)).toBe(false);
+    expect(a.notModified("")).toBe(false);
+    expect(a.notModified(undefined)).toBe(false);
+    expect(a.notModifiedHeaders).toEqual({ etag: a.etag, "cache-control": "private, no-cache", vary: "Accept-Encoding" });
+  });
+});

@@ -29,3 +29,43 @@ describe("WindowCache", () => {
     expect(cache.size).toBe(2);
   });
 });
+
+describe("WindowCache refreshing behind an aged value", () => {
+  it("answers the aged value while one reload runs, then the reloaded one; a moved stamp or a clear always waits for the new load", async () => {
+    let t = 0;
+    let loads = 0;
+    const cache = new WindowCache<string>(1000, 10, () => t, 1000);
+    let release: () => void = () => {};
+    const load = () => {
+      const n = ++loads;
+      return n === 2 ? new Promise<string>((r) => (release = () => r(`v${n}`))) : Promise.resolve(`v${n}`);
+    };
+    expect(await cache.get("w", "1", load)).toBe("v1");
+    t = 1500; // aged: v1 answered, one reload (v2) started behind it
+    expect(await cache.get("w", "1", load)).toBe("v1");
+    expect(await cache.get("w", "1", load)).toBe("v1");
+    expect(loads).toBe(2);
+    release();
+    await new Promise((r) => setTimeout(r, 0));
+    expect(await cache.get("w", "1", load)).toBe("v2");
+    expect(await cache.get("w", "2", load)).toBe("v3"); // the stamp moved: the new load
+    t = 5000; // past both limits: waits for the new load
+    expect(await cache.get("w", "2", load)).toBe("v4");
+    cache.clear();
+    expect(await cache.get("w", "2", load)).toBe("v5");
+  });
+
+  it("does not let a reload that finishes after a clear put its value back", async () => {
+    let t = 0;
+    const cache = new WindowCache<string>(1000, 10, () => t, 1000);
+    await cache.get("w", "1", async () => "old");
+    t = 1500;
+    let release: () => void = () => {};
+    expect(await cache.get("w", "1", () => new Promise<string>((r) => (release = () => r("aged reload"))))).toBe("old");
+    cache.clear();
+    expect(await cache.get("w", "1", async () => "after the change")).toBe("after the change");
+    release();
+    await new Promise((r) => setTimeout(r, 0));
+    expect(await cache.get("w", "1", async () => "never")).toBe("after the change");
+  });
+});

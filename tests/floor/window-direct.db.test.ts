@@ -8,13 +8,13 @@ import { sql } from "kysely";
 import { floorChangeStamp, floorViewerAndStamp, loadFloorJson } from "@/db/floor/reads";
 import { ROLES, type Role } from "@/lib/auth/permissions";
 import { SESSION_IDLE_SECONDS, SESSION_MAX_SECONDS, SESSION_RENEW_SECONDS } from "@/lib/auth/session-config";
-import { answerFloorWindow } from "@/app/_server/floor-window-direct";
+import { answerFloorWindow } from "@/app/_server/shared-read-direct";
 import { testDb } from "../helpers/db";
 import { api, DEMO, signIn } from "../helpers/session";
 import { hoursFromNow, makeDraftBuild, makePrinter, retirePrinters } from "./fixtures";
 import { rawRequest } from "../helpers/raw-request";
 
-// GET /api/floor answered by the web server itself (app/_server/floor-window-direct.ts), on the real test
+// GET /api/floor answered by the web server itself (app/_server/shared-read-direct.ts), on the real test
 // database: what it answers must be what the route handler would answer, and everything that is
 // not the plain signed-in case must be left to the route handler. An in-process server with a
 // fallback that only says "deferred" shows which requests the direct path takes; the running app
@@ -94,7 +94,7 @@ describe("the direct path answers the plain signed-in case", () => {
     const res = await direct(windowPath(from, to), { cookie: await fresh(user) });
     expect(res.status).toBe(200);
     expect(res.headers["content-type"]).toBe("application/json");
-    expect(res.headers["cache-control"]).toBe("no-store");
+    expect(res.headers["cache-control"]).toBe("private, no-cache");
     expect(res.headers.vary).toBe("Accept-Encoding");
     expect(res.headers["content-encoding"]).toBeUndefined();
     expect(Number(res.headers["content-length"])).toBe(res.bytes.length);

@@ -96,7 +96,7 @@ export async function openEventStream(url: string, headers: Record<string, strin
   return stream;
 }
 
-export type ChangeItem = { e: string; id?: string; v?: number; unit?: string };
+export type ChangeItem = { e: string; id?: string; v?: number; unit?: string; s?: string };
 
 /** The changes an event carries (empty for other kinds of event). */
 export function changesOf(e: StreamEvent): ChangeItem[] {

@@ -5,6 +5,7 @@ import { api, DEMO, signIn } from "../helpers/session";
 import { hoursFromNow, makeBuild, makeOrder, makePart, makePrinter, retirePrinters, uniq, unitsOf } from "../floor/fixtures";
 import { getSender } from "@/db/jobs/boss";
 import { checkStockAlerts } from "@/db/inventory/commands";
+import { estimateBuildDraws, projectStock } from "@/db/inventory/reads";
 import { partGreen } from "@/db/floor/reads";
 
 // Feedstock through the running app: lots received into quarantine, drawn by builds when they
@@ -235,6 +236,54 @@ describe("projection and reorder", () => {
     await checkStockAlerts(db, boss);
     rows = await sent();
     expect(rows).toHaveLength(2 * managers.length);
+  });
+});
+
+describe("the reorder mail", () => {
+  it("names the builds that would run short by their codes", async () => {
+    const m = await ownMaterial({ reorder_point_g: 100_000, lead_time_days: 10 });
+    const lot = await receive(m.id, { quantity_kg: 2 });
+    await release(lot.id);
+    const b = await scheduledBuild(m, { quantity: 2, startH: 48 });
+    // far less on the shelf than the build draws: it is short on its day
+    await db.updateTable("feedstock_lots").set({ remaining_g: 30 }).where("id", "=", lot.id).execute();
+    await checkStockAlerts(db, await getSender());
+    const rows = await db.selectFrom("notification_outbox").select(["text_body"]).where("kind", "=", "feedstock_reorder").where("subject_key", "like", `material:${m.id}:%`).execute();
+    expect(rows.length).toBeGreaterThan(0);
+    expect(rows[0].text_body).toContain(b.build.code);
+    expect(rows[0].text_body).not.toContain(b.build.id);
+  });
+});
+
+describe("a material never received", () => {
+  it("mails nothing while no build needs it, then once that there is no stock for the first build that does", async () => {
+    const m = await ownMaterial({ reorder_point_g: 100_000, lead_time_days: 10 });
+    const boss = await getSender();
+    const sent = () => db.selectFrom("notification_outbox").select(["recipient_email", "subject", "text_body"]).where("kind", "=", "feedstock_reorder").where("subject_key", "like", `material:${m.id}:%`).execute();
+    await checkStockAlerts(db, boss);
+    expect(await sent()).toHaveLength(0);
+    const b = await scheduledBuild(m, { quantity: 2, startH: 48 });
+    const { time_zone } = await projectStock(db, { days: 1 });
+    const day = new Intl.DateTimeFormat("en-CA", { timeZone: time_zone }).format(hoursFromNow(48));
+    await checkStockAlerts(db, boss);
+    await checkStockAlerts(db, boss);
+    const managers = await db.selectFrom("users").select("email").where("role", "=", "manager").where("active", "=", true).execute();
+    const rows = await sent();
+    expect(rows).toHaveLength(managers.length);
+    expect(rows[0].subject).toBe(`No ${m.code} feedstock on hand: needed by build ${b.build.code} on ${day}`);
+    expect(rows[0].text_body).toContain("No lot of");
+  });
+
+  it("projects the same draw per build as the build's own estimate (the one rule, from the database's sums)", async () => {
+    const m = await ownMaterial();
+    const b = await scheduledBuild(m, { quantity: 3, startH: 30 });
+    const est = (await estimateBuildDraws(db, { buildIds: [b.build.id] })).get(b.build.id)!;
+    expect(est.total_g).toBe(await expectedDrawG(b.part.id, 3, Number(m.green_density_g_cm3)));
+    const { materials } = await projectStock(db, { days: 5, materialId: m.id });
+    const drawn = materials[0].projection.days.filter((d) => d.builds.includes(b.build.code));
+    expect(drawn).toHaveLength(1);
+    expect(drawn[0].drawn_g).toBe(est.total_g);
+    expect(materials[0].projection.committed_g).toBe(est.total_g);
   });
 });
 

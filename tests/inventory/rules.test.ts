@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import { estimateDraw, estimateDrawOfTotal } from "@/lib/inventory/consumption";
 import { receiveLotSchema } from "@/lib/inventory/schemas";
 import { allocate, drawRefusal, fefo, type LotForDraw } from "@/lib/inventory/lots";
-import { dayRange, projectOnHand, reorderDecision } from "@/lib/inventory/projection";
+import { dayRange, noStockDecision, projectOnHand, reorderDecision } from "@/lib/inventory/projection";
 import { bathState, gasShortfalls, runGasLitres } from "@/lib/inventory/consumables";
 import { feedstockDensity } from "@/lib/process/scale-up";
 
@@ -108,6 +108,13 @@ describe("projected on hand", () => {
     expect(reorderDecision({ first_below_reorder_day: "2026-12-10", today: "2026-12-04", lead_time_days: 14, alerted: true })).toBe("none");
     expect(reorderDecision({ first_below_reorder_day: "2026-12-30", today: "2026-12-04", lead_time_days: 14, alerted: false })).toBe("none");
     expect(reorderDecision({ first_below_reorder_day: null, today: "2026-12-04", lead_time_days: 14, alerted: true })).toBe("clear");
+  });
+
+  it("mails nothing for a material never received while no build needs it, and once when one does", () => {
+    expect(noStockDecision({ first_need_day: null, alerted: false })).toBe("none");
+    expect(noStockDecision({ first_need_day: "2027-02-20", alerted: false })).toBe("alert");
+    expect(noStockDecision({ first_need_day: "2027-02-20", alerted: true })).toBe("none");
+    expect(noStockDecision({ first_need_day: null, alerted: true })).toBe("clear");
   });
 
   it("lists calendar days across a month end", () => {

@@ -2,7 +2,7 @@
 // event-stream framing (HTML Living Standard, "Server-sent events", event stream format) and
 // the replay log behind Last-Event-ID; and which of a page's queries a change refetches.
 import { describe, expect, it } from "vitest";
-import { ChangeBatcher, ReplayLog, parseChange, sseFrame, type Change } from "@/lib/live/changes";
+import { ChangeBatcher, ReplayLog, parseChange, sseFrame, touchesWaitingWash, type Change } from "@/lib/live/changes";
 import { queryHears } from "@/components/live/query-map";
 
 const A = "0b6f5f2e-8d7a-4c1e-9d2b-1f0e3a4b5c6d";
@@ -91,5 +91,39 @@ describe("queryHears", () => {
   it("a resync refetches every live query and nothing else", () => {
     expect(queryHears(["trace", B], null, null)).toBe(true);
     expect(queryHears(["users"], null, null)).toBe(false);
+  });
+});
+
+describe("the draft list hears builds that are, or were, drafts", () => {
+  const list = { builds: [{ id: A, code: "B-1" }] };
+  it("refetches for a new or changed draft and for a build leaving the list, not for a booked build's move", () => {
+    expect(parseChange(JSON.stringify({ e: "build", id: B, v: 2, s: "scheduled" }))).toEqual({ e: "build", id: B, v: 2, s: "scheduled" });
+    expect(queryHears(["unscheduled"], list, [{ e: "build", id: B, v: 1, s: "draft" }])).toBe(true); // joins the list
+    expect(queryHears(["unscheduled"], list, [{ e: "build", id: A, v: 2, s: "scheduled" }])).toBe(true); // leaves it
+    expect(queryHears(["unscheduled"], list, [{ e: "build", id: B, v: 7, s: "scheduled" }])).toBe(false); // a booked build moved
+    expect(queryHears(["unscheduled"], list, [{ e: "build", id: B, v: 7 }])).toBe(true); // no state said: as before
+    expect(queryHears(["unscheduled"], list, [{ e: "unit", id: B, v: 7 }])).toBe(false);
+    expect(queryHears(["unscheduled"], list, null)).toBe(true); // a resync
+    // The floor's window still hears every build change.
+    expect(queryHears(["floor", "a", "b"], null, [{ e: "build", id: B, v: 7, s: "scheduled" }])).toBe(true);
+  });
+});
+
+describe("touchesWaitingWash", () => {
+  it("keeps the board's waiting units for a wash batch's move and for units not yet printed, not for anything else", () => {
+    expect(touchesWaitingWash({ e: "wash_batch", id: A, v: 3, s: "scheduled" })).toBe(false);
+    expect(touchesWaitingWash({ e: "wash_batch", id: A, v: 2, s: "draft" })).toBe(false);
+    expect(touchesWaitingWash({ e: "wash_batch", id: A, v: 4, s: "cancelled" })).toBe(true);
+    expect(touchesWaitingWash({ e: "wash_batch", id: A, v: 4, s: "complete" })).toBe(true);
+    expect(touchesWaitingWash({ e: "wash_batch", id: A, v: 4 })).toBe(true);
+    expect(touchesWaitingWash({ e: "unit", id: A, v: 2, s: "planned" })).toBe(false);
+    expect(touchesWaitingWash({ e: "unit", id: A, v: 2, s: "printing" })).toBe(false);
+    expect(touchesWaitingWash({ e: "unit", id: A, v: 3, s: "green" })).toBe(true);
+    expect(touchesWaitingWash({ e: "unit", id: A, v: 3, s: "scrapped" })).toBe(true);
+    expect(touchesWaitingWash({ e: "unit", id: A, v: 3 })).toBe(true);
+    expect(touchesWaitingWash({ e: "furnace_run", id: A, v: 3, s: "scheduled" })).toBe(true);
+    expect(touchesWaitingWash({ e: "equipment" })).toBe(true);
+    expect(touchesWaitingWash({ e: "build", id: A, v: 3, s: "scheduled" })).toBe(false);
+    expect(touchesWaitingWash({ e: "inspection", id: A, unit: B })).toBe(false);
   });
 });

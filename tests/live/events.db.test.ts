@@ -71,9 +71,11 @@ describe("GET /api/events", () => {
     // Within a second of the change being committed (the API's answer comes after the commit).
     expect(e.at - answered).toBeLessThan(1_000);
     expect(e.at - sent).toBeLessThan(1_000 + (answered - sent));
-    // The units booked with it are announced in the same group, ids and versions only.
+    // The units booked with it are announced in the same group, ids and versions only (and a
+    // build's state, migration 202612041152).
     const items = changesOf(e);
-    expect(items.every((c) => Object.keys(c).every((k) => ["e", "id", "v", "unit"].includes(k)))).toBe(true);
+    expect(items.every((c) => Object.keys(c).every((k) => ["e", "id", "v", "unit", "s"].includes(k)))).toBe(true);
+    expect(items.find((c) => c.id === build.id)).toEqual({ e: "build", id: build.id, v: version, s: "scheduled" });
     expect(e.data.length).toBeLessThan(8_000);
   });
 
@@ -111,7 +113,7 @@ describe("GET /api/events", () => {
       boss = await startSender(process.env.DATABASE_URL!);
       await sendJob(db, boss, { entity: "build", id: build.id, version: row.version, due_at: ends.toISOString() });
       const e = await s.waitFor(names("build", build.id, row.version + 1), 20_000);
-      expect(changesOf(e).find((c) => c.id === build.id)).toEqual({ e: "build", id: build.id, v: row.version + 1 });
+      expect(changesOf(e).find((c) => c.id === build.id)).toEqual({ e: "build", id: build.id, v: row.version + 1, s: "complete" });
       const after = await db.selectFrom("builds").select(["state", "version"]).where("id", "=", build.id).executeTakeFirstOrThrow();
       expect(after).toEqual({ state: "complete", version: row.version + 1 });
     } finally {

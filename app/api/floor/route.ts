@@ -4,14 +4,14 @@ import { floorChangeStamp, floorWindowBody } from "@/db/floor/reads";
 import { SESSION_COOKIE, forbidden, renewIfDue, requireUser, sessionOptions } from "@/app/_server/session";
 import { currentBearer } from "@/app/_server/api-token-auth";
 import { toErrorResponse } from "@/app/_server/errors";
-import { cachedBody } from "@/app/_server/cached-body";
+import { sharedReadResponse } from "@/app/_server/cached-body";
 import { FLOOR_PERMISSION, authorizeFloorRead } from "@/app/_server/floor-access";
 import { AppError } from "@/lib/errors";
 import { floorWindowSchema } from "@/lib/floor/schemas";
 import { searchParams } from "@/app/api/builds/_helpers";
 
 // GET /api/floor?from&to – lanes (printers, wash stations, furnaces), bookings and maintenance in the visible window (every role)
-// The web server answers the plain signed-in case itself (app/_server/floor-window-direct.ts) from the
+// The web server answers the plain signed-in case itself (app/_server/shared-read-direct.ts) from the
 // same cache and with the same rule (app/_server/floor-access.ts); this handler answers everything,
 // including the refusals and the renewal of a session's idle lifetime.
 export async function GET(req: Request) {
@@ -33,9 +33,7 @@ export async function GET(req: Request) {
     const w = floorWindowSchema.parse(searchParams(req));
     // Everyone on the floor asks for the same few windows: one load serves them until anything on
     // the floor changes (the stamp moves, or the live listener hears of it) or two seconds pass.
-    // Plain bytes: Next.js compresses a handler's response itself (and would do it twice).
-    const { bytes, headers } = (await floorWindowBody(db, w, stamp)).encoded(false);
-    return new Response(cachedBody(bytes), { headers });
+    return sharedReadResponse(req, await floorWindowBody(db, w, stamp));
   } catch (err) {
     return toErrorResponse(err);
   }
