@@ -1,10 +1,8 @@
 import { getDb } from "@/db/client";
 import { getFileOrThrow } from "@/db/files/reads";
 import { requireUser } from "@/app/_server/session";
-import { AppError } from "@/lib/errors";
 import { toErrorResponse } from "@/app/_server/errors";
-import { openObject, type OpenedObject } from "@/adapters/storage/s3";
-import { DECLARED_LENGTH_HEADER } from "@/lib/http/declared-length";
+import { storedFileResponse } from "@/app/_server/stored-file";
 import { readId, type IdContext } from "@/app/api/builds/_helpers";
 
 // GET /api/files/[id]/content – the stored bytes (the 3-D preview reads the STL through this) (every role).
@@ -13,19 +11,7 @@ export async function GET(req: Request, ctx: IdContext) {
   try {
     await requireUser("shop:read");
     const f = await getFileOrThrow(getDb(), await readId(ctx, "File"));
-    let obj: OpenedObject;
-    try {
-      obj = await openObject(f.bucket, f.object_key, req.signal);
-    } catch {
-      throw new AppError("unavailable", "File storage did not return the file; try again in a moment.");
-    }
-    const headers: Record<string, string> = {
-      "content-type": f.content_type,
-      "content-disposition": `inline; filename="${f.filename.replace(/[^\w.-]/g, "_")}"`,
-      "cache-control": "private, max-age=3600, immutable",
-    };
-    if (obj.length !== undefined) headers[DECLARED_LENGTH_HEADER] = String(obj.length);
-    return new Response(obj.body, { headers });
+    return await storedFileResponse(req, f, { what: "file", cache: "private, max-age=3600, immutable" });
   } catch (err) {
     return toErrorResponse(err);
   }

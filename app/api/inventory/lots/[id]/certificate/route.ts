@@ -1,5 +1,5 @@
 import { randomUUID } from "node:crypto";
-import { GetObjectCommand, PutObjectCommand } from "@aws-sdk/client-s3";
+import { PutObjectCommand } from "@aws-sdk/client-s3";
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { attachCertificate } from "@/db/inventory/commands";
@@ -7,6 +7,7 @@ import { findLotCertificate, getLotOrThrow } from "@/db/inventory/reads";
 import { requireUser } from "@/app/_server/session";
 import { toErrorResponse } from "@/app/_server/errors";
 import { spoolUpload, type SpooledUpload } from "@/app/_server/spool-upload";
+import { storedFileResponse } from "@/app/_server/stored-file";
 import { readId, type IdContext } from "@/app/api/builds/_helpers";
 import { deleteObjectQuietly, getS3 } from "@/adapters/storage/s3";
 import { getEnv } from "@/lib/env";
@@ -27,29 +28,13 @@ function decodedName(raw: string | null): string {
 }
 
 // GET /api/inventory/lots/[id]/certificate – the lot's certificate of analysis, streamed from object storage (every role)
-export async function GET(_req: Request, ctx: IdContext) {
+export async function GET(req: Request, ctx: IdContext) {
   try {
     await requireUser("shop:read");
     const id = await readId(ctx, "Feedstock lot");
     const file = await findLotCertificate(getDb(), id);
     if (!file) throw new AppError("not_found", "No certificate of analysis is attached to this lot.");
-    let body: ReadableStream;
-    try {
-      const obj = await getS3().send(new GetObjectCommand({ Bucket: file.bucket, Key: file.object_key }));
-      if (!obj.Body) throw new Error("empty body");
-      body = obj.Body.transformToWebStream();
-    } catch {
-      throw new AppError("unavailable", "File storage did not return the certificate; try again in a moment.");
-    }
-    return new Response(body, {
-      headers: {
-        "content-type": file.content_type,
-        "content-length": String(file.size_bytes),
-        "content-disposition": `inline; filename="${safeFilename(file.filename)}"`,
-        "x-content-type-options": "nosniff",
-        "cache-control": "private, max-age=3600",
-      },
-    });
+    return await storedFileResponse(req, file, { what: "certificate", cache: "private, max-age=3600" });
   } catch (err) {
     return toErrorResponse(err);
   }
