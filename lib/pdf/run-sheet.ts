@@ -4,7 +4,7 @@ import { cautionsFor, CAUTION_DEFERENCE } from "@/lib/safety/cautions";
 import { cToF } from "@/lib/units";
 import { CLAY, INK, MUTED, OXIDE, LINE, pageFlow, type Flow } from "./page-flow";
 import type { Paper } from "./paper";
-import { embedShopFonts, fitText, wrapText, type FontBytes } from "./shop-fonts";
+import { codeLines, embedShopFonts, fitText, wrapText, type FontBytes } from "./shop-fonts";
 
 // The furnace-run sheet: what goes on the furnace's clipboard for one run. The run, its furnace
 // and sinter profile, the trays with every unit on them, the load against the furnace's limit,
@@ -110,7 +110,7 @@ export async function runSheetPdf(input: RunSheetInput, fontBytes: FontBytes): P
 
   // Trays and units
   f.y -= 10;
-  const cols = { serial: m, part: m + 95, order: m + 0.48 * inner, material: m + 0.74 * inner, mass: f.width - m };
+  const cols = { serial: m, part: m + 0.24 * inner, order: m + 0.48 * inner, material: m + 0.74 * inner, mass: f.width - m };
   const colHead = () => {
     f.line(f.y + 11, 0.6);
     f.text("Unit", cols.serial, f.y, 8, bold, MUTED);
@@ -134,11 +134,14 @@ export async function runSheetPdf(input: RunSheetInput, fontBytes: FontBytes): P
     f.y -= 16;
     colHead();
     for (const u of g.units) {
-      if (f.y - 26 < f.margin + 18) {
-        f.need(26 + 30);
+      // The unit code prints whole (smaller, or over more lines, when it is long): it is what the operator matches.
+      const code = codeLines(bold, u.serial, cols.part - cols.serial - 6, 9, 7);
+      const rowH = Math.max(24, 4 + code.lines.length * (code.size + 2) + 6);
+      if (f.y - rowH - 2 < f.margin + 18) {
+        f.need(rowH + 32);
         colHead();
       }
-      f.text(fitText(bold, u.serial, 9, cols.part - cols.serial - 6), cols.serial, f.y, 9, bold);
+      code.lines.forEach((l, i) => f.text(l, cols.serial, f.y - i * (code.size + 2), code.size, bold));
       f.text(fitText(regular, `${u.part_number} / ${u.revision}`, 8, cols.order - cols.part - 6), cols.part, f.y, 8);
       f.text(fitText(regular, u.part_name, 8, cols.order - cols.part - 6), cols.part, f.y - 10, 8, regular, MUTED);
       f.text(fitText(regular, u.order_code, 8, cols.material - cols.order - 6), cols.order, f.y, 8);
@@ -147,8 +150,8 @@ export async function runSheetPdf(input: RunSheetInput, fontBytes: FontBytes): P
       f.text(fitText(regular, u.material_name, 8, cols.mass - 60 - cols.material), cols.material, f.y - 10, 8, regular, MUTED);
       const gm = u.green_mass_g === null ? "not weighed" : grams(u.green_mass_g);
       f.text(gm, cols.mass - regular.widthOfTextAtSize(gm, 8), f.y, 8);
-      f.line(f.y - 14, 0.3);
-      f.y -= 24;
+      f.line(f.y - rowH + 10, 0.3);
+      f.y -= rowH;
     }
     f.y -= 6;
   }

@@ -60,3 +60,28 @@ export function wrapText(font: PDFFont, text: string, size: number, width: numbe
   if (line) lines.push(line);
   return lines;
 }
+
+/**
+ * A code (unit serial, run code) that must print whole, never cut: the largest size from maxSize
+ * down to minSize at which it fits on one line, else at minSize broken over lines, after a dash
+ * where one falls near the end of the line.
+ */
+export function codeLines(font: PDFFont, code: string, width: number, maxSize: number, minSize: number): { size: number; lines: string[] } {
+  const t = printable(font, code);
+  for (let size = maxSize; size >= minSize; size -= 0.5) {
+    if (font.widthOfTextAtSize(t, size) <= width) return { size, lines: [t] };
+  }
+  const lines: string[] = [];
+  let rest = [...t];
+  while (rest.length) {
+    let n = rest.length;
+    while (n > 1 && font.widthOfTextAtSize(rest.slice(0, n).join(""), minSize) > width) n--;
+    if (n < rest.length) {
+      const dash = rest.slice(0, n).lastIndexOf("-");
+      if (dash >= n / 2) n = dash + 1;
+    }
+    lines.push(rest.slice(0, n).join(""));
+    rest = rest.slice(n);
+  }
+  return { size: minSize, lines };
+}

@@ -2,7 +2,7 @@ import { PDFDocument } from "pdf-lib";
 import { drawQr } from "@/lib/builds/traveler";
 import { LINE, INK, MUTED, CLAY } from "./page-flow";
 import { MM, PAPER_POINTS, type Paper } from "./paper";
-import { embedShopFonts, fitText, type FontBytes } from "./shop-fonts";
+import { codeLines, embedShopFonts, fitText, type FontBytes } from "./shop-fonts";
 
 // Unit labels: a sheet of labels, one per unit, each with the QR code that opens the unit's page
 // (drawn by the traveler's own drawQr), the unit code in large type, the part, the customer and
@@ -63,13 +63,17 @@ export async function unitLabelsPdf(input: UnitLabelsInput, fontBytes: FontBytes
     drawQr(page, l.url, g.x + pad, g.y + pad, qr);
     const x = g.x + 2 * pad + qr;
     const textW = g.x + g.w - pad - x;
-    let y = g.y + g.h - pad - 14;
-    // The unit code as large as fits (18 pt down to 11 pt), so it reads from arm's length.
-    let codeSize = 18;
-    while (codeSize > 11 && bold.widthOfTextAtSize(l.serial, codeSize) > textW) codeSize -= 1;
-    page.drawText(fitText(bold, l.serial, codeSize, textW), { x, y, size: codeSize, font: bold, color: INK });
-    y -= 13;
+    // The unit code as large as fits (18 pt down to 10 pt, so it reads from arm's length), whole:
+    // a long one goes over two lines rather than lose characters.
+    const code = codeLines(bold, l.serial, textW, 18, 10);
+    let y = g.y + g.h - pad - code.size * 0.8;
+    for (const cl of code.lines) {
+      page.drawText(cl, { x, y, size: code.size, font: bold, color: INK });
+      y -= code.size + 1;
+    }
+    y -= 3;
     const line = (t: string, sz: number, f = regular, color = INK) => {
+      if (y < g.y + pad) return; // a code over several lines leaves less room: the last lines give way
       page.drawText(fitText(f, t, sz, textW), { x, y, size: sz, font: f, color });
       y -= sz + 3;
     };

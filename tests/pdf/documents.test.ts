@@ -141,6 +141,18 @@ describe("unit labels", () => {
     }
   });
 
+  it("print a long unit code whole, smaller or over two lines, never cut", async () => {
+    const long = "WO-2401-P-1234567890-LONGPART-REV-B-0001";
+    const bytes = await unitLabelsPdf({ title: "t", paper: "a4", printed_at: new Date(), labels: [{ ...labels[0], serial: long }] }, fonts);
+    const { pages } = await readPdf(bytes);
+    expect(pages[0].items.join("")).toContain(long);
+    expect(pages[0].items.some((t) => t.includes("…"))).toBe(false);
+    const input = sheetInput("a4");
+    input.units = [{ ...units[0], serial: long }];
+    const sheet = await readPdf(await runSheetPdf(input, fonts));
+    expect(sheet.pages[0].items.join("")).toContain(long);
+  });
+
   it("run onto a second page past 14 labels on A4 (2 × 7) and 12 on Letter (2 × 6)", async () => {
     expect(labelGrid("a4", 15).map((g) => g.page)).toEqual([...Array(14).fill(0), 1]);
     expect(labelGrid("letter", 13).map((g) => g.page)).toEqual([...Array(12).fill(0), 1]);
