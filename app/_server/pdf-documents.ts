@@ -36,7 +36,6 @@ export function pdfResponse(bytes: Uint8Array, ...nameParts: string[]): Response
       "content-type": "application/pdf",
       "content-disposition": `inline; filename="${pdfFileName(...nameParts)}"`,
       "cache-control": "no-store",
-      "x-content-type-options": "nosniff",
     },
   });
 }
