@@ -355,6 +355,12 @@ export interface NotificationOutbox {
   text_body: string;
 }
 
+export interface OrderLateNotices {
+  due_at: Timestamp;
+  noticed_at: Generated<Timestamp>;
+  order_id: string;
+}
+
 export interface Orders {
   code: string;
   created_at: Generated<Timestamp>;
@@ -528,6 +534,7 @@ export interface QuoteSettings {
 }
 
 export interface ShopSettings {
+  activity_retention_days: number | null;
   at_risk_margin_minutes: Generated<number>;
   drying_minutes: Generated<number>;
   finishing_lead_minutes: Generated<number>;
@@ -756,6 +763,7 @@ export interface DB {
   material_quote_rates: MaterialQuoteRates;
   materials: Materials;
   notification_outbox: NotificationOutbox;
+  order_late_notices: OrderLateNotices;
   orders: Orders;
   outbox_attachments: OutboxAttachments;
   parts: Parts;

@@ -26,6 +26,10 @@ export type WorkerConfig = {
   orphanSweepSeconds: number;
   /** An object younger than this may belong to an upload still in progress. */
   orphanMinAgeSeconds: number;
+  /** Seconds between passes that look for orders that became late (the order.late event). */
+  lateOrderSeconds: number;
+  /** Seconds between passes that prune the activity log past its retention (daily). */
+  activityPruneSeconds: number;
   quiet: boolean;
 };
 
@@ -41,6 +45,8 @@ export function workerConfig(): WorkerConfig {
     sweepLimit: Math.round(num("HEARTH_SWEEP_LIMIT", 500, 1)),
     orphanSweepSeconds: num("HEARTH_ORPHAN_SWEEP_SECONDS", 3600, 1),
     orphanMinAgeSeconds: num("HEARTH_ORPHAN_MIN_AGE_SECONDS", 3600, 0),
+    lateOrderSeconds: num("HEARTH_LATE_ORDER_SECONDS", 60, 0.2),
+    activityPruneSeconds: num("HEARTH_ACTIVITY_PRUNE_SECONDS", 86_400, 1),
     quiet: process.env.HEARTH_WORKER_QUIET === "1",
   };
 }

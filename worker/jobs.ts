@@ -9,6 +9,8 @@ import { runSweep } from "./sweep";
 import { deliverDueWebhooks, webhookConfig } from "./webhooks";
 import { logJobs } from "./job-log";
 import { sweepOrphanObjects } from "./orphans";
+import { recordLateOrders } from "@/db/orders/late";
+import { pruneActivity } from "@/db/activity/commands";
 
 /** Runs `fn` every `seconds`, never two at once; resolves the returned stop() when the last run ends. */
 function every(seconds: number, name: string, fn: () => Promise<void>) {
@@ -68,10 +70,18 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
     const r = await sweepOrphanObjects(db, { minAgeSeconds: cfg.orphanMinAgeSeconds });
     if (r.deleted.length) console.log(`[worker] orphan sweep: deleted ${r.deleted.length} of ${r.listed} stored objects that no file names`);
   });
+  const stopLate = every(cfg.lateOrderSeconds, "late orders", async () => {
+    const r = await recordLateOrders(db);
+    if (!cfg.quiet && r.noticed.length) console.log(`[worker] late orders: ${r.noticed.length} became late`);
+  });
+  const stopPrune = every(cfg.activityPruneSeconds, "activity retention", async () => {
+    const r = await pruneActivity(db);
+    if (r.deleted) console.log(`[worker] activity retention: deleted ${r.deleted} events older than ${r.retention_days} days`);
+  });
   console.log(
     `[worker] sweep every ${cfg.sweepSeconds} s, outbox every ${cfg.mailPumpSeconds} s, polling ${cfg.pollSeconds} s, batch ${cfg.batchSize} × ${cfg.concurrency}`,
   );
   return async () => {
-    await Promise.all([stopSweep(), stopPump(), stopWebhooks(), stopOrphans()]);
+    await Promise.all([stopSweep(), stopPump(), stopWebhooks(), stopOrphans(), stopLate(), stopPrune()]);
   };
 }

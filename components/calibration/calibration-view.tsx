@@ -67,6 +67,16 @@ function Inner({ canApply, timeZone, initialMaterialId }: CalibrationViewProps) 
           </button>
         ))}
       </div>
+      {materialId ? (
+        <div className="flex flex-wrap gap-x-4 text-sm">
+          <a href={`/api/calibration/export?material_id=${materialId}`} download className="inline-flex min-h-11 items-center font-semibold text-clay-700 hover:underline">
+            Download the calibration data (CSV)
+          </a>
+          <a href={`/api/inspections/export?material_id=${materialId}`} download className="inline-flex min-h-11 items-center font-semibold text-clay-700 hover:underline">
+            Download its inspections (CSV)
+          </a>
+        </div>
+      ) : null}
       {materialId ? <MaterialPanel key={materialId} materialId={materialId} canApply={canApply} timeZone={timeZone} /> : <p className="text-sm text-soot-500">No materials are set up.</p>}
     </div>
   );

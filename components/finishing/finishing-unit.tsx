@@ -125,7 +125,14 @@ function Inner({ unitId, units, timeZone, canWrite, canInspect }: FinishingUnitP
         ) : null}
 
         <section aria-label="Inspections">
-          <h3 className="mb-2 font-display text-lg font-semibold text-soot-900">Inspections</h3>
+          <div className="mb-2 flex flex-wrap items-center justify-between gap-2">
+            <h3 className="font-display text-lg font-semibold text-soot-900">Inspections</h3>
+            {inspections.length ? (
+              <a href={`/api/inspections/export?unit_id=${unit.id}`} download className="inline-flex min-h-11 items-center text-sm font-semibold text-clay-700 hover:underline">
+                Download CSV
+              </a>
+            ) : null}
+          </div>
           <InspectionList inspections={inspections} units={units} timeZone={timeZone} canAttach={canInspect} onChanged={() => qc.invalidateQueries({ queryKey: key })} />
         </section>
       </div>

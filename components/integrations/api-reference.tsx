@@ -122,7 +122,7 @@ function Operation({ op }: { op: ReferenceOperation }) {
   const query = op.parameters.filter((p) => p.in === "query");
   return (
     <details className="group rounded-md border border-soot-200 bg-white" id={op.operationId}>
-      <summary className="flex cursor-pointer flex-wrap items-baseline gap-x-3 gap-y-1 px-3 py-2 focus-visible:outline focus-visible:outline-2 focus-visible:outline-clay-700">
+      <summary className="flex min-h-11 cursor-pointer flex-wrap items-baseline gap-x-3 gap-y-1 px-3 py-2.5 focus-visible:outline focus-visible:outline-2 focus-visible:outline-clay-700">
         <span className={`inline-block min-w-16 rounded px-1.5 py-0.5 text-center font-mono text-xs font-semibold ${METHOD_TONE[op.method] ?? ""}`}>{op.method}</span>
         <code className="break-all font-mono text-sm text-soot-900">{op.path}</code>
         <span className="text-sm text-soot-600">{op.summary}</span>
@@ -165,11 +165,11 @@ export function ApiReference({ tags, webhooks }: { tags: ReferenceTag[]; webhook
     <div className="space-y-8">
       <nav aria-label="Resources" className="flex flex-wrap gap-2">
         {tags.map((t) => (
-          <a key={t.name} href={`#tag-${t.name}`} className="rounded border border-soot-200 bg-white px-2 py-1 text-sm text-soot-800 hover:border-clay-700">
+          <a key={t.name} href={`#tag-${t.name}`} className="inline-flex min-h-11 items-center rounded border border-soot-200 bg-white px-3 text-sm text-soot-800 hover:border-clay-700">
             {t.name}
           </a>
         ))}
-        <a href="#webhooks" className="rounded border border-soot-200 bg-white px-2 py-1 text-sm text-soot-800 hover:border-clay-700">
+        <a href="#webhooks" className="inline-flex min-h-11 items-center rounded border border-soot-200 bg-white px-3 text-sm text-soot-800 hover:border-clay-700">
           webhooks
         </a>
       </nav>

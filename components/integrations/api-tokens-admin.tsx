@@ -3,33 +3,19 @@
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { Notice } from "@/components/ui/notice";
+import type { ApiTokenRow } from "@/lib/auth/api-scopes";
+import { AdminRecordRow, RowButton, when } from "./admin-record";
 
-export type ApiTokenListItem = {
-  id: string;
-  name: string;
-  token_hint: string;
-  scopes: string[];
-  created_at: string;
-  created_by_name: string;
-  expires_at: string | null;
-  revoked_at: string | null;
-  last_used_at: string | null;
-  last_used_from: string | null;
-  rate_limit_per_minute: number;
-  status: "active" | "expired" | "revoked";
-};
 
 type Scope = { name: string; label: string; hint: string };
 
-const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString(undefined, { dateStyle: "medium", timeStyle: "short" }) : "—");
-
-const STATUS_TONE: Record<ApiTokenListItem["status"], string> = {
+const STATUS_TONE: Record<ApiTokenRow["status"], string> = {
   active: "bg-verdigris-100 text-verdigris-700",
   expired: "bg-brass-100 text-brass-600",
   revoked: "bg-soot-100 text-soot-600",
 };
 
-export function ApiTokensAdmin({ tokens, scopes }: { tokens: ApiTokenListItem[]; scopes: Scope[] }) {
+export function ApiTokensAdmin({ tokens, scopes }: { tokens: ApiTokenRow[]; scopes: Scope[] }) {
   const router = useRouter();
   const [name, setName] = useState("");
   const [picked, setPicked] = useState<string[]>(["shop:read"]);
@@ -63,7 +49,7 @@ export function ApiTokensAdmin({ tokens, scopes }: { tokens: ApiTokenListItem[];
     router.refresh();
   }
 
-  async function revoke(t: ApiTokenListItem) {
+  async function revoke(t: ApiTokenRow) {
     if (!window.confirm(`Revoke "${t.name}"? Programs using it stop working at once.`)) return;
     const res = await fetch(`/api/api-tokens/${t.id}`, { method: "DELETE" });
     const body = await res.json().catch(() => ({}));
@@ -112,7 +98,7 @@ export function ApiTokensAdmin({ tokens, scopes }: { tokens: ApiTokenListItem[];
               <label key={s.name} className="flex min-h-11 items-start gap-2 rounded-md border border-soot-200 p-2.5 text-sm">
                 <input
                   type="checkbox"
-                  className="mt-0.5 h-4 w-4"
+                  className="mt-0.5 h-4 w-4 shrink-0"
                   checked={picked.includes(s.name)}
                   onChange={(e) => setPicked((p) => (e.target.checked ? [...p, s.name] : p.filter((x) => x !== s.name)))}
                 />
@@ -135,18 +121,17 @@ export function ApiTokensAdmin({ tokens, scopes }: { tokens: ApiTokenListItem[];
         {tokens.length === 0 ? <p className="mt-2 text-sm text-soot-600">No tokens yet.</p> : null}
         <ul className="mt-2 space-y-3">
           {tokens.map((t) => (
-            <li key={t.id} className="rounded-card bg-white p-4 shadow-card" data-testid="api-token">
-              <div className="flex flex-wrap items-baseline justify-between gap-2">
-                <div>
+            <AdminRecordRow
+              key={t.id}
+              testId="api-token"
+              title={
+                <>
                   <span className="font-semibold text-soot-900">{t.name}</span> <code className="text-xs text-soot-500">{t.token_hint}</code>{" "}
                   <span className={`rounded px-1.5 py-0.5 text-xs font-semibold ${STATUS_TONE[t.status]}`}>{t.status}</span>
-                </div>
-                {t.status === "active" ? (
-                  <button type="button" onClick={() => revoke(t)} className="min-h-11 rounded-md border border-oxide-500/40 px-3 text-sm font-semibold text-oxide-700 hover:bg-oxide-100">
-                    Revoke
-                  </button>
-                ) : null}
-              </div>
+                </>
+              }
+              actions={t.status === "active" ? <RowButton tone="danger" onClick={() => revoke(t)}>Revoke</RowButton> : null}
+            >
               <dl className="mt-2 grid grid-cols-1 gap-x-4 gap-y-1 text-xs text-soot-600 sm:grid-cols-2 lg:grid-cols-3">
                 <div><dt className="inline font-medium">Scopes: </dt><dd className="inline">{t.scopes.join(", ")}</dd></div>
                 <div><dt className="inline font-medium">Created: </dt><dd className="inline">{when(t.created_at)} by {t.created_by_name}</dd></div>
@@ -155,7 +140,7 @@ export function ApiTokensAdmin({ tokens, scopes }: { tokens: ApiTokenListItem[];
                 <div><dt className="inline font-medium">Limit: </dt><dd className="inline tabular">{t.rate_limit_per_minute} requests/min</dd></div>
                 {t.revoked_at ? <div><dt className="inline font-medium">Revoked: </dt><dd className="inline">{when(t.revoked_at)}</dd></div> : null}
               </dl>
-            </li>
+            </AdminRecordRow>
           ))}
         </ul>
       </section>

@@ -4,11 +4,10 @@ import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { Notice } from "@/components/ui/notice";
 import { ScrollRegion } from "@/components/ui/scroll-region";
+import { AdminRecordRow, RowButton, when } from "./admin-record";
 
 type Endpoint = { id: string; url: string; description: string; events: string[]; active: boolean; paused_at: string | null; failing_since: string | null; version: number; waiting: number; failed: number };
 type Delivery = { id: string; endpoint_id: string; event_id: string; type: string; state: string; attempts: number; last_status: number | null; last_error: string | null; created_at: string; delivered_at: string | null };
-
-const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString(undefined, { dateStyle: "medium", timeStyle: "short" }) : "—");
 
 export function WebhooksAdmin({ endpoints, deliveries, eventTypes }: { endpoints: Endpoint[]; deliveries: Delivery[]; eventTypes: string[] }) {
   const router = useRouter();
@@ -97,28 +96,29 @@ export function WebhooksAdmin({ endpoints, deliveries, eventTypes }: { endpoints
         {endpoints.length === 0 ? <p className="mt-2 text-sm text-soot-600">No endpoints yet.</p> : null}
         <ul className="mt-2 space-y-3">
           {endpoints.map((ep) => (
-            <li key={ep.id} className="rounded-card bg-white p-4 shadow-card">
-              <div className="flex flex-wrap items-baseline justify-between gap-2">
-                <div className="min-w-0">
+            <AdminRecordRow
+              key={ep.id}
+              testId="webhook-endpoint"
+              title={
+                <>
                   <code className="break-all text-sm text-soot-900">{ep.url}</code>{" "}
                   <span className="text-xs font-semibold text-soot-600">{ep.paused_at ? `paused ${when(ep.paused_at)}` : ep.active ? "active" : "off"}</span>
                   {ep.description ? <p className="text-xs text-soot-600">{ep.description}</p> : null}
-                </div>
-                <div className="flex gap-2">
-                  {ep.paused_at ? (
-                    <button type="button" className="min-h-11 rounded-md border border-soot-200 px-3 text-sm font-semibold" onClick={() => act("Resumed.", `/api/webhooks/${ep.id}`, "PATCH", { version: ep.version, resume: true })}>
-                      Resume
-                    </button>
-                  ) : null}
-                  <button type="button" className="min-h-11 rounded-md border border-soot-200 px-3 text-sm font-semibold" onClick={() => act(ep.active ? "Switched off." : "Switched on.", `/api/webhooks/${ep.id}`, "PATCH", { version: ep.version, active: !ep.active })}>
+                </>
+              }
+              actions={
+                <>
+                  {ep.paused_at ? <RowButton onClick={() => act("Resumed.", `/api/webhooks/${ep.id}`, "PATCH", { version: ep.version, resume: true })}>Resume</RowButton> : null}
+                  <RowButton onClick={() => act(ep.active ? "Switched off." : "Switched on.", `/api/webhooks/${ep.id}`, "PATCH", { version: ep.version, active: !ep.active })}>
                     {ep.active ? "Switch off" : "Switch on"}
-                  </button>
-                </div>
-              </div>
+                  </RowButton>
+                </>
+              }
+            >
               <p className="mt-1 text-xs text-soot-600">
                 {ep.events.join(", ")} · {ep.waiting} waiting · {ep.failed} given up{ep.failing_since ? ` · failing since ${when(ep.failing_since)}` : ""}
               </p>
-            </li>
+            </AdminRecordRow>
           ))}
         </ul>
       </section>

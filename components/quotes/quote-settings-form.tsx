@@ -78,7 +78,7 @@ export function QuoteSettingsForm() {
       setMsg({ ok: false, text: err instanceof Error ? err.message : String(err) });
     }
   }
-  const input = "w-full rounded-md border border-soot-300 px-2 py-2 text-sm";
+  const input = "min-h-11 w-full rounded-md border border-soot-300 px-2 py-2 text-sm";
   const own = (v: number | null) => (v === null ? "" : String(v));
   return (
     <div className="space-y-6 px-4 py-6 sm:px-8">
@@ -89,8 +89,8 @@ export function QuoteSettingsForm() {
         <div className="mt-3 grid gap-3 sm:grid-cols-2 lg:grid-cols-3">
           {FIELDS.map(([k, label]) => (
             <label key={k} className="block text-sm">
-              <span className="block text-2xs text-soot-500">{label}</span>
-              <input name={k} defaultValue={String(s[k])} className={input} aria-invalid={!!fieldErrors[k]} />
+              <span className="block text-xs text-soot-600">{label}</span>
+              <input name={k} defaultValue={String(s[k])} inputMode={k === "currency" ? "text" : "decimal"} className={input} aria-invalid={!!fieldErrors[k]} />
               {fieldErrors[k] ? <span className="text-xs text-oxide-700">{fieldErrors[k][0]}</span> : null}
             </label>
           ))}
@@ -104,16 +104,16 @@ export function QuoteSettingsForm() {
           {printers.map((p) => (
             <form key={p.id} onSubmit={(e) => saveEquipment(e, { kind: "printer", printer_id: p.id })} className="grid items-end gap-2 border-t border-soot-100 pt-3 sm:grid-cols-5" aria-label={`Rate for printer ${p.name}`}>
               <p className="text-sm font-semibold sm:col-span-2">{p.name}<span className="block text-2xs font-normal text-soot-500">printer{p.active ? "" : ", inactive"}{p.rate_minor_per_h === null ? ", shop rate" : ""}</span></p>
-              <label className="block text-sm sm:col-span-2"><span className="block text-2xs text-soot-500">Minor units per hour</span><input name="rate_minor_per_h" inputMode="numeric" defaultValue={own(p.rate_minor_per_h)} placeholder={String(s.printer_rate_minor_per_h)} className={input} /></label>
+              <label className="block text-sm sm:col-span-2"><span className="block text-xs text-soot-600">Minor units per hour</span><input name="rate_minor_per_h" inputMode="numeric" defaultValue={own(p.rate_minor_per_h)} placeholder={String(s.printer_rate_minor_per_h)} className={input} /></label>
               <button type="submit" className="min-h-11 rounded-md border border-soot-300 px-3 py-2 text-sm font-semibold">Save {p.name}</button>
             </form>
           ))}
           {furnaces.map((f) => (
             <form key={f.id} onSubmit={(e) => saveEquipment(e, { kind: "furnace", furnace_id: f.id })} className="grid items-end gap-2 border-t border-soot-100 pt-3 sm:grid-cols-5" aria-label={`Run cost for furnace ${f.name}`}>
               <p className="text-sm font-semibold">{f.name}<span className="block text-2xs font-normal text-soot-500">furnace{f.active ? "" : ", inactive"}</span></p>
-              <label className="block text-sm"><span className="block text-2xs text-soot-500">Run, minor units</span><input name="run_cost_minor" inputMode="numeric" defaultValue={own(f.run_cost_minor)} placeholder={String(s.furnace_run_cost_minor)} className={input} /></label>
-              <label className="block text-sm"><span className="block text-2xs text-soot-500">Process gas per run</span><input name="gas_cost_minor" inputMode="numeric" defaultValue={own(f.gas_cost_minor)} placeholder={String(s.furnace_gas_cost_minor)} className={input} /></label>
-              <label className="block text-sm"><span className="block text-2xs text-soot-500">Energy per run</span><input name="energy_cost_minor" inputMode="numeric" defaultValue={own(f.energy_cost_minor)} placeholder={String(s.furnace_energy_cost_minor)} className={input} /></label>
+              <label className="block text-sm"><span className="block text-xs text-soot-600">Run, minor units</span><input name="run_cost_minor" inputMode="numeric" defaultValue={own(f.run_cost_minor)} placeholder={String(s.furnace_run_cost_minor)} className={input} /></label>
+              <label className="block text-sm"><span className="block text-xs text-soot-600">Process gas per run</span><input name="gas_cost_minor" inputMode="numeric" defaultValue={own(f.gas_cost_minor)} placeholder={String(s.furnace_gas_cost_minor)} className={input} /></label>
+              <label className="block text-sm"><span className="block text-xs text-soot-600">Energy per run</span><input name="energy_cost_minor" inputMode="numeric" defaultValue={own(f.energy_cost_minor)} placeholder={String(s.furnace_energy_cost_minor)} className={input} /></label>
               <button type="submit" className="min-h-11 rounded-md border border-soot-300 px-3 py-2 text-sm font-semibold">Save {f.name}</button>
             </form>
           ))}
@@ -125,9 +125,9 @@ export function QuoteSettingsForm() {
           {materials.map((m) => (
             <form key={m.id} onSubmit={(e) => saveMaterial(e, m.id)} className="grid items-end gap-2 border-t border-soot-100 pt-3 sm:grid-cols-5" aria-label={`Rates for ${m.code}`}>
               <p className="text-sm font-semibold sm:col-span-1">{m.code}{m.rates_set ? "" : <span className="block text-2xs font-normal text-brass-700">defaults</span>}</p>
-              <label className="block text-sm"><span className="block text-2xs text-soot-500">Price, minor units per kg</span><input name="feedstock_minor_per_kg" defaultValue={m.feedstock_minor_per_kg} className={input} /></label>
-              <label className="block text-sm"><span className="block text-2xs text-soot-500">Printed share (infill), 0–1</span><input name="infill_fraction" defaultValue={m.infill_fraction} className={input} /></label>
-              <label className="block text-sm"><span className="block text-2xs text-soot-500">Supports and raft share</span><input name="support_fraction" defaultValue={m.support_fraction} className={input} /></label>
+              <label className="block text-sm"><span className="block text-xs text-soot-600">Price, minor units per kg</span><input name="feedstock_minor_per_kg" inputMode="decimal" defaultValue={m.feedstock_minor_per_kg} className={input} /></label>
+              <label className="block text-sm"><span className="block text-xs text-soot-600">Printed share (infill), 0–1</span><input name="infill_fraction" inputMode="decimal" defaultValue={m.infill_fraction} className={input} /></label>
+              <label className="block text-sm"><span className="block text-xs text-soot-600">Supports and raft share</span><input name="support_fraction" inputMode="decimal" defaultValue={m.support_fraction} className={input} /></label>
               <button type="submit" className="min-h-11 rounded-md border border-soot-300 px-3 py-2 text-sm font-semibold">Save {m.code}</button>
             </form>
           ))}

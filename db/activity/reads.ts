@@ -46,3 +46,9 @@ export async function countActivity(db: Database, f: ActivityFilter): Promise<nu
   const row = await filtered(db, f).select(sql<string>`count(*)`.as("n")).executeTakeFirstOrThrow();
   return Number(row.n);
 }
+
+/** Days the activity log keeps its events, or null: for ever. */
+export async function getActivityRetention(db: Database): Promise<number | null> {
+  const row = await db.selectFrom("shop_settings").select("activity_retention_days").where("id", "=", 1).executeTakeFirst();
+  return row?.activity_retention_days ?? null;
+}

@@ -1,19 +1,6 @@
 import type { Executor } from "@/db/users/reads";
+import type { ApiTokenRow } from "@/lib/auth/api-scopes";
 
-export type ApiTokenRow = {
-  id: string;
-  name: string;
-  token_hint: string;
-  scopes: string[];
-  created_at: string;
-  created_by_name: string;
-  expires_at: string | null;
-  revoked_at: string | null;
-  last_used_at: string | null;
-  last_used_from: string | null;
-  rate_limit_per_minute: number;
-  status: "active" | "expired" | "revoked";
-};
 
 const iso = (d: Date | null) => (d ? d.toISOString() : null);
 

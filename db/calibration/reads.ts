@@ -94,3 +94,13 @@ export async function loadMaterialCalibration(db: Database, materialId: string):
     excluded: excluded.map((x) => ({ ...x, created_at: new Date(x.created_at).toISOString() })),
   };
 }
+
+/** The calibration export: each material's inspections as the calibration page reads them (one material, or all). */
+export async function listCalibrationForExport(db: Database, materialId?: string) {
+  let q = db.selectFrom("materials").select(["id", "code", "name", "shrink_xy", "shrink_z"]).orderBy("code");
+  if (materialId) q = q.where("id", "=", materialId);
+  const materials = await q.execute();
+  return Promise.all(
+    materials.map(async (m) => ({ material: { ...m, shrink_xy: Number(m.shrink_xy), shrink_z: Number(m.shrink_z) }, rows: await calibrationRows(db, m.id) })),
+  );
+}

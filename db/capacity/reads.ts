@@ -108,9 +108,9 @@ export async function listMaintenance(db: Database, from: Date, to: Date, resour
   return (await q.execute()).map((m) => ({ ...m, starts_at: new Date(m.starts_at), ends_at: new Date(m.ends_at) }));
 }
 
-/** Units of open orders with what the projection needs, grouped by order. */
-export async function listOpenOrdersForRisk(db: Database): Promise<OrderForRisk[]> {
-  const rows = await unitsWithStages(db)
+/** Units of open orders with what the projection needs, grouped by order; `dueBefore` keeps those due by then. */
+export async function listOpenOrdersForRisk(db: Database, opts: { dueBefore?: Date } = {}): Promise<OrderForRisk[]> {
+  let query = unitsWithStages(db)
     .select([
       "u.id as unit_id", "u.serial", "u.state", "u.held_from", "u.state_changed_at",
       "o.id as order_id", "o.code as order_code", "o.customer", "o.due_at", "o.priority",
@@ -124,8 +124,9 @@ export async function listOpenOrdersForRisk(db: Database): Promise<OrderForRisk[
       eb.exists(eb.selectFrom("units as open").innerJoin("parts as op", "op.id", "open.part_id").select(sql`1`.as("one")).where("op.order_id", "=", eb.ref("o.id")).where("open.state", "not in", ["done", "scrapped"])),
     )
     .orderBy("o.due_at")
-    .orderBy("u.serial")
-    .execute();
+    .orderBy("u.serial");
+  if (opts.dueBefore) query = query.where("o.due_at", "<=", opts.dueBefore);
+  const rows = await query.execute();
   const ctx = await loadEstimateContext(db);
   const orders = new Map<string, OrderForRisk>();
   for (const r of rows) {

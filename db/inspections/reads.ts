@@ -1,4 +1,6 @@
+import { sql } from "kysely";
 import type { Database } from "@/db/client";
+import type { InspectionExportFilter } from "@/lib/finishing/schemas";
 import { isUuid } from "@/lib/ids";
 import { type StockCheck } from "@/lib/finishing/inspection";
 import type { InspectionView } from "@/lib/finishing/types";
@@ -61,4 +63,38 @@ export async function findInspectionFile(db: Database, inspectionId: string, fil
     .where("inf.inspection_id", "=", inspectionId)
     .where("inf.file_id", "=", fileId)
     .executeTakeFirst();
+}
+
+/** Inspections for the CSV export, newest first: one unit's, one material's, or all, up to `limit`. */
+export async function listInspectionsForExport(db: Database, f: InspectionExportFilter, limit: number) {
+  let q = db
+    .selectFrom("inspections as i")
+    .innerJoin("units as u", "u.id", "i.unit_id")
+    .innerJoin("parts as p", "p.id", "u.part_id")
+    .innerJoin("orders as o", "o.id", "p.order_id")
+    .innerJoin("materials as m", "m.id", "p.material_id")
+    .leftJoin("users as us", "us.id", "i.inspector_id")
+    .select((eb) => [
+      "i.id", "i.unit_id", "i.created_at", "u.serial", "o.code as order_code", "p.part_number", "m.code as material_code", "i.passed", "i.reason", "us.name as inspector_name",
+      "i.entered_units", "i.green_x_mm", "i.green_y_mm", "i.green_z_mm", "i.green_source", "i.sintered_x_mm", "i.sintered_y_mm", "i.sintered_z_mm",
+      "i.finished_x_mm", "i.finished_y_mm", "i.finished_z_mm", "i.ra_um", "i.runout_mm", "i.runout_axis", "i.excluded_from_calibration", "i.exclusion_reason", "i.notes",
+      eb.selectFrom("inspection_files as inf").whereRef("inf.inspection_id", "=", "i.id").select((x) => x.fn.countAll<number>().as("n")).as("attachments"),
+      sql<number>`count(*) over ()`.as("total"),
+    ])
+    .orderBy("i.created_at", "desc")
+    .orderBy("i.id")
+    .limit(limit);
+  if (f.unit_id) q = q.where("i.unit_id", "=", f.unit_id);
+  if (f.material_id) q = q.where("p.material_id", "=", f.material_id);
+  const rows = await q.execute();
+  return {
+    total: rows.length ? Number(rows[0].total) : 0,
+    rows: rows.map(({ total: _t, ...r }) => ({
+      ...r,
+      green_x_mm: num(r.green_x_mm), green_y_mm: num(r.green_y_mm), green_z_mm: num(r.green_z_mm),
+      sintered_x_mm: num(r.sintered_x_mm), sintered_y_mm: num(r.sintered_y_mm), sintered_z_mm: num(r.sintered_z_mm),
+      finished_x_mm: num(r.finished_x_mm), finished_y_mm: num(r.finished_y_mm), finished_z_mm: num(r.finished_z_mm),
+      ra_um: num(r.ra_um), runout_mm: num(r.runout_mm), attachments: Number(r.attachments ?? 0),
+    })),
+  };
 }

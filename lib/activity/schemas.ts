@@ -23,6 +23,7 @@ export const ACTIVITY_ENTITIES = {
   furnace: "Furnace",
   api_token: "API token",
   webhook_endpoint: "Webhook endpoint",
+  shop_settings: "Shop settings",
 } as const;
 export type ActivityEntity = keyof typeof ACTIVITY_ENTITIES;
 
@@ -104,4 +105,39 @@ export function activityCsvRow(r: ActivityRow): Record<(typeof ACTIVITY_CSV_FIEL
     from_address: activityAddress(r.data),
     details: r.data === null || r.data === undefined ? null : JSON.stringify(r.data),
   };
+}
+
+// Retention --------------------------------------------------------------------------------------
+// Admins choose how long the log keeps its events: 30 days to 10 years, or for ever (null).
+
+export const RETENTION_MIN_DAYS = 30;
+export const RETENTION_MAX_DAYS = 3650;
+export const RETENTION_CHOICES = [30, 90, 180, 365, 730, 1825, 3650] as const;
+
+const retentionDays = z
+  .number({ error: "a whole number of days, or null to keep events for ever" })
+  .int("a whole number of days")
+  .min(RETENTION_MIN_DAYS, `at least ${RETENTION_MIN_DAYS} days`)
+  .max(RETENTION_MAX_DAYS, `at most ${RETENTION_MAX_DAYS} days (10 years)`);
+
+/** PUT /api/activity/retention: `retention_days` in days, or null for "keep for ever". */
+export const activityRetentionSchema = z.object({ retention_days: z.union([retentionDays, z.null()], { error: "a whole number of days from 30 to 3650, or null to keep events for ever" }) }).strict();
+export type ActivityRetentionInput = z.infer<typeof activityRetentionSchema>;
+
+/**
+ * Events that other records still read, so the retention never prunes them:
+ * - unit, build, wash_batch, furnace_run: a unit's trace (db/trace/reads.ts), the finishing times
+ *   quotes learn from (db/quotes/reads.ts) and the capacity page's throughput (db/capacity/reads.ts);
+ * - material: the calibration history (db/calibration/reads.ts);
+ * - feedstock_lot: which lot went where, for a recall;
+ * - user: the security log (/setup/security, an audit trail with its own readers) and the
+ *   password-reset throttle (db/auth/reads.ts).
+ * Webhook deliveries do not read events (webhook_events is a table of its own, no foreign key).
+ */
+export const RETAINED_ENTITIES = ["unit", "build", "wash_batch", "furnace_run", "material", "feedstock_lot", "user"] as const;
+
+export function retentionLabel(days: number | null): string {
+  if (days === null) return "kept for ever";
+  if (days % 365 === 0) return `kept for ${days / 365} year${days === 365 ? "" : "s"}`;
+  return `kept for ${days} days`;
 }

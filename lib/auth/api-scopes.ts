@@ -56,6 +56,22 @@ export const API_SCOPES = {
 } as const satisfies Record<string, { label: string; hint: string; permissions: readonly Permission[] }>;
 
 export type ApiScope = keyof typeof API_SCOPES;
+
+/** A token as the admin screen lists it (db/api-tokens/reads.ts makes it): never the token or its hash. */
+export type ApiTokenRow = {
+  id: string;
+  name: string;
+  token_hint: string;
+  scopes: string[];
+  created_at: string;
+  created_by_name: string;
+  expires_at: string | null;
+  revoked_at: string | null;
+  last_used_at: string | null;
+  last_used_from: string | null;
+  rate_limit_per_minute: number;
+  status: "active" | "expired" | "revoked";
+};
 export const API_SCOPE_NAMES = Object.keys(API_SCOPES) as ApiScope[];
 
 /**

@@ -134,3 +134,13 @@ export function orderRisks(orders: OrderForRisk[], timing: ShopTiming, now: Date
   const rank: Record<ProjectionStatus, number> = { late: 0, at_risk: 1, on_time: 2 };
   return out.sort((a, b) => rank[a.status] - rank[b.status] || a.slack_minutes - b.slack_minutes);
 }
+
+/**
+ * The orders that are late now: due date passed while units of them are still unfinished. The same
+ * projection as the capacity page (orderRisks: an order is open while a live unit is not done, and
+ * "late" when it is projected to finish after its due date), narrowed to the orders whose due date
+ * has already gone by, so that a forecast that may still change is not reported as a fact.
+ */
+export function overdueOrders(orders: OrderForRisk[], timing: ShopTiming, now: Date): OrderRisk[] {
+  return orderRisks(orders, timing, now).filter((o) => o.status === "late" && Date.parse(o.due_at) <= now.getTime());
+}

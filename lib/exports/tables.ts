@@ -1,5 +1,7 @@
 import type { CsvValue } from "@/lib/csv/safe-cell";
 import type { ProjectionSummary } from "@/lib/parts/projection";
+import { calibrationPoints, type CalibrationRow } from "@/lib/finishing/calibration";
+import { AXES } from "@/lib/finishing/schemas";
 
 // The columns of the orders, parts and units CSV exports: the tables' own rows as the lists show
 // them (the same filters and sort), one line per row. lib/csv/safe-cell.ts neutralises text cells.
@@ -66,4 +68,60 @@ export async function allPages<T>(page: (n: number, size: number) => Promise<{ r
     if (got.rows.length < size || rows.length >= total) break;
   }
   return { rows: rows.slice(0, max), total };
+}
+
+/** One line per inspection, with the unit, order, part and material it belongs to. */
+export const INSPECTION_CSV_FIELDS = [
+  "inspected_at", "serial", "order_code", "part_number", "material", "passed", "reason", "inspector", "entered_units",
+  "green_x_mm", "green_y_mm", "green_z_mm", "green_source", "sintered_x_mm", "sintered_y_mm", "sintered_z_mm",
+  "finished_x_mm", "finished_y_mm", "finished_z_mm", "ra_um", "runout_mm", "runout_axis",
+  "excluded_from_calibration", "exclusion_reason", "notes", "attachments", "unit_id", "id",
+] as const;
+export function inspectionCsvRow(r: {
+  id: string; unit_id: string; created_at: string | Date; serial: string; order_code: string; part_number: string; material_code: string; passed: boolean; reason: string | null;
+  inspector_name: string | null; entered_units: string; green_x_mm: number | null; green_y_mm: number | null; green_z_mm: number | null; green_source: string;
+  sintered_x_mm: number | null; sintered_y_mm: number | null; sintered_z_mm: number | null; finished_x_mm: number | null; finished_y_mm: number | null; finished_z_mm: number | null;
+  ra_um: number | null; runout_mm: number | null; runout_axis: string | null; excluded_from_calibration: boolean; exclusion_reason: string | null; notes: string; attachments: number;
+}): Row {
+  return {
+    inspected_at: iso(r.created_at), serial: r.serial, order_code: r.order_code, part_number: r.part_number, material: r.material_code, passed: r.passed, reason: r.reason,
+    inspector: r.inspector_name, entered_units: r.entered_units, green_x_mm: r.green_x_mm, green_y_mm: r.green_y_mm, green_z_mm: r.green_z_mm, green_source: r.green_source,
+    sintered_x_mm: r.sintered_x_mm, sintered_y_mm: r.sintered_y_mm, sintered_z_mm: r.sintered_z_mm, finished_x_mm: r.finished_x_mm, finished_y_mm: r.finished_y_mm, finished_z_mm: r.finished_z_mm,
+    ra_um: r.ra_um, runout_mm: r.runout_mm, runout_axis: r.runout_axis, excluded_from_calibration: r.excluded_from_calibration, exclusion_reason: r.exclusion_reason, notes: r.notes,
+    attachments: r.attachments, unit_id: r.unit_id, id: r.id,
+  };
+}
+
+/**
+ * The calibration page's data: one line per inspection and axis measured green and sintered, with
+ * the realized shrinkage s = 1 − sintered / green as the page computes it (lib/finishing/calibration.ts:
+ * calibrationPoints), or, for a reading the page sets aside, why (the reason names its shrinkage).
+ */
+export const CALIBRATION_CSV_FIELDS = [
+  "material", "material_name", "inspected_at", "serial", "axis", "green_mm", "sintered_mm", "shrinkage", "green_source", "used", "set_aside_because",
+  "material_shrink_xy", "material_shrink_z", "inspection_id", "unit_id",
+] as const;
+export function calibrationCsvRows(
+  material: { code: string; name: string; shrink_xy: number; shrink_z: number },
+  rows: CalibrationRow[],
+): Row[] {
+  const { points, rejected } = calibrationPoints(rows);
+  const shrinkage = new Map(points.map((p) => [`${p.inspection_id}:${p.axis}`, p.shrinkage]));
+  const why = new Map(rejected.map((r) => [`${r.inspection_id}:${r.axis}`, r.reason]));
+  const out: Row[] = [];
+  for (const r of [...rows].sort((a, b) => a.created_at.getTime() - b.created_at.getTime() || a.id.localeCompare(b.id))) {
+    for (const axis of AXES) {
+      const green = r[`green_${axis}_mm`];
+      const sintered = r[`sintered_${axis}_mm`];
+      if (green == null || sintered == null) continue;
+      const key = `${r.id}:${axis}`;
+      const reason = why.get(key) ?? null;
+      out.push({
+        material: material.code, material_name: material.name, inspected_at: r.created_at.toISOString(), serial: r.serial, axis, green_mm: green, sintered_mm: sintered,
+        shrinkage: shrinkage.get(key) ?? null, green_source: r.green_source, used: shrinkage.has(key), set_aside_because: reason,
+        material_shrink_xy: material.shrink_xy, material_shrink_z: material.shrink_z, inspection_id: r.id, unit_id: r.unit_id,
+      });
+    }
+  }
+  return out;
 }

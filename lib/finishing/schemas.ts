@@ -106,3 +106,16 @@ export type ApplyCalibrationInput = z.input<typeof applyCalibrationSchema>;
 export const ATTACHMENT_TYPES = ["image/jpeg", "image/png", "image/webp", "application/pdf"] as const;
 export type AttachmentType = (typeof ATTACHMENT_TYPES)[number];
 export const ATTACHMENT_MAX_BYTES = 15 * 1024 * 1024;
+
+/** GET /api/inspections/export: one unit's inspections (the unit's page), one material's, or all. */
+export const inspectionExportSchema = z
+  .object({
+    unit_id: z.uuid("a unit's id").optional(),
+    material_id: z.uuid("a material's id").optional(),
+  })
+  .strict();
+export type InspectionExportFilter = z.infer<typeof inspectionExportSchema>;
+
+/** GET /api/calibration/export: the calibration page's material, or every material. */
+export const calibrationExportSchema = z.object({ material_id: z.uuid("a material's id").optional() }).strict();
+export type CalibrationExportFilter = z.infer<typeof calibrationExportSchema>;

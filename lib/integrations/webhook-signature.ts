@@ -14,6 +14,7 @@ export const SIGNATURE_TOLERANCE_SECONDS = 300;
 
 export const WEBHOOK_EVENT_TYPES = [
   "order.created",
+  "order.late",
   "build.scheduled",
   "build.started",
   "build.finished",

@@ -29,8 +29,9 @@ export interface PackTraysOptions {
   /**
    * The run-removing local search after the constructions (run-search.ts). `false` returns the
    * constructions' plan as it is. `work` counts placement attempts over the whole call (split
-   * over the profiles by unit count); `seed` makes it repeatable; `deadlineMs` (ms from the
-   * call's start) cuts it short whatever work is left.
+   * over the profiles still above their bound after the constructions, by unit count; default
+   * defaultSearchWork, scaled by deadlineMs / 300 ms when a deadline is given); `seed` makes it
+   * repeatable; `deadlineMs` (ms from the call's start) cuts it short whatever work is left.
    */
   search?: false | { work?: number; seed?: number; deadlineMs?: number };
   /** Wall clock for the deadline (default Date.now). */
@@ -94,17 +95,25 @@ export function packTraysReported(input: TrayPackInput, options: PackTraysOption
   const restarts = options.restarts ?? 0;
   const all: { run: TrayRun; firstDue: number; minRank: number }[] = [];
   const search = options.search === false ? null : (options.search ?? {});
-  const totalWork = search ? (search.work ?? defaultSearchWork(model.profiles.reduce((s, pm) => s + pm.items.length, 0))) : 0;
-  const deadline = search?.deadlineMs !== undefined ? t0 + search.deadlineMs : undefined;
   const nUnits = model.profiles.reduce((s, pm) => s + pm.items.length, 0);
+  // Without a deadline the work budget is what bounds the time; with one and no work given, the
+  // search may use what the deadline allows (the default budget per 300 ms, its calibration).
+  const defaultWork = search?.deadlineMs !== undefined ? defaultSearchWork(nUnits) * Math.max(1, search.deadlineMs / 300) : defaultSearchWork(nUnits);
+  const totalWork = search ? (search.work ?? Math.round(defaultWork)) : 0;
+  const deadline = search?.deadlineMs !== undefined ? t0 + search.deadlineMs : undefined;
   const report: PackSearchReport = { start_runs: 0, work: 0, stop: search ? "bound" : "off", ms: 0 };
-  for (const pm of model.profiles) {
-    let runs = solveProfile(pm, { restarts });
+  // Constructions first, for every profile; the search's work then goes to the profiles still
+  // above their bound, split by unit count (a profile already at its bound needs none).
+  const solved = model.profiles.map((pm) => solveProfile(pm, { restarts }));
+  const above = model.profiles.filter((pm, k) => solved[k].length > pm.bound.largest);
+  const unitsAbove = above.reduce((s, pm) => s + pm.items.length, 0);
+  model.profiles.forEach((pm, k) => {
+    let runs = solved[k];
     report.start_runs += runs.length;
     if (search && runs.length > pm.bound.largest) {
       const found = reduceRuns(pm, runs, {
         seed: (search.seed ?? 1) ^ hashString(pm.profile),
-        work: Math.round((totalWork * pm.items.length) / Math.max(1, nUnits)),
+        work: Math.round((totalWork * pm.items.length) / Math.max(1, unitsAbove)),
         deadline,
         clock,
       });
@@ -121,7 +130,7 @@ export function packTraysReported(input: TrayPackInput, options: PackTraysOption
         minRank: Math.min(...r.placed.map((p) => p.item.dueRank)),
       });
     }
-  }
+  });
   // Interleave profiles by their most urgent unit; within a profile the solver's order stands.
   all.sort((a, b) => a.firstDue - b.firstDue || (a.run.profile < b.run.profile ? -1 : a.run.profile > b.run.profile ? 1 : a.minRank - b.minRank));
   report.ms = clock() - t0;

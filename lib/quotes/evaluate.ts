@@ -8,7 +8,7 @@ import { feedstockDensity, scaleUp, type FaceStock } from "@/lib/process/scale-u
 import { washMinutes } from "@/lib/process/wash";
 import { finishingMinutesPerUnit, lineCost, type CostMaterial, type CostRates, type FurnaceRates, type LineCost } from "./cost";
 import { materialYield, quantityToStart, type MaterialYield } from "./yield";
-import { planPromise, type FinishingJob, type PromiseFurnace, type PromiseInput, type PromiseOpenRun, type PromisePrinter, type PromiseResult, type PromiseWashStation, type Spread, type SpreadKind } from "./promise";
+import { planPromise, type FinishingJob, type PromiseFurnace, type PromiseInput, type PromiseResult, type PromiseShop } from "./promise";
 import type { StaffedHours } from "@/lib/planning/staffed-hours";
 
 export type QuoteRates = CostRates & { setup_minor_per_order: number; fallback_yield: number };
@@ -24,23 +24,7 @@ export type QuoteMaterial = CostMaterial & {
   profile_label: string | null;
 };
 
-export type QuoteContext = {
-  now: number;
-  horizon_days: number;
-  staffed: StaffedHours | null;
-  printers: PromisePrinter[];
-  plate_clearance_mm: number;
-  wash_stations: PromiseWashStation[];
-  drying_minutes: number;
-  furnaces: PromiseFurnace[];
-  open_runs: PromiseOpenRun[];
-  tray_clearance_mm: number;
-  finishing_lead_minutes: number;
-  /** Active machinists, who finish in parallel in staffed hours. */
-  finishing_lanes: number;
-  /** Finishing work released to the machinists or on its way from booked furnace runs. */
-  finishing_queue: FinishingJob[];
-  spread: Record<SpreadKind, Spread>;
+export type QuoteContext = PromiseShop & {
   rates: QuoteRates;
   /** Printers' and furnaces' own rates by id; a missing one takes the shop's (lib/quotes/cost). */
   printer_rates: Map<string, number>;
@@ -143,10 +127,10 @@ function withBookings(ctx: QuoteContext, promise: PromiseResult): QuoteContext {
 }
 
 export function promiseInputFor(line: QuoteLineSpec, unit: LineUnit, m: QuoteMaterial, ctx: QuoteContext, startQuantity: number, finishQuantity: number): PromiseInput {
+  // The quote's own fields (rates, materials, yields) stay here; the promise takes the shop.
+  const { rates: _rates, printer_rates: _printerRates, furnace_rates: _furnaceRates, materials: _materials, yields: _yields, ...shop } = ctx;
   return {
-    now: ctx.now,
-    horizon_days: ctx.horizon_days,
-    staffed: ctx.staffed,
+    ...shop,
     start_quantity: startQuantity,
     finish_quantity: finishQuantity,
     unit: {
@@ -158,17 +142,6 @@ export function promiseInputFor(line: QuoteLineSpec, unit: LineUnit, m: QuoteMat
       wash_minutes: unit.wash_minutes,
       finishing_minutes: unit.finishing_minutes,
     },
-    printers: ctx.printers,
-    plate_clearance_mm: ctx.plate_clearance_mm,
-    wash_stations: ctx.wash_stations,
-    drying_minutes: ctx.drying_minutes,
-    furnaces: ctx.furnaces,
-    open_runs: ctx.open_runs,
-    tray_clearance_mm: ctx.tray_clearance_mm,
-    finishing_lead_minutes: ctx.finishing_lead_minutes,
-    finishing_lanes: ctx.finishing_lanes,
-    finishing_queue: ctx.finishing_queue,
-    spread: ctx.spread,
   };
 }
 

@@ -52,10 +52,27 @@ export type SpreadKind = "print" | "wash" | "furnace" | "finishing";
 export type FinishingJob = { release: number; minutes: number };
 export type Spread = { p90_ratio: number; samples: number; source: "history" | "fallback" };
 
-export type PromiseInput = {
+/** The shop as a promise sees it: equipment, open work, staffed hours and the spreads of history. */
+export type PromiseShop = {
   now: number;
   horizon_days: number;
   staffed: StaffedHours | null;
+  printers: PromisePrinter[];
+  plate_clearance_mm: number;
+  wash_stations: PromiseWashStation[];
+  drying_minutes: number;
+  furnaces: PromiseFurnace[];
+  open_runs: PromiseOpenRun[];
+  tray_clearance_mm: number;
+  finishing_lead_minutes: number;
+  /** Machinists who finish in parallel during staffed hours (at least 1 is assumed). */
+  finishing_lanes: number;
+  /** Finishing work released to the machinists or on its way from booked furnace runs. */
+  finishing_queue: FinishingJob[];
+  spread: Record<SpreadKind, Spread>;
+};
+
+export type PromiseInput = PromiseShop & {
   /** Units to start (after the yield allowance) and units to finish (the requested good ones). */
   start_quantity: number;
   finish_quantity: number;
@@ -68,18 +85,6 @@ export type PromiseInput = {
     wash_minutes: number;
     finishing_minutes: number;
   };
-  printers: PromisePrinter[];
-  plate_clearance_mm: number;
-  wash_stations: PromiseWashStation[];
-  drying_minutes: number;
-  furnaces: PromiseFurnace[];
-  open_runs: PromiseOpenRun[];
-  tray_clearance_mm: number;
-  finishing_lead_minutes: number;
-  /** Machinists who finish in parallel during staffed hours (at least 1 is assumed). */
-  finishing_lanes: number;
-  finishing_queue: FinishingJob[];
-  spread: Record<SpreadKind, Spread>;
   /** The plates are already booked and end at this instant: plan the rest of the chain from it. */
   printed_at?: number;
 };

@@ -1,30 +1,27 @@
 // A second Hearth beside the test run's own: ports moved by `offset` inside the slot's range
 // (scripts/test.sh gives each slot twenty), so that it never meets the run's stack or another slot.
-import { spawn, type ChildProcess } from "node:child_process";
+import { execFileSync, spawn, type ChildProcess } from "node:child_process";
 import path from "node:path";
 
 /** Where the test run's own stack writes its processes' output (tests/helpers/global-setup.ts). */
 export const stackLogDir = () => path.resolve(process.env.HEARTH_DATA_DIR ?? ".data/test", "logs");
 
+/**
+ * The run's stack moved by `offset` ports: the names and addresses come from the one place that
+ * lists them, scripts/lib.sh's stack_env, asked in a clean shell so that none is inherited.
+ */
 export function spareStackEnv(offset: number): Record<string, string> {
-  const from = (name: string, fallback: number) => String(Number(process.env[name] ?? fallback) + offset);
-  const port = from("PORT", 3100);
-  const smtp = from("SMTP_PORT", 2625);
-  const capture = from("MAIL_CAPTURE_PORT", 2626);
-  const s3 = from("S3_PORT", 4669);
-  const webhooks = from("WEBHOOK_RECEIVER_PORT", 2527);
-  return {
-    WEBHOOK_RECEIVER_PORT: webhooks,
-    WEBHOOK_RECEIVER_URL: `http://127.0.0.1:${webhooks}`,
-    PORT: port,
-    SMTP_PORT: smtp,
-    MAIL_CAPTURE_PORT: capture,
-    S3_PORT: s3,
-    APP_URL: `http://127.0.0.1:${port}`,
-    MAIL_CAPTURE_URL: `http://127.0.0.1:${capture}`,
-    S3_ENDPOINT: `http://127.0.0.1:${s3}`,
-    SMTP_HOST: "127.0.0.1",
-  };
+  // scripts/test.sh starts the run's stack at PORT = 3000 + its base.
+  const base = Number(process.env.PORT ?? 3100) - 3000 + offset;
+  const script = 'source scripts/lib.sh && before="$(compgen -e | sort)" && stack_env "$1" && for v in $(comm -13 <(printf "%s\\n" "$before") <(compgen -e | sort)); do printf "%s=%s\\n" "$v" "${!v}"; done';
+  const out = execFileSync("bash", ["-c", script, "spare-stack", String(base)], { cwd: path.resolve(__dirname, "../.."), env: { PATH: process.env.PATH ?? "/usr/bin:/bin", NODE_ENV: "test" }, encoding: "utf8", stdio: ["ignore", "pipe", "pipe"] });
+  const env: Record<string, string> = {};
+  for (const line of out.split("\n")) {
+    const at = line.indexOf("=");
+    if (at > 0 && line.slice(0, at) !== "HEARTH_DATA_DIR") env[line.slice(0, at)] = line.slice(at + 1);
+  }
+  if (!env.PORT || !env.APP_URL) throw new Error(`scripts/lib.sh stack_env gave no ports: ${out}`);
+  return env;
 }
 
 export type Spawned = { child: ChildProcess; output: () => string; exited: Promise<number | null>; stop: (graceMs?: number) => Promise<void> };

@@ -144,6 +144,6 @@ describe("the OpenAPI 3.1 document", () => {
   });
 
   it("describes each webhook event", () => {
-    expect(Object.keys(doc.webhooks)).toEqual(expect.arrayContaining(["order.created", "build.scheduled", "furnace_run.finished", "inspection.recorded"]));
+    expect(Object.keys(doc.webhooks)).toEqual(expect.arrayContaining(["order.created", "build.scheduled", "furnace_run.finished", "inspection.recorded", "order.late"]));
   });
 });

@@ -11,6 +11,7 @@ import type { FurnaceRunsInstance } from "@/lib/planning/instances";
 import { toInstanceRuns, verifyRuns } from "@/lib/planning/metrics";
 import { mulberry32 } from "@/lib/random";
 import { asTrayInstance, binInstance } from "@/bench/bin-packing-classes";
+import { furnaceMixInstance } from "@/bench/generate-instances";
 
 const DUE = "2027-01-10T00:00:00Z";
 
@@ -276,6 +277,27 @@ describe("run-removing search", () => {
     const rep = packTraysReported(inst, { search: { seed: 1, work: 150_000 } });
     expect(verifyRuns(inst, toInstanceRuns(rep.result.runs), rep.result.unplaced).ok).toBe(true);
     expect(rep.result.runs.length).toBeLessThan(rep.search.start_runs);
+  });
+
+  it("where load and room both bind, reaches the bound for every seed tried (generated furnace mixes)", () => {
+    // One profile of a generated mix each: A2 of seed 3 (two runs of a 25 kg furnace hold 96 % of
+    // their load and 86 % of their trays) and 316L of seed 5 (six runs at 97 % and 94 %). The
+    // constructions leave a run too many on both; first-fit repacks alone reached the bound on
+    // 3 of 8 seeds and 0 of 8, the dot-product repacks on all of them.
+    const cases: [number, string][] = [
+      [3, "A2-std"],
+      [5, "316L-std"],
+    ];
+    for (const [mixSeed, profile] of cases) {
+      const mix = furnaceMixInstance(mixSeed);
+      const inst: FurnaceRunsInstance = { ...mix, units: mix.units.filter((u) => u.profile === profile) };
+      for (const seed of [1, 2, 3]) {
+        const rep = packTraysReported(inst, { search: { seed, work: 300_000 } });
+        expect(rep.search.start_runs).toBe(rep.result.lowerBound.largest + 1);
+        expect(rep.result.runs).toHaveLength(rep.result.lowerBound.largest);
+        expect(verifyRuns(inst, toInstanceRuns(rep.result.runs), rep.result.unplaced).violations).toEqual([]);
+      }
+    }
   });
 
   it("a deadline in the past still returns the constructions' valid plan", () => {

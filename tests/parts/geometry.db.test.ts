@@ -111,11 +111,11 @@ describe("geometry upload", () => {
     expect(row.geometry_file_id).toBeNull();
   });
 
-  it("refuses other file types (422), an empty file (422) and a file over the limit (413)", async () => {
+  it("refuses other file names (422), a media type that cannot be STL (415), an empty file (422) and a file over the limit (413)", async () => {
     const part = await newPart();
     const stl = writeBinaryStl(boxMesh(10, 10, 10));
     expect((await upload(part.id, stl, { filename: "part.step" })).status).toBe(422);
-    expect((await upload(part.id, stl, { type: "image/png" })).status).toBe(422);
+    expect((await upload(part.id, stl, { type: "image/png" })).status).toBe(415);
     expect((await upload(part.id, new Uint8Array())).status).toBe(422);
     const big = new Uint8Array(getEnv().UPLOAD_MAX_BYTES + 1);
     const tooBig = await upload(part.id, big);

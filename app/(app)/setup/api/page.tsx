@@ -49,10 +49,10 @@ export default async function ApiReferencePage() {
         lead="Every route other programs can call with a token from API tokens, the permission and token scopes each needs, and the fields it takes; the same description as /api/openapi.json (OpenAPI 3.1), which code generators read."
         actions={
           <>
-            <a href="/api/openapi.json" className="text-sm font-semibold text-clay-700 hover:underline">
+            <a href="/api/openapi.json" className="inline-flex min-h-11 items-center text-sm font-semibold text-clay-700 hover:underline">
               openapi.json
             </a>
-            <Link href="/setup" className="text-sm font-semibold text-clay-700 hover:underline">
+            <Link href="/setup" className="inline-flex min-h-11 items-center text-sm font-semibold text-clay-700 hover:underline">
               ← Set-up
             </Link>
           </>

@@ -20,7 +20,7 @@ export default async function ApiTokensPage() {
         title="API tokens"
         lead="Tokens let another program (ordering, accounting, shipping, quality) call Hearth's API. A token may do what its scopes allow and your role allows, no more."
         actions={
-          <Link href="/setup" className="text-sm font-semibold text-clay-700 hover:underline">
+          <Link href="/setup" className="inline-flex min-h-11 items-center text-sm font-semibold text-clay-700 hover:underline">
             ← Set-up
           </Link>
         }
