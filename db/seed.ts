@@ -217,7 +217,7 @@ export async function seedDemoShop(db: Database, now = new Date()): Promise<{ un
       .execute();
 
     // Orders, parts, units -------------------------------------------------------------------------
-    const customers = ["Halvorsen Marine", "Oakridge Pumps", "Vantablade Cutlery", "Corvid Robotics", "Meridian Fluidics", "Saltmarsh Instruments", "internal: fixture rebuild", "Brightwater Valves"];
+    const customers = ["Halvorsen Marine", "Oakridge Pumps", "Vantablade Cutlery", "Corvid Robotics", "Łódź Präzision", "Жуков Гидравлика", "internal: fixture rebuild", "Brightwater Valves"];
     const partNames = ["impeller hub", "manifold block", "gripper jaw", "bearing carrier", "nozzle insert", "pump bracket", "cam follower", "sensor housing", "drive dog", "valve seat", "ejector plate", "knife bolster", "spacer ring", "clamp arm"];
     type PartRow = { id: string; code: string; material: string; qty: number; green: [number, number, number]; mass: number; wall: number; orderDue: Date };
     const parts: PartRow[] = [];

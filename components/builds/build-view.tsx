@@ -114,9 +114,14 @@ export function BuildView({ buildId, canWrite, timeZone, role }: BuildViewProps)
               {build.finished_at ? (<><dt className="text-soot-500">Finished</dt><dd className="tabular">{formatWhen(build.finished_at, timeZone)}</dd></>) : null}
             </dl>
             <div className="flex flex-col items-end gap-2">
-              <a href={`/api/builds/${buildId}/traveler`} target="_blank" rel="noreferrer" className={`${button} border border-soot-300 text-soot-800 hover:bg-soot-100`} data-testid="traveler-link">
-                Print traveler (PDF)
-              </a>
+              <div className="flex flex-wrap justify-end gap-2">
+                <a href={`/api/builds/${buildId}/traveler`} target="_blank" rel="noreferrer" className={`${button} border border-soot-300 text-soot-800 hover:bg-soot-100`} data-testid="traveler-link">
+                  Print traveler (PDF)
+                </a>
+                <a href={`/api/builds/${buildId}/labels`} target="_blank" rel="noreferrer" className={`${button} border border-soot-300 text-soot-800 hover:bg-soot-100`} data-testid="unit-labels-link">
+                  Unit labels (PDF)
+                </a>
+              </div>
               {canWrite ? (
                 <div className="flex flex-wrap justify-end gap-2">
                   {build.state === "scheduled" ? <button type="button" disabled={busy} onClick={() => act({ action: "start" }, `${build.code} started: its units are printing.`)} className={`${button} bg-clay-600 text-white hover:bg-clay-700`}>Start build</button> : null}

@@ -7,7 +7,7 @@ export function PageHeader({ title, lead, actions }: PageHeaderProps) {
         <h1 className="font-display text-2xl font-semibold tracking-tight text-soot-900">{title}</h1>
         {lead ? <p className="mt-1 max-w-3xl text-sm text-soot-500">{lead}</p> : null}
       </div>
-      {actions ? <div className="flex items-center gap-2">{actions}</div> : null}
+      {actions ? <div className="flex flex-wrap items-center gap-2">{actions}</div> : null}
     </header>
   );
 }

@@ -2,7 +2,8 @@ import { AppError } from "@/lib/errors";
 import { currentLayout } from "@/lib/batches/rules";
 import type { BoardFurnace, BoardFurnaceRun, BoardProfile, BoardUnit, RunDetail } from "@/lib/batches/types";
 import { profileCurve } from "@/lib/process/furnace-profile";
-import { findFurnace, listFurnaceRuns, listProfiles, profileForCycle, type Db, type ShopContext } from "@/db/batches/reads";
+import { findFurnace, listFurnaceRuns, listProfiles, loadShopContext, profileForCycle, type Db, type ShopContext } from "@/db/batches/reads";
+import { unitsWithPart } from "@/db/units/joins";
 
 export const refuse = (code: string, reason: string, field = "unit_id") => new AppError("invalid", reason, { [field]: [reason] }, { rule: code });
 
@@ -63,4 +64,34 @@ export type { BoardUnit };
 export async function findRunCode(db: Db, id: string): Promise<string | undefined> {
   const row = await db.selectFrom("furnace_runs").select("code").where("id", "=", id).executeTakeFirst();
   return row?.code;
+}
+
+export type RunSheetData = {
+  shop_name: string;
+  detail: RunDetail;
+  notes: string;
+  operator: string | null;
+  units: Array<{ id: string; customer: string; material_name: string; revision: string; green_mass_g: number | null }>;
+};
+
+/** The printed run sheet: the run page's detail, plus who started it and each unit's customer, material name and green mass. */
+export async function loadRunSheet(db: Db, id: string): Promise<RunSheetData> {
+  const detail = await getRunDetail(db, await loadShopContext(db), id);
+  const [head, shop, units] = await Promise.all([
+    db.selectFrom("furnace_runs as r").leftJoin("users as us", "us.id", "r.started_by").select(["r.notes", "us.name as operator"]).where("r.id", "=", id).executeTakeFirstOrThrow(),
+    db.selectFrom("shop_settings").select("shop_name").where("id", "=", 1).executeTakeFirst(),
+    detail.run.units.length
+      ? unitsWithPart(db)
+          .select(["u.id", "o.customer", "m.name as material_name", "p.revision", "u.green_mass_g"])
+          .where("u.id", "in", detail.run.units.map((u) => u.id))
+          .execute()
+      : Promise.resolve([]),
+  ]);
+  return {
+    shop_name: shop?.shop_name ?? "Hearth",
+    detail,
+    notes: head.notes,
+    operator: head.operator,
+    units: units.map((u) => ({ ...u, green_mass_g: u.green_mass_g === null ? null : Number(u.green_mass_g) })),
+  };
 }

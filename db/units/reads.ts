@@ -176,3 +176,26 @@ export async function projectionsForOrders(db: Database, orderIds: string[], ctx
   }
   return out;
 }
+
+// Labels ----------------------------------------------------------------------------------------
+
+export type UnitLabelRow = {
+  id: string;
+  serial: string;
+  part_number: string;
+  revision: string;
+  part_name: string;
+  order_code: string;
+  customer: string;
+  material_code: string;
+  material_name: string;
+};
+
+/** The units of one build or one furnace run, in serial order, with what their labels print. */
+export async function listUnitLabels(db: Database, on: { build_id: string } | { furnace_run_id: string }): Promise<UnitLabelRow[]> {
+  let q = unitsWithStages(db).select([
+    "u.id", "u.serial", "p.part_number", "p.revision", "p.name as part_name", "o.code as order_code", "o.customer", "m.code as material_code", "m.name as material_name",
+  ]);
+  q = "build_id" in on ? q.where("u.build_id", "=", on.build_id) : q.where("u.furnace_run_id", "=", on.furnace_run_id);
+  return q.orderBy("u.serial").execute();
+}

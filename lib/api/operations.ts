@@ -19,6 +19,7 @@ import * as inventorySchemas from "@/lib/inventory/schemas";
 import * as jobsSchemas from "@/lib/jobs/schemas";
 import * as mailSchemas from "@/lib/mail/schemas";
 import * as partsSchemas from "@/lib/parts/schemas";
+import * as pdfPaper from "@/lib/pdf/paper";
 import * as quotesSchemas from "@/lib/quotes/schemas";
 import * as setupSchemas from "@/lib/setup/schemas";
 
@@ -68,6 +69,7 @@ export const API_OPERATIONS: readonly ApiOperation[] = [
   op("POST", "/api/builds/[id]/actions", "builds:write", "start, complete, fail (with the reason) or cancel a build, with its version (technician, admin)", { body: buildsSchemas.buildActionSchema, answers: ["build"] }),
   op("PATCH", "/api/builds/[id]/schedule", "builds:schedule", "move a build onto a printer at a start time, or off the floor (printer_id null), with its version; 409 on a stale version or an overlap, 422 on an incompatible printer (technician, admin)", { body: buildsSchemas.scheduleBuildSchema, answers: ["build"] }),
   op("GET", "/api/builds/[id]/traveler", "shop:read", "the printable traveler PDF with a QR code to the build page (every role)"),
+  op("GET", "/api/builds/[id]/labels", "shop:read", "a PDF sheet of unit labels, one per unit of the build, each with a QR code to the unit page; ?paper=a4|letter, A4 by default (every role)", { query: pdfPaper.paperQuerySchema }),
   op("GET", "/api/calendar/feeds/[token]/[resource]", "public", "one resource's bookings as iCalendar; the secret in the address stands in for a session (manager, admin)"),
   op("GET", "/api/calendar/token", "capacity:read", "whether the signed-in user has a calendar feed secret (manager, admin)"),
   op("POST", "/api/calendar/token", "capacity:read", "make a new feed secret, revoking the old one; the secret is shown only now (manager, admin)", { answers: ["active","created_at","feeds","token"], status: 201 }),
@@ -88,6 +90,8 @@ export const API_OPERATIONS: readonly ApiOperation[] = [
   op("GET", "/api/furnace-runs", "shop:read", "booked furnace runs touching a window, for the furnace lanes (every role)", { query: batchesWindow.windowSchema, answers: ["furnace_runs"] }),
   op("POST", "/api/furnace-runs", "furnace:write", "open an empty draft run on a furnace with one sinter profile (furnace operator, admin)", { body: batchesSchemas.createFurnaceRunSchema, status: 201 }),
   op("GET", "/api/furnace-runs/[id]", "shop:read", "a run with its profile curve, tray layout, checklist and unit outcomes (every role)"),
+  op("GET", "/api/furnace-runs/[id]/sheet", "shop:read", "the furnace-run sheet PDF: furnace, sinter profile, trays and units, load against the limit, cautions, sign-off; ?paper=a4|letter, A4 by default (every role)", { query: pdfPaper.paperQuerySchema }),
+  op("GET", "/api/furnace-runs/[id]/labels", "shop:read", "a PDF sheet of unit labels, one per unit on the run, each with a QR code to the unit page; ?paper=a4|letter, A4 by default (every role)", { query: pdfPaper.paperQuerySchema }),
   op("POST", "/api/furnace-runs/[id]/cancel", "furnace:write", "cancel a draft or scheduled run; its units wait again (furnace operator, admin)", { body: batchesSchemas.cancelSchema }),
   op("PATCH", "/api/furnace-runs/[id]/schedule", "furnace:write", "book or move a run on a furnace lane; its length is the profile's cycle, a resize is refused (furnace operator, admin)", { body: batchesSchemas.scheduleFurnaceRunSchema }),
   op("POST", "/api/furnace-runs/[id]/start", "furnace:operate", "loading checklist ticked, the run starts now (inside staffed hours); units become sintering (furnace operator, admin)", { body: batchesSchemas.startRunSchema }),

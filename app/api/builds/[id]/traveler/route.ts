@@ -1,8 +1,9 @@
 import { getDb } from "@/db/client";
 import { getBuildDetail } from "@/db/builds/reads";
 import { requireUser } from "@/app/_server/session";
-import { getEnv } from "@/lib/env";
 import { toErrorResponse } from "@/app/_server/errors";
+import { printedPageUrl } from "@/app/_server/pdf-documents";
+import { pageFor } from "@/lib/scan/codes";
 import { travelerPdf } from "@/lib/builds/traveler";
 import type { PlateLayout } from "@/lib/builds/plate";
 import { readId, type IdContext } from "../../_helpers";
@@ -13,10 +14,9 @@ export async function GET(req: Request, ctx: IdContext) {
     await requireUser("shop:read");
     const id = await readId(ctx, "Build");
     const d = await getBuildDetail(getDb(), id);
-    const base = getEnv().APP_URL || new URL(req.url).origin;
     const pdf = await travelerPdf({
       shop_name: d.shop_name,
-      url: `${base.replace(/\/$/, "")}/builds/${id}`,
+      url: printedPageUrl(req, pageFor("build", id)),
       build: {
         code: d.build.code,
         state: d.build.state,
