@@ -86,7 +86,7 @@ export const API_OPERATIONS: readonly ApiOperation[] = [
   op("GET", "/api/finishing/[id]", "shop:read", "one unit's finishing card with its inspections (every role)", { answers: ["inspections","unit"] }),
   op("POST", "/api/finishing/[id]", "finishing:write", "accept, finish, scrap (failed inspection), hold or release a unit, at the version seen (machinist, admin)", { body: finishingSchemas.finishingActionSchema, answers: ["unit"] }),
   op("GET", "/api/floor", "shop:read", "lanes (printers, wash stations, furnaces), bookings and maintenance in the visible window (every role)", { query: floorSchemas.floorWindowSchema }),
-  op("GET", "/api/floor/unscheduled", "shop:read", "draft builds with every printer's verdict and print time (every role)", { answers: ["builds"] }),
+  op("GET", "/api/floor/unscheduled", "shop:read", "draft builds with every printer's verdict and print time, as { builds } (every role)"),
   op("GET", "/api/furnace-runs", "shop:read", "booked furnace runs touching a window, for the furnace lanes (every role)", { query: batchesWindow.windowSchema, answers: ["furnace_runs"] }),
   op("POST", "/api/furnace-runs", "furnace:write", "open an empty draft run on a furnace with one sinter profile (furnace operator, admin)", { body: batchesSchemas.createFurnaceRunSchema, status: 201 }),
   op("GET", "/api/furnace-runs/[id]", "shop:read", "a run with its profile curve, tray layout, checklist and unit outcomes (every role)"),
