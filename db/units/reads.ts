@@ -1,3 +1,4 @@
+import type { PrintedUnit } from "@/lib/pdf/printed-unit";
 import { sql } from "kysely";
 import type { Database } from "@/db/client";
 import type { ListUnits } from "@/lib/parts/schemas";
@@ -179,16 +180,8 @@ export async function projectionsForOrders(db: Database, orderIds: string[], ctx
 
 // Labels ----------------------------------------------------------------------------------------
 
-export type UnitLabelRow = {
+export type UnitLabelRow = PrintedUnit & {
   id: string;
-  serial: string;
-  part_number: string;
-  revision: string;
-  part_name: string;
-  order_code: string;
-  customer: string;
-  material_code: string;
-  material_name: string;
 };
 
 /** The units of one build or one furnace run, in serial order, with what their labels print. */

@@ -1,3 +1,4 @@
+import type { PrintedUnit } from "./printed-unit";
 import { PDFDocument } from "pdf-lib";
 import type { TrayRun } from "@/lib/packing/types";
 import { cautionsFor, CAUTION_DEFERENCE } from "@/lib/safety/cautions";
@@ -10,16 +11,8 @@ import { codeLines, embedShopFonts, fitText, wrapText, type FontBytes } from "./
 // and sinter profile, the trays with every unit on them, the load against the furnace's limit,
 // the usual cautions (lib/safety/cautions.ts, the words the run page shows) and room to sign.
 
-export type RunSheetUnit = {
+export type RunSheetUnit = PrintedUnit & {
   id: string;
-  serial: string;
-  part_number: string;
-  revision: string;
-  part_name: string;
-  order_code: string;
-  customer: string;
-  material_code: string;
-  material_name: string;
   green_mass_g: number | null;
   /** Best mass known for the load: brown weighing, else green weighing, else an estimate. */
   mass_g: number;

@@ -1,3 +1,4 @@
+import type { PrintedUnit } from "./printed-unit";
 import { PDFDocument } from "pdf-lib";
 import { drawQr } from "@/lib/builds/traveler";
 import { LINE, INK, MUTED, CLAY } from "./page-flow";
@@ -10,16 +11,8 @@ import { codeLines, embedShopFonts, fitText, type FontBytes } from "./shop-fonts
 // Letter, the grid of common 2-across label sheets (common practice, no published source);
 // thin cut lines help where plain paper is used.
 
-export type UnitLabel = {
+export type UnitLabel = PrintedUnit & {
   url: string;
-  serial: string;
-  part_number: string;
-  revision: string;
-  part_name: string;
-  order_code: string;
-  customer: string;
-  material_code: string;
-  material_name: string;
 };
 
 export type UnitLabelsInput = { title: string; paper: Paper; printed_at: Date; labels: UnitLabel[] };
