@@ -27,8 +27,23 @@ const STATUS: Record<ErrorCode, number> = {
 
 export type FieldErrors = Record<string, string[]>;
 
+// One process holds two copies of this module: the web server's own (scripts/serve.ts, which
+// answers the shared reads directly) and the one Next.js bundled into the route handlers. They
+// share one cache of loads (lib/floor/window-cache.ts), so a route handler can receive an
+// AppError made by the other copy, which a plain `instanceof` does not recognise and would turn
+// into a 500. A brand registered process-wide (Symbol.for) is recognised by both copies.
+const APP_ERROR = Symbol.for("hearth.app-error");
+
 export class AppError extends Error {
   readonly status: number;
+  readonly [APP_ERROR] = true;
+
+  static [Symbol.hasInstance](value: unknown): boolean {
+    // Subclasses (ComputationError) keep the ordinary prototype check.
+    if (this !== AppError) return Function.prototype[Symbol.hasInstance].call(this, value);
+    return typeof value === "object" && value !== null && (value as { [APP_ERROR]?: unknown })[APP_ERROR] === true;
+  }
+
   constructor(
     readonly code: ErrorCode,
     message: string,

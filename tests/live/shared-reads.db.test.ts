@@ -231,4 +231,14 @@ describe("entity tags", () => {
     const r = await read(urlA, "/api/units/00000000-0000-4000-8000-000000000000/trace", manager);
     expect(r.status).toBe(404);
   });
+
+  it("many people asking at once for an unknown unit's trace all get 404, none a 500", async () => {
+    // The web server's direct path and the route handler share one load, and the load's error is
+    // made by whichever copy of the code started it; both must still read it as a 404.
+    for (let round = 0; round < 5; round += 1) {
+      const path = `/api/units/${crypto.randomUUID()}/trace`;
+      const answers = await Promise.all(Array.from({ length: 12 }, (_, i) => read(urlA, path, i % 2 ? manager : tech)));
+      expect(answers.map((a) => a.status)).toEqual(answers.map(() => 404));
+    }
+  });
 });
