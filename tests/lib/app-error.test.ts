@@ -19,7 +19,7 @@ describe("AppError across module copies", () => {
     const { AppError, ComputationError } = await import("@/lib/errors");
     expect(new Error("x") instanceof AppError).toBe(false);
     expect({ code: "not_found", status: 404, name: "AppError" } instanceof AppError).toBe(false);
-    expect(null instanceof AppError).toBe(false);
+    expect((null as unknown as object) instanceof AppError).toBe(false);
     expect(new ComputationError("bad", "x") instanceof AppError).toBe(true);
     expect(new AppError("invalid", "bad") instanceof ComputationError).toBe(false);
     expect(new ComputationError("bad", "x") instanceof ComputationError).toBe(true);
