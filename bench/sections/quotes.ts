@@ -38,7 +38,6 @@ function context(now: number): QuoteContext {
     furnaces: furnaceSpecs.map((spec) => ({ spec, name: spec.id, busy: open_runs.filter((r) => r.furnace_id === spec.id).map((r) => [r.starts_at, r.ends_at] as [number, number]), cycles: { [PROFILE]: 1440 } })),
     open_runs,
     tray_clearance_mm: 5,
-    finishing_lead_minutes: 2880,
     // Three machinists; the 600 units of the open runs queue for finishing as their runs end,
     // 120 machinist-minutes each, and 60 units are waiting now. The quoted lot is released after
     // the printers' backlog, when this queue has been worked off: the queue is walked in full

@@ -58,7 +58,7 @@ export function ShopSettingsForm({ settings }: ShopSettingsFormProps) {
           {errors.time_zone ? <span className="text-oxide-700">{errors.time_zone[0]}</span> : <span className="text-2xs text-soot-500">IANA name; times are shown in it</span>}
         </label>
         {num("drying_minutes", "Drying after wash", "min", "before a brown part may go in a furnace")}
-        {num("finishing_lead_minutes", "Finishing lead time", "min", "from sintered to done, for projections")}
+        {num("finishing_lead_minutes", "Finishing lead time", "min", "sintered to done, for projections; quote dates plan the machinists' queue and work instead")}
         {num("at_risk_margin_minutes", "At-risk margin", "min", "projected within this of the due date")}
         {num("plate_clearance_mm", "Build-plate clearance", "mm", "between parts and from the plate edge")}
         {num("tray_clearance_mm", "Tray clearance", "mm", "between parts and from the tray edge")}

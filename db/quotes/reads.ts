@@ -109,7 +109,7 @@ async function equipmentRateMaps(db: Db): Promise<{ printer_rates: Map<string, n
 }
 
 /** Active machinists and the finishing work released to them or coming from booked furnace runs. */
-export async function loadFinishingQueue(db: Db, now: Date, leadMinutes: number, staffed: StaffedHours | null, minPerCm2: number) {
+export async function loadFinishingQueue(db: Db, now: Date, staffed: StaffedHours | null, minPerCm2: number) {
   const [lanes, rows] = await Promise.all([
     db.selectFrom("users").select(sql<number>`count(*)`.as("n")).where("role", "=", "machinist").where("active", "=", true).executeTakeFirstOrThrow(),
     db
@@ -138,7 +138,7 @@ export async function loadFinishingQueue(db: Db, now: Date, leadMinutes: number,
       numOrNull(r.target_ra_um), numOrNull(r.tolerance_um), minPerCm2,
     ),
   }));
-  return { lanes: Math.max(1, Number(lanes.n)), queue: finishingQueue(units, now.getTime(), leadMinutes, staffed) };
+  return { lanes: Math.max(1, Number(lanes.n)), queue: finishingQueue(units, now.getTime(), staffed) };
 }
 
 /** Units with a verdict per material: done (good) or scrapped at any step. */
@@ -243,7 +243,7 @@ export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteC
     listFurnaceRuns(db, ctx, { states: ["scheduled"] }),
   ]);
   const [finishing, finishingRatioList] = await Promise.all([
-    loadFinishingQueue(db, now, ctx.finishing_lead_minutes, staffed, settings.finishing_min_per_cm2),
+    loadFinishingQueue(db, now, staffed, settings.finishing_min_per_cm2),
     finishingRatios(db, settings.finishing_min_per_cm2),
   ]);
   const intervals = (rows: { id: string | null; starts_at: Date | null; ends_at: Date | null }[], id: string): [number, number][] =>
@@ -296,7 +296,6 @@ export async function loadQuoteContext(db: Db, now = new Date()): Promise<QuoteC
     })),
     open_runs,
     tray_clearance_mm: ctx.clearance_mm,
-    finishing_lead_minutes: ctx.finishing_lead_minutes,
     finishing_lanes: finishing.lanes,
     finishing_queue: finishing.queue,
     spread,

@@ -1,6 +1,7 @@
 // The machinists' queue as a promise sees it: units already out of the furnace wait now; units
-// in a booked furnace run are released when the run ends (unloaded in staffed hours) plus the
-// shop's lead time, the same release a quoted lot gets (lib/quotes/promise.ts). Units whose run
+// in a booked furnace run are released when the run is unloaded (the next staffed instant after
+// it ends), the same release a quoted lot gets (lib/quotes/promise.ts). No lead time is added:
+// the queue and each unit's own work are what stand between unloading and done. Units whose run
 // is not booked yet have no release time and are left out: they will queue behind a promise
 // made today. Held units are not worked and are left out as well.
 
@@ -17,7 +18,7 @@ export type QueuedUnit = {
 };
 
 /** Finishing jobs grouped by release instant, in release order. */
-export function finishingQueue(units: QueuedUnit[], now: number, leadMinutes: number, staffed: StaffedHours | null): FinishingJob[] {
+export function finishingQueue(units: QueuedUnit[], now: number, staffed: StaffedHours | null): FinishingJob[] {
   const cal = staffed ? new StaffedCalendar(staffed, now) : null;
   const byRelease = new Map<number, number>();
   for (const u of units) {
@@ -25,8 +26,7 @@ export function finishingQueue(units: QueuedUnit[], now: number, leadMinutes: nu
     let release: number;
     if (u.released) release = now;
     else if (u.run_ends_at !== null) {
-      const unloaded = cal ? cal.nextStart(Math.max(u.run_ends_at, now)) : Math.max(u.run_ends_at, now);
-      release = unloaded + leadMinutes * 60_000;
+      release = cal ? cal.nextStart(Math.max(u.run_ends_at, now)) : Math.max(u.run_ends_at, now);
     } else continue;
     byRelease.set(release, (byRelease.get(release) ?? 0) + u.minutes);
   }

@@ -9,10 +9,12 @@
 //            and end no later than a new run would (lib/packing canAddToRun), the rest go into
 //            new runs packed with packTrays, each on the furnace where it ends first; unloaded in
 //            staffed hours;
-//   finishing – released after the lead time; the machinists work their queue first come,
+//   finishing – released when unloaded; the machinists work their queue first come,
 //            first served in staffed hours: every unit already released before this lot (units
 //            waiting or being finished, units in booked furnace runs that end earlier) is
-//            finished first, then this lot's units, a machinist on each unit.
+//            finished first, then this lot's units, a machinist on each unit. The shop's
+//            "finishing lead time" (sintered to done, for the projections that do not plan the
+//            machinists) is not added here: the queue and the work are that span, counted once.
 // Every step ends at the earliest time its resources allow, so adding bookings or queued
 // finishing work can only move a step later (the monotonicity the tests check).
 
@@ -64,7 +66,6 @@ export type PromiseShop = {
   furnaces: PromiseFurnace[];
   open_runs: PromiseOpenRun[];
   tray_clearance_mm: number;
-  finishing_lead_minutes: number;
   /** Machinists who finish in parallel during staffed hours (at least 1 is assumed). */
   finishing_lanes: number;
   /** Finishing work released to the machinists or on its way from booked furnace runs. */
@@ -340,7 +341,7 @@ function plan(input: PromiseInput): PromiseResult {
   const unloaded = Math.max(...furnaceSteps.map((s) => nextStart(Date.parse(s.end))));
 
   // Finishing ------------------------------------------------------------------------------
-  const release = unloaded + input.finishing_lead_minutes * MIN;
+  const release = unloaded;
   const lanes = Math.max(1, Math.floor(input.finishing_lanes));
   const work = (t: number, minutes: number) => (cal ? cal.addWork(t, minutes * MIN) : t + minutes * MIN);
   // The machinists as one pool working `lanes` minutes per staffed minute, first come first

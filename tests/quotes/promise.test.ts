@@ -28,7 +28,6 @@ function base(overrides: Partial<PromiseInput> = {}): PromiseInput {
     furnaces: [{ spec: { id: "F1", tray_mm: [300, 200], tray_count: 2, usable_height_mm: 100, max_load_g: 20_000, profiles: [PROFILE] }, name: "F1", busy: [[NOW + 60 * H, NOW + 80 * H]], cycles: { [PROFILE]: 1200 } }],
     open_runs: [],
     tray_clearance_mm: 5,
-    finishing_lead_minutes: 1440,
     finishing_lanes: 1,
     finishing_queue: [],
     spread: { print: { p90_ratio: 1.2, samples: 10, source: "history" }, wash: { p90_ratio: 1.1, samples: 10, source: "history" }, furnace: { p90_ratio: 1.05, samples: 10, source: "history" }, finishing: { p90_ratio: 1.25, samples: 0, source: "fallback" } },
@@ -137,10 +136,12 @@ describe("capable-to-promise", () => {
   });
 
   it("a full finishing queue pushes the date, by the hours worked off first", () => {
-    // Without a queue: the furnace run ends Fri 11 Dec 12:00, the lot is released 24 h later
-    // (Sat 12:00), the next shift is Mon 14 Dec 06:00, and 9 units × 10 min = 90 min end at 07:30.
+    // Without a queue: the furnace run ends Fri 11 Dec 12:00, inside the shift (06:00–22:00), so it
+    // is unloaded and released to the machinists then; 9 units × 10 min = 90 min end at 13:30.
+    // The shop's finishing lead time (1440 min in the seed) is not added on top: that span is
+    // the queue and the work themselves, counted once.
     const plain = planPromise(base());
-    expect(plain.feasible && plain.completion).toBe("2026-12-14T07:30:00.000Z");
+    expect(plain.feasible && plain.completion).toBe("2026-12-11T13:30:00.000Z");
     // 120 h of work waiting now (Mon 7 Dec 08:00) for one machinist, 06:00–22:00 on weekdays:
     // Mon 14 h + Tue–Fri 4 × 16 h = 78 h by Fri 22:00; Mon 14 Dec 16 h → 94 h; Tue 16 h → 110 h;
     // the last 10 h end Wed 16 Dec 16:00. The lot then starts and ends 90 min later, 17:30.
@@ -151,17 +152,19 @@ describe("capable-to-promise", () => {
     expect(fin.start).toBe("2026-12-16T16:00:00.000Z");
     expect(full.completion).toBe("2026-12-16T17:30:00.000Z");
     expect(fin.label).toBe("Finish 9 (1 machinist; 120.0 h queued ahead)");
-    // The wait is the queue's: Mon 06:00 → Wed 16:00 = 58 h, and it is the furnace run's slack now.
-    expect(full.finishing).toMatchObject({ wait_min: 58 * 60, queued_ahead_min: 7200, lanes: 1 });
+    // The wait is the queue's: Fri 11 Dec 12:00 → Wed 16 Dec 16:00 = 5 days 4 h = 124 h, and it
+    // is the furnace run's slack now.
+    expect(full.finishing).toMatchObject({ wait_min: 124 * 60, queued_ahead_min: 7200, lanes: 1 });
     for (const s of full.steps.filter((x) => x.kind === "furnace")) {
-      expect(s.slack_min).toBe(58 * 60);
+      expect(s.slack_min).toBe(124 * 60);
       expect(s.critical).toBe(false);
     }
     expect(full.critical_path).toEqual([fin.label]);
     // Two machinists work the 120 h off as 60 h: Mon 14 h + Tue 16 h + Wed 16 h = 46 h, the
-    // last 14 h end Thu 10 Dec 20:00, before the lot's release; ⌈9 / 2⌉ = 5 units × 10 min = 50 min.
+    // last 14 h end Thu 10 Dec 20:00, before the lot's release (Fri 12:00); ⌈9 / 2⌉ = 5 units
+    // × 10 min = 50 min, so Fri 11 Dec 12:50.
     const two = planPromise(base({ finishing_queue: [{ release: NOW, minutes: 120 * 60 }], finishing_lanes: 2 }));
-    expect(two.feasible && two.completion).toBe("2026-12-14T06:50:00.000Z");
+    expect(two.feasible && two.completion).toBe("2026-12-11T12:50:00.000Z");
   });
 
   it("says so when the finishing queue alone runs past the horizon", () => {
@@ -172,8 +175,8 @@ describe("capable-to-promise", () => {
   });
 
   it("work released after the lot does not hold it up (first come, first served)", () => {
-    const later = planPromise(base({ finishing_queue: [{ release: Date.parse("2026-12-14T06:00:00Z"), minutes: 100 * 60 }] }));
-    expect(later.feasible && later.completion).toBe("2026-12-14T07:30:00.000Z");
+    const later = planPromise(base({ finishing_queue: [{ release: Date.parse("2026-12-11T12:00:01Z"), minutes: 100 * 60 }] }));
+    expect(later.feasible && later.completion).toBe("2026-12-11T13:30:00.000Z");
   });
 
   it("says so when the line cannot fit before the horizon", () => {
@@ -223,8 +226,8 @@ describe("capable-to-promise", () => {
 });
 
 describe("the finishing queue a promise plans behind", () => {
-  it("releases waiting units now and units in booked runs at the unload plus the lead time, grouped", () => {
-    // A run ending Sat 12 Dec 10:00 is unloaded at the next shift, Mon 14 Dec 06:00, and released 1440 min later.
+  it("releases waiting units now and units in booked runs when they are unloaded, grouped", () => {
+    // A run ending Sat 12 Dec 10:00 is unloaded, and its units released, at the next shift: Mon 14 Dec 06:00.
     const runEnd = Date.parse("2026-12-12T10:00:00Z");
     const jobs = finishingQueue(
       [
@@ -236,12 +239,11 @@ describe("the finishing queue a promise plans behind", () => {
         { released: true, run_ends_at: null, minutes: 0 }, // nothing to finish
       ],
       NOW,
-      1440,
       staffed,
     );
     expect(jobs).toEqual([
       { release: NOW, minutes: 45 },
-      { release: Date.parse("2026-12-15T06:00:00Z"), minutes: 45 },
+      { release: Date.parse("2026-12-14T06:00:00Z"), minutes: 45 },
     ]);
   });
 });
