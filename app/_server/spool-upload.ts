@@ -28,6 +28,14 @@ export type SpooledUpload = {
 export async function spoolUpload(req: Request, opts: { maxBytes: number; keepBytes: number; tooLarge: () => Error }): Promise<SpooledUpload> {
   const declared = Number(req.headers.get("content-length") ?? "NaN");
   if (Number.isFinite(declared) && declared > opts.maxBytes) throw opts.tooLarge();
+  return spoolChunks(webChunks(req.body), opts);
+}
+
+/**
+ * Writes any stream of chunks (a raw request body, one file of a multipart form) to a temporary
+ * file, refusing with `tooLarge()` the moment it passes `maxBytes`; nothing is left on disk then.
+ */
+export async function spoolChunks(chunks: AsyncIterable<Uint8Array>, opts: { maxBytes: number; keepBytes: number; tooLarge: () => Error }): Promise<SpooledUpload> {
   const file = path.join(os.tmpdir(), `hearth-upload-${randomUUID()}`);
   const dispose = () => rm(file, { force: true });
   const out = createWriteStream(file, { mode: 0o600 });
@@ -38,16 +46,10 @@ export async function spoolUpload(req: Request, opts: { maxBytes: number; keepBy
   let head: Uint8Array = new Uint8Array(0);
   let tail: Uint8Array = new Uint8Array(0);
   try {
-    const reader = req.body?.getReader();
-    for (;;) {
-      if (!reader) break;
-      const { done, value } = await reader.read();
-      if (done) break;
+    for await (const value of chunks) {
       size += value.byteLength;
-      if (size > opts.maxBytes) {
-        await reader.cancel().catch(() => {});
-        throw opts.tooLarge();
-      }
+      // Leaving the loop early ends the source (its reader is cancelled, its stream destroyed).
+      if (size > opts.maxBytes) throw opts.tooLarge();
       hash.update(value);
       if (head.length < HEAD_BYTES) head = concat(head, value.subarray(0, HEAD_BYTES - head.length));
       tail = value.byteLength >= TAIL_BYTES ? value.slice(value.byteLength - TAIL_BYTES) : concat(tail, value).slice(-TAIL_BYTES);
@@ -77,6 +79,20 @@ export async function spoolUpload(req: Request, opts: { maxBytes: number; keepBy
     open: () => createReadStream(file),
     dispose,
   };
+}
+
+async function* webChunks(body: ReadableStream<Uint8Array> | null): AsyncGenerator<Uint8Array> {
+  if (!body) return;
+  const reader = body.getReader();
+  try {
+    for (;;) {
+      const { done, value } = await reader.read();
+      if (done) return;
+      yield value;
+    }
+  } finally {
+    await reader.cancel().catch(() => {});
+  }
 }
 
 function concat(...parts: Uint8Array[]): Uint8Array {

@@ -1,3 +1,4 @@
+import { createHash, randomBytes } from "node:crypto";
 import http from "node:http";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { testDb } from "../helpers/db";
@@ -188,6 +189,46 @@ describe("attachments", () => {
 
     const list = await api(`/api/inspections?unit_id=${unit.id}`, { cookie: machinist });
     expect(list.body.inspections[0].files.map((f: { content_type: string }) => f.content_type).sort()).toEqual(["application/pdf", "image/png"]);
+  });
+
+  it("a photo near the 15 MB limit is streamed through to storage byte for byte, with its SHA-256 (node:crypto) recorded", async () => {
+    const { unit } = await readyUnit(db);
+    const saved = await inspect({ unit_id: unit.id, version: 1, units: "mm", passed: true, finished: { x: 25 } });
+    // A PNG signature, then 14.5 MB of random bytes: the route checks the first bytes, then stores the rest untouched.
+    const big = Buffer.concat([PNG_1X1.subarray(0, 8), randomBytes(14.5 * 1024 * 1024)]);
+    const form = new FormData();
+    form.append("note", "a text field before the file is read past");
+    form.append("file", new Blob([new Uint8Array(big)], { type: "image/png" }), "whole plate.png");
+    const res = await fetch(`${appUrl()}/api/inspections/${saved.body.id}/files`, { method: "POST", body: form, headers: { cookie: machinist } });
+    const body = await res.json();
+    expect(res.status, JSON.stringify(body)).toBe(201);
+    expect(body.size_bytes).toBe(big.byteLength);
+    const row = await db.selectFrom("files").select(["sha256", "size_bytes"]).where("id", "=", body.id).executeTakeFirstOrThrow();
+    expect(row.sha256).toBe(createHash("sha256").update(big).digest("hex"));
+    expect(Number(row.size_bytes)).toBe(big.byteLength);
+    const back = await fetch(`${appUrl()}${body.url}`, { headers: { cookie: technician } });
+    expect(back.status).toBe(200);
+    expect(Buffer.from(await back.arrayBuffer()).equals(big)).toBe(true);
+  });
+
+  it("a body that is not a form, or a form without the file, is refused naming the field; nothing stored", async () => {
+    const { unit } = await readyUnit(db);
+    const saved = await inspect({ unit_id: unit.id, version: 1, units: "mm", passed: true, finished: { x: 25 } });
+    const url = `${appUrl()}/api/inspections/${saved.body.id}/files`;
+    const before = await db.selectFrom("files").select((eb) => eb.fn.countAll<number>().as("n")).executeTakeFirstOrThrow();
+    const raw = await fetch(url, { method: "POST", body: PNG_1X1, headers: { cookie: machinist, "content-type": "image/png" } });
+    expect(raw.status).toBe(400);
+    expect((await raw.json()).error.fieldErrors.file).toBeDefined();
+    const empty = new FormData();
+    empty.append("photo", new Blob([new Uint8Array(PNG_1X1)], { type: "image/png" }), "a.png");
+    const wrongField = await fetch(url, { method: "POST", body: empty, headers: { cookie: machinist } });
+    expect(wrongField.status).toBe(422);
+    expect((await wrongField.json()).error.fieldErrors.file).toBeDefined();
+    // Cut short: the closing boundary never comes.
+    const cut = await fetch(url, { method: "POST", body: "--b\r\ncontent-disposition: form-data; name=\"file\"; filename=\"a.png\"\r\ncontent-type: image/png\r\n\r\n\x89PNG", headers: { cookie: machinist, "content-type": "multipart/form-data; boundary=b" } });
+    expect(cut.status).toBe(400);
+    const after = await db.selectFrom("files").select((eb) => eb.fn.countAll<number>().as("n")).executeTakeFirstOrThrow();
+    expect(Number(after.n)).toBe(Number(before.n));
   });
 
   it("an oversized form sent without a Content-Length (chunked, as a phone may) is cut off at the limit: 413 naming the field, nothing stored", async () => {
