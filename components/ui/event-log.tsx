@@ -1,4 +1,5 @@
 import Link from "next/link";
+import { FilterDisclosure } from "@/components/ui/filter-disclosure";
 
 // The markup the activity log and the security log share: a plain GET filter form (so that the
 // filters live in the address and a CSV link can carry them) and a list of events, one row each
@@ -7,12 +8,20 @@ import Link from "next/link";
 export const filterInputCls = "mt-1 block min-h-11 w-full rounded-md border border-soot-200 bg-white px-2.5 py-2 text-sm";
 const labelCls = "text-sm font-medium text-soot-700";
 
-export type LogFilterFormProps = { label: string; clearHref: string; className: string; children: React.ReactNode };
+export type LogFilterFormProps = {
+  label: string;
+  clearHref: string;
+  className: string;
+  /** The filters in force, in words ("Record type: Build"), for the folded form's summary on a phone. */
+  active: string[];
+  children: React.ReactNode;
+};
 
-/** The filter form with its Filter and Clear buttons after the given fields. */
-export function LogFilterForm({ label, clearHref, className, children }: LogFilterFormProps) {
+/** The filter form with its Filter and Clear buttons after the given fields, folded on a phone. */
+export function LogFilterForm({ label, clearHref, className, active, children }: LogFilterFormProps) {
   return (
-    <form method="get" className={`grid items-end gap-3 rounded-card border border-soot-200 bg-white p-4 ${className}`} aria-label={label}>
+    <FilterDisclosure title="Filters" active={active}>
+      <form method="get" className={`grid items-end gap-3 p-4 ${className}`} aria-label={label}>
       {children}
       <div className="flex items-end gap-2">
         <button type="submit" className="min-h-11 rounded-md bg-clay-600 px-3.5 py-2 text-sm font-semibold text-white hover:bg-clay-700">
@@ -22,8 +31,14 @@ export function LogFilterForm({ label, clearHref, className, children }: LogFilt
           Clear
         </Link>
       </div>
-    </form>
+      </form>
+    </FilterDisclosure>
   );
+}
+
+/** The filled-in filters as "Label: value" for the folded form's summary. */
+export function activeFilters(entries: [label: string, value: string | undefined | null][]): string[] {
+  return entries.filter(([, v]) => v).map(([label, v]) => `${label}: ${v}`);
 }
 
 /** Who (part of a name or an e-mail address), and the UTC day range. */

@@ -47,6 +47,46 @@ describe("integration pages", () => {
     }
   }
 
+  it("/activity on a phone folds its filters behind a button that names the active ones; it opens by keyboard and touch", async () => {
+    const { page, close } = await check("manager", "phone", "/activity?entity=build&user=ada");
+    try {
+      const toggle = page.getByRole("button", { name: /^Filters/ });
+      expect(await toggle.getAttribute("aria-expanded")).toBe("false");
+      expect(await toggle.innerText()).toMatch(/Filters \(2\)[\s\S]*Record type: Build · Person: ada/);
+      const box = (await toggle.boundingBox())!;
+      expect(box.height).toBeGreaterThanOrEqual(44);
+      const form = page.getByRole("form", { name: "Filter the activity" });
+      expect(await form.isVisible()).toBe(false);
+      // The first event is on the first screen, not below the form.
+      const firstEvent = (await page.getByTestId("activity-events").boundingBox())!;
+      expect(firstEvent.y).toBeLessThan(844);
+      await toggle.focus();
+      await page.keyboard.press("Enter");
+      expect(await toggle.getAttribute("aria-expanded")).toBe("true");
+      expect(await form.isVisible()).toBe(true);
+      expect(await page.getByLabel("Person (name or e-mail)").inputValue()).toBe("ada");
+      expect((await axeViolations(page)).map((v) => v.id)).toEqual([]);
+      await screenshot(page, "phone-manager-activity-filters-open");
+      await toggle.tap();
+      expect(await form.isVisible()).toBe(false);
+    } finally {
+      await close();
+    }
+  }, 120_000);
+
+  it("/activity at tablet and desktop widths shows the filter form with no fold", async () => {
+    for (const width of ["tablet", "desktop"] as const) {
+      const { page, problems, close } = await check("manager", width, "/activity");
+      try {
+        expect(problems.join("\n")).toBe("");
+        expect(await page.getByRole("form", { name: "Filter the activity" }).isVisible()).toBe(true);
+        expect(await page.getByRole("button", { name: /^Filters/ }).isVisible()).toBe(false);
+      } finally {
+        await close();
+      }
+    }
+  }, 120_000);
+
   it("the API reference opens an operation from the keyboard and shows its body fields", async () => {
     const { page, close } = await check("admin", "desktop", "/setup/api");
     try {

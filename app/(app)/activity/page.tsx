@@ -3,7 +3,7 @@ import { connection } from "next/server";
 import { getDb } from "@/db/client";
 import { countActivity, getActivityRetention, listActivity } from "@/db/activity/reads";
 import { PageHeader } from "@/components/ui/page-header";
-import { EventLogList, EventLogRow, FilterSelect, LogFilterForm, PersonAndDaysFields, filterInputCls } from "@/components/ui/event-log";
+import { EventLogList, EventLogRow, FilterSelect, LogFilterForm, PersonAndDaysFields, activeFilters, filterInputCls } from "@/components/ui/event-log";
 import { RetentionForm } from "@/components/activity/retention-form";
 import { can } from "@/lib/auth/permissions";
 import { requirePageUser } from "@/app/_server/session";
@@ -53,7 +53,19 @@ export default async function ActivityPage({ searchParams }: { searchParams: Pro
           </p>
           {can(user.role, "setup:write") ? <RetentionForm retentionDays={retention} /> : null}
         </section>
-        <LogFilterForm label="Filter the activity" clearHref="/activity" className="sm:grid-cols-2 lg:grid-cols-3 xl:grid-cols-6">
+        <LogFilterForm
+          label="Filter the activity"
+          clearHref="/activity"
+          className="sm:grid-cols-2 lg:grid-cols-3 xl:grid-cols-6"
+          active={activeFilters([
+            ["Record type", f.entity ? (ACTIVITY_ENTITIES[f.entity as keyof typeof ACTIVITY_ENTITIES] ?? f.entity) : null],
+            ["Change", f.kind],
+            ["Person", f.user],
+            ["From", f.from],
+            ["To", f.to],
+            ["Record", f.record ? f.record.slice(0, 8) : null],
+          ])}
+        >
           <FilterSelect name="entity" label="Record type" value={f.entity} options={ACTIVITY_ENTITIES} />
           <label className="text-sm font-medium text-soot-700">
             Change (e.g. state, schedule)

@@ -3,7 +3,7 @@ import { connection } from "next/server";
 import { getDb } from "@/db/client";
 import { listSecurityEvents } from "@/db/auth/reads";
 import { PageHeader } from "@/components/ui/page-header";
-import { EventLogList, EventLogRow, FilterSelect, LogFilterForm, PersonAndDaysFields } from "@/components/ui/event-log";
+import { EventLogList, EventLogRow, FilterSelect, LogFilterForm, PersonAndDaysFields, activeFilters } from "@/components/ui/event-log";
 import { SECURITY_EVENT_LABELS, securityEventFilterSchema } from "@/lib/auth/security-events";
 import { requirePageUser } from "@/app/_server/session";
 
@@ -43,7 +43,12 @@ export default async function SecurityLogPage({ searchParams }: { searchParams: 
         }
       />
       <div className="space-y-4 px-4 py-6 sm:px-8">
-        <LogFilterForm label="Filter the log" clearHref="/setup/security" className="sm:grid-cols-2 lg:grid-cols-5">
+        <LogFilterForm
+          label="Filter the log"
+          clearHref="/setup/security"
+          className="sm:grid-cols-2 lg:grid-cols-5"
+          active={activeFilters([["Event", f.kind ? (SECURITY_EVENT_LABELS[f.kind] ?? f.kind) : null], ["Person", f.user], ["From", f.from], ["To", f.to]])}
+        >
           <FilterSelect name="kind" label="Event" value={f.kind} options={SECURITY_EVENT_LABELS} />
           <PersonAndDaysFields user={f.user} from={f.from} to={f.to} />
         </LogFilterForm>
