@@ -64,8 +64,12 @@ export async function spoolFormFile(req: Request, opts: FormFileOptions): Promis
     const fail = (err: unknown) => {
       if (settled) return;
       settled = true;
-      source.destroy();
-      counter.destroy();
+      // Stop reading, but leave the request itself alone: destroying it would take the socket
+      // down before the answer is out (the client sees EPIPE, not the 413). scripts/serve.ts
+      // closes such a connection after the answer, dropping the rest of the body.
+      source.unpipe(counter);
+      counter.unpipe(parser);
+      source.pause();
       parser.removeAllListeners("file");
       // A file half spooled is removed once its writer has stopped.
       spooling?.then((u) => u.dispose(), () => undefined);
