@@ -201,7 +201,7 @@ function UnitCard({ card, units, timeZone, canWrite, busy, onAction }: Omit<Card
       <header className="flex flex-wrap items-start justify-between gap-2">
         <div>
           <div className="flex items-center gap-2">
-            <Link href={`/finishing/${card.id}`} className="font-mono text-sm font-semibold text-clay-700 hover:underline">{card.serial}</Link>
+            <Link href={`/finishing/${card.id}`} className="tap-target inline-flex items-center font-mono text-sm font-semibold text-clay-700 hover:underline">{card.serial}</Link>
             <StateBadge state={card.state} />
           </div>
           <div className="mt-0.5 text-sm text-soot-800">
@@ -214,12 +214,12 @@ function UnitCard({ card, units, timeZone, canWrite, busy, onAction }: Omit<Card
         <div className="flex flex-col items-end gap-1 text-xs">
           {card.build ? (
             <span>
-              <a href={`/api/builds/${card.build.id}/traveler`} target="_blank" rel="noreferrer" className="text-clay-700 hover:underline">Traveler</a>
+              <a href={`/api/builds/${card.build.id}/traveler`} target="_blank" rel="noreferrer" className="tap-target inline-flex items-center text-clay-700 hover:underline">Traveler</a>
               {" · "}
-              <Link href={`/builds/${card.build.id}`} className="text-clay-700 hover:underline">build {card.build.code}</Link>
+              <Link href={`/builds/${card.build.id}`} className="tap-target inline-flex items-center text-clay-700 hover:underline">build {card.build.code}</Link>
             </span>
           ) : null}
-          <Link href={`/units/${card.id}`} className="text-clay-700 hover:underline">Trace</Link>
+          <Link href={`/units/${card.id}`} className="tap-target inline-flex items-center text-clay-700 hover:underline">Trace</Link>
         </div>
       </header>
       <div className="mt-3">
@@ -239,7 +239,7 @@ function UnitCard({ card, units, timeZone, canWrite, busy, onAction }: Omit<Card
             </button>
           ) : null}
           {card.state === "finishing" ? (
-            <Link href={`/finishing/${card.id}#inspect`} className="rounded-md border border-clay-500 px-3 py-1.5 text-sm font-semibold text-clay-700 hover:bg-clay-50">
+            <Link href={`/finishing/${card.id}#inspect`} className="tap-target inline-flex items-center rounded-md border border-clay-500 px-3 py-1.5 text-sm font-semibold text-clay-700 hover:bg-clay-50">
               Inspect
             </Link>
           ) : null}
@@ -249,7 +249,7 @@ function UnitCard({ card, units, timeZone, canWrite, busy, onAction }: Omit<Card
             </button>
           ) : null}
           {card.actions.includes("scrap") ? (
-            <Link href={`/finishing/${card.id}`} className="rounded-md border border-oxide-500/50 px-3 py-1.5 text-sm font-semibold text-oxide-700 hover:bg-oxide-100">
+            <Link href={`/finishing/${card.id}`} className="tap-target inline-flex items-center rounded-md border border-oxide-500/50 px-3 py-1.5 text-sm font-semibold text-oxide-700 hover:bg-oxide-100">
               Scrap or hold…
             </Link>
           ) : null}

@@ -4,6 +4,7 @@ import { appUrl, launchBrowser, screenshot } from "../helpers/browser";
 import { testDb } from "../helpers/db";
 import { DEMO } from "../helpers/session";
 import { makeMaterial, readyUnit, tag } from "./fixtures";
+import { WIDTHS } from "../helpers/viewports";
 
 // A machinist receives a unit that is ready for finishing, records an inspection in inches,
 // finishes the unit, and the material's calibration chart shows the new point.
@@ -28,6 +29,32 @@ async function signInAs(page: Page, email: string) {
 }
 
 describe("finishing in the browser", () => {
+  it("on a phone every link and button on a unit card in finishing is a 44 px touch target (WCAG 2.5.5)", async () => {
+    const material = await makeMaterial(db, `TCH-${tag()}`, { xy: 0.15, z: 0.17 });
+    const { unit } = await readyUnit(db, { materialId: material.id, part: { nominal: [25, 40, 12], green: [30, 47.65, 14.76] } });
+    const ctx = await browser.newContext({ ...WIDTHS.phone });
+    const page = await ctx.newPage();
+    try {
+      await signInAs(page, DEMO.machinist);
+      const card = page.locator(`[data-testid="finishing-card"][data-serial="${unit.serial}"]`);
+      await card.waitFor({ timeout: 60_000 });
+      await card.getByRole("button", { name: "Accept" }).tap();
+      await page.getByText(`${unit.serial}: now finishing.`).waitFor();
+      const inFinishing = page.locator('[data-testid="section-in-finishing"]').locator(`[data-serial="${unit.serial}"]`);
+      await inFinishing.getByRole("link", { name: "Inspect" }).waitFor();
+      const controls = inFinishing.locator("a, button");
+      const small: string[] = [];
+      for (let i = 0; i < (await controls.count()); i++) {
+        const box = await controls.nth(i).boundingBox();
+        if (box && box.height < 44) small.push(`${await controls.nth(i).innerText()}: ${Math.round(box.height)} px`);
+      }
+      await screenshot(page, "phone-machinist-finishing-card");
+      expect(small).toEqual([]);
+    } finally {
+      await ctx.close();
+    }
+  }, 120_000);
+
   it("accepts, inspects and finishes a unit; the calibration chart gains its point", async () => {
     const material = await makeMaterial(db, `BRW-${tag()}`, { xy: 0.15, z: 0.17 });
     // green 30.0 × 47.65 × 14.76 mm as printed; nominal 25 × 40 × 12 with 0.25 mm stock

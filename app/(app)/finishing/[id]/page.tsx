@@ -18,7 +18,7 @@ export default async function FinishingUnitPage({ params }: { params: Promise<{ 
       <PageHeader
         title="Finishing a unit"
         lead="Stock per face, the drawing's tolerance and Ra, and the inspection record."
-        actions={<Link href="/finishing" className="text-sm font-semibold text-clay-700 hover:underline">Back to the queue</Link>}
+        actions={<Link href="/finishing" className="inline-flex min-h-11 items-center text-sm font-semibold text-clay-700 hover:underline">Back to the queue</Link>}
       />
       <div className="space-y-5 px-4 md:px-8 py-6">
         <DustCaution />

@@ -34,7 +34,7 @@ export default async function FurnaceRunPage({ params }: { params: Promise<{ id:
           <a href={`/api/furnace-runs/${id}/labels`} target="_blank" rel="noreferrer" className="inline-flex min-h-11 items-center rounded-md border border-soot-300 bg-white px-3 text-sm text-soot-800 hover:bg-soot-50" data-testid="unit-labels-link">
             Unit labels (PDF)
           </a>
-          <Link href="/batches" className="rounded-md border border-soot-200 bg-white px-3 py-1.5 text-sm text-soot-700 hover:bg-soot-50">
+          <Link href="/batches" className="inline-flex min-h-11 items-center rounded-md border border-soot-200 bg-white px-3 text-sm text-soot-700 hover:bg-soot-50">
             Back to the board
           </Link>
           </>
