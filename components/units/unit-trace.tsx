@@ -71,7 +71,7 @@ function Inner({ unitId, units, timeZone, canAttach, role, initial }: UnitTraceP
       <NextStepCard
         title={t.unit.serial}
         subtitle={`${t.part.part_number} rev ${t.part.revision} · ${t.part.name} · ${t.material.code} · order ${t.order.code}`}
-        step={unitNextStep(role, t.unit, t.build, t.wash, t.furnace_run)}
+        step={unitNextStep(role, { ...t.unit, latest_inspection_passed: t.inspections[0]?.passed ?? null }, t.build, t.wash, t.furnace_run)}
         onDone={() => void trace.refetch()}
       />
       <header className="flex flex-wrap items-center gap-3">
@@ -85,7 +85,7 @@ function Inner({ unitId, units, timeZone, canAttach, role, initial }: UnitTraceP
         {t.unit.scrap_reason ? <span className="text-sm text-oxide-700">Scrapped ({t.unit.scrap_reason.replaceAll("_", " ")}): {t.unit.scrap_note}</span> : null}
         <LiveIndicator />
         {["ready_for_finishing", "finishing"].includes(t.unit.state) ? (
-          <Link href={`/finishing/${t.unit.id}`} className="ml-auto text-sm font-semibold text-clay-700 hover:underline">Open in finishing</Link>
+          <Link href={`/finishing/${t.unit.id}`} className="tap-target ml-auto inline-flex items-center text-sm font-semibold text-clay-700 hover:underline">Open in finishing</Link>
         ) : null}
       </header>
 

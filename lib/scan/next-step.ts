@@ -10,7 +10,14 @@ export type StepAction =
 
 export type NextStep = { where: string; primary: StepAction | null; secondary: StepAction[]; note?: string };
 
-export type StepUnit = { id: string; serial: string; state: string; version: number };
+export type StepUnit = {
+  id: string;
+  serial: string;
+  state: string;
+  version: number;
+  /** The newest inspection's verdict (null: none yet); a unit is finished only after a passed one (lib/finishing/transitions.ts). */
+  latest_inspection_passed?: boolean | null;
+};
 export type StepBuild = { id: string; code: string; state: string; version?: number; printer_name: string | null };
 export type StepRun = { id: string; code: string; state: string; furnace_name: string | null; unloaded_at: string | null };
 export type StepWash = { id: string; code: string; state: string; station_name: string | null };
@@ -45,12 +52,15 @@ export function unitNextStep(role: Role, u: StepUnit, build: StepBuild | null, w
     if (!can(role, "finishing:write")) return none("Nothing for finishing yet.");
     if (u.state === "ready_for_finishing")
       return { where, primary: { kind: "post", label: "Accept into finishing", url: finishingUrl, body: { action: "accept", version: u.version }, done: `${u.serial} accepted: it is in finishing.` }, secondary: [{ kind: "link", label: "Open in finishing", href: `/finishing/${u.id}` }] };
-    if (u.state === "finishing")
-      return {
-        where,
-        primary: { kind: "post", label: "Finish", url: finishingUrl, body: { action: "finish", version: u.version }, done: `${u.serial} finished.` },
-        secondary: [{ kind: "link", label: "Record an inspection with a photo", href: `/finishing/${u.id}#inspect` }],
-      };
+    if (u.state === "finishing") {
+      const inspect: StepAction = { kind: "link", label: "Record an inspection with a photo", href: `/finishing/${u.id}#inspect` };
+      // Finishing is refused until an inspection has passed: offering it first would only earn a refusal.
+      if (u.latest_inspection_passed)
+        return { where, primary: { kind: "post", label: "Finish", url: finishingUrl, body: { action: "finish", version: u.version }, done: `${u.serial} finished.` }, secondary: [{ ...inspect, label: "Record another inspection" }] };
+      if (u.latest_inspection_passed === false)
+        return { where, primary: { kind: "link", label: "Scrap, hold or inspect again", href: `/finishing/${u.id}` }, secondary: [inspect], note: "The last inspection failed." };
+      return { where, primary: inspect, secondary: [], note: "It can be marked finished once an inspection has passed." };
+    }
     return none(["sintering", "sintered"].includes(u.state) ? "On its way to finishing: it arrives after the furnace is unloaded." : "Not at finishing yet.");
   }
 

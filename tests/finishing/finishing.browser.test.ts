@@ -3,7 +3,7 @@ import type { Browser, Page } from "playwright-core";
 import { appUrl, launchBrowser, screenshot } from "../helpers/browser";
 import { testDb } from "../helpers/db";
 import { DEMO } from "../helpers/session";
-import { makeMaterial, readyUnit, tag } from "./fixtures";
+import { makeMaterial, PNG_1X1, readyUnit, tag } from "./fixtures";
 import { WIDTHS } from "../helpers/viewports";
 
 // A machinist receives a unit that is ready for finishing, records an inspection in inches,
@@ -54,6 +54,63 @@ describe("finishing in the browser", () => {
       await ctx.close();
     }
   }, 120_000);
+
+  it("on a phone, from a traveler's address while signed out: sign in, land on the unit, accept, inspect with a camera photo, finish — the next step never offers a refused finish", async () => {
+    const material = await makeMaterial(db, `TRV-${tag()}`, { xy: 0.15, z: 0.17 });
+    const { unit } = await readyUnit(db, { materialId: material.id, part: { nominal: [25, 40, 12], green: [30, 47.65, 14.76] } });
+    const ctx = await browser.newContext({ ...WIDTHS.phone });
+    const page = await ctx.newPage();
+    page.setDefaultTimeout(60_000);
+    try {
+      // The unit's QR code holds APP_URL + /units/<id>.
+      await page.goto(`${appUrl()}/units/${unit.id}`);
+      expect(new URL(page.url()).pathname).toBe("/sign-in");
+      await page.getByLabel("E-mail").fill(DEMO.machinist);
+      await page.getByLabel("Password").fill("hearth-demo");
+      await page.getByRole("button", { name: "Sign in" }).tap();
+      await page.waitForURL((u) => u.pathname === `/units/${unit.id}`);
+      const next = page.getByTestId("next-step");
+      await page.getByTestId("next-step-card").getByText(unit.serial).first().waitFor();
+      expect(await next.textContent()).toBe("Accept into finishing");
+      await next.tap();
+      await page.getByText(`${unit.serial} accepted: it is in finishing.`).waitFor();
+      // No inspection yet: the step is the inspection, not a finish the server would refuse.
+      await page.waitForFunction(() => document.querySelector('[data-testid="next-step"]')?.textContent === "Record an inspection with a photo");
+      await screenshot(page, "phone-machinist-unit-accepted");
+      await next.tap();
+      await page.waitForURL((u) => u.pathname === `/finishing/${unit.id}`);
+      await page.getByTestId("inspection-form").waitFor();
+      await page.getByLabel("As sintered X").fill("1.0050");
+      await page.getByLabel("As sintered Y").fill("1.6000");
+      await page.getByLabel("As sintered Z").fill("0.4820");
+      await page.getByLabel("Finished X").fill("0.9843");
+      await page.getByLabel("Pass").check();
+      await page.getByRole("button", { name: "Save inspection" }).tap();
+      await page.getByTestId("unit-flash").getByText("Inspection saved").waitFor();
+      // The rear camera's input: a photo taken on the phone goes through the streamed upload.
+      const photo = Buffer.concat([PNG_1X1, Buffer.alloc(200 * 1024, 7)]);
+      await page.getByTestId("inspection-camera").first().setInputFiles({ name: "bore.png", mimeType: "image/png", buffer: photo });
+      await page.getByTestId("inspection-list").getByText(/Photo · bore\.png/).waitFor();
+      await screenshot(page, "phone-machinist-inspection-photo");
+
+      await page.goto(`${appUrl()}/units/${unit.id}`);
+      await page.waitForFunction(() => document.querySelector('[data-testid="next-step"]')?.textContent === "Finish");
+      await next.tap();
+      await page.getByText(`${unit.serial} finished.`).waitFor();
+      const row = await db.selectFrom("units").select("state").where("id", "=", unit.id).executeTakeFirstOrThrow();
+      expect(row.state).toBe("done");
+      const file = await db
+        .selectFrom("inspection_files as f")
+        .innerJoin("inspections as i", "i.id", "f.inspection_id")
+        .innerJoin("files", "files.id", "f.file_id")
+        .select(["files.size_bytes"])
+        .where("i.unit_id", "=", unit.id)
+        .executeTakeFirstOrThrow();
+      expect(Number(file.size_bytes)).toBe(photo.byteLength);
+    } finally {
+      await ctx.close();
+    }
+  }, 180_000);
 
   it("accepts, inspects and finishes a unit; the calibration chart gains its point", async () => {
     const material = await makeMaterial(db, `BRW-${tag()}`, { xy: 0.15, z: 0.17 });
