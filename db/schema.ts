@@ -691,9 +691,9 @@ export interface WebhookDeliveries {
   endpoint_id: string;
   event_id: string;
   id: Generated<string>;
+  job_id: string | null;
   last_error: string | null;
   last_status: number | null;
-  lease_until: Timestamp | null;
   next_attempt_at: Generated<Timestamp>;
   state: Generated<WebhookDeliveryState>;
 }
