@@ -12,7 +12,8 @@ import { webhookConfig, webhookQueueOptions } from "@/worker/webhooks";
 import { hmacSha256Hex, signatureHeader, verifySignature } from "@/lib/integrations/webhook-signature";
 import { testDb } from "../helpers/db";
 import { DEMO, api, signIn } from "../helpers/session";
-import { spawnCollecting, type Spawned } from "../helpers/spare-stack";
+import { readFileSync } from "node:fs";
+import { spawnCollecting, stackLogDir, type Spawned } from "../helpers/spare-stack";
 
 const receiver = process.env.WEBHOOK_RECEIVER_URL ?? `http://127.0.0.1:${process.env.WEBHOOK_RECEIVER_PORT ?? 2527}`;
 const { db, close } = testDb();
@@ -219,7 +220,8 @@ describe("deliveries", () => {
 
   it("exactly one delivery per event with two worker processes, even with every job sent twice", { timeout: 90_000 }, async () => {
     const name = `wh-${stamp}-d`;
-    const ep = await register(name, ["order.created"], { delay_ms: 50 });
+    // a slow receiver keeps each worker's pollers busy, so that both workers take some of the jobs
+    const ep = await register(name, ["order.created"], { delay_ms: 300 });
     // a second real worker beside the stack's own, against the same database
     const root = path.resolve(import.meta.dirname, "../..");
     const second: Spawned = spawnCollecting(process.execPath, ["--import", "tsx", "worker/index.ts"], { cwd: root, env: { ...process.env, HEARTH_WORKER_POLL_SECONDS: "0.5" } });
@@ -247,6 +249,14 @@ describe("deliveries", () => {
       expect(got.every((d) => d.verified)).toBe(true);
       const rows = await db.selectFrom("webhook_deliveries").select(["state", "attempts"]).where("endpoint_id", "=", ep.id).execute();
       expect(rows.every((r) => r.state === "delivered" && r.attempts === 1)).toBe(true);
+      // both workers took jobs: each logs one line per job it ran (worker/job-log.ts)
+      const ids = (await sql<{ id: string }>`select id from pgboss.job where name = ${QUEUES.webhook} and data->>'delivery_id' = any(${deliveries.map((d) => d.id)}::text[])`.execute(db)).rows.map((r) => r.id);
+      const ran = (log: string) => ids.filter((id) => log.includes(`"job_id":"${id}"`)).length;
+      const bySecond = ran(second.output());
+      const byStack = ran(readFileSync(path.join(stackLogDir(), "worker.log"), "utf8"));
+      expect(bySecond, "jobs the second worker ran").toBeGreaterThan(0);
+      expect(byStack, "jobs the stack's worker ran").toBeGreaterThan(0);
+      expect(bySecond + byStack).toBe(24);
     } finally {
       await second.stop();
     }
