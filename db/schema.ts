@@ -694,6 +694,9 @@ export interface WebhookDeliveries {
   job_id: string | null;
   last_error: string | null;
   last_status: number | null;
+  /**
+   * After a failed attempt: the earliest time pg-boss retries it (its back-off adds up to as much again at random).
+   */
   next_attempt_at: Generated<Timestamp>;
   state: Generated<WebhookDeliveryState>;
 }
