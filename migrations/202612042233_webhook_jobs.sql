@@ -15,7 +15,7 @@
 --
 -- Before any worker has created the queue (a fresh database whose worker never started), there is
 -- no partition of pgboss.job to write to: the delivery is then kept without a job (job_id null),
--- with a warning, and the worker sends its job when it starts (db/jobs/webhooks.ts).
+-- with a warning, and the worker sends its job when it starts and at each sweep (db/jobs/webhooks.ts).
 
 -- The delivery claim pump and its lease are gone: one active pg-boss job per delivery replaces them.
 drop index if exists webhook_deliveries_due_idx;

@@ -64,8 +64,6 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
       logJobs(QUEUES.webhook, webhookHandler(db, boss, hooks, { quiet: cfg.quiet })),
     );
   }
-  const unqueued = await sendUnqueuedDeliveries(db, boss);
-  if (unqueued) console.log(`[worker] webhooks: sent jobs for ${unqueued} deliveries written before the queue existed`);
 
   const stopSweep = every(cfg.sweepSeconds, "sweep", async () => {
     const r = await runSweep(db, boss, workerId, { limit: cfg.sweepLimit });
@@ -75,6 +73,12 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
   });
   const stopPump = every(cfg.mailPumpSeconds, "outbox", async () => {
     await drainOutbox(db, 200);
+  });
+  // Deliveries written while the webhook queue did not exist yet (a fresh database before its
+  // first worker; the database warned) get their jobs now, and at each sweep after.
+  const stopUnqueued = every(cfg.sweepSeconds, "webhook jobs", async () => {
+    const n = await sendUnqueuedDeliveries(db, boss);
+    if (n) console.log(`[worker] webhooks: sent jobs for ${n} deliveries written before the queue existed`);
   });
   const stopOrphans = every(cfg.orphanSweepSeconds, "orphan sweep", async () => {
     const r = await sweepOrphanObjects(db, { minAgeSeconds: cfg.orphanMinAgeSeconds });
@@ -92,6 +96,6 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
     `[worker] sweep every ${cfg.sweepSeconds} s, outbox every ${cfg.mailPumpSeconds} s, polling ${cfg.pollSeconds} s, batch ${cfg.batchSize} × ${cfg.concurrency}`,
   );
   return async () => {
-    await Promise.all([stopSweep(), stopPump(), stopOrphans(), stopLate(), stopPrune()]);
+    await Promise.all([stopSweep(), stopPump(), stopUnqueued(), stopOrphans(), stopLate(), stopPrune()]);
   };
 }

@@ -10,7 +10,7 @@ import { QUEUES, type WebhookJob } from "@/lib/jobs/queues";
  * (a redelivery, a resumed endpoint), and notes each job on its delivery. The queue's own retry
  * settings apply (worker/jobs.ts sets them). A queue that does not exist yet (no worker has ever
  * started) makes send() return null: the delivery keeps no job and the worker sends it when it
- * starts (sendUnqueuedDeliveries).
+ * starts and at each sweep (sendUnqueuedDeliveries).
  */
 export async function sendWebhookJobs(boss: PgBoss, trx: Transaction<DB>, deliveryIds: string[]): Promise<number> {
   let sent = 0;

@@ -7,6 +7,7 @@ import PgBoss from "pg-boss";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { sql } from "kysely";
 import { inTrx } from "@/db/jobs/boss";
+import { sendUnqueuedDeliveries } from "@/db/jobs/webhooks";
 import { QUEUES } from "@/lib/jobs/queues";
 import { webhookConfig, webhookQueueOptions } from "@/worker/webhooks";
 import { hmacSha256Hex, signatureHeader, verifySignature } from "@/lib/integrations/webhook-signature";
@@ -300,6 +301,31 @@ describe("deliveries", () => {
     expect((await jobsOf(d.id)).map((j) => j.state)).toEqual(["completed", "completed"]);
     const stale = await api(`/api/webhooks/${ep.id}`, { method: "PATCH", cookie: admin, body: { version: paused.version, active: false } });
     expect(stale.status).toBe(409);
+  });
+
+  it("a delivery written before the queue existed gets its job from the worker's catch-up, and is sent", async () => {
+    const name = `wh-${stamp}-g`;
+    const ep = await register(name, ["order.created"]);
+    // as send_webhook_job leaves it when pgboss.queue has no deliver-webhook row yet: no job
+    const ev = await db.insertInto("webhook_events").values({ type: "order.created", entity: "order", entity_id: randomUUID(), payload: JSON.stringify({ code: `WH-${stamp}-G` }) }).returning("id").executeTakeFirstOrThrow();
+    const d = await db.insertInto("webhook_deliveries").values({ event_id: ev.id, endpoint_id: ep.id }).returning(["id", "job_id"]).executeTakeFirstOrThrow();
+    expect(d.job_id).toBeNull();
+    expect(await sendUnqueuedDeliveries(db, boss)).toBeGreaterThanOrEqual(1);
+    const [job] = await jobsOf(d.id);
+    expect(job).toBeDefined();
+    const got = await waitFor("the delivery", async () => {
+      const r = (await received(name)).filter((x) => x.event_id === ev.id);
+      return r.length ? r : undefined;
+    });
+    expect(got).toHaveLength(1);
+    const row = await waitFor("the log", async () => {
+      const r = await db.selectFrom("webhook_deliveries").selectAll().where("id", "=", d.id).executeTakeFirstOrThrow();
+      return r.state === "delivered" ? r : undefined;
+    });
+    expect(row.job_id).toBe(job.id);
+    // a second pass finds nothing left without a job for it
+    await sendUnqueuedDeliveries(db, boss);
+    expect(await jobsOf(d.id)).toHaveLength(1);
   });
 
   it("refuses a bad endpoint with field and reason", async () => {
