@@ -171,7 +171,7 @@ function trayWith(ctx: Ctx, run: RunState, t: number, add: readonly ItemModel[])
     f.W,
     f.D,
     items.map((it) => ({ w: it.pw + tol, h: it.ph + tol, mass: it.mass, ref: it })),
-    { tol, workBudget: ONE_TRAY_BUDGET },
+    { tol, workBudget: ONE_TRAY_BUDGET, stop: () => ctx.deadline !== Infinity && ctx.clock() > ctx.deadline },
   );
   ctx.work += Math.max(1, Math.round(res.work / ONE_TRAY_PER_WORK));
   if (!res.placements) return null;

@@ -180,6 +180,8 @@ export interface PackAllOptions {
   tol: number;
   /** Piece-group evaluations allowed, as in fillTrayExactly. */
   workBudget: number;
+  /** Asked every 256 nodes; true ends the search as if the budget were spent (a caller's deadline). */
+  stop?: () => boolean;
 }
 
 /**
@@ -224,11 +226,13 @@ export function packAllOnTray<T>(W: number, D: number, pieces: readonly TilePiec
   let remaining = pieces.length;
   const placed: TilePlacement<T>[] = [];
 
+  const budget = opts.workBudget;
   const dfs = (sky: Segment[]): boolean => {
     if (remaining === 0) return true;
     nodes++;
     work += groups.length;
-    if (work > opts.workBudget) return false;
+    if ((nodes & 255) === 0 && opts.stop?.()) work = budget + 1;
+    if (work > budget) return false;
     let i = -1;
     for (let k = 0; k < sky.length; k++) {
       if (sky[k].y < D - tol && (i < 0 || sky[k].y < sky[i].y - 1e-9)) i = k;
@@ -261,7 +265,7 @@ export function packAllOnTray<T>(W: number, D: number, pieces: readonly TilePiec
       placed.pop();
       remaining++;
       c.g.left++;
-      if (work > opts.workBudget) return false;
+      if (work > budget) return false;
     }
     // Leave the segment empty up to its lower neighbour (or the tray's far edge when it spans the tray).
     const raise = Math.min(leftY, rightY, D);
