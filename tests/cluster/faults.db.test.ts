@@ -161,7 +161,10 @@ describe("an upload over the limit sent whole", () => {
 });
 
 describe("a large upload", () => {
-  it("streams to the store: a 95 MB STL, twenty-four times the parse buffer, is stored whole while the app's peak memory rises by less than half the file", async () => {
+  // The file is most of the 200 MB limit: streaming costs a fixed amount (socket, spool and store
+  // buffers, and garbage a busy machine has not yet collected: 49 MB was once seen for a 95 MB
+  // file at load 11), while holding the body would cost at least the file itself.
+  it("streams to the store: a 190 MB STL, forty-eight times the parse buffer, is stored whole while the app's peak memory rises by less than half the file", async () => {
     const cookie = await signInAt(ROOMY_APP);
     const part = await newPart();
     const pid = roomyApp.child.pid!;
@@ -170,7 +173,7 @@ describe("a large upload", () => {
     await writeFile(`/proc/${pid}/clear_refs`, "5");
     const before = await peakKb();
     const perChunk = 20_000;
-    const chunks = 100;
+    const chunks = 200;
     const triangles = perChunk * chunks;
     const facet = writeBinaryStl(boxMesh(10, 10, 10)).subarray(84, 134);
     const chunk = Buffer.alloc(50 * perChunk);

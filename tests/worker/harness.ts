@@ -315,7 +315,7 @@ export async function startWorker(url: string, capture: Capture, env: Record<str
   child.stdout?.on("data", onData);
   child.stderr?.on("data", onData);
   const exited = new Promise<number | null>((resolve) => child.on("exit", (code) => resolve(code)));
-  const timeout = new Promise<never>((_, reject) => setTimeout(() => reject(new Error(`worker did not start:\n${logs.join("")}`)), 30_000));
+  const timeout = new Promise<never>((_, reject) => setTimeout(() => reject(new Error(`worker did not start:\n${logs.join("")}`)), 90_000));
   await Promise.race([readyP, timeout, exited.then(() => Promise.reject(new Error(`worker exited:\n${logs.join("")}`)))]);
   return {
     child,

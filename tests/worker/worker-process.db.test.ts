@@ -63,7 +63,9 @@ const pendingOutbox = async (w: WorkerDb) =>
 
 const countBy = <T,>(xs: T[], key: (x: T) => string) => xs.reduce((m, x) => m.set(key(x), (m.get(key(x)) ?? 0) + 1), new Map<string, number>());
 
-describe("worker processes", () => {
+// A loaded machine can take a minute and more to start a worker (tests/worker/harness.ts waits 90 s), so the
+// tests here, which start one or two and then wait for their work, get more than the usual two minutes.
+describe("worker processes", { timeout: 240_000 }, () => {
   it("a furnace run finishing sends exactly one message to each operator and manager and one ready-for-finishing alert per machinist", async () => {
     const { w, boss } = await world("wp_run");
     await worker();
