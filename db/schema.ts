@@ -691,9 +691,12 @@ export interface WebhookDeliveries {
   endpoint_id: string;
   event_id: string;
   id: Generated<string>;
+  job_id: string | null;
   last_error: string | null;
   last_status: number | null;
-  lease_until: Timestamp | null;
+  /**
+   * After a failed attempt: the earliest time pg-boss retries it (its back-off adds up to as much again at random).
+   */
   next_attempt_at: Generated<Timestamp>;
   state: Generated<WebhookDeliveryState>;
 }

@@ -6,7 +6,8 @@ import { advanceHandler } from "./handlers/advance";
 import { scaleUpHandler } from "./handlers/scale-up";
 import { drainOutbox, sendMailHandler } from "./handlers/send-mail";
 import { runSweep } from "./sweep";
-import { deliverDueWebhooks, webhookConfig } from "./webhooks";
+import { webhookConfig, webhookHandler, webhookQueueOptions } from "./webhooks";
+import { sendUnqueuedDeliveries } from "@/db/jobs/webhooks";
 import { logJobs } from "./job-log";
 import { sweepOrphanObjects } from "./orphans";
 import { recordLateOrders } from "@/db/orders/late";
@@ -35,7 +36,7 @@ function every(seconds: number, name: string, fn: () => Promise<void>) {
 
 /**
  * The worker's own queues and timers: advancing bookings, sending mail, recomputing scale-ups,
- * the sweep and the outbox pass. Returns a stop function for a graceful shutdown.
+ * delivering webhooks, the sweep and the outbox pass. Returns a stop function for a graceful shutdown.
  */
 export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<() => Promise<void>> {
   const cfg = workerConfig();
@@ -52,6 +53,18 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
   }
   await boss.work(QUEUES.scaleUp, { batchSize: 5, pollingIntervalSeconds: cfg.pollSeconds }, logJobs(QUEUES.scaleUp, scaleUpHandler(db)));
 
+  // Webhook deliveries: pg-boss's retries with exponential back-off, set on the queue, because the
+  // database writes these jobs itself and takes its retry settings from the queue row.
+  const hooks = webhookConfig();
+  await boss.updateQueue(QUEUES.webhook, { name: QUEUES.webhook, ...webhookQueueOptions(hooks) });
+  for (let i = 0; i < cfg.concurrency; i++) {
+    await boss.work(
+      QUEUES.webhook,
+      { batchSize: hooks.batch, includeMetadata: true, pollingIntervalSeconds: cfg.pollSeconds },
+      logJobs(QUEUES.webhook, webhookHandler(db, boss, hooks, { quiet: cfg.quiet })),
+    );
+  }
+
   const stopSweep = every(cfg.sweepSeconds, "sweep", async () => {
     const r = await runSweep(db, boss, workerId, { limit: cfg.sweepLimit });
     if (!cfg.quiet && (r.advanced || r.rescaled || r.mail_sent || r.errors.length)) {
@@ -61,10 +74,11 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
   const stopPump = every(cfg.mailPumpSeconds, "outbox", async () => {
     await drainOutbox(db, 200);
   });
-  const hooks = webhookConfig();
-  const stopWebhooks = every(Number(process.env.HEARTH_WEBHOOK_PUMP_SECONDS) || 2, "webhooks", async () => {
-    const r = await deliverDueWebhooks(db, hooks);
-    if (!cfg.quiet && (r.delivered || r.retry || r.failed)) console.log(`[worker] webhooks: ${r.delivered} delivered, ${r.retry} to retry, ${r.failed} given up`);
+  // Deliveries written while the webhook queue did not exist yet (a fresh database before its
+  // first worker; the database warned) get their jobs now, and at each sweep after.
+  const stopUnqueued = every(cfg.sweepSeconds, "webhook jobs", async () => {
+    const n = await sendUnqueuedDeliveries(db, boss);
+    if (n) console.log(`[worker] webhooks: sent jobs for ${n} deliveries written before the queue existed`);
   });
   const stopOrphans = every(cfg.orphanSweepSeconds, "orphan sweep", async () => {
     const r = await sweepOrphanObjects(db, { minAgeSeconds: cfg.orphanMinAgeSeconds });
@@ -82,6 +96,6 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
     `[worker] sweep every ${cfg.sweepSeconds} s, outbox every ${cfg.mailPumpSeconds} s, polling ${cfg.pollSeconds} s, batch ${cfg.batchSize} × ${cfg.concurrency}`,
   );
   return async () => {
-    await Promise.all([stopSweep(), stopPump(), stopWebhooks(), stopOrphans(), stopLate(), stopPrune()]);
+    await Promise.all([stopSweep(), stopPump(), stopUnqueued(), stopOrphans(), stopLate(), stopPrune()]);
   };
 }

@@ -58,9 +58,13 @@ export function verifySignature(secret: string, header: string | null | undefine
   return { ok: true, timestamp: t };
 }
 
-/** Seconds to wait before attempt n+1 after n failed attempts: doubling from base, at most an hour. */
+/**
+ * The shortest wait pg-boss 10 leaves before retrying a job with retryBackoff after its n-th failed
+ * run: retryDelay · 2^min(16, n) / 2, to which it adds up to as much again at random (the failJobs
+ * statement in node_modules/pg-boss/src/plans.js). Shown in the delivery log as the next attempt.
+ */
 export function retryDelaySeconds(failedAttempts: number, baseSeconds = 30): number {
-  return Math.min(3600, baseSeconds * 2 ** Math.max(0, failedAttempts - 1));
+  return (baseSeconds * 2 ** Math.min(16, Math.max(1, failedAttempts))) / 2;
 }
 
 /** Deliveries that keep failing for this long pause their endpoint. */

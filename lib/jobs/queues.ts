@@ -8,6 +8,7 @@ export const QUEUES = {
   sendMail: "send-mail",
   scaleUp: "recompute-scale-up",
   geometry: "analyse-geometry",
+  webhook: "deliver-webhook",
 } as const;
 
 export type QueueName = (typeof QUEUES)[keyof typeof QUEUES];
@@ -37,5 +38,12 @@ export type ScaleUpJob = z.infer<typeof scaleUpJobSchema>;
 /** An uploaded geometry file to measure (volume, bounding box, closed check). */
 export const geometryJobSchema = z.object({ file_id: z.string().uuid() });
 export type GeometryJob = z.infer<typeof geometryJobSchema>;
+
+/**
+ * One webhook delivery to POST. The database writes this job itself (send_webhook_job in
+ * migrations/202612042233_webhook_jobs.sql) with the same payload, so keep the two in step.
+ */
+export const webhookJobSchema = z.object({ delivery_id: z.string().uuid() });
+export type WebhookJob = z.infer<typeof webhookJobSchema>;
 
 export const ALL_QUEUES: QueueName[] = Object.values(QUEUES);

@@ -18,7 +18,8 @@
 
 import { GEOMETRY_EPS, type PlacementRule } from "./rectangles";
 import { RunState, type TrayChoice } from "./run-solver";
-import type { ItemModel, ProfileModel } from "./tray-model";
+import { packAllOnTray } from "./tile-search";
+import { FIT_TOLERANCE_MM, type ItemModel, type ProfileModel } from "./tray-model";
 import { mulberry32 } from "@/lib/random";
 
 export interface RunSearchOptions {
@@ -134,6 +135,86 @@ function insertInto(ctx: Ctx, run: RunState, it: ItemModel): RunState | null {
 }
 
 /**
+ * Budget of one one-tray search, in its own unit (piece sizes looked at; about 30 ms for 300,000
+ * on our machine); ONE_TRAY_PER_WORK of them are charged as one placement attempt, about their
+ * relative cost.
+ */
+const ONE_TRAY_BUDGET = 300_000;
+const ONE_TRAY_PER_WORK = 20;
+/** Trays tried by one closing move. */
+const CLOSE_TRIES = 2;
+
+/** `run` with tray `t` laid out anew from `layout` (placements in packing coordinates). */
+function withTray(run: RunState, t: number, layout: readonly { item: ItemModel; x: number; y: number; w: number; h: number; rotated: boolean }[]): RunState {
+  const next = new RunState(run.f, run.minSide);
+  for (const p of run.placed) {
+    if (p.tray === t) continue;
+    next.bins[p.tray].place({ x: p.x, y: p.y, w: p.w, h: p.h });
+    next.record(p.item, p.tray, p.x, p.y, p.w, p.h, p.rotated);
+  }
+  for (const p of layout) {
+    next.bins[t].place({ x: p.x, y: p.y, w: p.w, h: p.h });
+    next.record(p.item, t, p.x, p.y, p.w, p.h, p.rotated);
+  }
+  return next;
+}
+
+/**
+ * Lays out one tray of `run` with its own units plus `add` by the one-tray search that keeps
+ * every piece (tile-search.ts packAllOnTray); null when it finds no layout.
+ */
+function trayWith(ctx: Ctx, run: RunState, t: number, add: readonly ItemModel[]): RunState | null {
+  const f = run.f;
+  const tol = FIT_TOLERANCE_MM;
+  const items = [...run.placed.filter((p) => p.tray === t).map((p) => p.item), ...add];
+  const res = packAllOnTray(
+    f.W,
+    f.D,
+    items.map((it) => ({ w: it.pw + tol, h: it.ph + tol, mass: it.mass, ref: it })),
+    { tol, workBudget: ONE_TRAY_BUDGET, stop: () => ctx.deadline !== Infinity && ctx.clock() > ctx.deadline },
+  );
+  ctx.work += Math.max(1, Math.round(res.work / ONE_TRAY_PER_WORK));
+  if (!res.placements) return null;
+  return withTray(
+    run,
+    t,
+    res.placements.map((p) => ({ item: p.ref, x: p.x, y: p.y, w: p.w - tol, h: p.h - tol, rotated: p.rotated })),
+  );
+}
+
+/**
+ * The closing move, tried once when a run is emptied: if its units would fit, by area and load,
+ * into the spare room of another run's tray, that tray is laid out anew with its own units and
+ * all of them by the one-tray search that keeps every piece (tile-search.ts packAllOnTray). Greedy
+ * repacks miss the tight layouts a nearly full tray needs (pieces cut from one tray and trimmed a
+ * little fit back in few ways), and the search's random repacks found them for few seeds. Tries
+ * the roomiest trays first; returns the new runs or null.
+ */
+function closeOnOneTray(ctx: Ctx, cur: RunState[], pool: readonly ItemModel[]): RunState[] | null {
+  let poolArea = 0;
+  let poolMass = 0;
+  for (const it of pool) {
+    poolArea += it.area;
+    poolMass += it.mass;
+  }
+  const trays: { r: number; t: number; free: number }[] = [];
+  cur.forEach((run, r) => {
+    if (!pool.every((it) => it.eligibleMask.has(run.f.idx)) || run.mass + poolMass > run.f.load * (1 + 1e-12)) return;
+    for (let t = 0; t < run.bins.length; t++) {
+      const free = run.bins[t].freeArea;
+      if (poolArea <= free + GEOMETRY_EPS) trays.push({ r, t, free });
+    }
+  });
+  trays.sort((a, b) => b.free - a.free || a.r - b.r || a.t - b.t);
+  for (const { r, t } of trays.slice(0, CLOSE_TRIES)) {
+    if (outOfBudget(ctx)) return null;
+    const next = trayWith(ctx, cur[r], t, pool);
+    if (next) return cur.map((x, k) => (k === r ? next : x));
+  }
+  return null;
+}
+
+/**
  * Looks for a plan with the runs of `runs` except `drop`, all units placed. Returns the new runs or
  * null when the budget share `until` is spent first.
  */
@@ -143,6 +224,8 @@ function withoutRun(ctx: Ctx, runs: readonly RunState[], drop: number, until: nu
   const weight = (it: ItemModel) => it.size * mult[it.local];
   let cur = runs.filter((_, i) => i !== drop);
   let pool = [...runs[drop].placed.map((p) => p.item)];
+  const closed = closeOnOneTray(ctx, cur, pool);
+  if (closed) return closed;
   const poolWeight = (p: readonly ItemModel[]) => p.reduce((s, it) => s + weight(it), 0);
   // First the cheap move: pooled units into the gaps of the other runs as they stand.
   const settle = () => {

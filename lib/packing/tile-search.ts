@@ -175,3 +175,120 @@ function advance(sky: Segment[], i: number, w: number, h: number, D: number, tol
   }
   return merged;
 }
+
+export interface PackAllOptions {
+  tol: number;
+  /** Piece-group evaluations allowed, as in fillTrayExactly. */
+  workBudget: number;
+  /** Asked every 256 nodes; true ends the search as if the budget were spent (a caller's deadline). */
+  stop?: () => boolean;
+}
+
+/**
+ * Places every piece of `pieces` on one W×D tray, or reports that it found no way within the
+ * budget. The same skyline search as fillTrayExactly, with one more branch: the lowest segment
+ * may be left empty up to the lower of its neighbours, as long as the area left empty so far
+ * stays within the tray's spare area (W·D − Σ piece area). With no spare area this is the
+ * waste-free search; with a little it finds the tight trays that greedy rules miss (pieces cut
+ * from a full tray and then trimmed, or the 99 %-full trays the area bound asks for). Bottom-left
+ * skyline placement with bounded waste follows the skyline branch-and-bound of the strip-packing
+ * literature, e.g. L. Wei, W.-C. Oon, W. Zhu & A. Lim, "A skyline heuristic for the 2D rectangular
+ * packing and strip packing problems", EJOR 215(2):337–346 (2011) [from memory]. Not complete
+ * (a packing whose pieces cannot be built bottom-left in this order is not found), so a null
+ * answer means "not found", never "impossible".
+ */
+export function packAllOnTray<T>(W: number, D: number, pieces: readonly TilePiece<T>[], opts: PackAllOptions): TileSearchResult<T> {
+  const { tol } = opts;
+  let totalArea = 0;
+  const groups: Group<T>[] = [];
+  const byKey = new Map<string, Group<T>>();
+  for (const p of pieces) {
+    const lo = Math.min(p.w, p.h);
+    const hi = Math.max(p.w, p.h);
+    if (!((lo <= W + tol && hi <= D + tol) || (hi <= W + tol && lo <= D + tol))) return { placements: null, nodes: 0, work: 0 };
+    totalArea += p.w * p.h;
+    const key = `${lo.toFixed(3)}x${hi.toFixed(3)}`;
+    let g = byKey.get(key);
+    if (!g) {
+      g = { a: lo, b: hi, pieces: [], left: 0 };
+      byKey.set(key, g);
+      groups.push(g);
+    }
+    g.pieces.push(p);
+    g.left++;
+  }
+  const spare = W * D - totalArea + tol * (W + D);
+  if (spare < 0) return { placements: null, nodes: 0, work: 0 };
+  groups.sort((p, q) => q.a * q.b - p.a * p.b);
+  let nodes = 0;
+  let work = 0;
+  let waste = 0;
+  let remaining = pieces.length;
+  const placed: TilePlacement<T>[] = [];
+
+  const budget = opts.workBudget;
+  const dfs = (sky: Segment[]): boolean => {
+    if (remaining === 0) return true;
+    nodes++;
+    work += groups.length;
+    if ((nodes & 255) === 0 && opts.stop?.()) work = budget + 1;
+    if (work > budget) return false;
+    let i = -1;
+    for (let k = 0; k < sky.length; k++) {
+      if (sky[k].y < D - tol && (i < 0 || sky[k].y < sky[i].y - 1e-9)) i = k;
+    }
+    if (i < 0) return false;
+    const seg = sky[i];
+    const leftY = i > 0 ? sky[i - 1].y : Infinity;
+    const rightY = i < sky.length - 1 ? sky[i + 1].y : Infinity;
+    const cands: { g: Group<T>; w: number; h: number; score: number }[] = [];
+    for (const g of groups) {
+      if (g.left === 0) continue;
+      for (let o = 0; o < 2; o++) {
+        if (o === 1 && Math.abs(g.a - g.b) <= 1e-9) break;
+        const w = o === 0 ? g.a : g.b;
+        const h = o === 0 ? g.b : g.a;
+        if (w > seg.w + tol || seg.y + h > D + tol) continue;
+        const top = seg.y + h;
+        const closes = seg.w - w <= tol ? 2 : 0;
+        const aligns = Math.abs(top - leftY) <= tol || Math.abs(top - rightY) <= tol || D - top <= tol ? 1 : 0;
+        cands.push({ g, w, h, score: closes + aligns });
+      }
+    }
+    cands.sort((p, q) => q.score - p.score || q.w * q.h - p.w * p.h || q.w - p.w);
+    for (const c of cands) {
+      const p = c.g.pieces[c.g.left - 1];
+      c.g.left--;
+      remaining--;
+      placed.push({ ref: p.ref, x: seg.x, y: seg.y, w: c.w, h: c.h, rotated: Math.abs(c.w - p.w) > 1e-9 });
+      if (dfs(advance(sky, i, c.w, c.h, D, tol))) return true;
+      placed.pop();
+      remaining++;
+      c.g.left++;
+      if (work > budget) return false;
+    }
+    // Leave the segment empty up to its lower neighbour (or the tray's far edge when it spans the tray).
+    const raise = Math.min(leftY, rightY, D);
+    const lost = seg.w * (raise - seg.y);
+    if (waste + lost > spare) return false;
+    waste += lost;
+    const next = sky.map((s) => ({ ...s }));
+    next[i].y = raise;
+    const merged: Segment[] = [];
+    for (const s of next) {
+      const last = merged[merged.length - 1];
+      if (last && Math.abs(last.y - s.y) <= tol) {
+        last.w = s.x + s.w - last.x;
+        last.y = Math.max(last.y, s.y);
+      } else {
+        merged.push(s);
+      }
+    }
+    const ok = dfs(merged);
+    waste -= lost;
+    return ok;
+  };
+
+  const ok = dfs([{ x: 0, w: W, y: 0 }]);
+  return { placements: ok ? placed : null, nodes, work };
+}

@@ -4,7 +4,6 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { sql } from "kysely";
 import { recordLateOrders } from "@/db/orders/late";
-import { deliverDueWebhooks, webhookConfig } from "@/worker/webhooks";
 import { testDb } from "../helpers/db";
 import { DEMO, api, signIn } from "../helpers/session";
 
@@ -90,8 +89,17 @@ describe("order.late", () => {
     expect(noticed).not.toContain(done.id);
     expect(noticed).not.toContain(future.id);
 
-    const cfg = { ...webhookConfig(), batch: 2 };
-    await Promise.all([deliverDueWebhooks(db, cfg), deliverDueWebhooks(other.db, cfg)]);
+    // the notice's transaction wrote the delivery and its pg-boss job; the stack's worker sends it
+    const delivery = await db
+      .selectFrom("webhook_deliveries as d")
+      .innerJoin("webhook_events as ev", "ev.id", "d.event_id")
+      .select(["d.id", "d.job_id"])
+      .where("ev.type", "=", "order.late")
+      .where("ev.entity_id", "=", late.id)
+      .execute();
+    expect(delivery).toHaveLength(1);
+    const job = await sql<{ name: string; data: { delivery_id: string } }>`select name, data from pgboss.job where id = ${delivery[0].job_id}`.execute(db);
+    expect(job.rows).toEqual([{ name: "deliver-webhook", data: { delivery_id: delivery[0].id } }]);
     const got = await waitFor("the delivery", async () => {
       const r = (await received(name)).filter((d) => d.body.data?.id === late.id);
       return r.length ? r : undefined;

@@ -30,6 +30,7 @@ const QUEUE_HINTS: Record<string, string> = {
   "send-mail": "sends one outbox message",
   "recompute-scale-up": "recomputes green sizes after a part or material change",
   "analyse-geometry": "measures an uploaded STL",
+  "deliver-webhook": "POSTs one webhook delivery, retried with growing waits",
   heartbeat: "proves a worker is polling",
 };
 

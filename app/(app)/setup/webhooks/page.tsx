@@ -18,7 +18,7 @@ export default async function WebhooksPage() {
     <>
       <PageHeader
         title="Webhooks"
-        lead="Hearth tells other programs when orders, builds, furnace runs, units and inspections change: a signed POST to each endpoint, retried until it answers."
+        lead="Hearth tells other programs when orders, builds, furnace runs, units and inspections change: a signed POST to each endpoint, sent by the worker and retried with growing waits until it answers."
         actions={
           <Link href="/setup" className="inline-flex min-h-11 items-center text-sm font-semibold text-clay-700 hover:underline">
             ← Set-up
