@@ -8,6 +8,8 @@ import { BOARD_ENTITIES, ChangeBatcher, FLOOR_ENTITIES, ReplayLog, parseChange, 
 import { floorWindowCache, sharedReadCache } from "@/lib/floor/window-cache";
 import { boardCache, waitingWashCache } from "@/lib/batches/board-cache";
 import { ChangeListener, type ListenerState } from "@/db/live/listener";
+import { getDb } from "@/db/client";
+import { viewersAndStamps } from "@/db/live/stamps";
 
 /** Browsers wait this long before reconnecting a dropped stream. */
 export const RETRY_MS = 2_000;
@@ -25,9 +27,28 @@ type Stream = { send: (frame: string) => void; close: () => void; openedAt: numb
 
 const encoder = new TextEncoder();
 
-function forget(change: Change): void {
-  if (FLOOR_ENTITIES.has(change.e)) floorWindowCache().clear();
-  if (BOARD_ENTITIES.has(change.e)) boardCache().clear();
+/**
+ * How long after an announcement the caches that forgot start loading again (a proposal's forty
+ * announcements arrive within a few milliseconds: one load, not forty), and which of their keys:
+ * the floor windows and the board asked for within the last minute, at most a few of them. The
+ * pages hear of the change only when the group is sent (ChangeBatcher, 50 ms) and group their
+ * refetches for 75 ms more, so the loads they ask for are done or under way by then.
+ */
+const WARM_AFTER_MS = 5;
+const WARM_WITHIN_MS = 60_000;
+const WARM_FLOOR_WINDOWS = 4;
+
+type Forgotten = { floor: boolean; board: boolean };
+
+function forget(change: Change, forgotten: Forgotten): void {
+  if (FLOOR_ENTITIES.has(change.e)) {
+    floorWindowCache().clear();
+    forgotten.floor = true;
+  }
+  if (BOARD_ENTITIES.has(change.e)) {
+    boardCache().clear();
+    forgotten.board = true;
+  }
   // The unscheduled builds and the units' traces show a bit of everything announced.
   sharedReadCache().clear();
   // The units waiting for a wash: not when a booked wash batch only moves (db/batches/reads.ts).
@@ -41,7 +62,9 @@ export class LiveHub {
   private readonly batcher = new ChangeBatcher((changes) => this.publish(changes));
   private heartbeat: ReturnType<typeof setInterval> | null = null;
   private closing = false;
-  stats = { opened: 0, groups: 0, notifications: 0, dropped_slow: 0 };
+  private forgotten: Forgotten = { floor: false, board: false };
+  private warmTimer: ReturnType<typeof setTimeout> | null = null;
+  stats = { opened: 0, groups: 0, notifications: 0, dropped_slow: 0, warmed: 0 };
 
   /** Starts listening (once); the floor's window cache forgets on every floor change from now on. */
   start(connectionString = getEnv().DATABASE_URL): void {
@@ -54,7 +77,8 @@ export class LiveHub {
         if (!change) return;
         // At once, before any page hears of it: a refetch that follows must not get the old
         // window or board back from this process's caches.
-        forget(change);
+        forget(change, this.forgotten);
+        this.scheduleWarm();
         this.batcher.push(change);
       },
       onState: (state, { resumed, error }) => {
@@ -66,6 +90,24 @@ export class LiveHub {
     this.listener.start();
     this.heartbeat = setInterval(() => this.beat(), HEARTBEAT_MS);
     this.heartbeat.unref?.();
+  }
+
+  private scheduleWarm(): void {
+    if (this.warmTimer || this.closing) return;
+    this.warmTimer = setTimeout(() => {
+      this.warmTimer = null;
+      const { floor, board } = this.forgotten;
+      this.forgotten = { floor: false, board: false };
+      // The stamps are read now, after the commit that was announced: a load under them shows it.
+      viewersAndStamps(getDb(), [])
+        .then(({ stamps }) => {
+          if (floor) this.stats.warmed += floorWindowCache().warm(stamps.floor, WARM_FLOOR_WINDOWS, WARM_WITHIN_MS);
+          if (board) this.stats.warmed += boardCache().warm(stamps.board, 1, WARM_WITHIN_MS);
+        })
+        // Only a head start: the pages' own requests load what is still missing.
+        .catch(() => undefined);
+    }, WARM_AFTER_MS);
+    this.warmTimer.unref?.();
   }
 
   get listenerState(): ListenerState | "off" {
@@ -184,6 +226,8 @@ export class LiveHub {
     for (const s of [...this.streams]) s.close();
     if (this.heartbeat) clearInterval(this.heartbeat);
     this.heartbeat = null;
+    if (this.warmTimer) clearTimeout(this.warmTimer);
+    this.warmTimer = null;
     const l = this.listener;
     this.listener = null;
     this.batcher.cancel();

@@ -45,3 +45,43 @@ export async function viewerAndStamp(db: Database, kind: StampKind, userId: stri
   const after = typeof v.valid_after === "string" ? Number(v.valid_after) : v.valid_after;
   return { viewer: { role: v.role, sessions_valid_after: after, session_open: v.session_open === true }, stamp: rows[0].stamp };
 }
+
+/** Who a request's session names: the user and the cookie's user_sessions row. */
+export type SessionKey = { userId: string; sid?: string | null };
+
+export const sessionKeyOf = (k: SessionKey): string => `${k.userId}|${k.sid ?? ""}`;
+
+export type Admission = {
+  stamps: Record<StampKind, string>;
+  /** By sessionKeyOf; absent when the user is unknown or inactive. */
+  viewers: Map<string, Viewer>;
+};
+
+/**
+ * viewerAndStamp for many sessions at once, with every stamp: one round trip for all the requests
+ * that arrive together (app/_server/floor-access.ts). Each viewer is read exactly as
+ * viewerAndStamp reads it (sessionOpenSql's rule: the row is the cookie's, the user's, and not
+ * revoked; a sid that is not a uuid is never open).
+ */
+export async function viewersAndStamps(db: Database, keys: readonly SessionKey[]): Promise<Admission> {
+  const asked = [...new Map(keys.filter((k) => isUuid(k.userId)).map((k) => [sessionKeyOf(k), k])).values()];
+  const ids = asked.map((k) => k.userId);
+  const sids = asked.map((k) => (isUuid(k.sid) ? k.sid : null));
+  const { rows } = await sql<{ floor: string; board: string; shop: string; viewers: { i: number; role: Role; valid_after: number | string | null; session_open: boolean }[] }>`
+    select ${STAMP_SQL.floor} as floor, ${STAMP_SQL.board} as board, ${STAMP_SQL.shop} as shop,
+      (select coalesce(json_agg(json_build_object(
+          'i', k.i,
+          'role', u.role,
+          'valid_after', floor(extract(epoch from u.sessions_valid_after) * 1000),
+          'session_open', k.sid is not null and exists (select 1 from user_sessions s where s.id = k.sid and s.user_id = u.id and s.revoked_at is null)
+        )), '[]'::json)
+        from unnest(${ids}::uuid[], ${sids}::uuid[]) with ordinality as k(uid, sid, i)
+        join users u on u.id = k.uid and u.active) as viewers`.execute(db);
+  const row = rows[0];
+  const viewers = new Map<string, Viewer>();
+  for (const v of row.viewers) {
+    const after = typeof v.valid_after === "string" ? Number(v.valid_after) : v.valid_after;
+    viewers.set(sessionKeyOf(asked[v.i - 1]), { role: v.role, sessions_valid_after: after, session_open: v.session_open === true });
+  }
+  return { stamps: { floor: row.floor, board: row.board, shop: row.shop }, viewers };
+}

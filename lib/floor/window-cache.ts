@@ -8,8 +8,12 @@ import type { WindowBody } from "./window-body";
 
 type Entry<T> = { stamp: string; at: number; value: Promise<T>; refreshing?: boolean };
 
+/** A key asked for lately and how to load it again (WindowCache.warm). */
+type Recent<T> = { load: () => Promise<T>; usedAt: number };
+
 export class WindowCache<T = string> {
   private entries = new Map<string, Entry<T>>();
+  private recent = new Map<string, Recent<T>>();
 
   /**
    * refreshMs: for a value whose stamp still holds, past maxAgeMs (and up to refreshMs more) the
@@ -26,6 +30,9 @@ export class WindowCache<T = string> {
   async get(key: string, stamp: string, load: () => Promise<T>): Promise<T> {
     const hit = this.entries.get(key);
     const t = this.now();
+    this.recent.delete(key);
+    this.recent.set(key, { load, usedAt: t });
+    if (this.recent.size > this.maxEntries) this.recent.delete(this.recent.keys().next().value!);
     if (hit && hit.stamp === stamp && t - hit.at <= this.maxAgeMs) return hit.value;
     if (hit && hit.stamp === stamp && t - hit.at <= this.maxAgeMs + this.refreshMs) {
       if (!hit.refreshing) {
@@ -59,6 +66,30 @@ export class WindowCache<T = string> {
   /** After a change made by this process: the next request reloads whatever its stamp says. */
   clear(): void {
     this.entries.clear();
+  }
+
+  /**
+   * Starts loading, under a stamp read after a change was announced, the keys last asked for
+   * within withinMs (the most recent `most` of them) that are not loaded under it yet: the pages
+   * that heard of the change ask again a little later (the announcement is grouped for 50 ms,
+   * the page's refetch for 75 ms more) and find the load done or under way, rather than all
+   * waiting for the first of them to start it. Returns how many loads it started.
+   */
+  warm(stamp: string, most: number, withinMs: number): number {
+    const t = this.now();
+    let started = 0;
+    const keys = [...this.recent.entries()].reverse().filter(([, r]) => t - r.usedAt <= withinMs).sort((a, b) => b[1].usedAt - a[1].usedAt);
+    for (const [key, r] of keys) {
+      if (started >= most) break;
+      const hit = this.entries.get(key);
+      if (hit && hit.stamp === stamp) continue;
+      // Not a use: a key only pages ask for stays warm.
+      const usedAt = r.usedAt;
+      this.get(key, stamp, r.load).catch(() => undefined);
+      this.recent.set(key, { load: r.load, usedAt });
+      started += 1;
+    }
+    return started;
   }
 
   get size(): number {

@@ -119,6 +119,15 @@ export type WeeklyPattern = Shift[];
 
 const minutesOf = (clock: string) => Number(clock.slice(0, 2)) * 60 + Number(clock.slice(3, 5));
 
+/**
+ * Intervals already worked out, by everything they depend on. The batching board projects every
+ * waiting unit (nextStaffedTime: ten days of shifts, each end found through a few Intl lookups),
+ * and a shop's thousands of units ask for the same few days: the Intl calls took most of the
+ * board's load. The answer is a function of its arguments alone, so a kept one is exact.
+ */
+const intervalMemo = new Map<string, ReadonlyArray<readonly [number, number]>>();
+const INTERVAL_MEMO_MAX = 1_000;
+
 /** The staffed intervals [start, end) in UTC ms of shifts that begin on local days [from, from + days). */
 export function staffedIntervals(
   fromDate: LocalDate,
@@ -126,6 +135,16 @@ export function staffedIntervals(
   pattern: WeeklyPattern,
   timeZone: string,
 ): Array<[number, number]> {
+  const key = `${timeZone}|${fromDate.year}-${fromDate.month}-${fromDate.day}|${days}|${JSON.stringify(pattern)}`;
+  const kept = intervalMemo.get(key);
+  if (kept) return kept.map(([s, e]) => [s, e]);
+  const intervals = computeStaffedIntervals(fromDate, days, pattern, timeZone);
+  if (intervalMemo.size >= INTERVAL_MEMO_MAX) intervalMemo.clear();
+  intervalMemo.set(key, intervals.map(([s, e]) => [s, e] as const));
+  return intervals;
+}
+
+function computeStaffedIntervals(fromDate: LocalDate, days: number, pattern: WeeklyPattern, timeZone: string): Array<[number, number]> {
   const shifts = parseInput(weeklyPatternSchema, pattern, "staffed hours");
   assertTimeZone(timeZone);
   const intervals: Array<[number, number]> = [];

@@ -69,3 +69,49 @@ describe("WindowCache refreshing behind an aged value", () => {
     expect(await cache.get("w", "1", async () => "never")).toBe("after the change");
   });
 });
+
+describe("WindowCache warming after a change", () => {
+  it("loads again, under the new stamp, the keys asked for lately, most recent first, once each", async () => {
+    let t = 0;
+    const loads: string[] = [];
+    const cache = new WindowCache<string>(2000, 10, () => t);
+    const loader = (key: string) => async () => {
+      loads.push(key);
+      return `${key}@${loads.length}`;
+    };
+    await cache.get("old", "1", loader("old"));
+    t = 5_000;
+    await cache.get("a", "1", loader("a"));
+    t = 6_000;
+    await cache.get("b", "1", loader("b"));
+    await cache.get("c", "1", loader("c"));
+    loads.length = 0;
+    cache.clear();
+    // "old" and "a" were last asked for too long before: not warmed; "b" and "c", most recent first.
+    expect(cache.warm("2", 5, 500)).toBe(2);
+    expect(loads).toEqual(["c", "b"]);
+    // A page asking now shares the load already made; warming again starts nothing new.
+    expect(await cache.get("c", "2", loader("c"))).toBe("c@1");
+    expect(cache.warm("2", 5, 500)).toBe(0);
+    expect(loads).toEqual(["c", "b"]);
+    // At most `most` of them.
+    expect(cache.warm("2b", 1, 500)).toBe(1);
+    expect(loads).toEqual(["c", "b", "c"]);
+    // A key only warmed, never asked for again, goes cold: warming is not a use.
+    t = 10_000;
+    expect(cache.warm("3", 5, 3_000)).toBe(0);
+    t = 8_000;
+    expect(cache.warm("3", 5, 2_500)).toBe(2);
+    expect(loads).toEqual(["c", "b", "c", "c", "b"]);
+  });
+
+  it("keeps nothing a warm-up failed to load", async () => {
+    const cache = new WindowCache<string>(2000, 10, () => 0);
+    let fail = true;
+    await cache.get("a", "1", async () => (fail ? Promise.reject(new Error("db down")) : "a")).catch(() => undefined);
+    expect(cache.warm("2", 1, 1000)).toBe(1);
+    await new Promise((r) => setImmediate(r));
+    fail = false;
+    expect(await cache.get("a", "2", async () => "a again")).toBe("a again");
+  });
+});

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { ComputationError } from "@/lib/errors";
-import { isStaffed, nextStaffedTime, offsetMs, zonedParts, zonedTimeToUtc } from "@/lib/process/time-zone";
+import { isStaffed, nextStaffedTime, offsetMs, staffedIntervals, zonedParts, zonedTimeToUtc } from "@/lib/process/time-zone";
 
 const weekdays = [1, 2, 3, 4, 5].map((day) => ({ day, start: "06:00", end: "22:00" }));
 const berlin = "Europe/Berlin";
@@ -72,5 +72,34 @@ describe("nextStaffedTime", () => {
     expect(() => next("2026-03-02T09:00:00Z", [{ day: 1, start: "6:00", end: "07:00" }])).toThrow(ComputationError);
     expect(() => next("2026-03-02T09:00:00Z", [{ day: 1, start: "07:00", end: "07:00" }])).toThrow(ComputationError);
     expect(() => nextStaffedTime(new Date("x"), weekdays, berlin)).toThrow(ComputationError);
+  });
+});
+
+describe("staffedIntervals, asked again", () => {
+  // Kept answers (the board asks for the same days once per unit) must be the answers: the same
+  // intervals, whatever the first caller did with its copy, and a change of zone, days or
+  // pattern is a different question.
+  const pattern = [
+    { day: 1, start: "22:00", end: "06:00" },
+    { day: 0, start: "01:00", end: "04:00" },
+  ];
+  const spring = { year: 2026, month: 3, day: 7 }; // the US springs forward on Sunday 8 March 2026
+
+  it("answers the same intervals, unaffected by what a caller did to an earlier answer", () => {
+    const first = staffedIntervals(spring, 10, pattern, "America/Chicago");
+    const expected = first.map(([s, e]) => [s, e]);
+    first[0][0] = 0;
+    first.pop();
+    expect(staffedIntervals(spring, 10, pattern, "America/Chicago")).toEqual(expected);
+    // Sunday 8 March 01:00 CST is 07:00Z; 04:00 local is CDT by then (09:00Z): a two-hour shift.
+    expect(expected[0]).toEqual([Date.UTC(2026, 2, 8, 7), Date.UTC(2026, 2, 8, 9)]);
+  });
+
+  it("keeps zones, days and patterns apart", () => {
+    const chicago = staffedIntervals(spring, 10, pattern, "America/Chicago");
+    expect(staffedIntervals(spring, 10, pattern, "Europe/Berlin")).not.toEqual(chicago);
+    expect(staffedIntervals(spring, 3, pattern, "America/Chicago")).toEqual(chicago.filter(([s]) => s < Date.UTC(2026, 2, 10, 6)));
+    expect(staffedIntervals(spring, 10, [pattern[1]], "America/Chicago")).toHaveLength(2);
+    expect(() => staffedIntervals(spring, 10, pattern, "Mars/Olympus")).toThrow();
   });
 });
