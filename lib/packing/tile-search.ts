@@ -54,21 +54,23 @@ export interface TileSearchResult<T> {
   work: number;
 }
 
-/** Covers the W×D tray completely with pieces from `pieces`, or reports that it found no way. */
-export function fillTrayExactly<T>(
-  W: number,
-  D: number,
-  pieces: readonly TilePiece<T>[],
-  opts: TileSearchOptions,
-): TileSearchResult<T> {
-  const { tol } = opts;
+/**
+ * The pieces grouped by size (either way round: equal sizes are one branch of the search, not
+ * one per piece), largest first, with their total area; `misfits` counts pieces that fit the
+ * tray neither way, which are left out of the groups.
+ */
+function groupBySize<T>(W: number, D: number, pieces: readonly TilePiece<T>[], tol: number): { groups: Group<T>[]; totalArea: number; misfits: number } {
   let totalArea = 0;
+  let misfits = 0;
   const groups: Group<T>[] = [];
   const byKey = new Map<string, Group<T>>();
   for (const p of pieces) {
     const lo = Math.min(p.w, p.h);
     const hi = Math.max(p.w, p.h);
-    if (!((lo <= W + tol && hi <= D + tol) || (hi <= W + tol && lo <= D + tol))) continue;
+    if (!((lo <= W + tol && hi <= D + tol) || (hi <= W + tol && lo <= D + tol))) {
+      misfits++;
+      continue;
+    }
     totalArea += p.w * p.h;
     const key = `${lo.toFixed(3)}x${hi.toFixed(3)}`;
     let g = byKey.get(key);
@@ -80,9 +82,21 @@ export function fillTrayExactly<T>(
     g.pieces.push(p);
     g.left++;
   }
-  if (totalArea < W * D * (1 - 1e-6)) return { placements: null, nodes: 0, work: 0 };
   // Large pieces first: they are the hard ones to place later.
   groups.sort((p, q) => q.a * q.b - p.a * p.b);
+  return { groups, totalArea, misfits };
+}
+
+/** Covers the W×D tray completely with pieces from `pieces`, or reports that it found no way. */
+export function fillTrayExactly<T>(
+  W: number,
+  D: number,
+  pieces: readonly TilePiece<T>[],
+  opts: TileSearchOptions,
+): TileSearchResult<T> {
+  const { tol } = opts;
+  const { groups, totalArea } = groupBySize(W, D, pieces, tol);
+  if (totalArea < W * D * (1 - 1e-6)) return { placements: null, nodes: 0, work: 0 };
   for (const g of groups) g.pieces.sort((p, q) => q.mass - p.mass);
 
   let nodes = 0;
@@ -199,27 +213,10 @@ export interface PackAllOptions {
  */
 export function packAllOnTray<T>(W: number, D: number, pieces: readonly TilePiece<T>[], opts: PackAllOptions): TileSearchResult<T> {
   const { tol } = opts;
-  let totalArea = 0;
-  const groups: Group<T>[] = [];
-  const byKey = new Map<string, Group<T>>();
-  for (const p of pieces) {
-    const lo = Math.min(p.w, p.h);
-    const hi = Math.max(p.w, p.h);
-    if (!((lo <= W + tol && hi <= D + tol) || (hi <= W + tol && lo <= D + tol))) return { placements: null, nodes: 0, work: 0 };
-    totalArea += p.w * p.h;
-    const key = `${lo.toFixed(3)}x${hi.toFixed(3)}`;
-    let g = byKey.get(key);
-    if (!g) {
-      g = { a: lo, b: hi, pieces: [], left: 0 };
-      byKey.set(key, g);
-      groups.push(g);
-    }
-    g.pieces.push(p);
-    g.left++;
-  }
+  const { groups, totalArea, misfits } = groupBySize(W, D, pieces, tol);
+  if (misfits > 0) return { placements: null, nodes: 0, work: 0 };
   const spare = W * D - totalArea + tol * (W + D);
   if (spare < 0) return { placements: null, nodes: 0, work: 0 };
-  groups.sort((p, q) => q.a * q.b - p.a * p.b);
   let nodes = 0;
   let work = 0;
   let waste = 0;
