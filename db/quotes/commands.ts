@@ -149,14 +149,16 @@ export async function sendQuote(boss: PgBoss, trx: Trx, id: string, version: num
   requireStatus(q, ["draft"], "sent");
   const { lines } = await getQuoteOrThrow(trx, id);
   if (!lines.length) throw new AppError("invalid", "Add at least one line before sending.", { lines: ["no lines"] });
-  if (new Date(q.valid_until) <= new Date()) throw new AppError("invalid", "The validity date has passed; set a later one.", { valid_until: ["in the past"] });
-  const evaluated = evaluateQuote(lines.map(lineSpecOf), await loadQuoteContext(trx));
+  // One moment for the whole quote: the promise is planned from it and it is the quote's sent_at,
+  // so the plan behind a promise can be worked again from the moment it was made.
+  const now = new Date();
+  if (new Date(q.valid_until) <= now) throw new AppError("invalid", "The validity date has passed; set a later one.", { valid_until: ["in the past"] });
+  const evaluated = evaluateQuote(lines.map(lineSpecOf), await loadQuoteContext(trx, now));
   if (!evaluated.feasible) {
     const bad = evaluated.lines.find((l) => !l.promise.feasible)!;
     throw new AppError("invalid", `${bad.name} cannot be planned: ${bad.promise.feasible ? "" : bad.promise.reason}`, { lines: ["cannot be planned"] });
   }
   const shop = await getShopPlanning(trx);
-  const now = new Date();
   const promiseAt = new Date(evaluated.completion!);
   const p90At = new Date(evaluated.p90!);
   const pdf = await quotePdf({

@@ -153,8 +153,11 @@ describe("quotes", () => {
     expect(booked.every((b) => b.state === "scheduled")).toBe(true);
     const printedAt = Math.max(...booked.map((b) => new Date(b.ends_at!).getTime()));
 
-    // The rest of the chain from the booked prints, through the same planner, on the schedule as it is now.
-    const ctx = await loadQuoteContext(db);
+    // The rest of the chain from the booked prints, through the same planner, on the schedule as it
+    // is now, from the moment the promise was made: the machinists' queue is counted from "now", so
+    // a plan worked a few seconds later ends those seconds later.
+    expect(sent.body.quote.sent_at).toBeTruthy();
+    const ctx = await loadQuoteContext(db, new Date(sent.body.quote.sent_at));
     const { lines } = await getQuoteOrThrow(db, q.id);
     const spec = lineSpecOf(lines[0]);
     const m = ctx.materials.get(spec.material_id)!;
