@@ -87,6 +87,15 @@ function groupBySize<T>(W: number, D: number, pieces: readonly TilePiece<T>[], t
   return { groups, totalArea, misfits };
 }
 
+/** The lowest skyline segment still below the tray's far edge (the leftmost of equals), or -1 when the tray is full. */
+function lowestOpen(sky: readonly Segment[], D: number, tol: number): number {
+  let i = -1;
+  for (let k = 0; k < sky.length; k++) {
+    if (sky[k].y < D - tol && (i < 0 || sky[k].y < sky[i].y - 1e-9)) i = k;
+  }
+  return i;
+}
+
 /** Covers the W×D tray completely with pieces from `pieces`, or reports that it found no way. */
 export function fillTrayExactly<T>(
   W: number,
@@ -114,10 +123,7 @@ export function fillTrayExactly<T>(
     nodes++;
     work += groups.length;
     if (work > opts.workBudget) return false;
-    let i = -1;
-    for (let k = 0; k < sky.length; k++) {
-      if (sky[k].y < D - tol && (i < 0 || sky[k].y < sky[i].y - 1e-9)) i = k;
-    }
+    const i = lowestOpen(sky, D, tol);
     if (i < 0) return true;
     const seg = sky[i];
     const leftY = i > 0 ? sky[i - 1].y : Infinity;
@@ -230,10 +236,7 @@ export function packAllOnTray<T>(W: number, D: number, pieces: readonly TilePiec
     work += groups.length;
     if ((nodes & 255) === 0 && opts.stop?.()) work = budget + 1;
     if (work > budget) return false;
-    let i = -1;
-    for (let k = 0; k < sky.length; k++) {
-      if (sky[k].y < D - tol && (i < 0 || sky[k].y < sky[i].y - 1e-9)) i = k;
-    }
+    const i = lowestOpen(sky, D, tol);
     if (i < 0) return false;
     const seg = sky[i];
     const leftY = i > 0 ? sky[i - 1].y : Infinity;
