@@ -78,7 +78,7 @@ function QueueInner({ canWrite, units, timeZone }: FinishingQueueProps) {
           <ul className="divide-y divide-soot-100 rounded-card border border-soot-200 bg-white text-sm">
             {q.recent.map((c) => (
               <li key={c.id} className="flex flex-wrap items-center gap-x-4 gap-y-1 px-4 py-2">
-                <Link href={`/units/${c.id}`} className="font-mono text-xs font-semibold text-clay-700 hover:underline">{c.serial}</Link>
+                <Link href={`/units/${c.id}`} className="tap-target inline-flex items-center font-mono text-xs font-semibold text-clay-700 hover:underline">{c.serial}</Link>
                 <StateBadge state={c.state} />
                 <span className="text-soot-600">{c.part.part_number} rev {c.part.revision} · {c.part.name}</span>
                 {c.scrap_note ? <span className="text-oxide-700">{c.scrap_note}</span> : null}
@@ -133,7 +133,7 @@ function ArrivingTable({ cards, units, timeZone, now }: { cards: FinishingCard[]
             return (
               <tr key={c.id} className="border-t border-soot-100 align-top" data-serial={c.serial}>
                 <td className="px-3 py-2">
-                  <Link href={`/units/${c.id}`} className="whitespace-nowrap font-mono text-xs font-semibold text-clay-700 hover:underline">{c.serial}</Link>
+                  <Link href={`/units/${c.id}`} className="tap-target inline-flex items-center whitespace-nowrap font-mono text-xs font-semibold text-clay-700 hover:underline">{c.serial}</Link>
                   <div className="mt-0.5"><StateBadge state={c.state} /></div>
                 </td>
                 <td className="px-3 py-2">
@@ -142,7 +142,7 @@ function ArrivingTable({ cards, units, timeZone, now }: { cards: FinishingCard[]
                 </td>
                 <td className="px-3 py-2">{c.material.code}</td>
                 <td className="px-3 py-2">
-                  <Link href={`/furnace-runs/${c.furnace_run!.id}`} className="hover:underline">{c.furnace_run!.code}</Link>
+                  <Link href={`/furnace-runs/${c.furnace_run!.id}`} className="tap-target inline-flex items-center hover:underline">{c.furnace_run!.code}</Link>
                   <div className="text-xs text-soot-500">{c.furnace_run!.furnace_name ?? "no furnace"} · {c.furnace_run!.state}</div>
                 </td>
                 <td className="px-3 py-2">

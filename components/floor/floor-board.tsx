@@ -546,8 +546,8 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
                 <li key={b.id} data-build-id={b.id} data-testid={`unscheduled-${b.code}`}
                   className={`rounded-md border border-clay-300 bg-clay-50 px-2.5 py-1.5 text-sm ${canSchedule && ok.length ? "cursor-grab" : ""}`}
                   title={ok.length ? "Drag onto a printer" : "No printer can take this build"}>
-                  <div className="flex items-baseline justify-between gap-2">
-                    <Link href={`/builds/${b.id}`} className="font-semibold text-clay-800 hover:underline">{b.code}</Link>
+                  <div className="flex items-center justify-between gap-2">
+                    <Link href={`/builds/${b.id}`} className="tap-target inline-flex items-center font-semibold text-clay-800 hover:underline">{b.code}</Link>
                     <span className="text-xs text-soot-600">{b.material_code} · {b.unit_count} unit{b.unit_count === 1 ? "" : "s"}</span>
                   </div>
                   <div className="text-2xs text-soot-500">

@@ -76,6 +76,30 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
           {flash.text}
         </div>
       ) : null}
+      {/* The operator's next action (the checklist and start, or the unload) leads, so that on a
+          phone it is on the first screen; the run's facts, curve and trays follow. */}
+      {(run.state === "draft" || run.state === "scheduled") && canOperate ? (
+        <LoadingChecklist
+          busy={act.isPending}
+          disabled={run.units.length === 0}
+          onStart={(checklist) => act.mutate({ url: `/api/furnace-runs/${run.id}/start`, body: { version: run.version, checklist }, done: `${run.code} started.` })}
+        />
+      ) : null}
+      {d.checklist && run.state !== "draft" && run.state !== "scheduled" ? (
+        <section className="rounded-card border border-soot-200 bg-white p-4 text-xs text-soot-600" data-testid="checklist-record">
+          Loading checklist confirmed {typeof d.checklist.confirmed_at === "string" ? shopTime(d.checklist.confirmed_at, tz) : ""}:{" "}
+          {LOADING_CHECKLIST.filter((c) => d.checklist?.[c.key] === true).length} of {LOADING_CHECKLIST.length} items.
+        </section>
+      ) : null}
+      {mayUnload ? (
+        <UnloadForm
+          units={run.units.filter((u) => ["sintering", "sintered", "ready_for_finishing"].includes(d.outcomes.find((o) => o.unit_id === u.id)?.state ?? u.state)).map((u) => ({ id: u.id, serial: u.serial }))}
+          busy={act.isPending}
+          onSubmit={(outcomes) => act.mutate({ url: `/api/furnace-runs/${run.id}/unload`, body: { version: run.version, outcomes }, done: `Unload of ${run.code} recorded.` })}
+        />
+      ) : running && canOperate ? (
+        <p className="text-sm text-soot-600">The unload form opens when the cycle, cool-down included, is over ({shopTime(run.ends_at, tz)}).</p>
+      ) : null}
       <section className="grid grid-cols-1 gap-3 sm:grid-cols-2 lg:grid-cols-5" aria-label="Run summary">
         <Fact label="State" value={STATE_WORDS[run.state]} testId="run-state" />
         <Fact label="Furnace" value={furnace.name} note={`${furnace.tray_count} trays of ${furnace.tray_x_mm}×${furnace.tray_y_mm} mm, ${furnace.usable_height_mm} mm high`} />
@@ -145,28 +169,6 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
         </section>
       </div>
 
-      {(run.state === "draft" || run.state === "scheduled") && canOperate ? (
-        <LoadingChecklist
-          busy={act.isPending}
-          disabled={run.units.length === 0}
-          onStart={(checklist) => act.mutate({ url: `/api/furnace-runs/${run.id}/start`, body: { version: run.version, checklist }, done: `${run.code} started.` })}
-        />
-      ) : null}
-      {d.checklist && run.state !== "draft" && run.state !== "scheduled" ? (
-        <section className="rounded-card border border-soot-200 bg-white p-4 text-xs text-soot-600" data-testid="checklist-record">
-          Loading checklist confirmed {typeof d.checklist.confirmed_at === "string" ? shopTime(d.checklist.confirmed_at, tz) : ""}:{" "}
-          {LOADING_CHECKLIST.filter((c) => d.checklist?.[c.key] === true).length} of {LOADING_CHECKLIST.length} items.
-        </section>
-      ) : null}
-      {mayUnload ? (
-        <UnloadForm
-          units={run.units.filter((u) => ["sintering", "sintered", "ready_for_finishing"].includes(d.outcomes.find((o) => o.unit_id === u.id)?.state ?? u.state)).map((u) => ({ id: u.id, serial: u.serial }))}
-          busy={act.isPending}
-          onSubmit={(outcomes) => act.mutate({ url: `/api/furnace-runs/${run.id}/unload`, body: { version: run.version, outcomes }, done: `Unload of ${run.code} recorded.` })}
-        />
-      ) : running && canOperate ? (
-        <p className="text-sm text-soot-600">The unload form opens when the cycle, cool-down included, is over ({shopTime(run.ends_at, tz)}).</p>
-      ) : null}
     </div>
   );
 }

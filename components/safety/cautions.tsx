@@ -29,7 +29,7 @@ export function Cautions({ topic, folded = false }: CautionsProps) {
     </div>
   );
   return (
-    <section aria-label="Safety cautions" data-testid="cautions" className="rounded-card border border-oxide-500/30 bg-oxide-100/40 px-4 py-3">
+    <section id="safety-cautions" aria-label="Safety cautions" data-testid="cautions" className="rounded-card border border-oxide-500/30 bg-oxide-100/40 px-4 py-3">
       {folded ? (
         <details>
           <summary className="cursor-pointer text-sm font-semibold text-oxide-700">
@@ -44,5 +44,36 @@ export function Cautions({ topic, folded = false }: CautionsProps) {
         </>
       )}
     </section>
+  );
+}
+
+const SHORT: Record<CautionsProps["topic"], string> = {
+  furnace: "hot loads, process gases and metal dust",
+  wash: "flammable solvent vapours and metal dust",
+  both: "hot loads, process gases, solvent vapours and metal dust",
+};
+
+/**
+ * A page of work at a furnace or a wash station: on a phone the full cautions would fill the first
+ * screen and push the operator's next action below it, so there a one-line caution leads and the
+ * full list follows the work (moved by CSS order only: it stays on the page, in reading order
+ * first for a screen reader, and has no controls whose focus order could change). From the md
+ * breakpoint up the full list leads, as before.
+ */
+export function CautionsAroundWork({ topic, children }: { topic: CautionsProps["topic"]; children: React.ReactNode }) {
+  return (
+    <div className="flex flex-col gap-4">
+      <p className="rounded-card border border-oxide-500/30 bg-oxide-100/40 px-3 py-2 text-sm leading-snug text-soot-800 md:hidden" data-testid="caution-line">
+        <span className="font-semibold text-oxide-700">Safety: </span>
+        {SHORT[topic]}. The equipment maker&apos;s instructions, local codes, NFPA 86, NFPA 484 and licensed practice come first.{" "}
+        <a href="#safety-cautions" className="inline-flex min-h-11 items-center font-semibold text-oxide-700 underline">
+          All cautions, below
+        </a>
+      </p>
+      <div className="max-md:order-last">
+        <Cautions topic={topic} />
+      </div>
+      {children}
+    </div>
   );
 }

@@ -125,13 +125,14 @@ export function LoadRun({ runId, canLoad }: LoadRunProps) {
             Open the run
           </Link>
         </div>
-        <dl className="mt-2 grid grid-cols-4 gap-2 text-center" data-testid="tally" aria-live="polite">
+        <dl className="mt-2 grid grid-cols-3 gap-2 text-center sm:grid-cols-5" data-testid="tally" aria-live="polite">
           {(
             [
               ["Expected", t.expected.length, "expected"],
               ["Loaded", t.loaded.length, "loaded"],
               ["Missing", t.missing.length, "missing"],
               ["Unexpected", t.unexpected.length, "unexpected"],
+              ["Refused", t.refused.length, "refused"],
             ] as const
           ).map(([label, n, key]) => (
             <div key={key} className="rounded-md bg-soot-50 px-1 py-2">
@@ -179,11 +180,23 @@ export function LoadRun({ runId, canLoad }: LoadRunProps) {
       </section>
       {t.unexpected.length ? (
         <section aria-label="Unexpected units" className="rounded-card border border-soot-200 bg-white p-3">
-          <h3 className="text-sm font-semibold text-soot-800">Not on the run&rsquo;s list ({t.unexpected.length})</h3>
+          <h3 className="text-sm font-semibold text-soot-800">Added, not on the run&rsquo;s list ({t.unexpected.length})</h3>
           <ul className="mt-1 space-y-1 text-sm" data-testid="unexpected-list">
             {t.unexpected.map((u) => (
-              <li key={u.serial} className={u.status === "refused" ? "text-oxide-700" : "text-verdigris-700"}>
-                <span className="font-mono font-semibold">{u.serial}</span> {u.status === "refused" ? `refused: ${u.reason}` : "added"}
+              <li key={u.serial} className="text-verdigris-700">
+                <span className="font-mono font-semibold">{u.serial}</span> added
+              </li>
+            ))}
+          </ul>
+        </section>
+      ) : null}
+      {t.refused.length ? (
+        <section aria-label="Refused codes" className="rounded-card border border-oxide-500/30 bg-white p-3">
+          <h3 className="text-sm font-semibold text-oxide-700">Refused, not on the run ({t.refused.length})</h3>
+          <ul className="mt-1 space-y-1 text-sm" data-testid="refused-list">
+            {t.refused.map((u) => (
+              <li key={u.serial} className="text-oxide-700" data-refused={u.serial}>
+                <span className="font-mono font-semibold">{u.serial}</span> {u.reason ?? "refused"}
               </li>
             ))}
           </ul>

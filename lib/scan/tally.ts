@@ -7,8 +7,14 @@ export type Tally = {
   expected: string[];
   loaded: string[];
   missing: string[];
-  /** Scanned but not on the run's list when loading began: added to it, or refused with the reason. */
+  /** Scanned, not on the run's list when loading began, and put on the run. */
   unexpected: ScanOutcome[];
+  /**
+   * Scanned and refused by the server (an unknown code, a unit another role or another profile
+   * may not go on this run, a full tray), each with its reason: none of them is on the run, so
+   * they are neither loaded nor unexpected units.
+   */
+  refused: ScanOutcome[];
 };
 
 /**
@@ -27,6 +33,7 @@ export function tallyOf(expected: string[], onRun: string[], scans: ScanOutcome[
     expected: [...expected],
     loaded,
     missing: expected.filter((s) => !loadedSet.has(s)),
-    unexpected: [...last.values()].filter((s) => !expectedSet.has(s.serial)),
+    unexpected: [...last.values()].filter((s) => s.status !== "refused" && !expectedSet.has(s.serial)),
+    refused: [...last.values()].filter((s) => s.status === "refused"),
   };
 }

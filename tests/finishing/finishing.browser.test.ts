@@ -172,4 +172,25 @@ describe("finishing in the browser", () => {
     await screenshot(page, "finishing-calibration-chart");
     await page.close();
   });
+  it("on a phone the queue's serial and run links are 44 px touch targets (WCAG 2.5.5)", async () => {
+    const ctx = await browser.newContext({ ...WIDTHS.phone });
+    const page = await ctx.newPage();
+    try {
+      await signInAs(page, DEMO.machinist);
+      await page.goto(`${appUrl()}/finishing`);
+      // The units finished by the tests above are listed this week.
+      const recent = page.getByTestId("section-recent").getByRole("link");
+      await recent.first().waitFor({ timeout: 60_000 });
+      const links = page.locator('[data-testid="section-recent"] a, [data-testid="section-arriving"] a');
+      const small: string[] = [];
+      for (let i = 0; i < (await links.count()); i++) {
+        const box = await links.nth(i).boundingBox();
+        if (box && (box.height < 44 || box.width < 44)) small.push(`${await links.nth(i).innerText()}: ${Math.round(box.width)} × ${Math.round(box.height)} px`);
+      }
+      await screenshot(page, "phone-machinist-finishing-queue");
+      expect(small).toEqual([]);
+    } finally {
+      await ctx.close();
+    }
+  }, 120_000);
 });

@@ -7,6 +7,7 @@ import { openingWeek } from "@/components/floor/opening-week";
 import { addLocalDays, localDateOf, zonedParts, zonedTimeToUtc, type LocalDate } from "@/lib/process/time-zone";
 import { api } from "../helpers/session";
 import { makeDraftBuild, makePrinter, retirePrinters } from "./fixtures";
+import { WIDTHS } from "../helpers/viewports";
 
 // The floor in Chromium, signed in as a technician: drag an unscheduled build onto a printer
 // lane, see it there after a reload, and see an overlapping drop refused with the reason; a
@@ -157,6 +158,98 @@ describe("the floor in a browser", () => {
     await page.waitForURL(`**/builds/${done.id}`, { timeout: 15_000 });
     await page.close();
   });
+});
+
+/** The elements under a locator whose box is under 44 × 44 CSS px (WCAG 2.5.5, Target Size), with their size. */
+async function smallTargets(targets: ReturnType<Page["locator"]>): Promise<string[]> {
+  const small: string[] = [];
+  for (let i = 0; i < (await targets.count()); i++) {
+    const box = await targets.nth(i).boundingBox();
+    if (box && (box.height < 44 || box.width < 44)) small.push(`${(await targets.nth(i).innerText()).trim()}: ${Math.round(box.width)} × ${Math.round(box.height)} px`);
+  }
+  return small;
+}
+
+describe("the floor on a 390 px touch screen", () => {
+  it("the timeline's hour labels and the unscheduled builds' code links are 44 px touch targets", async () => {
+    const draft = await makeDraftBuild(tech, db, { material: "17-4PH", due: new Date(Date.now() + 5 * 86_400_000) });
+    const ctx = await browser.newContext({ ...WIDTHS.phone });
+    const [name, value] = tech.split("=");
+    await ctx.addCookies([{ name, value, url: appUrl() }]);
+    const page = await ctx.newPage();
+    page.setDefaultTimeout(60_000);
+    try {
+      await page.goto(`${appUrl()}/floor`);
+      await page.waitForSelector('[data-testid="floor-board"][data-ready="true"]');
+      const hours = page.locator(".fc-timeline-header .fc-timeline-slot-cushion");
+      expect(await hours.count()).toBeGreaterThanOrEqual(24);
+      expect(await smallTargets(hours)).toEqual([]);
+      const code = page.getByTestId(`unscheduled-${draft.build.code}`).getByRole("link", { name: draft.build.code });
+      await code.waitFor();
+      expect(await smallTargets(page.getByTestId("unscheduled-list").getByRole("link"))).toEqual([]);
+      expect(await page.evaluate(() => document.scrollingElement!.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(0);
+      await screenshot(page, "phone-technician-floor-targets");
+    } finally {
+      await ctx.close();
+    }
+  });
+
+  it("a technician's day by touch: sign in, book a build onto a printer, open it, start it and complete it", async () => {
+    const printer = await makePrinter(db, { materials: ["17-4PH"], build: [300, 250, 200], rate: 20, name: `AB-${Date.now().toString(36)}` });
+    try {
+      const draft = await makeDraftBuild(tech, db, { material: "17-4PH", due: new Date(Date.now() + 3 * 86_400_000) });
+      const ctx = await browser.newContext({ ...WIDTHS.phone });
+      const page = await ctx.newPage();
+      page.setDefaultTimeout(60_000);
+      try {
+        await page.goto(`${appUrl()}/sign-in`);
+        await page.getByLabel("E-mail").tap();
+        await page.getByLabel("E-mail").fill(DEMO.technician);
+        await page.getByLabel("Password").fill("hearth-demo");
+        await page.getByRole("button", { name: "Sign in" }).tap();
+        await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
+        await page.goto(`${appUrl()}/floor`);
+        await page.waitForSelector('[data-testid="floor-board"][data-ready="true"]');
+        await page.getByTestId(`unscheduled-${draft.build.code}`).waitFor();
+        await screenshot(page, "phone-technician-day-1-floor");
+
+        // Booking without a drag: the form's build, printer and start (the next whole hour by default).
+        const form = page.locator('form[aria-labelledby="book-heading"]');
+        await form.scrollIntoViewIfNeeded();
+        await form.getByLabel("Build").selectOption(draft.build.id);
+        await form.getByLabel("Printer").selectOption(printer.id);
+        const book = form.getByRole("button", { name: "Book" });
+        expect((await book.boundingBox())!.height).toBeGreaterThanOrEqual(44);
+        await book.tap();
+        await expect.poll(async () => (await db.selectFrom("builds").select("state").where("id", "=", draft.build.id).executeTakeFirstOrThrow()).state, { timeout: 20_000 }).toBe("scheduled");
+        await page.getByTestId("floor-message").waitFor();
+        await screenshot(page, "phone-technician-day-2-booked");
+
+        // The build page: start, then complete; each button a finger-sized target.
+        await page.goto(`${appUrl()}/builds/${draft.build.id}`);
+        const start = page.getByRole("button", { name: "Start build" });
+        await start.waitFor();
+        expect((await start.boundingBox())!.height).toBeGreaterThanOrEqual(44);
+        await start.tap();
+        await expect.poll(async () => page.getByTestId("build-state").textContent(), { timeout: 20_000 }).toMatch(/print/i);
+        const complete = page.getByRole("button", { name: "Complete" });
+        await complete.waitFor();
+        await screenshot(page, "phone-technician-day-3-running");
+        await complete.tap();
+        await expect.poll(async () => (await db.selectFrom("builds").select("state").where("id", "=", draft.build.id).executeTakeFirstOrThrow()).state, { timeout: 20_000 }).toBe("complete");
+        const units = await db.selectFrom("units").select("state").where("build_id", "=", draft.build.id).execute();
+        expect(units.length).toBeGreaterThan(0);
+        expect(units.every((u) => u.state === "green")).toBe(true);
+        await page.getByTestId("build-message").waitFor();
+        expect(await page.evaluate(() => document.scrollingElement!.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(0);
+        await screenshot(page, "phone-technician-day-4-complete");
+      } finally {
+        await ctx.close();
+      }
+    } finally {
+      await retirePrinters(db, [printer.id]);
+    }
+  }, 180_000);
 });
 
 describe("the floor in a browser on another zone's clock", () => {

@@ -26,7 +26,7 @@ describe("reading a scanned or typed code", () => {
 });
 
 describe("the load tally", () => {
-  it("counts expected, loaded, missing and unexpected units, a repeat scan once", () => {
+  it("counts expected, loaded, missing, unexpected and refused codes, a repeat scan once", () => {
     const t = tallyOf(
       ["A", "B", "C"],
       ["A", "B", "C", "X"],
@@ -40,7 +40,25 @@ describe("the load tally", () => {
     );
     expect(t.loaded).toEqual(["A", "X", "B"]);
     expect(t.missing).toEqual(["C"]);
-    expect(t.unexpected.map((u) => `${u.serial}:${u.status}`)).toEqual(["X:added", "Y:refused"]);
+    expect(t.unexpected.map((u) => `${u.serial}:${u.status}`)).toEqual(["X:added"]);
+    expect(t.refused.map((u) => `${u.serial}: ${u.reason}`)).toEqual(["Y: needs profile P2"]);
+  });
+
+  it("keeps a refused code out of the unexpected units, and a refusal later loaded out of the refused", () => {
+    const t = tallyOf(
+      ["A"],
+      ["A", "Z"],
+      [
+        { serial: "NO-SUCH-1", unit_id: null, status: "refused", reason: "no record has that code" },
+        { serial: "Z", unit_id: "7", status: "refused", reason: "the tray is full" },
+        { serial: "Z", unit_id: "7", status: "added" },
+        { serial: "B", unit_id: "3", status: "refused", reason: "not allowed" },
+      ],
+    );
+    expect(t.unexpected.map((u) => u.serial)).toEqual(["Z"]);
+    expect(t.refused.map((u) => u.serial)).toEqual(["NO-SUCH-1", "B"]);
+    expect(t.missing).toEqual(["A"]);
+    expect(t.loaded).toEqual(["Z"]);
   });
 
   it("does not count a unit taken off the run after its scan", () => {

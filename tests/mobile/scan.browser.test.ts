@@ -151,12 +151,21 @@ describe("at the machines, on a phone", () => {
     expect([await tally(page, "loaded"), await tally(page, "missing")]).toEqual(["1", "1"]);
     expect(await enter(c.serial)).toContain(`${c.serial} added to ${run.code}`);
     expect(await enter(wrong.serial)).toMatch(new RegExp(`${wrong.serial} not loaded: .*profile`));
-    expect(await page.getByTestId("unexpected-list").textContent()).toContain(wrong.serial);
+    // A refused unit is not an unexpected unit on the run: it is counted apart, with its reason.
+    expect(await page.getByTestId("refused-list").textContent()).toMatch(new RegExp(`${wrong.serial} .*profile`));
+    expect(await page.getByTestId("unexpected-list").textContent()).not.toContain(wrong.serial);
     expect(await enter(b.serial)).toContain("ticked off");
     expect(await tally(page, "loaded")).toBe("3");
     expect(await tally(page, "missing")).toBe("0");
-    expect(await tally(page, "unexpected")).toBe("2");
+    expect(await tally(page, "unexpected")).toBe("1");
+    expect(await tally(page, "refused")).toBe("1");
+    expect(await page.getByTestId("unexpected-list").textContent()).toContain(c.serial);
+    // A code the server does not know is refused too, with the server's reason, and loads nothing.
     expect(await enter("NO-SUCH-UNIT-1")).toContain("not loaded");
+    expect(await tally(page, "unexpected")).toBe("1");
+    expect(await tally(page, "refused")).toBe("2");
+    const unknown = page.locator('[data-refused="NO-SUCH-UNIT-1"]');
+    expect((await unknown.textContent())!.replace("NO-SUCH-UNIT-1", "").trim().length).toBeGreaterThan(0);
     await screenshot(page, "phone-furnace-operator-load-run");
 
     const onRun = await db.selectFrom("units").select("serial").where("furnace_run_id", "=", run.id).orderBy("serial").execute();
@@ -165,6 +174,43 @@ describe("at the machines, on a phone", () => {
     const scroll = await page.evaluate(() => document.scrollingElement!.scrollWidth - window.innerWidth);
     expect(scroll).toBeLessThanOrEqual(0);
     await ctx.close();
+  });
+});
+
+describe("the furnace run page on a 390 × 844 touch screen", () => {
+  it("puts the operator's next action on the first screen, with a caution line above it and the full cautions kept on the page", async () => {
+    const [a] = await makeUnits(db, { material: mine.material_code, state: "brown", green: [60, 50, 30], mass_g: 300 });
+    const run = await openRun();
+    await addToRun(run, a);
+    const ctx = await browser.newContext({ ...WIDTHS.phone });
+    const [name, value] = operator.split("=");
+    await ctx.addCookies([{ name, value, url: appUrl() }]);
+    const page = await ctx.newPage();
+    page.setDefaultTimeout(60_000);
+    try {
+      await page.goto(`${appUrl()}/furnace-runs/${run.id}`);
+      const start = page.getByTestId("loading-checklist").getByRole("button", { name: /Start run/ });
+      await start.waitFor();
+      const fold = 844;
+      const startBox = (await start.boundingBox())!;
+      expect(startBox.y + startBox.height, "the start button ends within the first screen").toBeLessThanOrEqual(fold);
+      expect(startBox.height).toBeGreaterThanOrEqual(44);
+      const line = (await page.getByTestId("caution-line").boundingBox())!;
+      expect(line.y + line.height).toBeLessThanOrEqual(startBox.y);
+      expect(await page.getByTestId("caution-line").textContent()).toMatch(/NFPA 86.*licensed practice/);
+      // The full list is still on the page, after the work, with its deference to the maker, codes and standards.
+      const cautions = page.getByTestId("cautions");
+      const full = (await cautions.textContent())!;
+      expect(full).toContain("NFPA 86");
+      expect(full).toContain("NFPA 484");
+      expect(full).toContain("The equipment maker's instructions, local codes and licensed practice come first");
+      expect((await cautions.locator("[data-caution]").count())).toBeGreaterThan(2);
+      expect((await cautions.boundingBox())!.y).toBeGreaterThan(startBox.y);
+      expect(await page.evaluate(() => document.scrollingElement!.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(0);
+      await screenshot(page, "phone-furnace-operator-run-first-screen");
+    } finally {
+      await ctx.close();
+    }
   });
 });
 

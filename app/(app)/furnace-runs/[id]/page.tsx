@@ -2,7 +2,7 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { PageHeader } from "@/components/ui/page-header";
 import { RunView } from "@/components/furnace/run-view";
-import { Cautions } from "@/components/safety/cautions";
+import { CautionsAroundWork } from "@/components/safety/cautions";
 import { getDb } from "@/db/client";
 import { findRunCode } from "@/db/furnace-runs/reads";
 import { requirePageUser } from "@/app/_server/session";
@@ -40,9 +40,10 @@ export default async function FurnaceRunPage({ params }: { params: Promise<{ id:
           </>
         }
       />
-      <div className="space-y-4 px-4 md:px-8 py-6">
-        <Cautions topic="furnace" />
-        <RunView runId={id} role={user.role} unitPref={user.unit_pref} />
+      <div className="px-4 md:px-8 py-6">
+        <CautionsAroundWork topic="furnace">
+          <RunView runId={id} role={user.role} unitPref={user.unit_pref} />
+        </CautionsAroundWork>
       </div>
     </>
   );

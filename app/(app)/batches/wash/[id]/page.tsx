@@ -2,7 +2,7 @@ import Link from "next/link";
 import { notFound } from "next/navigation";
 import { PageHeader } from "@/components/ui/page-header";
 import { WashView } from "@/components/batches/wash-view";
-import { Cautions } from "@/components/safety/cautions";
+import { CautionsAroundWork } from "@/components/safety/cautions";
 import { getDb } from "@/db/client";
 import { findWashCode } from "@/db/wash-batches/reads";
 import { findShopTimeZone } from "@/db/batches/reads";
@@ -28,9 +28,10 @@ export default async function WashBatchPage({ params }: { params: Promise<{ id: 
           </Link>
         }
       />
-      <div className="space-y-4 px-4 md:px-8 py-6">
-        <Cautions topic="wash" />
-        <WashView batchId={id} role={user.role} timeZone={timeZone} />
+      <div className="px-4 md:px-8 py-6">
+        <CautionsAroundWork topic="wash">
+          <WashView batchId={id} role={user.role} timeZone={timeZone} />
+        </CautionsAroundWork>
       </div>
     </>
   );
