@@ -497,7 +497,7 @@ function ActiveStrip({ items, timeZone, lane }: { items: BoardActive[]; timeZone
           <li key={a.id}>
             <Link
               href={a.kind === "furnace_run" ? `/furnace-runs/${a.id}` : `/batches/wash/${a.id}`}
-              className={`inline-flex items-center gap-2 rounded-md border px-2 py-1 text-xs hover:bg-soot-50 ${a.needs === "unload" ? "border-brass-400 bg-brass-100/60" : "border-soot-200"}`}
+              className={`tap-target inline-flex items-center gap-2 rounded-md border px-2 py-1 text-xs hover:bg-soot-50 ${a.needs === "unload" ? "border-brass-400 bg-brass-100/60" : "border-soot-200"}`}
             >
               <span className="font-semibold text-soot-900">{a.code}</span>
               <span className="text-soot-600">

@@ -115,10 +115,10 @@ export function BuildView({ buildId, canWrite, timeZone, role }: BuildViewProps)
             </dl>
             <div className="flex flex-col items-end gap-2">
               <div className="flex flex-wrap justify-end gap-2">
-                <a href={`/api/builds/${buildId}/traveler`} target="_blank" rel="noreferrer" className={`${button} border border-soot-300 text-soot-800 hover:bg-soot-100`} data-testid="traveler-link">
+                <a href={`/api/builds/${buildId}/traveler`} target="_blank" rel="noreferrer" className={`${button} tap-target inline-flex items-center border border-soot-300 text-soot-800 hover:bg-soot-100`} data-testid="traveler-link">
                   Print traveler (PDF)
                 </a>
-                <a href={`/api/builds/${buildId}/labels`} target="_blank" rel="noreferrer" className={`${button} border border-soot-300 text-soot-800 hover:bg-soot-100`} data-testid="unit-labels-link">
+                <a href={`/api/builds/${buildId}/labels`} target="_blank" rel="noreferrer" className={`${button} tap-target inline-flex items-center border border-soot-300 text-soot-800 hover:bg-soot-100`} data-testid="unit-labels-link">
                   Unit labels (PDF)
                 </a>
               </div>
@@ -158,8 +158,8 @@ export function BuildView({ buildId, canWrite, timeZone, role }: BuildViewProps)
             <tbody>
               {units.map((u) => (
                 <tr key={u.id} className="border-t border-soot-100">
-                  <td className="py-1 font-mono text-xs font-semibold"><Link href={`/units/${u.id}`} className="inline-flex min-h-8 items-center text-clay-800 hover:underline">{u.serial}</Link></td>
-                  <td><Link href={`/parts/${u.part_id}`} className="text-clay-800 hover:underline">{u.part_number}</Link> <span className="text-xs text-soot-500">rev {u.revision} · {u.part_name}</span></td>
+                  <td className="py-1 font-mono text-xs font-semibold"><Link href={`/units/${u.id}`} className="tap-target inline-flex min-h-8 items-center text-clay-800 hover:underline">{u.serial}</Link></td>
+                  <td><Link href={`/parts/${u.part_id}`} className="tap-target inline-flex items-center text-clay-800 hover:underline">{u.part_number}</Link> <span className="text-xs text-soot-500">rev {u.revision} · {u.part_name}</span></td>
                   <td className="text-xs">{u.order_code} · {formatDay(u.due_at, timeZone)}</td>
                   <td className="tabular text-right text-xs">{u.green_x_mm && u.green_y_mm && u.green_z_mm ? `${u.green_x_mm.toFixed(1)} × ${u.green_y_mm.toFixed(1)} × ${u.green_z_mm.toFixed(1)}` : "–"}</td>
                   <td className="pl-4 text-xs">{u.state.replaceAll("_", " ")}</td>

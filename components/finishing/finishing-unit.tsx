@@ -77,15 +77,15 @@ function Inner({ unitId, units, timeZone, canWrite, canInspect }: FinishingUnitP
           <p className="text-xs text-soot-500">
             {unit.order.code} for {unit.order.customer} · due {formatWhen(unit.order.due_at, timeZone)} · priority {unit.order.priority}
           </p>
-          <div className="mt-1 flex flex-wrap gap-3 text-xs">
+          <div className="mt-1 flex flex-wrap gap-x-3 text-xs">
             {unit.build ? (
               <>
-                <a className="text-clay-700 hover:underline" href={`/api/builds/${unit.build.id}/traveler`} target="_blank" rel="noreferrer">Traveler (PDF)</a>
-                <Link className="text-clay-700 hover:underline" href={`/builds/${unit.build.id}`}>Build {unit.build.code}</Link>
+                <a className="tap-target inline-flex items-center text-clay-700 hover:underline" href={`/api/builds/${unit.build.id}/traveler`} target="_blank" rel="noreferrer">Traveler (PDF)</a>
+                <Link className="tap-target inline-flex items-center text-clay-700 hover:underline" href={`/builds/${unit.build.id}`}>Build {unit.build.code}</Link>
               </>
             ) : null}
-            {unit.furnace_run ? <Link className="text-clay-700 hover:underline" href={`/furnace-runs/${unit.furnace_run.id}`}>Furnace run {unit.furnace_run.code}</Link> : null}
-            <Link className="text-clay-700 hover:underline" href={`/units/${unit.id}`}>Full trace</Link>
+            {unit.furnace_run ? <Link className="tap-target inline-flex items-center text-clay-700 hover:underline" href={`/furnace-runs/${unit.furnace_run.id}`}>Furnace run {unit.furnace_run.code}</Link> : null}
+            <Link className="tap-target inline-flex items-center text-clay-700 hover:underline" href={`/units/${unit.id}`}>Full trace</Link>
           </div>
           <div className="mt-3">
             <UnitFacts unit={unit} units={units} />

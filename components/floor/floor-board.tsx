@@ -486,7 +486,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
             resourceAreaWidth={phone ? "92px" : "150px"}
             longPressDelay={LONG_PRESS_MS}
             eventLongPressDelay={LONG_PRESS_MS}
-            slotMinWidth={22}
+            slotMinWidth={phone ? 44 : 22}
             resourceAreaHeaderContent="Lane"
             resourceGroupField="group"
             resourceOrder="kindOrder,title"

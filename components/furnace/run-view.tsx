@@ -180,7 +180,7 @@ function LoadingChecklist({ busy, disabled, onStart }: { busy: boolean; disabled
     <section className="rounded-card border border-clay-300 bg-white p-4 shadow-card" aria-label="Loading checklist" data-testid="loading-checklist">
       <h2 className="text-sm font-semibold text-soot-800">Loading checklist</h2>
       <p className="text-2xs text-soot-500">Tick each item as it is done; the run can start only when all are ticked. The furnace maker&apos;s procedure comes first.</p>
-      <ul className="mt-2 space-y-1">
+      <ul className="mt-2 space-y-1.5">
         {LOADING_CHECKLIST.map((c) => (
           <li key={c.key}>
             <label className="flex items-start gap-2 text-sm text-soot-800">
@@ -194,7 +194,7 @@ function LoadingChecklist({ busy, disabled, onStart }: { busy: boolean; disabled
         type="button"
         disabled={busy || disabled || missing.length > 0}
         onClick={() => onStart(ticks)}
-        className="mt-3 rounded-md bg-clay-600 px-3 py-1.5 text-sm font-semibold text-white hover:bg-clay-700 disabled:opacity-50"
+        className="mt-3 w-full rounded-md bg-clay-600 px-3 py-1.5 text-sm font-semibold text-white hover:bg-clay-700 disabled:opacity-50 sm:w-auto"
       >
         {busy ? "Starting…" : missing.length ? `Start run (${missing.length} to tick)` : "Start run now"}
       </button>

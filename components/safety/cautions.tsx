@@ -32,7 +32,7 @@ export function Cautions({ topic, folded = false }: CautionsProps) {
     <section id="safety-cautions" aria-label="Safety cautions" data-testid="cautions" className="rounded-card border border-oxide-500/30 bg-oxide-100/40 px-4 py-3">
       {folded ? (
         <details>
-          <summary className="cursor-pointer text-sm font-semibold text-oxide-700">
+          <summary className="tap-target cursor-pointer py-2 text-sm font-semibold text-oxide-700">
             Safety: hot loads, process gases, solvent vapours, metal dust (NFPA 86, NFPA 484)
           </summary>
           {body}
@@ -65,9 +65,9 @@ export function CautionsAroundWork({ topic, children }: { topic: CautionsProps["
     <div className="flex flex-col gap-4">
       <p className="rounded-card border border-oxide-500/30 bg-oxide-100/40 px-3 py-2 text-sm leading-snug text-soot-800 md:hidden" data-testid="caution-line">
         <span className="font-semibold text-oxide-700">Safety: </span>
-        {SHORT[topic]}. The equipment maker&apos;s instructions, local codes, NFPA 86, NFPA 484 and licensed practice come first.{" "}
-        <a href="#safety-cautions" className="inline-flex min-h-11 items-center font-semibold text-oxide-700 underline">
-          All cautions, below
+        {SHORT[topic]}. The maker&apos;s instructions, local codes, NFPA 86, NFPA 484 and licensed practice come first.{" "}
+        <a href="#safety-cautions" className="tap-target inline-flex items-center font-semibold text-oxide-700 underline">
+          All cautions below
         </a>
       </p>
       <div className="max-md:order-last">

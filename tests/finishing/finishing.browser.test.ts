@@ -189,6 +189,15 @@ describe("finishing in the browser", () => {
       }
       await screenshot(page, "phone-machinist-finishing-queue");
       expect(small).toEqual([]);
+      // A unit's own page: its traveler, build, run and trace links too.
+      const href = await page.getByTestId("section-recent").getByRole("link").first().getAttribute("href");
+      await page.goto(`${appUrl()}${href!.replace("/units/", "/finishing/")}`);
+      const trace = page.getByRole("link", { name: "Full trace" });
+      await trace.waitFor();
+      for (const name of ["Full trace", /^Build /, "Traveler (PDF)"]) {
+        const box = (await page.getByRole("link", { name }).first().boundingBox())!;
+        expect(Math.min(box.width, box.height), String(name)).toBeGreaterThanOrEqual(44);
+      }
     } finally {
       await ctx.close();
     }

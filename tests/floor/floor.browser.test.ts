@@ -181,9 +181,11 @@ describe("the floor on a 390 px touch screen", () => {
     try {
       await page.goto(`${appUrl()}/floor`);
       await page.waitForSelector('[data-testid="floor-board"][data-ready="true"]');
+      // The label and the header cell around it (which clips it): a label wider than its slot would overlap the next.
       const hours = page.locator(".fc-timeline-header .fc-timeline-slot-cushion");
       expect(await hours.count()).toBeGreaterThanOrEqual(24);
       expect(await smallTargets(hours)).toEqual([]);
+      expect(await smallTargets(page.locator(".fc-timeline-header th.fc-timeline-slot-label"))).toEqual([]);
       const code = page.getByTestId(`unscheduled-${draft.build.code}`).getByRole("link", { name: draft.build.code });
       await code.waitFor();
       expect(await smallTargets(page.getByTestId("unscheduled-list").getByRole("link"))).toEqual([]);
@@ -227,20 +229,26 @@ describe("the floor on a 390 px touch screen", () => {
 
         // The build page: start, then complete; each button a finger-sized target.
         await page.goto(`${appUrl()}/builds/${draft.build.id}`);
-        const start = page.getByRole("button", { name: "Start build" });
+        // Every link on the build page (the PDFs, the units and their parts) is finger-sized.
+        await page.getByTestId("traveler-link").waitFor();
+        expect(await smallTargets(page.getByTestId("build-view").locator("a"))).toEqual([]);
+        // The next-step card leads the build page on a phone: its one button starts the build.
+        const start = page.getByTestId("next-step");
         await start.waitFor();
+        expect(await start.textContent()).toBe("Start build");
         expect((await start.boundingBox())!.height).toBeGreaterThanOrEqual(44);
         await start.tap();
-        await expect.poll(async () => page.getByTestId("build-state").textContent(), { timeout: 20_000 }).toMatch(/print/i);
-        const complete = page.getByRole("button", { name: "Complete" });
-        await complete.waitFor();
+        await expect.poll(async () => page.getByTestId("build-state").textContent(), { timeout: 20_000 }).toBe("printing");
+        // Then the same card's button completes it.
+        const complete = page.getByTestId("next-step");
+        await expect.poll(async () => complete.textContent(), { timeout: 20_000 }).toBe("Complete build");
         await screenshot(page, "phone-technician-day-3-running");
         await complete.tap();
         await expect.poll(async () => (await db.selectFrom("builds").select("state").where("id", "=", draft.build.id).executeTakeFirstOrThrow()).state, { timeout: 20_000 }).toBe("complete");
         const units = await db.selectFrom("units").select("state").where("build_id", "=", draft.build.id).execute();
         expect(units.length).toBeGreaterThan(0);
         expect(units.every((u) => u.state === "green")).toBe(true);
-        await page.getByTestId("build-message").waitFor();
+        await page.getByTestId("next-step-message").waitFor();
         expect(await page.evaluate(() => document.scrollingElement!.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(0);
         await screenshot(page, "phone-technician-day-4-complete");
       } finally {

@@ -191,6 +191,7 @@ describe("the furnace run page on a 390 × 844 touch screen", () => {
       await page.goto(`${appUrl()}/furnace-runs/${run.id}`);
       const start = page.getByTestId("loading-checklist").getByRole("button", { name: /Start run/ });
       await start.waitFor();
+      await screenshot(page, "phone-furnace-operator-run-first-screen");
       const fold = 844;
       const startBox = (await start.boundingBox())!;
       expect(startBox.y + startBox.height, "the start button ends within the first screen").toBeLessThanOrEqual(fold);
@@ -207,7 +208,6 @@ describe("the furnace run page on a 390 × 844 touch screen", () => {
       expect((await cautions.locator("[data-caution]").count())).toBeGreaterThan(2);
       expect((await cautions.boundingBox())!.y).toBeGreaterThan(startBox.y);
       expect(await page.evaluate(() => document.scrollingElement!.scrollWidth - window.innerWidth)).toBeLessThanOrEqual(0);
-      await screenshot(page, "phone-furnace-operator-run-first-screen");
     } finally {
       await ctx.close();
     }

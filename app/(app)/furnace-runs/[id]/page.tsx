@@ -21,6 +21,7 @@ export default async function FurnaceRunPage({ params }: { params: Promise<{ id:
       <PageHeader
         title={`Furnace run ${code}`}
         lead="The profile's temperature curve, the trays as loaded, the loading checklist, and the unload."
+        leadFromTablet
         actions={
           <>
           {can(user.role, "furnace:write") ? (

@@ -22,6 +22,7 @@ export default async function WashBatchPage({ params }: { params: Promise<{ id: 
       <PageHeader
         title={`Wash batch ${code}`}
         lead="Solvent debinding: the basket, its wash time (set by the slowest unit), and each unit's green and brown weighing."
+        leadFromTablet
         actions={
           <Link href="/batches" className="inline-flex min-h-11 items-center rounded-md border border-soot-200 bg-white px-3 text-sm text-soot-700 hover:bg-soot-50">
             Back to the board
