@@ -316,7 +316,7 @@ export function boardChangeStamp(db: Db): Promise<string> {
 
 /** The board's encoded body, from the process-wide cache while the stamp holds. */
 export function boardBody(db: Db, stamp: string): Promise<WindowBody> {
-  return boardCache().get("board", stamp, async () => WindowBody.fromJson(JSON.stringify(await loadBoard(db, new Date(), sharedWaitingWash))));
+  return boardCache().get("board", stamp, async () => WindowBody.ready(JSON.stringify(await loadBoard(db, new Date(), sharedWaitingWash))));
 }
 
 /**
