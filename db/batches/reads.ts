@@ -87,16 +87,17 @@ export async function listProfiles(db: Db, opts: { includeRetired?: boolean; ids
 }
 
 export async function loadShopContext(db: Db, now = new Date()): Promise<ShopContext> {
-  const [settings, furnaces, links, stations, materials] = await Promise.all([
+  // Independent reads, asked together: on the pool they run side by side (withBatchTransaction).
+  const [settings, furnaces, links, stations, materials, used, profiles] = await Promise.all([
     db.selectFrom("shop_settings").selectAll().where("id", "=", 1).executeTakeFirst(),
     db.selectFrom("furnaces").selectAll().where("active", "=", true).orderBy("name").execute(),
     db.selectFrom("furnace_profiles").select(["furnace_id", "profile_id"]).execute(),
     db.selectFrom("wash_stations").selectAll().where("active", "=", true).orderBy("name").execute(),
     db.selectFrom("materials").select(["id", "code", "name", "default_profile_id", "min_mass_loss"]).where("active", "=", true).orderBy("code").execute(),
+    // Runs already booked keep their (maybe retired) revision: load those too.
+    db.selectFrom("furnace_runs").select("profile_id").distinct().where("state", "in", ["draft", "scheduled", "running"]).execute(),
+    listProfiles(db),
   ]);
-  // Runs already booked keep their (maybe retired) revision: load those too.
-  const used = await db.selectFrom("furnace_runs").select("profile_id").distinct().where("state", "in", ["draft", "scheduled", "running"]).execute();
-  const profiles = await listProfiles(db);
   const missing = used.map((u) => u.profile_id).filter((pid) => !profiles.some((p) => p.id === pid));
   if (missing.length) profiles.push(...(await listProfiles(db, { includeRetired: true, ids: missing })));
   const timeZone = settings?.time_zone ?? "UTC";
