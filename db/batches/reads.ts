@@ -19,8 +19,7 @@ BoardWashBatch,
 BookingState,
 UnitState,
 } from "@/lib/batches/types";
-import { furnaceCycle } from "@/lib/process/furnace-profile";
-import { byRisk, mostAtRisk, prepareBoardUnit, profileForCycle, toBoardUnit, type PreparedBoardUnit } from "@/lib/batches/board-unit";
+import { byRisk, cycleMinutesFor, mostAtRisk, prepareBoardUnit, profileForCycle, toBoardUnit, type PreparedBoardUnit } from "@/lib/batches/board-unit";
 import type { TrayRun } from "@/lib/packing/types";
 import { boardCache, waitingWashCache, waitingWashRowsCache } from "@/lib/batches/board-cache";
 import { changeStamp } from "@/db/live/stamps";
@@ -47,12 +46,7 @@ export interface ShopContext {
   materials: BoardMaterial[];
 }
 
-export { profileForCycle };
-
-/** A run's cycle on a furnace, whole minutes (bookings line up on minutes). */
-export function cycleMinutesFor(p: BoardProfile, f?: Pick<BoardFurnace, "max_cool_rate_c_per_min">): number {
-  return Math.ceil(furnaceCycle(profileForCycle(p), f ? { maxCoolRateCPerMin: f.max_cool_rate_c_per_min } : undefined).totalMinutes);
-}
+export { cycleMinutesFor, profileForCycle };
 
 export async function listProfiles(db: Db, opts: { includeRetired?: boolean; ids?: string[] } = {}): Promise<BoardProfile[]> {
   let q = db

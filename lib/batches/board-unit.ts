@@ -4,7 +4,7 @@
 // waiting for a wash apart (db/batches/reads.ts) and projects them again as time passes: from
 // their prepared form that is a lookup per unit, where working them from the rows again held the
 // web process for a third of a second.
-import type { BoardProfile, BoardUnit, UnitState } from "@/lib/batches/types";
+import type { BoardFurnace, BoardProfile, BoardUnit, UnitState } from "@/lib/batches/types";
 import { furnaceCycle, type SinterProfile } from "@/lib/process/furnace-profile";
 import { projectionStatus, projectUnit, type StepState } from "@/lib/process/projection";
 import { washMinutes } from "@/lib/process/wash";
@@ -102,6 +102,11 @@ export function profileForCycle(p: BoardProfile): SinterProfile {
   };
 }
 
+/** A run's cycle on a furnace, whole minutes (bookings line up on minutes). */
+export function cycleMinutesFor(p: BoardProfile, f?: Pick<BoardFurnace, "max_cool_rate_c_per_min">): number {
+  return Math.ceil(furnaceCycle(profileForCycle(p), f ? { maxCoolRateCPerMin: f.max_cool_rate_c_per_min } : undefined).totalMinutes);
+}
+
 // Per context (one load): a profile's cycle, a material's compatible profiles, a plan's end.
 type Memo = { cycles: Map<string, number>; compatible: Map<string, string[]>; ends: Map<string, Date | null> };
 const memos = new WeakMap<BoardUnitContext, Memo>();
@@ -117,7 +122,7 @@ function profileCycle(ctx: BoardUnitContext, p: BoardProfile): number {
   let m = memo.get(p.id);
   if (m === undefined) {
     try {
-      m = Math.ceil(furnaceCycle(profileForCycle(p)).totalMinutes);
+      m = cycleMinutesFor(p);
     } catch {
       m = 0;
     }
