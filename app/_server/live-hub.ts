@@ -6,7 +6,7 @@ import { randomBytes } from "node:crypto";
 import { getEnv } from "@/lib/env";
 import { BOARD_ENTITIES, ChangeBatcher, FLOOR_ENTITIES, ReplayLog, parseChange, touchesWaitingWash, sseFrame, type Change } from "@/lib/live/changes";
 import { floorWindowCache, sharedReadCache } from "@/lib/floor/window-cache";
-import { boardCache, waitingWashCache } from "@/lib/batches/board-cache";
+import { boardCache, waitingWashCache, waitingWashRowsCache } from "@/lib/batches/board-cache";
 import { ChangeListener, type ListenerState } from "@/db/live/listener";
 import { getDb } from "@/db/client";
 import { viewersAndStamps } from "@/db/live/stamps";
@@ -52,7 +52,10 @@ function forget(change: Change, forgotten: Forgotten): void {
   // The unscheduled builds and the units' traces show a bit of everything announced.
   sharedReadCache().clear();
   // The units waiting for a wash: not when a booked wash batch only moves (db/batches/reads.ts).
-  if (touchesWaitingWash(change)) waitingWashCache().clear();
+  if (touchesWaitingWash(change)) {
+    waitingWashRowsCache().clear();
+    waitingWashCache().clear();
+  }
 }
 
 export class LiveHub {
@@ -139,6 +142,7 @@ export class LiveHub {
   private resync(): void {
     floorWindowCache().clear();
     boardCache().clear();
+    waitingWashRowsCache().clear();
     waitingWashCache().clear();
     sharedReadCache().clear();
     this.broadcast(sseFrame({ id: this.log.lastId, event: "resync", data: "{}" }));

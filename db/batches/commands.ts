@@ -103,5 +103,11 @@ export async function proposeBatches(
 
 /** One transaction with the shop's rules loaded inside it, for every booking change. */
 export async function withBatchTransaction<T>(db: Database, fn: (trx: Transaction<DB>, ctx: ShopContext) => Promise<T>): Promise<T> {
-  return db.transaction().execute(async (trx) => fn(trx, await loadShopContext(trx)));
+  // The shop's settings, equipment and profiles are read just before the transaction, side by
+  // side on the pool, not one after another on its one connection (ten round trips inside every
+  // booking's transaction). Nothing among them is locked or version-checked, and each read saw
+  // only what was committed before it ran (READ COMMITTED) wherever it ran; the rows a command
+  // changes are still locked and their versions checked inside the transaction.
+  const ctx = await loadShopContext(db);
+  return db.transaction().execute((trx) => fn(trx, ctx));
 }

@@ -19,11 +19,9 @@ BoardWashBatch,
 BookingState,
 UnitState,
 } from "@/lib/batches/types";
-import { furnaceCycle, type SinterProfile } from "@/lib/process/furnace-profile";
-import { projectionStatus, projectUnit, type StepState } from "@/lib/process/projection";
-import { washMinutes } from "@/lib/process/wash";
+import { byRisk, cycleMinutesFor, mostAtRisk, prepareBoardUnit, profileForCycle, toBoardUnit, type PreparedBoardUnit } from "@/lib/batches/board-unit";
 import type { TrayRun } from "@/lib/packing/types";
-import { boardCache, waitingWashCache } from "@/lib/batches/board-cache";
+import { boardCache, waitingWashCache, waitingWashRowsCache } from "@/lib/batches/board-cache";
 import { changeStamp } from "@/db/live/stamps";
 import { WindowBody } from "@/lib/floor/window-body";
 
@@ -48,19 +46,7 @@ export interface ShopContext {
   materials: BoardMaterial[];
 }
 
-export function profileForCycle(p: BoardProfile): SinterProfile {
-  return {
-    startTempC: p.start_temp_c,
-    segments: p.segments.map((s) => ({ rateCPerMin: s.rate_c_per_min, setpointC: s.setpoint_c, holdMin: s.hold_min })),
-    coolRateCPerMin: p.cool_rate_c_per_min,
-    coolToC: p.cool_to_c,
-  };
-}
-
-/** A run's cycle on a furnace, whole minutes (bookings line up on minutes). */
-export function cycleMinutesFor(p: BoardProfile, f?: Pick<BoardFurnace, "max_cool_rate_c_per_min">): number {
-  return Math.ceil(furnaceCycle(profileForCycle(p), f ? { maxCoolRateCPerMin: f.max_cool_rate_c_per_min } : undefined).totalMinutes);
-}
+export { cycleMinutesFor, profileForCycle };
 
 export async function listProfiles(db: Db, opts: { includeRetired?: boolean; ids?: string[] } = {}): Promise<BoardProfile[]> {
   let q = db
@@ -95,16 +81,17 @@ export async function listProfiles(db: Db, opts: { includeRetired?: boolean; ids
 }
 
 export async function loadShopContext(db: Db, now = new Date()): Promise<ShopContext> {
-  const [settings, furnaces, links, stations, materials] = await Promise.all([
+  // Independent reads, asked together: on the pool they run side by side (withBatchTransaction).
+  const [settings, furnaces, links, stations, materials, used, profiles] = await Promise.all([
     db.selectFrom("shop_settings").selectAll().where("id", "=", 1).executeTakeFirst(),
     db.selectFrom("furnaces").selectAll().where("active", "=", true).orderBy("name").execute(),
     db.selectFrom("furnace_profiles").select(["furnace_id", "profile_id"]).execute(),
     db.selectFrom("wash_stations").selectAll().where("active", "=", true).orderBy("name").execute(),
     db.selectFrom("materials").select(["id", "code", "name", "default_profile_id", "min_mass_loss"]).where("active", "=", true).orderBy("code").execute(),
+    // Runs already booked keep their (maybe retired) revision: load those too.
+    db.selectFrom("furnace_runs").select("profile_id").distinct().where("state", "in", ["draft", "scheduled", "running"]).execute(),
+    listProfiles(db),
   ]);
-  // Runs already booked keep their (maybe retired) revision: load those too.
-  const used = await db.selectFrom("furnace_runs").select("profile_id").distinct().where("state", "in", ["draft", "scheduled", "running"]).execute();
-  const profiles = await listProfiles(db);
   const missing = used.map((u) => u.profile_id).filter((pid) => !profiles.some((p) => p.id === pid));
   if (missing.length) profiles.push(...(await listProfiles(db, { includeRetired: true, ids: missing })));
   const timeZone = settings?.time_zone ?? "UTC";
@@ -167,153 +154,25 @@ function unitQuery(db: Db) {
   return unitsWithStages(db)
     .select([
       "u.id", "u.serial", "u.version", "u.state", "u.green_mass_g", "u.brown_mass_g", "u.wash_passed", "u.hold_reason",
-      "u.wash_batch_id", "u.furnace_run_id", "u.state_changed_at",
+      "u.wash_batch_id", "u.furnace_run_id",
       "p.id as part_id", "p.part_number", "p.name as part_name", "p.thickest_wall_mm", "p.volume_mm3",
       ...PART_SIZE_COLUMNS,
       "o.code as order_code", "o.due_at", "o.priority",
       "m.id as material_id", "m.code as material_code", "m.default_profile_id", "m.shrink_xy", "m.shrink_z",
       "m.green_density_g_cm3", "m.wash_k_min_per_mm2", "m.wash_min_minutes", "m.min_mass_loss",
-      "w.state as wb_state", "w.starts_at as wb_starts_at", "w.ends_at as wb_ends_at", "w.finished_at as wb_finished_at",
+      "w.state as wb_state", "w.starts_at as wb_starts_at", "w.ends_at as wb_ends_at",
       "r.state as fr_state", "r.starts_at as fr_starts_at", "r.ends_at as fr_ends_at",
-      "b.ends_at as build_ends_at",
     ]);
 }
 
-type UnitRow = Awaited<ReturnType<ReturnType<typeof unitQuery>["execute"]>>[number];
-
-// A unit's projected completion depends on its steps, not on its due date, and the units on the
-// board share a handful of step chains (one per profile and wash time): project each chain once.
-const projectionMemo = new WeakMap<ShopContext, Map<string, Date | null>>();
-const cycleMemo = new WeakMap<ShopContext, Map<string, number>>();
-
-function profileCycle(ctx: ShopContext, p: BoardProfile): number {
-  let memo = cycleMemo.get(ctx);
-  if (!memo) cycleMemo.set(ctx, (memo = new Map()));
-  let m = memo.get(p.id);
-  if (m === undefined) {
-    try {
-      m = cycleMinutesFor(p);
-    } catch {
-      m = 0;
-    }
-    memo.set(p.id, m);
-  }
-  return m;
-}
-
-function projectedEnd(ctx: ShopContext, steps: Record<string, StepState>): Date | null {
-  let memo = projectionMemo.get(ctx);
-  if (!memo) projectionMemo.set(ctx, (memo = new Map()));
-  const key = JSON.stringify(steps);
-  if (memo.has(key)) return memo.get(key)!;
-  let end: Date | null = null;
-  try {
-    end = projectUnit({ now: ctx.now, dueAt: ctx.now, steps: steps as Parameters<typeof projectUnit>[0]["steps"], atRiskMarginMinutes: ctx.at_risk_margin_minutes, staffing: ctx.staffing ?? undefined }).projectedEnd;
-  } catch {
-    end = null;
-  }
-  memo.set(key, end);
-  return end;
-}
-
-function toBoardUnit(r: UnitRow, ctx: ShopContext): BoardUnit {
-  // The worker keeps parts' green sizes current; a part not scaled yet is scaled here the same way.
-  const sxy = num(r.shrink_xy);
-  const sz = num(r.shrink_z);
-  const gx = numOrNull(r.green_x_mm) ?? (num(r.nominal_x_mm) + num(r.stock_x_neg_mm) + num(r.stock_x_pos_mm)) / (1 - sxy);
-  const gy = numOrNull(r.green_y_mm) ?? (num(r.nominal_y_mm) + num(r.stock_y_neg_mm) + num(r.stock_y_pos_mm)) / (1 - sxy);
-  const gz = numOrNull(r.green_z_mm) ?? (num(r.nominal_z_mm) + num(r.stock_z_neg_mm) + num(r.stock_z_pos_mm)) / (1 - sz);
-  const green = numOrNull(r.green_mass_g);
-  const brown = numOrNull(r.brown_mass_g);
-  let mass: number;
-  let source: BoardUnit["mass_source"];
-  if (brown) {
-    mass = brown;
-    source = "brown";
-  } else if (green) {
-    mass = green;
-    source = "green";
-  } else {
-    // Finished volume scaled to green size; a part without geometry is taken as half its box.
-    const vol = numOrNull(r.volume_mm3);
-    const greenVol = vol ? vol * (gx / num(r.nominal_x_mm)) * (gy / num(r.nominal_y_mm)) * (gz / num(r.nominal_z_mm)) : gx * gy * gz * 0.5;
-    mass = Math.round((greenVol / 1000) * num(r.green_density_g_cm3) * 10) / 10;
-    source = "estimate";
-  }
-  const k = num(r.wash_k_min_per_mm2);
-  const tMin = num(r.wash_min_minutes);
-  const wall = num(r.thickest_wall_mm);
-  const wash = washMinutes({ thickestWallMm: wall, kMinPerMm2: k, minMinutes: tMin });
-  const state = r.state as UnitState;
-  const dryMs = ctx.drying_minutes * 60_000;
-  let readyAt: string | null = null;
-  if (state === "brown") readyAt = ctx.now.toISOString();
-  else if (state === "washing" && r.wb_ends_at) readyAt = new Date(Math.max(ctx.now.getTime(), new Date(r.wb_ends_at).getTime() + dryMs)).toISOString();
-
-  const profile = ctx.profiles.find((p) => p.id === r.default_profile_id);
-  const compatible = ctx.profiles.filter((p) => p.material_ids.includes(r.material_id)).map((p) => p.id);
-  const cycle = profile ? profileCycle(ctx, profile) : 0;
-  const booked = (s: Date | null, e: Date | null): StepState | null =>
-    s && e && new Date(s) < new Date(e) ? { status: "booked", start: new Date(s), end: new Date(e) } : null;
-  const washOpen = r.wb_state && ["scheduled", "running"].includes(r.wb_state) ? booked(r.wb_starts_at, r.wb_ends_at) : null;
-  const runOpen = r.fr_state && ["scheduled", "running"].includes(r.fr_state) ? booked(r.fr_starts_at, r.fr_ends_at) : null;
-  const afterWash = ["brown", "sintering", "sintered", "ready_for_finishing", "finishing", "done"].includes(state);
-  const steps = {
-    print: { status: "done", end: ctx.now } as StepState,
-    wash: afterWash ? ({ status: "done", end: ctx.now } as StepState) : (washOpen ?? ({ status: "unbooked", minutes: wash } as StepState)),
-    drying: afterWash ? ({ status: "done", end: ctx.now } as StepState) : ({ status: "unbooked", minutes: ctx.drying_minutes } as StepState),
-    furnace: runOpen ?? ({ status: "unbooked", minutes: cycle } as StepState),
-    finishing: { status: "unbooked", minutes: ctx.finishing_lead_minutes } as StepState,
-  };
-  const due = new Date(r.due_at);
-  let slack: number;
-  let status: BoardUnit["projection_status"];
-  const end = projectedEnd(ctx, steps);
-  if (end) {
-    slack = Math.round((due.getTime() - end.getTime()) / 60_000);
-    status = projectionStatus(end, due, ctx.at_risk_margin_minutes);
-  } else {
-    slack = Math.round((due.getTime() - ctx.now.getTime()) / 60_000);
-    status = slack < 0 ? "late" : "on_time";
-  }
-  return {
-    id: r.id,
-    serial: r.serial,
-    version: r.version,
-    state,
-    part_id: r.part_id,
-    part_number: r.part_number,
-    part_name: r.part_name,
-    order_code: r.order_code,
-    due_at: iso(r.due_at)!,
-    priority: r.priority,
-    material_id: r.material_id,
-    material_code: r.material_code,
-    profile_id: r.default_profile_id,
-    compatible_profile_ids: compatible,
-    green_x_mm: Math.round(gx * 100) / 100,
-    green_y_mm: Math.round(gy * 100) / 100,
-    green_z_mm: Math.round(gz * 100) / 100,
-    mass_g: mass,
-    mass_source: source,
-    green_mass_g: green,
-    brown_mass_g: brown,
-    wash_passed: r.wash_passed,
-    min_mass_loss: num(r.min_mass_loss),
-    thickest_wall_mm: wall,
-    wash_minutes: Math.round(wash),
-    wash_k_min_per_mm2: k,
-    wash_min_minutes: tMin,
-    wash_batch_id: r.wash_batch_id,
-    furnace_run_id: r.furnace_run_id,
-    ready_at: readyAt,
-    slack_minutes: slack,
-    projection_status: status,
-    hold_reason: r.hold_reason,
-  };
-}
-
 export async function listBoardUnits(db: Db, ctx: ShopContext, filter: UnitFilter): Promise<BoardUnit[]> {
+  const rows = await unitRows(db, ctx, filter);
+  const units = rows.map((r) => toBoardUnit(r, ctx));
+  if (filter.kind === "waiting_wash" || filter.kind === "waiting_furnace") units.sort(byRisk);
+  return units;
+}
+
+function unitRows(db: Db, ctx: ShopContext, filter: UnitFilter) {
   let q = unitQuery(db);
   switch (filter.kind) {
     case "ids":
@@ -350,11 +209,25 @@ export async function listBoardUnits(db: Db, ctx: ShopContext, filter: UnitFilte
       break;
     }
   }
-  const rows = await q.orderBy("o.due_at").orderBy("u.serial").execute();
-  const units = rows.map((r) => toBoardUnit(r, ctx));
-  if (filter.kind === "waiting_wash" || filter.kind === "waiting_furnace") units.sort((a, b) => a.slack_minutes - b.slack_minutes || a.due_at.localeCompare(b.due_at) || a.serial.localeCompare(b.serial));
-  return units;
+  return q.orderBy("o.due_at").orderBy("u.serial").execute();
 }
+
+/** Rows prepared between turns of the event loop, so that other requests are answered meanwhile. */
+const PREPARE_CHUNK = 500;
+const nextTurn = () => new Promise<void>((resolve) => setImmediate(resolve));
+
+/** The units waiting for a wash, worked from their rows (lib/batches/board-unit.ts), not yet projected. */
+export async function prepareWaitingWash(db: Db, ctx: ShopContext): Promise<PreparedBoardUnit[]> {
+  const rows = await unitRows(db, ctx, { kind: "waiting_wash" });
+  const out: PreparedBoardUnit[] = [];
+  for (let i = 0; i < rows.length; i += PREPARE_CHUNK) {
+    if (i > 0) await nextTurn();
+    for (const r of rows.slice(i, i + PREPARE_CHUNK)) out.push(prepareBoardUnit(r, ctx));
+  }
+  return out;
+}
+
+
 
 type WashRow = { id: string; code: string; state: BookingState; version: number; wash_station_id: string | null; starts_at: Date | null; ends_at: Date | null; est_minutes: unknown; started_at: Date | null; finished_at: Date | null };
 type RunRow = { id: string; code: string; state: BookingState; version: number; furnace_id: string | null; profile_id: string; starts_at: Date | null; ends_at: Date | null; cycle_minutes: unknown; tray_layout: unknown };
@@ -438,31 +311,42 @@ export function boardChangeStamp(db: Db): Promise<string> {
 
 /** The board's encoded body, from the process-wide cache while the stamp holds. */
 export function boardBody(db: Db, stamp: string): Promise<WindowBody> {
-  return boardCache().get("board", stamp, async () => WindowBody.fromJson(JSON.stringify(await loadBoard(db, new Date(), sharedWaitingWash))));
+  return boardCache().get("board", stamp, async () => WindowBody.ready(JSON.stringify(await loadBoard(db, new Date(), sharedWaitingWash))));
 }
 
 /**
  * The units waiting for a wash, every one projected (the board shows the 200 most at risk and
- * the total): by far the board's costliest part (a shop with ten thousand green parts spends a
- * third of a second of CPU on it), and one that a booked wash batch moving in time does not
- * touch. So it is kept apart, per its own stamp (waiting_wash_seq, migration 202612041152: units,
- * parts, orders, materials, profiles, settings, furnace runs, and a wash batch's state, not its
- * slot), for at most ten seconds (lib/batches/board-cache.ts), and the live listener clears it on any change that
- * can alter it (app/_server/live-hub.ts).
+ * the total): by far the board's costliest part (a shop with ten thousand green parts spent a
+ * third of a second of CPU on it, holding every other request of the process), and one that a
+ * booked wash batch moving in time does not touch. So it is kept apart, per its own stamp
+ * (waiting_wash_seq, migration 202612041152: units, parts, orders, materials, profiles, settings,
+ * furnace runs, and a wash batch's state, not its slot), in two layers (lib/batches/board-cache.ts):
+ * the units worked from their rows, loaded again only when the stamp moves (or after a minute),
+ * and their projection at the board's "now", worked again from those every ten seconds (a lookup
+ * per unit). The live listener clears both on any change that can alter them (app/_server/live-hub.ts).
  */
-async function sharedWaitingWash(db: Db, ctx: ShopContext): Promise<BoardUnit[]> {
+async function sharedWaitingWash(db: Db, ctx: ShopContext): Promise<WaitingLane> {
   const { rows } = await sql<{ v: string }>`select last_value::text || ':' || is_called::text as v from waiting_wash_seq`.execute(db);
-  return waitingWashCache().get("waiting_wash", rows[0].v, () => listBoardUnits(db, ctx, { kind: "waiting_wash" }));
+  const stamp = rows[0].v;
+  return waitingWashCache().get("waiting_wash", stamp, async () => mostAtRisk(await waitingWashRowsCache().get("waiting_wash", stamp, () => prepareWaitingWash(db, ctx)), ctx, BOARD_WAITING_LIMIT));
 }
+
+/** A lane of waiting units as the board shows it: the most at risk, and how many wait in all. */
+export type WaitingLane = { units: BoardUnit[]; total: number };
 
 /** Waiting units the board lists per lane, most at risk first (the suggestions still see all). */
 export const BOARD_WAITING_LIMIT = 200;
 
-export async function loadBoard(db: Db, now = new Date(), waitingWash = (d: Db, ctx: ShopContext) => listBoardUnits(d, ctx, { kind: "waiting_wash" })): Promise<Board> {
+const waitingLane = async (d: Db, ctx: ShopContext, kind: "waiting_wash" | "waiting_furnace"): Promise<WaitingLane> => {
+  const units = await listBoardUnits(d, ctx, { kind });
+  return { units: units.slice(0, BOARD_WAITING_LIMIT), total: units.length };
+};
+
+export async function loadBoard(db: Db, now = new Date(), waitingWash = (d: Db, ctx: ShopContext) => waitingLane(d, ctx, "waiting_wash")): Promise<Board> {
   const ctx = await loadShopContext(db, now);
   const [washWaiting, furnaceWaiting, washes, runs, active] = await Promise.all([
     waitingWash(db, ctx),
-    listBoardUnits(db, ctx, { kind: "waiting_furnace" }),
+    waitingLane(db, ctx, "waiting_furnace"),
     listWashBatches(db, ctx, { states: ["draft", "scheduled"] }),
     listFurnaceRuns(db, ctx, { states: ["draft", "scheduled"] }),
     listActive(db, now),
@@ -472,10 +356,10 @@ export async function loadBoard(db: Db, now = new Date(), waitingWash = (d: Db, 
     time_zone: ctx.time_zone,
     clearance_mm: ctx.clearance_mm,
     drying_minutes: ctx.drying_minutes,
-    wash_waiting: washWaiting.slice(0, BOARD_WAITING_LIMIT),
-    furnace_waiting: furnaceWaiting.slice(0, BOARD_WAITING_LIMIT),
-    wash_waiting_total: washWaiting.length,
-    furnace_waiting_total: furnaceWaiting.length,
+    wash_waiting: washWaiting.units,
+    furnace_waiting: furnaceWaiting.units,
+    wash_waiting_total: washWaiting.total,
+    furnace_waiting_total: furnaceWaiting.total,
     wash_batches: washes,
     furnace_runs: runs,
     active,

@@ -106,6 +106,12 @@ export async function updateBuild(trx: Trx, id: string, input: UpdateBuild, acto
 
 export type ScheduleContext = { printers?: PrinterSpec[]; clearanceMm?: number };
 
+/** The printers and the plate clearance a move is judged against, read side by side. */
+export async function scheduleContext(db: Database): Promise<ScheduleContext> {
+  const [printers, shop] = await Promise.all([listPrinterSpecs(db), getShopPlanning(db)]);
+  return { printers, clearanceMm: shop.plate_clearance_mm };
+}
+
 /**
  * Puts a draft or scheduled build on a printer, or takes it off. The printer row is locked so
  * that bookings of one printer are made one at a time: the second of two overlapping moves

@@ -181,7 +181,7 @@ export function floorViewerAndStamp(db: Database, userId: string, sid?: string |
 
 /** The encoded body of one window, from the process-wide cache while the stamp holds. */
 export function floorWindowBody(db: Database, w: FloorWindow, stamp: string): Promise<WindowBody> {
-  return floorWindowCache().get(`${w.from}|${w.to}`, stamp, async () => WindowBody.fromJson(await loadFloorJson(db, w)));
+  return floorWindowCache().get(`${w.from}|${w.to}`, stamp, async () => WindowBody.ready(await loadFloorJson(db, w)));
 }
 
 export async function loadFloor(db: Database, w: FloorWindow): Promise<FloorData> {

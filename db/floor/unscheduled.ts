@@ -24,5 +24,5 @@ export async function loadUnscheduledBuilds(db: Database): Promise<{ builds: Uns
 
 /** The encoded body, from the process-wide cache while the "shop" stamp holds (db/live/stamps.ts). */
 export function unscheduledBody(db: Database, stamp: string): Promise<WindowBody> {
-  return sharedReadCache().get("unscheduled", stamp, async () => WindowBody.fromJson(JSON.stringify(await loadUnscheduledBuilds(db))));
+  return sharedReadCache().get("unscheduled", stamp, async () => WindowBody.ready(JSON.stringify(await loadUnscheduledBuilds(db))));
 }

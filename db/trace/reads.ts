@@ -31,7 +31,10 @@ export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitT
     .executeTakeFirst();
   if (!u) throw new AppError("not_found", "Unit not found.");
 
-  const [build, wash, run, inspections, lots] = await Promise.all([
+  const entityIds = [u.id, u.build_id, u.wash_batch_id, u.furnace_run_id].filter((x): x is string => !!x);
+  // Everything else hangs off the unit's row alone, so it is asked for at once: one round trip
+  // after the unit's (a unit page asks again after each change to anything it shows).
+  const [build, wash, run, inspections, lots, segments, events] = await Promise.all([
     u.build_id
       ? db
           .selectFrom("builds as b")
@@ -75,10 +78,31 @@ export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitT
           .orderBy("l.code")
           .execute()
       : [],
+    // The run's profile's segments, through the run (the run's row comes in the same round trip).
+    u.furnace_run_id
+      ? db
+          .selectFrom("sinter_profile_segments")
+          .select(["position", "rate_c_per_min", "setpoint_c", "hold_min"])
+          .where("profile_id", "=", (eb) => eb.selectFrom("furnace_runs").select("profile_id").where("id", "=", u.furnace_run_id!))
+          .orderBy("position")
+          .execute()
+      : [],
+    db
+      .selectFrom("events as e")
+      .leftJoin("users as us", "us.id", "e.actor_id")
+      .select(["e.id", "e.entity", "e.entity_id", "e.kind", "e.from_state", "e.to_state", "e.reason", "e.data", "e.created_at", "e.actor_id", "us.name as actor_name"])
+      .where((eb) =>
+        eb.or([
+          eb.and([eb("e.entity", "=", "unit"), eb("e.entity_id", "=", u.id)]),
+          ...(u.build_id ? [eb.and([eb("e.entity", "=", "build"), eb("e.entity_id", "=", u.build_id)])] : []),
+          ...(u.wash_batch_id ? [eb.and([eb("e.entity", "=", "wash_batch"), eb("e.entity_id", "=", u.wash_batch_id)])] : []),
+          ...(u.furnace_run_id ? [eb.and([eb("e.entity", "=", "furnace_run"), eb("e.entity_id", "=", u.furnace_run_id)])] : []),
+        ]),
+      )
+      .orderBy("e.created_at")
+      .orderBy("e.id")
+      .execute(),
   ]);
-  const segments = run
-    ? await db.selectFrom("sinter_profile_segments").select(["position", "rate_c_per_min", "setpoint_c", "hold_min"]).where("profile_id", "=", run.profile_id).orderBy("position").execute()
-    : [];
 
   let massLoss = null;
   const green = num(u.green_mass_g);
@@ -106,23 +130,6 @@ export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitT
       cycle = null;
     }
   }
-
-  const entityIds = [u.id, u.build_id, u.wash_batch_id, u.furnace_run_id].filter((x): x is string => !!x);
-  const events = await db
-    .selectFrom("events as e")
-    .leftJoin("users as us", "us.id", "e.actor_id")
-    .select(["e.id", "e.entity", "e.entity_id", "e.kind", "e.from_state", "e.to_state", "e.reason", "e.data", "e.created_at", "e.actor_id", "us.name as actor_name"])
-    .where((eb) =>
-      eb.or([
-        eb.and([eb("e.entity", "=", "unit"), eb("e.entity_id", "=", u.id)]),
-        ...(u.build_id ? [eb.and([eb("e.entity", "=", "build"), eb("e.entity_id", "=", u.build_id)])] : []),
-        ...(u.wash_batch_id ? [eb.and([eb("e.entity", "=", "wash_batch"), eb("e.entity_id", "=", u.wash_batch_id)])] : []),
-        ...(u.furnace_run_id ? [eb.and([eb("e.entity", "=", "furnace_run"), eb("e.entity_id", "=", u.furnace_run_id)])] : []),
-      ]),
-    )
-    .orderBy("e.created_at")
-    .orderBy("e.id")
-    .execute();
 
   type Entry = TimelineEntry;
   const timeline: Entry[] = events.map((e) => ({
@@ -230,5 +237,5 @@ export async function loadUnitTrace(db: Database, unitId: string): Promise<UnitT
  * The answer depends on the unit alone (not on who asks), so the unit is the whole key.
  */
 export function unitTraceBody(db: Database, unitId: string, stamp: string): Promise<WindowBody> {
-  return sharedReadCache().get(`trace:${unitId.toLowerCase()}`, stamp, async () => WindowBody.fromJson(JSON.stringify(await loadUnitTrace(db, unitId))));
+  return sharedReadCache().get(`trace:${unitId.toLowerCase()}`, stamp, async () => WindowBody.ready(JSON.stringify(await loadUnitTrace(db, unitId))));
 }

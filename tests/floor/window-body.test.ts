@@ -45,6 +45,18 @@ describe("WindowBody", () => {
     expect(first.bytes.length).toBeLessThan(Buffer.byteLength(json) / 4);
     expect(body.encoded(true).bytes).toBe(first.bytes);
   });
+
+  it("ready() compresses off the event loop and answers the same bytes and tag as fromJson", async () => {
+    const body = await WindowBody.ready(json);
+    const plain = WindowBody.fromJson(json);
+    const zipped = body.encoded(true);
+    expect(zipped.headers["content-encoding"]).toBe("gzip");
+    expect(gunzipSync(zipped.bytes).toString("utf8")).toBe(json);
+    // Already made: asking again hands back the very buffer, nothing compressed on the request.
+    expect(body.encoded(true).bytes).toBe(zipped.bytes);
+    expect(body.etag).toBe(plain.etag);
+    expect(body.encoded(false).bytes.equals(plain.encoded(false).bytes)).toBe(true);
+  });
 });
 
 describe("WindowBody entity tag", () => {

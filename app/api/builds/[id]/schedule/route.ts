@@ -1,6 +1,6 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { scheduleBuild } from "@/db/builds/commands";
+import { scheduleBuild, scheduleContext } from "@/db/builds/commands";
 import { requireUser } from "@/app/_server/session";
 import { floorWindowCache } from "@/lib/floor/window-cache";
 import { readJson, toErrorResponse } from "@/app/_server/errors";
@@ -13,7 +13,12 @@ export async function PATCH(req: Request, ctx: IdContext) {
     const user = await requireUser("builds:schedule");
     const id = await readId(ctx, "Build");
     const input = scheduleBuildSchema.parse(await readJson(req));
-    const { build } = await getDb().transaction().execute((trx) => scheduleBuild(trx, id, input, user.id));
+    // The printers and the plate clearance, read before the transaction and side by side (as
+    // withBatchTransaction reads the shop's context): the build and its printer are still locked
+    // and the version checked inside it.
+    const db = getDb();
+    const judged = input.printer_id === null ? {} : await scheduleContext(db);
+    const { build } = await db.transaction().execute((trx) => scheduleBuild(trx, id, input, user.id, judged));
     floorWindowCache().clear();
     return NextResponse.json({
       build: {
