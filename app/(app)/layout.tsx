@@ -12,7 +12,7 @@ export default async function SignedInLayout({ children }: { children: React.Rea
       user={user}
       userSlot={
         <div className="flex items-end justify-between gap-2">
-          <Link href="/settings" className="group min-w-0" title="My settings: name, password, units, e-mail">
+          <Link href="/settings" className="tap-target group flex min-w-0 flex-col justify-center" title="My settings: name, password, units, e-mail">
             <div className="truncate font-semibold text-soot-50 group-hover:underline" data-testid="user-name">{user.name}</div>
             <div className="text-xs text-clay-300">
               <span data-testid="user-role">{ROLE_LABELS[user.role]}</span> · <span className="text-soot-300 group-hover:text-soot-100">My settings</span>

@@ -37,7 +37,7 @@ function CsvLink({ range, table, label = "CSV" }: { range: { from: string; to: s
     <a
       href={`/api/capacity/export?from=${range.from}&to=${range.to}&table=${table}`}
       download
-      className="rounded border border-soot-300 px-2 py-0.5 text-xs font-semibold text-soot-600 hover:border-clay-400 hover:text-clay-700"
+      className="tap-target inline-flex items-center justify-center rounded border border-soot-300 px-2 py-0.5 text-xs font-semibold text-soot-600 hover:border-clay-400 hover:text-clay-700"
       data-testid={`csv-${table}`}
     >
       {label}
@@ -161,7 +161,7 @@ function Inner({ initialRange, today }: CapacityBoardProps) {
                           {o.units_done}/{o.units_total} done{o.units_scrapped ? `, ${o.units_scrapped} scrapped` : ""}
                         </td>
                         <td className="py-1.5 text-xs">
-                          {o.latest_unit_id ? <Link href={`/units/${o.latest_unit_id}`} className="font-mono text-clay-700 hover:underline">{o.latest_serial}</Link> : o.latest_serial}
+                          {o.latest_unit_id ? <Link href={`/units/${o.latest_unit_id}`} className="tap-target inline-flex items-center font-mono text-clay-700 hover:underline">{o.latest_serial}</Link> : o.latest_serial}
                           <span className="text-soot-500"> · {stateLabel(o.latest_state)}</span>
                         </td>
                       </tr>

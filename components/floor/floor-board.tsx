@@ -15,7 +15,7 @@ import { useCalendarA11y } from "./calendar-a11y";
 import { PlanPanel, type Proposal } from "./plan-panel";
 import { ScheduleForm } from "./schedule-form";
 import { formatDay, formatSlot, minutesLabel } from "./format";
-import { FLOOR_DATA_MARK, floorUrl, openingWeek, takeOpeningFetch, type FloorRange } from "./opening-week";
+import { FLOOR_DATA_MARK, floorUrl, openingScrollTime, openingWeek, takeOpeningFetch, type FloorRange } from "./opening-week";
 import { LiveIndicator, useLivePoll } from "@/components/live/live-updates";
 import { laneEditable, laneMoveRefusal, moveLaneBooking, type LaneEventProps, type LanePermissions } from "@/components/furnace/lane-interactions";
 
@@ -133,6 +133,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
   const qc = useQueryClient();
   const router = useRouter();
   const [range, setRange] = useState<FloorRange | null>(() => openingWeek(timeZone));
+  const [scrollTime] = useState(() => openingScrollTime(timeZone));
   const [message, setMessage] = useState<Message>(null);
   const [lastMove, setLastMove] = useState<LastMove | null>(null);
   const [proposal, setProposal] = useState<Proposal | null>(null);
@@ -478,7 +479,7 @@ export function FloorBoard({ timeZone, canSchedule, canPropose, canApply, canWas
             timeZone={timeZone}
             height="auto"
             nowIndicator
-            scrollTime="00:00:00"
+            scrollTime={phone ? scrollTime : "00:00:00"}
             headerToolbar={HEADER}
             buttonText={BUTTONS}
             buttonIcons={false}

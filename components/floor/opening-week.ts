@@ -6,7 +6,7 @@
 // opening week at once; the board takes that answer if it is for the window it shows and still
 // fresh, and asks again otherwise (a 401 or any error, a client-side navigation, a stale answer).
 
-import { addLocalDays, localDateOf, startOfLocalDay, weekdayOf } from "@/lib/process/time-zone";
+import { addLocalDays, localDateOf, startOfLocalDay, weekdayOf, zonedParts } from "@/lib/process/time-zone";
 
 export type FloorRange = { from: string; to: string };
 
@@ -21,6 +21,16 @@ export function openingWeek(timeZone: string, now = new Date()): FloorRange {
   const sunday = addLocalDays(today, -weekdayOf(today));
   const at = (ms: number) => new Date(ms).toISOString();
   return { from: at(startOfLocalDay(sunday, timeZone)), to: at(startOfLocalDay(addLocalDays(sunday, 7), timeZone)) };
+}
+
+/**
+ * Where the phone's one-day timeline opens: the hour before now on the shop's clock, so a
+ * technician sees the running builds and the next hours rather than midnight. The earliest is
+ * 00:00 (the day view starts there).
+ */
+export function openingScrollTime(timeZone: string, now = new Date()): string {
+  const hour = Math.max(0, zonedParts(now.getTime(), timeZone).hour - 1);
+  return `${String(hour).padStart(2, "0")}:00:00`;
 }
 
 const GLOBAL = "__hearthFloorOpening";

@@ -121,7 +121,7 @@ export function ServerTable<Row>({ path, queryKey, columns, filters = {}, defaul
           <a
             href={`${path}/export?${new URLSearchParams([...new URLSearchParams(params)].filter(([k]) => k !== "page" && k !== "page_size")).toString()}`}
             download
-            className="rounded-md border border-soot-200 px-2.5 py-1.5 text-sm font-semibold text-soot-700 hover:bg-soot-50"
+            className="tap-target inline-flex items-center justify-center rounded-md border border-soot-200 px-2.5 py-1.5 text-sm font-semibold text-soot-700 hover:bg-soot-50"
           >
             CSV<span className="sr-only"> of the {caption.toLowerCase()} as filtered</span>
           </a>

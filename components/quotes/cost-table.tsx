@@ -12,7 +12,7 @@ export function CostTable({ figures, currency, minorDigits }: CostTableProps) {
         return (
           <li key={f.key} data-figure={f.key}>
             <details className="group px-1 py-1.5">
-              <summary className="flex cursor-pointer list-none items-center justify-between gap-3 rounded px-1 py-1 hover:bg-soot-50">
+              <summary className="tap-target flex cursor-pointer list-none items-center justify-between gap-3 rounded px-1 py-1 hover:bg-soot-50">
                 <span className={strong ? "font-semibold" : ""}>
                   <span aria-hidden className="mr-1 inline-block text-soot-400 group-open:rotate-90">›</span>
                   {f.label}

@@ -88,7 +88,7 @@ export function QuoteList({ canWrite }: QuoteListProps) {
             ) : (
               rows.map((r) => (
                 <tr key={r.id} className="border-t border-soot-100">
-                  <td className="px-3 py-2"><Link href={`/quotes/${r.id}`} className="font-semibold text-clay-800 hover:underline">{r.code}</Link></td>
+                  <td className="px-3 py-2"><Link href={`/quotes/${r.id}`} className="tap-target inline-flex items-center font-semibold text-clay-800 hover:underline">{r.code}</Link></td>
                   <td className="px-3 py-2">{r.customer}</td>
                   <td className="px-3 py-2" data-status={r.status}>{r.status}</td>
                   <td className="tabular px-3 py-2 text-right">{r.total_minor === null ? "—" : formatMoney(r.total_minor, r.currency, r.minor_digits)}</td>

@@ -79,7 +79,7 @@ export function MenuDrawer({ items, userSlot }: MenuDrawerProps) {
           </svg>
           <span className="sr-only">Menu</span>
         </button>
-        <Link href="/" className="flex items-center gap-2 text-clay-300">
+        <Link href="/" className="tap-target flex items-center gap-2 text-clay-300">
           <BrandMark className="h-6 w-6" />
           <span className="font-display text-lg font-semibold text-soot-50">Hearth</span>
         </Link>

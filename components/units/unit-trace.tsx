@@ -97,19 +97,19 @@ function Inner({ unitId, units, timeZone, canAttach, role, initial }: UnitTraceP
               ? t.build.feedstock_lots.map((l, i) => (
                   <span key={l.id}>
                     {i ? ", " : ""}
-                    <Link href={`/inventory/${l.id}`} className="font-mono text-clay-700 hover:underline">{l.code}</Link> ({l.supplier} {l.supplier_lot})
+                    <Link href={`/inventory/${l.id}`} className="tap-target inline-flex items-center font-mono text-clay-700 hover:underline">{l.code}</Link> ({l.supplier} {l.supplier_lot})
                   </span>
                 ))
               : t.build?.material_lot || "not recorded"}
           </Row>
-          <Row k="Build">{t.build ? <Link href={`/builds/${t.build.id}`} className="text-clay-700 hover:underline">{t.build.code}</Link> : "not in a build yet"}</Row>
+          <Row k="Build">{t.build ? <Link href={`/builds/${t.build.id}`} className="tap-target inline-flex items-center text-clay-700 hover:underline">{t.build.code}</Link> : "not in a build yet"}</Row>
           {t.build ? (
             <>
               <Row k="Printer">{t.build.printer_name ?? "none"}</Row>
               <Row k="Booked">{slot(t.build.starts_at, t.build.ends_at)}</Row>
               <Row k="Printed">{t.build.started_at ? `${when(t.build.started_at)} → ${when(t.build.finished_at)}` : "–"}</Row>
               {t.build.failed ? <Row k="Failed">{t.build.failure_reason ?? "yes"}</Row> : null}
-              <Row k="Traveler"><a href={`/api/builds/${t.build.id}/traveler`} target="_blank" rel="noreferrer" className="text-clay-700 hover:underline">traveler (PDF)</a></Row>
+              <Row k="Traveler"><a href={`/api/builds/${t.build.id}/traveler`} target="_blank" rel="noreferrer" className="tap-target inline-flex items-center text-clay-700 hover:underline">traveler (PDF)</a></Row>
             </>
           ) : null}
           <Row k="Finished size">{size(t.part.nominal)}</Row>
@@ -142,7 +142,7 @@ function Inner({ unitId, units, timeZone, canAttach, role, initial }: UnitTraceP
         <Card title="Sinter" testId="trace-furnace">
           {t.furnace_run ? (
             <>
-              <Row k="Run"><Link href={`/furnace-runs/${t.furnace_run.id}`} className="text-clay-700 hover:underline">{t.furnace_run.code}</Link> · {t.furnace_run.state}</Row>
+              <Row k="Run"><Link href={`/furnace-runs/${t.furnace_run.id}`} className="tap-target inline-flex items-center text-clay-700 hover:underline">{t.furnace_run.code}</Link> · {t.furnace_run.state}</Row>
               <Row k="Furnace">{t.furnace_run.furnace_name ?? "none"}</Row>
               <Row k="Profile">{t.furnace_run.profile.code} rev {t.furnace_run.profile.revision} · {t.furnace_run.profile.name}</Row>
               <Row k="Atmosphere">{t.furnace_run.profile.atmosphere}</Row>

@@ -1,6 +1,6 @@
 import vm from "node:vm";
 import { afterEach, describe, expect, it } from "vitest";
-import { floorUrl, openingFetchScript, openingWeek, takeOpeningFetch } from "@/components/floor/opening-week";
+import { floorUrl, openingFetchScript, openingScrollTime, openingWeek, takeOpeningFetch } from "@/components/floor/opening-week";
 
 // The floor's opening week and the early request for it: the week is the shop's, whatever zone
 // the browser is in, and the inline script must ask for exactly the address the board will ask
@@ -101,5 +101,21 @@ describe("takeOpeningFetch", () => {
 
   it("is nothing on the server", () => {
     expect(takeOpeningFetch(url)).toBeNull();
+  });
+});
+
+describe("where the phone's day timeline opens", () => {
+  // Offsets from the IANA zone database: Kolkata UTC+05:30 all year, Chicago UTC−06:00 in
+  // December (standard time), Auckland UTC+13:00 in December (daylight time).
+  it("is the hour before now on the shop's clock, whatever zone the browser is in", () => {
+    const at = new Date("2026-12-02T15:00:00Z");
+    expect(openingScrollTime("UTC", at)).toBe("14:00:00");
+    expect(openingScrollTime("Asia/Kolkata", at)).toBe("19:00:00"); // 20:30 local
+    expect(openingScrollTime("America/Chicago", at)).toBe("08:00:00"); // 09:00 local
+    expect(openingScrollTime("Pacific/Auckland", at)).toBe("03:00:00"); // 04:00 the next day
+  });
+  it("never opens before midnight", () => {
+    expect(openingScrollTime("UTC", new Date("2026-12-02T00:30:00Z"))).toBe("00:00:00");
+    expect(openingScrollTime("America/Chicago", new Date("2026-12-02T06:59:00Z"))).toBe("00:00:00"); // 00:59 local
   });
 });

@@ -3,6 +3,7 @@ import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type { Browser, BrowserContext, Page } from "playwright-core";
 import { axeViolations, type AxeFinding } from "../helpers/axe";
+import { smallTapTargets } from "../helpers/tap-targets";
 import { appUrl, launchBrowser, screenshot } from "../helpers/browser";
 import { testDb } from "../helpers/db";
 import { api, DEMO, signIn } from "../helpers/session";
@@ -11,7 +12,8 @@ import { can, navFor, type Role } from "@/lib/auth/permissions";
 
 // Every page, for every role, at a phone, a tablet and a desktop width: no page scrolls sideways as a
 // whole on the phone or the tablet (document.scrollingElement.scrollWidth ≤ innerWidth), and axe-core
-// finds no serious or critical WCAG 2.x A/AA violation at any of the three widths. One browser and
+// finds no serious or critical WCAG 2.x A/AA violation at any of the three widths, and every
+// control on the two touch screens is a finger-sized target (tests/helpers/tap-targets.ts). One browser and
 // one started app for all of it; a few contexts per role and width, visiting at once. The last check walks app/ and
 // fails when a page there is visited by no role, so a new page cannot be left out.
 
@@ -135,6 +137,9 @@ async function visitLane(role: Role | null, width: Width, paths: string[], opts:
         const { scrollWidth, innerWidth } = await page.evaluate(() => ({ scrollWidth: document.scrollingElement!.scrollWidth, innerWidth: window.innerWidth }));
         if (scrollWidth > innerWidth) problems.push({ page: path, what: `scrolls sideways: ${scrollWidth} px wide in a ${innerWidth} px window` });
       }
+      if (opts.overflow) {
+        for (const t of await smallTapTargets(page)) problems.push({ page: path, what: `tap target under 44 px: ${t}` });
+      }
       if (opts.axe) {
         const found: AxeFinding[] = await axeViolations(page);
         for (const v of found) problems.push({ page: path, what: `${v.impact} ${v.id}: ${v.help}\n      ${v.nodes.join("\n      ")}` });
@@ -178,10 +183,10 @@ describe("every page at phone, tablet and desktop widths", () => {
   }, 120_000);
 
   for (const role of ROLES) {
-    it(`${role}: no sideways scroll and no serious axe violation on a phone`, async () => {
+    it(`${role}: no sideways scroll, no small tap target and no serious axe violation on a phone`, async () => {
       expect(report(await visitAll(role, "phone", pagesFor(role), { axe: true, overflow: true, shots: true }))).toBe("");
     }, 600_000);
-    it(`${role}: no serious axe violation on a desktop, nor on a tablet, where no page scrolls sideways either`, async () => {
+    it(`${role}: no serious axe violation on a desktop, nor on a tablet, where no page scrolls sideways and no tap target is small either`, async () => {
       const desktop = await visitAll(role, "desktop", pagesFor(role), { axe: true, overflow: false, shots: role === "admin" || role === "furnace_operator" });
       const tablet = await visitAll(role, "tablet", pagesFor(role), { axe: true, overflow: true, shots: role !== "manager" });
       expect(report([...desktop, ...tablet])).toBe("");

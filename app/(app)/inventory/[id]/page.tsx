@@ -70,9 +70,9 @@ export default async function LotPage({ params }: { params: Promise<{ id: string
               <tbody>
                 {units.map((u) => (
                   <tr key={u.unit_id} className="border-b border-soot-100">
-                    <td className="px-2 py-1.5"><Link href={`/units/${u.unit_id}`} className="font-mono text-clay-800 underline-offset-2 hover:underline">{u.serial}</Link></td>
+                    <td className="px-2 py-1.5"><Link href={`/units/${u.unit_id}`} className="tap-target inline-flex items-center font-mono text-clay-800 underline-offset-2 hover:underline">{u.serial}</Link></td>
                     <td className="px-2 py-1.5">{u.state.replaceAll("_", " ")}</td>
-                    <td className="px-2 py-1.5"><Link href={`/builds/${u.build_id}`} className="text-clay-800 underline-offset-2 hover:underline">{u.build_code}</Link></td>
+                    <td className="px-2 py-1.5"><Link href={`/builds/${u.build_id}`} className="tap-target inline-flex items-center text-clay-800 underline-offset-2 hover:underline">{u.build_code}</Link></td>
                     <td className="px-2 py-1.5">{u.printer ?? "—"}</td>
                     <td className="px-2 py-1.5">{u.wash_batch_code ?? "—"}</td>
                     <td className="px-2 py-1.5">{u.furnace_run_code ? `${u.furnace_run_code} (${u.profile_code})` : "—"}</td>

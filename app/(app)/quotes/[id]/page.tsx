@@ -15,7 +15,7 @@ export default async function QuotePage({ params }: { params: Promise<{ id: stri
   const { id } = await params;
   return (
     <>
-      <PageHeader title="Quote" lead="Lines, cost figures with their formulas, and the tentative plan with its critical path." actions={<Link href="/quotes" className="text-sm text-clay-800 underline">All quotes</Link>} />
+      <PageHeader title="Quote" lead="Lines, cost figures with their formulas, and the tentative plan with its critical path." actions={<Link href="/quotes" className="tap-target inline-flex items-center text-sm text-clay-800 underline">All quotes</Link>} />
       <QueryProvider>
         <QuoteEditor id={id} canWrite={can(user.role, "quotes:write")} maxUploadBytes={getEnv().UPLOAD_MAX_BYTES} />
       </QueryProvider>

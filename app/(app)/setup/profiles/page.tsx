@@ -15,7 +15,7 @@ export default async function ProfilesPage() {
         title="Sinter profiles"
         lead="Ramp and hold segments, the cool-down, the atmosphere, and which materials and furnaces use each profile. A revision held by a booked run never changes under it: saving makes the next revision."
         actions={
-          <Link href="/setup" className="rounded-md border border-soot-200 bg-white px-3 py-1.5 text-sm text-soot-700 hover:bg-soot-50">
+          <Link href="/setup" className="inline-flex min-h-11 items-center rounded-md border border-soot-200 bg-white px-3 py-1.5 text-sm text-soot-700 hover:bg-soot-50">
             Set-up
           </Link>
         }

@@ -14,7 +14,7 @@ export default async function UsersPage() {
         title="Users"
         lead="Who may sign in, and with which role. New people get an e-mailed invitation to choose their password."
         actions={
-          <Link href="/setup" className="text-sm font-semibold text-clay-700 hover:underline">
+          <Link href="/setup" className="inline-flex min-h-11 items-center text-sm font-semibold text-clay-700 hover:underline">
             ← Set-up
           </Link>
         }
