@@ -2,7 +2,7 @@
 
 import { ScrollRegion } from "@/components/ui/scroll-region";
 import Link from "next/link";
-import { useEffect, useState } from "react";
+import { useEffect, useState, type ReactNode } from "react";
 import { useMutation, useQuery, useQueryClient } from "@tanstack/react-query";
 import { can, type Role } from "@/lib/auth/permissions";
 import { LOADING_CHECKLIST, missingChecks } from "@/lib/batches/checklist";
@@ -66,11 +66,14 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
   const canOperate = can(role, "furnace:operate");
   const peak = Math.max(...d.curve.map((p) => p.temp_c));
   const labels = Object.fromEntries(run.units.map((u) => [u.id, u.serial]));
+  const checklistShown = (run.state === "draft" || run.state === "scheduled") && canOperate;
   const mayUnload = canOperate && !d.unloaded_at && (run.state === "complete" || (running && ended));
 
   return (
-    <div className="space-y-5">
-      <LiveIndicator />
+    <div className="space-y-3 sm:space-y-5">
+      {/* With the checklist shown, the live mark sits in its heading row: one row less above the
+          start button on a phone. */}
+      {checklistShown ? null : <LiveIndicator />}
       {flash ? (
         <div role={flash.tone === "danger" ? "alert" : "status"} data-testid="run-flash" className={`rounded-card border px-3 py-2 text-sm ${flash.tone === "danger" ? "border-oxide-500/40 bg-oxide-100 text-oxide-700" : "border-verdigris-400/40 bg-verdigris-100 text-verdigris-700"}`}>
           {flash.text}
@@ -78,8 +81,9 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
       ) : null}
       {/* The operator's next action (the checklist and start, or the unload) leads, so that on a
           phone it is on the first screen; the run's facts, curve and trays follow. */}
-      {(run.state === "draft" || run.state === "scheduled") && canOperate ? (
+      {checklistShown ? (
         <LoadingChecklist
+          live={<LiveIndicator />}
           busy={act.isPending}
           disabled={run.units.length === 0}
           onStart={(checklist) => act.mutate({ url: `/api/furnace-runs/${run.id}/start`, body: { version: run.version, checklist }, done: `${run.code} started.` })}
@@ -173,18 +177,23 @@ function RunViewInner({ runId, role, unitPref }: RunViewProps) {
   );
 }
 
-function LoadingChecklist({ busy, disabled, onStart }: { busy: boolean; disabled: boolean; onStart: (c: Record<string, boolean>) => void }) {
+function LoadingChecklist({ busy, disabled, onStart, live }: { busy: boolean; disabled: boolean; onStart: (c: Record<string, boolean>) => void; live: ReactNode }) {
   const [ticks, setTicks] = useState<Record<string, boolean>>({});
   const missing = missingChecks(ticks);
   return (
     <section className="rounded-card border border-clay-300 bg-white p-4 shadow-card" aria-label="Loading checklist" data-testid="loading-checklist">
-      <h2 className="text-sm font-semibold text-soot-800">Loading checklist</h2>
+      <div className="flex items-center justify-between gap-2">
+        <h2 className="text-sm font-semibold text-soot-800">Loading checklist</h2>
+        {live}
+      </div>
       <p className="text-2xs text-soot-500">Tick each item as it is done; the run can start only when all are ticked. The furnace maker&apos;s procedure comes first.</p>
-      <ul className="mt-2 space-y-1.5">
+      {/* On a touch screen each label is a 44 px target already (globals.css): no gap between them,
+          so that the start button stays on a phone's first screen. */}
+      <ul className="mt-2 space-y-1.5 pointer-coarse:space-y-0">
         {LOADING_CHECKLIST.map((c) => (
           <li key={c.key}>
-            <label className="flex items-start gap-2 text-sm text-soot-800">
-              <input type="checkbox" className="mt-0.5" checked={ticks[c.key] === true} onChange={(e) => setTicks({ ...ticks, [c.key]: e.target.checked })} name={c.key} />
+            <label className="flex items-start gap-2 text-sm text-soot-800 pointer-coarse:items-center">
+              <input type="checkbox" className="mt-0.5 pointer-coarse:mt-0 shrink-0" checked={ticks[c.key] === true} onChange={(e) => setTicks({ ...ticks, [c.key]: e.target.checked })} name={c.key} />
               {c.label}
             </label>
           </li>

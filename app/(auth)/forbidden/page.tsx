@@ -10,7 +10,7 @@ export default async function ForbiddenPage({ searchParams }: { searchParams: Pr
       <p className="mt-2 text-sm text-soot-600">
         This page needs a permission your role does not have{need ? ` (${need.slice(0, 40)})` : ""}. Ask an admin if you need it.
       </p>
-      <Link href="/" className="mt-5 inline-block text-sm font-semibold text-clay-700 hover:underline">
+      <Link href="/" className="tap-target mt-5 inline-flex items-center text-sm font-semibold text-clay-700 hover:underline">
         Back to my work
       </Link>
     </>

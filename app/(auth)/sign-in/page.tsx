@@ -22,7 +22,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
         </p>
       ) : null}
       <SignInForm next={safeNextPath(next)} email={typeof email === "string" ? email.slice(0, 254) : ""} />
-      <Link href="/forgot-password" className="mt-4 inline-block text-sm font-semibold text-clay-700 hover:underline">
+      <Link href="/forgot-password" className="tap-target mt-4 inline-flex items-center text-sm font-semibold text-clay-700 hover:underline">
         Forgot your password?
       </Link>
       {showDemo ? (
