@@ -62,7 +62,7 @@ export function RunTarget({ run, furnace, furnaces, profile, clearance_mm, timeZ
       <header className="flex flex-wrap items-start justify-between gap-2">
         <div>
           <div className="flex items-center gap-2">
-            <Link href={`/furnace-runs/${run.id}`} className="font-display text-base font-semibold text-soot-900 hover:text-clay-700">
+            <Link href={`/furnace-runs/${run.id}`} className="tap-target inline-flex items-center font-display text-base font-semibold text-soot-900 hover:text-clay-700">
               {run.code}
             </Link>
             <span className="rounded bg-soot-100 px-1.5 text-2xs font-semibold text-soot-700" data-testid="run-state">
@@ -162,7 +162,7 @@ export function WashTarget({ batch, station, stations, timeZone, unitPref, hover
       <header className="flex flex-wrap items-start justify-between gap-2">
         <div>
           <div className="flex items-center gap-2">
-            <Link href={`/batches/wash/${batch.id}`} className="font-display text-base font-semibold text-soot-900 hover:text-clay-700">
+            <Link href={`/batches/wash/${batch.id}`} className="tap-target inline-flex items-center font-display text-base font-semibold text-soot-900 hover:text-clay-700">
               {batch.code}
             </Link>
             <span className="rounded bg-soot-100 px-1.5 text-2xs font-semibold text-soot-700">{STATE_WORDS[batch.state]}</span>

@@ -189,9 +189,11 @@ describe("finishing in the browser", () => {
       }
       await screenshot(page, "phone-machinist-finishing-queue");
       expect(small).toEqual([]);
-      // A unit's own page: its traveler, build, run and trace links too.
-      const href = await page.getByTestId("section-recent").getByRole("link").first().getAttribute("href");
-      await page.goto(`${appUrl()}${href!.replace("/units/", "/finishing/")}`);
+      // A unit's own page: its traveler, build, run and trace links too. A unit printed in a build
+      // (this file's own units are made without one, and then have no build or traveler link).
+      const built = await db.selectFrom("units").select("id").where("build_id", "is not", null).where("furnace_run_id", "is not", null)
+        .where("state", "in", ["ready_for_finishing", "finishing", "done"]).orderBy("serial").executeTakeFirstOrThrow();
+      await page.goto(`${appUrl()}/finishing/${built.id}`);
       const trace = page.getByRole("link", { name: "Full trace" });
       await trace.waitFor();
       for (const name of ["Full trace", /^Build /, "Traveler (PDF)"]) {
