@@ -19,7 +19,7 @@ BoardWashBatch,
 BookingState,
 UnitState,
 } from "@/lib/batches/types";
-import { byRisk, cycleMinutesFor, mostAtRisk, prepareBoardUnit, profileForCycle, toBoardUnit, type PreparedBoardUnit } from "@/lib/batches/board-unit";
+import { byRisk, mostAtRisk, prepareBoardUnit, toBoardUnit, type PreparedBoardUnit, type WaitingLane } from "@/lib/batches/board-unit";
 import type { TrayRun } from "@/lib/packing/types";
 import { boardCache, waitingWashCache, waitingWashRowsCache } from "@/lib/batches/board-cache";
 import { changeStamp } from "@/db/live/stamps";
@@ -45,8 +45,6 @@ export interface ShopContext {
   stations: BoardStation[];
   materials: BoardMaterial[];
 }
-
-export { cycleMinutesFor, profileForCycle };
 
 export async function listProfiles(db: Db, opts: { includeRetired?: boolean; ids?: string[] } = {}): Promise<BoardProfile[]> {
   let q = db
@@ -227,8 +225,6 @@ export async function prepareWaitingWash(db: Db, ctx: ShopContext): Promise<Prep
   return out;
 }
 
-
-
 type WashRow = { id: string; code: string; state: BookingState; version: number; wash_station_id: string | null; starts_at: Date | null; ends_at: Date | null; est_minutes: unknown; started_at: Date | null; finished_at: Date | null };
 type RunRow = { id: string; code: string; state: BookingState; version: number; furnace_id: string | null; profile_id: string; starts_at: Date | null; ends_at: Date | null; cycle_minutes: unknown; tray_layout: unknown };
 
@@ -330,9 +326,6 @@ async function sharedWaitingWash(db: Db, ctx: ShopContext): Promise<WaitingLane>
   const stamp = rows[0].v;
   return waitingWashCache().get("waiting_wash", stamp, async () => mostAtRisk(await waitingWashRowsCache().get("waiting_wash", stamp, () => prepareWaitingWash(db, ctx)), ctx, BOARD_WAITING_LIMIT));
 }
-
-/** A lane of waiting units as the board shows it: the most at risk, and how many wait in all. */
-export type WaitingLane = { units: BoardUnit[]; total: number };
 
 /** Waiting units the board lists per lane, most at risk first (the suggestions still see all). */
 export const BOARD_WAITING_LIMIT = 200;

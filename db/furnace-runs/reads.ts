@@ -2,7 +2,8 @@ import { AppError } from "@/lib/errors";
 import { currentLayout } from "@/lib/batches/rules";
 import type { BoardFurnace, BoardFurnaceRun, BoardProfile, BoardUnit, RunDetail } from "@/lib/batches/types";
 import { profileCurve } from "@/lib/process/furnace-profile";
-import { findFurnace, listFurnaceRuns, listProfiles, loadShopContext, profileForCycle, type Db, type ShopContext } from "@/db/batches/reads";
+import { findFurnace, listFurnaceRuns, listProfiles, loadShopContext, type Db, type ShopContext } from "@/db/batches/reads";
+import { profileForCycle } from "@/lib/batches/board-unit";
 import { unitsWithPart } from "@/db/units/joins";
 
 export const refuse = (code: string, reason: string, field = "unit_id") => new AppError("invalid", reason, { [field]: [reason] }, { rule: code });

@@ -1,7 +1,8 @@
 import { sql } from "kysely";
 import type { Database } from "@/db/client";
 import { AppError } from "@/lib/errors";
-import { loadShopContext, listFurnaceRuns, cycleMinutesFor, type Db } from "@/db/batches/reads";
+import { loadShopContext, listFurnaceRuns, type Db } from "@/db/batches/reads";
+import { cycleMinutesFor } from "@/lib/batches/board-unit";
 import { getShopPlanning, listPrinterSpecs, printerBlockedFrom } from "@/db/floor/reads";
 import { currentLayout, packFurnace, packUnit, profileLabel } from "@/lib/batches/rules";
 import { staffedHoursFor } from "@/lib/floor/plan";

@@ -2,7 +2,8 @@ import { sql, type Transaction } from "kysely";
 import type { DB } from "@/db/schema";
 import { AppError } from "@/lib/errors";
 import type { ProfileInput } from "@/lib/batches/schemas";
-import { cycleMinutesFor, listProfiles } from "@/db/batches/reads";
+import { listProfiles } from "@/db/batches/reads";
+import { cycleMinutesFor } from "@/lib/batches/board-unit";
 import { recordEvents } from "@/db/versioned";
 
 type Trx = Transaction<DB>;

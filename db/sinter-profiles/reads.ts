@@ -1,7 +1,8 @@
 import type { Database } from "@/db/client";
 import { AppError } from "@/lib/errors";
 import type { ProfileListItem } from "@/lib/batches/types";
-import { cycleMinutesFor, listProfiles, type Db } from "@/db/batches/reads";
+import { listProfiles, type Db } from "@/db/batches/reads";
+import { cycleMinutesFor } from "@/lib/batches/board-unit";
 
 export async function listProfilesForSetup(db: Db): Promise<ProfileListItem[]> {
   const profiles = await listProfiles(db, { includeRetired: true });

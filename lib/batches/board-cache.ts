@@ -3,15 +3,11 @@
 // after each change every open board asks again at once, and one load serves them all.
 import { WindowCache } from "@/lib/floor/window-cache";
 import type { WindowBody } from "@/lib/floor/window-body";
-import type { BoardUnit } from "@/lib/batches/types";
-import type { PreparedBoardUnit } from "@/lib/batches/board-unit";
-
-/** The board's lane of units waiting for a wash: the most at risk, and how many wait in all. */
-type WaitingWash = { units: BoardUnit[]; total: number };
+import type { PreparedBoardUnit, WaitingLane } from "@/lib/batches/board-unit";
 
 // On globalThis for the same reason as the floor's window cache: the route handler and the live
 // listener's module copy must share it.
-const globalForCache = globalThis as unknown as { hearthBoardCache?: WindowCache<WindowBody>; hearthWaitingWashCache?: WindowCache<WaitingWash>; hearthWaitingWashRowsCache?: WindowCache<PreparedBoardUnit[]> };
+const globalForCache = globalThis as unknown as { hearthBoardCache?: WindowCache<WindowBody>; hearthWaitingWashCache?: WindowCache<WaitingLane>; hearthWaitingWashRowsCache?: WindowCache<PreparedBoardUnit[]> };
 
 export function boardCache(): WindowCache<WindowBody> {
   return (globalForCache.hearthBoardCache ??= new WindowCache<WindowBody>(2_000, 4));
@@ -23,10 +19,10 @@ export function boardCache(): WindowCache<WindowBody> {
  * answer for ten more): its stamp and the live listener end it at any change it shows, so the age
  * only bounds how far its projections' "now" lags the board's (the slack is in whole minutes).
  */
-export function waitingWashCache(): WindowCache<WaitingWash> {
+export function waitingWashCache(): WindowCache<WaitingLane> {
   // Past ten seconds (and up to ten more) the list is answered while its reload runs behind it:
   // the boards that ask then do not all wait a third of a second for projections that only aged.
-  return (globalForCache.hearthWaitingWashCache ??= new WindowCache<WaitingWash>(10_000, 2, Date.now, 10_000));
+  return (globalForCache.hearthWaitingWashCache ??= new WindowCache<WaitingLane>(10_000, 2, Date.now, 10_000));
 }
 
 /**

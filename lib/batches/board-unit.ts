@@ -275,7 +275,10 @@ export function projectBoardUnit(u: PreparedBoardUnit, ctx: BoardUnitContext): B
  * (a number per unit), where projecting every one of ten thousand units into a new object took
  * a fifth of a second, most of it the garbage collector's.
  */
-export function mostAtRisk(units: readonly PreparedBoardUnit[], ctx: BoardUnitContext, limit: number): { units: BoardUnit[]; total: number } {
+/** A lane of waiting units as the board shows it: the most at risk, and how many wait in all. */
+export type WaitingLane = { units: BoardUnit[]; total: number };
+
+export function mostAtRisk(units: readonly PreparedBoardUnit[], ctx: BoardUnitContext, limit: number): WaitingLane {
   const slack = units.map((u) => slackOf(u, ctx));
   // Indices in the units' own order: the sort is stable, so equal units keep it, as listBoardUnits's do.
   const order = units.map((_, i) => i);
