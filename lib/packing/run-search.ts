@@ -329,18 +329,21 @@ export function reduceRuns(pm: ProfileModel, start: RunState[], opts: RunSearchO
     if (best.length <= 1 || outOfBudget(ctx)) break;
     // Weakest first: the least used run has the fewest units to rehouse.
     const ranked = best.map((r, i) => ({ i, v: r.value + 1e-9 * r.placed.length })).sort((a, b) => a.v - b.v || a.i - b.i);
-    const pick = ranked[attempt % Math.min(3, ranked.length)].i;
-    // Each attempt gets a share of what is left, so later attempts still get a chance.
-    const left = ctx.limit - ctx.work;
-    const share = ctx.work + Math.max(left / 3, Math.min(left, 2000));
-    const next = withoutRun(ctx, best, pick, share);
+    // An attempt that gives up at once (a pooled unit that no other run's furnace takes) passes
+    // to the next weakest run; after the three weakest, the search ends.
+    if (attempt >= Math.min(3, ranked.length)) break;
+    const pick = ranked[attempt].i;
+    // Each attempt may use all the work that is left: on the 2-D bin-packing classes, one long
+    // attempt at the weakest run removed 12 runs more over 250 instances than splitting the work
+    // in thirds between attempts (and 8 more than halves), at the same work.
+    const before = ctx.work;
+    const next = withoutRun(ctx, best, pick, ctx.limit);
     if (next) {
       best = next;
       attempt = 0;
     } else {
-      // A failed attempt is charged its whole share, even one that gave up at once (no furnace
-      // left for a pooled unit), so the loop always ends.
-      ctx.work = Math.max(ctx.work, share);
+      // Charged at least one unit of work, so that the loop always ends.
+      ctx.work = Math.max(ctx.work, before + 1);
       attempt++;
     }
   }

@@ -15,6 +15,7 @@
 
 import { ComputationError } from "@/lib/errors";
 import { claimedAreaTrayBound, dffTrayBound, shortSideTrayBound } from "./dual-feasible";
+import { sharingTrayBound } from "./subset-bound";
 import { ceilWithSlack, martelloTothL2 } from "./one-dimensional";
 import { GEOMETRY_EPS } from "./rectangles";
 import type { PackFurnace, PackUnit, TrayLowerBound, TrayPackInput, Unplaced } from "./types";
@@ -66,7 +67,7 @@ export interface ProfileModel {
   maxLoad: number;
   maxTrays: number;
   minSide: number;
-  bound: { area: number; mass: number; count: number; shape: number; largest: number };
+  bound: { area: number; mass: number; count: number; shape: number; sharing: number; largest: number };
 }
 
 export interface TrayModel {
@@ -254,7 +255,7 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
   });
 
   const profiles: ProfileModel[] = [];
-  const total = { area: 0, mass: 0, count: 0, shape: 0, largest: 0 };
+  const total = { area: 0, mass: 0, count: 0, shape: 0, sharing: 0, largest: 0 };
   for (const [profile, items] of [...byProfile.entries()].sort((a, b) => (a[0] < b[0] ? -1 : 1))) {
     const used = new Set<number>();
     for (const it of items) for (const f of it.eligible) used.add(f);
@@ -302,7 +303,7 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
     const trayNeed = Math.max(shapeTrays, sideTrays, claimedTrays);
     const shape = trayNeed === 0 ? 0 : ceilWithSlack(trayNeed / maxTrays);
     const largest = Math.max(area, mass, count, shape, items.length > 0 ? 1 : 0);
-    const bound = { area, mass, count, shape, largest };
+    const bound = { area, mass, count, shape, sharing: 0, largest };
     total.area += area;
     total.mass += mass;
     total.count += count;
@@ -312,3 +313,35 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
   }
   return { clearance: c, furnaces, profiles, unplaced, lowerBound: total };
 }
+
+/** Nodes the sharing search may use per profile (about 0.1–0.3 s at most on the 2-D bin-packing classes, on our machine). */
+export const SHARING_BUDGET = 10_000;
+
+/**
+ * Raises the profile's bound (and the model's totals) by the search over which of the larger
+ * pieces can share a tray (subset-bound.ts), up to `stopAt` runs (a plan in hand: no bound can
+ * pass it). Costs up to `budget` nodes, so it is run only for a profile whose plan is above its
+ * other bounds. Needs one tray size for the whole profile, as the short-side bound does.
+ */
+export function raiseBySharing(model: TrayModel, pm: ProfileModel, stopAt: number, budget = SHARING_BUDGET): void {
+  const t0 = pm.furnaces[0];
+  if (!t0 || !pm.furnaces.every((f) => (f.W === t0.W && f.D === t0.D) || (f.W === t0.D && f.D === t0.W))) return;
+  // From zero: the run bounds may rest on load, which says nothing about trays; the first steps
+  // up are settled by area alone, one node each.
+  const { bound: trays } = sharingTrayBound(
+    pm.items.map((it) => ({ w: it.pw, h: it.ph })),
+    t0.W,
+    t0.D,
+    0,
+    { budget, stopAt: stopAt * pm.maxTrays },
+  );
+  const runs = ceilWithSlack(trays / pm.maxTrays);
+  if (runs <= pm.bound.sharing) return;
+  model.lowerBound.sharing += runs - pm.bound.sharing;
+  pm.bound.sharing = runs;
+  if (runs > pm.bound.largest) {
+    model.lowerBound.largest += runs - pm.bound.largest;
+    pm.bound.largest = runs;
+  }
+}
+

@@ -8,6 +8,7 @@ import { RunState, orderByDue, packSet, solveProfile } from "./run-solver";
 import { reduceRuns } from "./run-search";
 import {
   buildTrayModel,
+  raiseBySharing,
   fitsTray,
   furnaceModel,
   grownSize,
@@ -30,7 +31,7 @@ export interface PackTraysOptions {
    * The run-removing local search after the constructions (run-search.ts). `false` returns the
    * constructions' plan as it is. `work` counts placement attempts over the whole call (split
    * over the profiles still above their bound after the constructions, by unit count; default
-   * defaultSearchWork, scaled by deadlineMs / 300 ms when a deadline is given); `seed` makes it
+   * defaultSearchWork, or searchWorkFor when a deadline is given); `seed` makes it
    * repeatable; `deadlineMs` (ms from the call's start) cuts it short whatever work is left.
    */
   search?: false | { work?: number; seed?: number; deadlineMs?: number };
@@ -44,6 +45,21 @@ export interface PackTraysOptions {
  */
 export function defaultSearchWork(n: number): number {
   return Math.min(300_000, Math.max(20_000, 2_000 * n));
+}
+
+/**
+ * Placement attempts the search makes in about one millisecond at n = 60–100 on our 2-core
+ * machine (measured 850–1,000 with the 2-D bin-packing bench, search running to its deadline).
+ */
+export const SEARCH_WORK_PER_MS = 1_000;
+
+/**
+ * Default work for a search given `deadlineMs`: about what the deadline allows on our machine, so
+ * that the result stays the same for a seed wherever the machine keeps up, and the deadline cuts
+ * it short where it does not.
+ */
+export function searchWorkFor(n: number, deadlineMs: number): number {
+  return Math.max(defaultSearchWork(n), Math.round(SEARCH_WORK_PER_MS * deadlineMs));
 }
 
 /** How the search went, per call: whether every profile met its bound and what was spent. */
@@ -98,13 +114,15 @@ export function packTraysReported(input: TrayPackInput, options: PackTraysOption
   const nUnits = model.profiles.reduce((s, pm) => s + pm.items.length, 0);
   // Without a deadline the work budget is what bounds the time; with one and no work given, the
   // search may use what the deadline allows (the default budget per 300 ms, its calibration).
-  const defaultWork = search?.deadlineMs !== undefined ? defaultSearchWork(nUnits) * Math.max(1, search.deadlineMs / 300) : defaultSearchWork(nUnits);
+  const defaultWork = search?.deadlineMs !== undefined ? searchWorkFor(nUnits, search.deadlineMs) : defaultSearchWork(nUnits);
   const totalWork = search ? (search.work ?? Math.round(defaultWork)) : 0;
   const deadline = search?.deadlineMs !== undefined ? t0 + search.deadlineMs : undefined;
   const report: PackSearchReport = { start_runs: 0, work: 0, stop: search ? "bound" : "off", ms: 0 };
   // Constructions first, for every profile; the search's work then goes to the profiles still
   // above their bound, split by unit count (a profile already at its bound needs none).
   const solved = model.profiles.map((pm) => solveProfile(pm, { restarts }));
+  // Before searching for a plan with fewer runs, look for proof that there is none.
+  if (search) model.profiles.forEach((pm, k) => solved[k].length > pm.bound.largest && raiseBySharing(model, pm, solved[k].length));
   const above = model.profiles.filter((pm, k) => solved[k].length > pm.bound.largest);
   const unitsAbove = above.reduce((s, pm) => s + pm.items.length, 0);
   model.profiles.forEach((pm, k) => {

@@ -58,9 +58,9 @@ export interface Unplaced {
 }
 
 /**
- * Lower bounds on the run count. `area`, `mass`, `count` and `shape` are each summed over
- * profiles; `largest` sums, profile by profile, the largest of the four, so it is at least
- * max(area, mass, count, shape) and is the bound to compare a result against.
+ * Lower bounds on the run count. `area`, `mass`, `count`, `shape` and `sharing` are each summed
+ * over profiles; `largest` sums, profile by profile, the largest of the five, so it is at least
+ * each of them and is the bound to compare a result against.
  */
 export interface TrayLowerBound {
   /** Martello–Toth L2 on footprint area against the largest run area. */
@@ -71,6 +71,12 @@ export interface TrayLowerBound {
   count: number;
   /** Trays needed by the pieces' shapes (dual-feasible functions, short-side and claimed-area bounds, turning allowed; dual-feasible.ts). */
   shape: number;
+  /**
+   * Trays the larger pieces need by a search over which of them can share a tray
+   * (subset-bound.ts), tried only for a profile whose constructed plan is above the other bounds
+   * and only while a search is asked for; 0 when not tried or proving nothing more.
+   */
+  sharing: number;
   largest: number;
 }
 

@@ -136,7 +136,7 @@ describe("run rules", () => {
 
   it("an empty queue gives no runs and a zero bound", () => {
     const res = packTrays({ clearance_mm: 5, furnaces: [furnace()], units: [] });
-    expect(res).toEqual({ runs: [], unplaced: [], lowerBound: { area: 0, mass: 0, count: 0, shape: 0, largest: 0 } });
+    expect(res).toEqual({ runs: [], unplaced: [], lowerBound: { area: 0, mass: 0, count: 0, shape: 0, sharing: 0, largest: 0 } });
   });
 });
 
