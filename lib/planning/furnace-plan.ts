@@ -7,7 +7,7 @@
 
 import { ComputationError } from "@/lib/errors";
 import { GEOMETRY_EPS } from "@/lib/packing/rectangles";
-import { packTraysReported, type PackSearchReport } from "@/lib/packing/trays";
+import { defaultSearchWork, packTraysReported, type PackSearchReport } from "@/lib/packing/trays";
 import type { PackFurnace, PackUnit, TrayLowerBound, TrayRun, Unplaced } from "@/lib/packing/types";
 import { StaffedCalendar, type StaffedHours } from "./staffed-hours";
 
@@ -149,7 +149,10 @@ export function planFurnaceRuns(input: FurnacePlanInput): FurnacePlanResult {
     { clearance_mm: input.clearance_mm, furnaces: input.furnaces, units: packUnits },
     budget === null
       ? { clock: input.clock }
-      : { search: { deadlineMs: budget }, clock: input.clock },
+      : // The search runs on the request's thread, so its work stays at about a fifth of what the
+        // machine could do in the budget (defaultSearchWork per second, not searchWorkFor): other
+        // requests wait behind it. The deadline still caps it on a slow or busy machine.
+        { search: { work: Math.round(defaultSearchWork(packUnits.length) * (budget / 1000)), deadlineMs: budget }, clock: input.clock },
   );
   unplaced.push(...packed.unplaced);
   const cal = input.staffed_hours ? new StaffedCalendar(input.staffed_hours, now) : null;
