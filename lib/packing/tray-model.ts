@@ -287,9 +287,10 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
     const count = big === 0 ? 0 : ceilWithSlack(big / maxTrays);
     // Trays needed by the pieces' shapes (dual-feasible functions, turning allowed), spread over
     // the most trays a run of this profile can have. Bound known to be weak where most pieces are
-    // long one way and turning is allowed (the 2-D bin-packing classes VII and VIII: several
+    // long one way and turning is allowed (the 2-D bin-packing classes VII and VIII: some
     // instances end two trays above it), and on pieces of random sizes (classes III and V); it
-    // counts area and claimed strips, not how long and short pieces interlock.
+    // counts area and claimed strips, not how long and short pieces interlock. raiseBySharing
+    // below lifts it where the larger pieces cannot share trays.
     const shapeTrays = dffTrayBound(
       items.map((it) => ({ w: it.pw, h: it.ph, trays: it.eligible.map((fi) => ({ W: furnaces[fi].W, D: furnaces[fi].D })) })),
       items.length <= 200 ? 24 : 8,

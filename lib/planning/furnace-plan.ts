@@ -149,9 +149,10 @@ export function planFurnaceRuns(input: FurnacePlanInput): FurnacePlanResult {
     { clearance_mm: input.clearance_mm, furnaces: input.furnaces, units: packUnits },
     budget === null
       ? { clock: input.clock }
-      : // The search runs on the request's thread, so its work stays at about a fifth of what the
-        // machine could do in the budget (defaultSearchWork per second, not searchWorkFor): other
-        // requests wait behind it. The deadline still caps it on a slow or busy machine.
+      : // The search runs on the request's thread, so its work stays at a fifth or less of what our
+        // machine could do in the budget up to 100 units (defaultSearchWork per second, not
+        // searchWorkFor): other requests wait behind it. The deadline still caps it on a slow or
+        // busy machine.
         { search: { work: Math.round(defaultSearchWork(packUnits.length) * (budget / 1000)), deadlineMs: budget }, clock: input.clock },
   );
   unplaced.push(...packed.unplaced);
