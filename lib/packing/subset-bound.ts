@@ -62,7 +62,7 @@ export class TrayFitTester {
     const key = set.join(",");
     const known = this.frontier.get(key);
     if (known) return known;
-    let pts: (readonly [number, number])[] = [];
+    const pts: (readonly [number, number])[] = [];
     if (set.length === 1) {
       const p = this.pieces[set[0]];
       for (const [a, b] of [
@@ -92,7 +92,6 @@ export class TrayFitTester {
           }
         }
       }
-      pts = [...pareto(pts)];
     }
     const f = pareto(pts);
     this.frontier.set(key, f);
@@ -191,8 +190,8 @@ export type TrayCountAnswer = "fits" | "too-few" | "unknown";
 export function dealToTrays(tester: TrayFitTester, members: readonly number[], trays: number, budget: number): { answer: TrayCountAnswer; nodes: number } {
   const A = tester.W * tester.D;
   const order = [...members].sort((a, b) => tester.area[b] - tester.area[a] || a - b);
-  let areaLeft = order.reduce((s, i) => s + tester.area[i], 0);
-  if (areaLeft > trays * A + EPS) return { answer: "too-few", nodes: 1 };
+  // The only area test needed: however the pieces are dealt, the trays' spare room adds up to this.
+  if (order.reduce((s, i) => s + tester.area[i], 0) > trays * A + EPS) return { answer: "too-few", nodes: 1 };
   const groups: { set: number[]; area: number }[] = [];
   let nodes = 0;
   let outOfBudget = false;
@@ -202,26 +201,14 @@ export function dealToTrays(tester: TrayFitTester, members: readonly number[], t
       outOfBudget = true;
       return false;
     }
-    // Room left in open trays and in the trays not yet opened must hold what is left.
-    let room = (trays - groups.length) * A;
-    for (const g of groups) room += A - g.area;
-    if (areaLeft > room + EPS) return false;
     const i = order[k];
     const ai = tester.area[i];
-    const tried = new Set<string>();
     for (const g of groups) {
-      if (g.area + ai > A + EPS) continue;
-      // Two open trays holding the same pieces are the same branch.
-      const sig = g.set.join(",");
-      if (tried.has(sig)) continue;
-      tried.add(sig);
-      if (!tester.fitsWith(g.set, i, g.area)) continue;
+      if (g.area + ai > A + EPS || !tester.fitsWith(g.set, i, g.area)) continue;
       const prev = g.set;
       g.set = [...prev, i].sort((a, b) => a - b);
       g.area += ai;
-      areaLeft -= ai;
       const ok = dfs(k + 1);
-      areaLeft += ai;
       g.area -= ai;
       g.set = prev;
       if (ok) return true;
@@ -229,9 +216,7 @@ export function dealToTrays(tester: TrayFitTester, members: readonly number[], t
     }
     if (groups.length < trays) {
       groups.push({ set: [i], area: ai });
-      areaLeft -= ai;
       const ok = dfs(k + 1);
-      areaLeft += ai;
       groups.pop();
       if (ok) return true;
     }

@@ -67,6 +67,8 @@ export interface ProfileModel {
   maxLoad: number;
   maxTrays: number;
   minSide: number;
+  /** The one tray size (W×D) of every furnace the profile may use, or null when they differ. */
+  oneTray: { W: number; D: number } | null;
   bound: { area: number; mass: number; count: number; shape: number; sharing: number; largest: number };
 }
 
@@ -297,10 +299,10 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
     );
     // The short-side bound needs one tray size for the whole profile.
     const t0 = pf[0];
-    const oneSize = pf.every((f) => (f.W === t0.W && f.D === t0.D) || (f.W === t0.D && f.D === t0.W));
+    const oneTray = pf.every((f) => (f.W === t0.W && f.D === t0.D) || (f.W === t0.D && f.D === t0.W)) ? { W: t0.W, D: t0.D } : null;
     const pieces = items.map((it) => ({ w: it.pw, h: it.ph }));
-    const sideTrays = oneSize ? shortSideTrayBound(pieces, t0.W, t0.D) : 0;
-    const claimedTrays = oneSize ? claimedAreaTrayBound(pieces, t0.W, t0.D, items.length <= 200 ? 128 : 32) : 0;
+    const sideTrays = oneTray ? shortSideTrayBound(pieces, oneTray.W, oneTray.D) : 0;
+    const claimedTrays = oneTray ? claimedAreaTrayBound(pieces, oneTray.W, oneTray.D, items.length <= 200 ? 128 : 32) : 0;
     const trayNeed = Math.max(shapeTrays, sideTrays, claimedTrays);
     const shape = trayNeed === 0 ? 0 : ceilWithSlack(trayNeed / maxTrays);
     const largest = Math.max(area, mass, count, shape, items.length > 0 ? 1 : 0);
@@ -310,7 +312,7 @@ export function buildTrayModel(input: TrayPackInput): TrayModel {
     total.count += count;
     total.shape += shape;
     total.largest += largest;
-    profiles.push({ profile, items, furnaces: pf, maxRunArea, maxLoad, maxTrays, minSide, bound });
+    profiles.push({ profile, items, furnaces: pf, maxRunArea, maxLoad, maxTrays, minSide, oneTray, bound });
   }
   return { clearance: c, furnaces, profiles, unplaced, lowerBound: total };
 }
@@ -325,14 +327,14 @@ export const SHARING_BUDGET = 10_000;
  * other bounds. Needs one tray size for the whole profile, as the short-side bound does.
  */
 export function raiseBySharing(model: TrayModel, pm: ProfileModel, stopAt: number, budget = SHARING_BUDGET): void {
-  const t0 = pm.furnaces[0];
-  if (!t0 || !pm.furnaces.every((f) => (f.W === t0.W && f.D === t0.D) || (f.W === t0.D && f.D === t0.W))) return;
+  const tray = pm.oneTray;
+  if (!tray) return;
   // From zero: the run bounds may rest on load, which says nothing about trays; the first steps
   // up are settled by area alone, one node each.
   const { bound: trays } = sharingTrayBound(
     pm.items.map((it) => ({ w: it.pw, h: it.ph })),
-    t0.W,
-    t0.D,
+    tray.W,
+    tray.D,
     0,
     { budget, stopAt: stopAt * pm.maxTrays },
   );
@@ -345,4 +347,3 @@ export function raiseBySharing(model: TrayModel, pm: ProfileModel, stopAt: numbe
     pm.bound.largest = runs;
   }
 }
-

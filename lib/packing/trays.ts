@@ -113,7 +113,7 @@ export function packTraysReported(input: TrayPackInput, options: PackTraysOption
   const search = options.search === false ? null : (options.search ?? {});
   const nUnits = model.profiles.reduce((s, pm) => s + pm.items.length, 0);
   // Without a deadline the work budget is what bounds the time; with one and no work given, the
-  // search may use what the deadline allows (the default budget per 300 ms, its calibration).
+  // search gets about the work our machine does in the deadline (searchWorkFor).
   const defaultWork = search?.deadlineMs !== undefined ? searchWorkFor(nUnits, search.deadlineMs) : defaultSearchWork(nUnits);
   const totalWork = search ? (search.work ?? Math.round(defaultWork)) : 0;
   const deadline = search?.deadlineMs !== undefined ? t0 + search.deadlineMs : undefined;
@@ -122,7 +122,11 @@ export function packTraysReported(input: TrayPackInput, options: PackTraysOption
   // above their bound, split by unit count (a profile already at its bound needs none).
   const solved = model.profiles.map((pm) => solveProfile(pm, { restarts }));
   // Before searching for a plan with fewer runs, look for proof that there is none.
-  if (search) model.profiles.forEach((pm, k) => solved[k].length > pm.bound.largest && raiseBySharing(model, pm, solved[k].length));
+  if (search) {
+    model.profiles.forEach((pm, k) => {
+      if (solved[k].length > pm.bound.largest) raiseBySharing(model, pm, solved[k].length);
+    });
+  }
   const above = model.profiles.filter((pm, k) => solved[k].length > pm.bound.largest);
   const unitsAbove = above.reduce((s, pm) => s + pm.items.length, 0);
   model.profiles.forEach((pm, k) => {
