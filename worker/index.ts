@@ -5,7 +5,7 @@ import { getDb, closeDb } from "@/db/client";
 import { getEnv } from "@/lib/env";
 import { ALL_QUEUES, QUEUES } from "@/lib/jobs/queues";
 import { handleGeometry } from "./handlers/geometry";
-import { startWorkerJobs } from "./jobs";
+import { ensureQueues, startWorkerJobs } from "./jobs";
 import { logJobs, trackFailures } from "./job-log";
 
 const workerId = `${os.hostname()}:${process.pid}:${Date.now().toString(36)}`;
@@ -28,7 +28,7 @@ async function main() {
   boss.on("error", (err) => console.error("[worker] pg-boss error", err.message));
   trackFailures(boss);
   await boss.start();
-  for (const name of ALL_QUEUES) await boss.createQueue(name);
+  await ensureQueues(boss);
 
   await boss.work(QUEUES.geometry, { includeMetadata: true, batchSize: 1 }, logJobs(QUEUES.geometry, handleGeometry));
   await boss.work(

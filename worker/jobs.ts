@@ -1,6 +1,6 @@
 import type PgBoss from "pg-boss";
 import { getDb } from "@/db/client";
-import { QUEUES } from "@/lib/jobs/queues";
+import { ALL_QUEUES, QUEUES, type QueueName } from "@/lib/jobs/queues";
 import { workerConfig } from "./config";
 import { advanceHandler } from "./handlers/advance";
 import { scaleUpHandler } from "./handlers/scale-up";
@@ -35,16 +35,43 @@ function every(seconds: number, name: string, fn: () => Promise<void>) {
 }
 
 /**
+ * Retry and expiry settings per queue (queues not listed keep pg-boss's defaults). Webhook
+ * deliveries get pg-boss's retries with exponential back-off on the queue row, because the database
+ * writes those jobs itself and takes its retry settings from that row.
+ */
+export function queueSettings(): Partial<Record<QueueName, Omit<PgBoss.Queue, "name">>> {
+  const cfg = workerConfig();
+  const base = { retryBackoff: true, expireInSeconds: cfg.expireSeconds };
+  return {
+    [QUEUES.advance]: { ...base, retryLimit: 10, retryDelay: 5 },
+    [QUEUES.sendMail]: { ...base, retryLimit: 3, retryDelay: 10 },
+    [QUEUES.scaleUp]: { ...base, retryLimit: 5, retryDelay: 10 },
+    [QUEUES.webhook]: webhookQueueOptions(webhookConfig()),
+  };
+}
+
+/**
+ * Creates every queue with its settings in the same step, then applies the settings again to a
+ * queue that already existed (they may have changed since). Creating first and setting later left
+ * a moment on a fresh database when the webhook queue existed with no retries, and a delivery the
+ * database queued then would have been tried once.
+ */
+export async function ensureQueues(boss: PgBoss): Promise<void> {
+  const settings = queueSettings();
+  for (const name of ALL_QUEUES) {
+    const s = settings[name];
+    await boss.createQueue(name, s ? { name, ...s } : undefined);
+    if (s) await boss.updateQueue(name, { name, ...s });
+  }
+}
+
+/**
  * The worker's own queues and timers: advancing bookings, sending mail, recomputing scale-ups,
  * delivering webhooks, the sweep and the outbox pass. Returns a stop function for a graceful shutdown.
  */
 export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<() => Promise<void>> {
   const cfg = workerConfig();
   const db = getDb();
-  const queueOptions = { retryBackoff: true, expireInSeconds: cfg.expireSeconds };
-  await boss.updateQueue(QUEUES.advance, { name: QUEUES.advance, ...queueOptions, retryLimit: 10, retryDelay: 5 });
-  await boss.updateQueue(QUEUES.sendMail, { name: QUEUES.sendMail, ...queueOptions, retryLimit: 3, retryDelay: 10 });
-  await boss.updateQueue(QUEUES.scaleUp, { name: QUEUES.scaleUp, ...queueOptions, retryLimit: 5, retryDelay: 10 });
 
   const work = { batchSize: cfg.batchSize, pollingIntervalSeconds: cfg.pollSeconds };
   for (let i = 0; i < cfg.concurrency; i++) {
@@ -53,10 +80,7 @@ export async function startWorkerJobs(boss: PgBoss, workerId: string): Promise<(
   }
   await boss.work(QUEUES.scaleUp, { batchSize: 5, pollingIntervalSeconds: cfg.pollSeconds }, logJobs(QUEUES.scaleUp, scaleUpHandler(db)));
 
-  // Webhook deliveries: pg-boss's retries with exponential back-off, set on the queue, because the
-  // database writes these jobs itself and takes its retry settings from the queue row.
   const hooks = webhookConfig();
-  await boss.updateQueue(QUEUES.webhook, { name: QUEUES.webhook, ...webhookQueueOptions(hooks) });
   for (let i = 0; i < cfg.concurrency; i++) {
     await boss.work(
       QUEUES.webhook,
