@@ -22,8 +22,11 @@ import { pathDecodes } from "@/lib/http/request-target";
 import { crossSiteRefusal } from "@/lib/http/cross-site";
 import { liveHub } from "@/app/_server/live-hub";
 import { withRequestLog } from "@/app/_server/request-log";
+import { startComputeThreads } from "@/db/compute/threads";
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
+// Where the compute threads find their entry (db/compute/threads.ts), whatever the working directory.
+process.env.HEARTH_ROOT ??= root;
 const port = Number(process.env.PORT ?? 3000);
 const hostname = process.env.HOSTNAME ?? "127.0.0.1";
 const instance = process.env.HEARTH_INSTANCE || `${hostname}:${port}`;
@@ -158,6 +161,8 @@ async function main() {
   // Live updates (app/api/events): listening from the start also keeps the floor's window cache
   // in step with changes made by other instances and the worker.
   liveHub().start();
+  // The planners' searches run on their own threads, which load their sources now.
+  startComputeThreads();
 
   const stop = async (signal: string) => {
     if (stopping) return;

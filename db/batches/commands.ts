@@ -4,7 +4,8 @@ import type { DB } from "@/db/schema";
 import type {
 BoardUnit
 } from "@/lib/batches/types";
-import { suggestBatches, type Busy, type SuggestResult } from "@/lib/batches/suggest";
+import type { Busy, SuggestResult } from "@/lib/batches/suggest";
+import { runSearch } from "@/db/compute/run";
 import { type Db, type ShopContext, loadShopContext, listBoardUnits } from "./reads";
 
 // Proposals ------------------------------------------------------------------------------------
@@ -31,8 +32,8 @@ export type Proposal = SuggestResult & {
   /** What is open on the board now, for the diff. */
   current: { wash_batches: number; furnace_runs: number };
   server_ms: number;
-  /** Where the time went: reading the shop and its units, planning, storing the proposal. */
-  timing: { load_ms: number; plan_ms: number; store_ms: number };
+  /** Where the time went: reading the shop and its units, planning, storing the proposal; whether the plan ran on a compute thread. */
+  timing: { load_ms: number; plan_ms: number; store_ms: number; on_thread: boolean };
 };
 
 /**
@@ -62,7 +63,7 @@ export async function proposeBatches(
   const tLoaded = performance.now();
   const washUnits = washAll.filter(keep);
   const furnaceUnits = furnaceAll.filter(keep);
-  const result = suggestBatches({
+  const { result, onThread } = await runSearch("suggest", {
     now,
     staffing: ctx.staffing,
     clearance_mm: ctx.clearance_mm,
@@ -77,7 +78,7 @@ export async function proposeBatches(
     wash: opts.wash,
     furnace: opts.furnace,
     search_budget_ms: opts.budget_ms,
-  });
+  }, opts.budget_ms);
   const tPlanned = performance.now();
   const row = await db
     .insertInto("batch_proposals")
@@ -97,7 +98,7 @@ export async function proposeBatches(
     planned_from: now.toISOString(),
     current: { wash_batches: Number(open[0].n), furnace_runs: Number(open[1].n) },
     server_ms: Math.round(performance.now() - t0),
-    timing: { load_ms: Math.round(tLoaded - t0), plan_ms: Math.round(tPlanned - tLoaded), store_ms: Math.round(performance.now() - tPlanned) },
+    timing: { load_ms: Math.round(tLoaded - t0), plan_ms: Math.round(tPlanned - tLoaded), store_ms: Math.round(performance.now() - tPlanned), on_thread: onThread },
   };
 }
 

@@ -5,7 +5,8 @@ import { AppError } from "@/lib/errors";
 import { judgePrinter, type PrinterSpec, type PrinterVerdict } from "@/lib/builds/estimate";
 import type { BuildAction, CreateBuild, ScheduleBuild, UpdateBuild } from "@/lib/builds/schemas";
 import { scheduleAdvance } from "@/db/jobs/advance";
-import { planFloor, staffedHoursFor } from "@/lib/floor/plan";
+import { staffedHoursFor } from "@/lib/floor/plan";
+import { runSearch } from "@/db/compute/run";
 import { getShopPlanning, listPrinterSpecs, listUnscheduledBuilds, printerBlockedFrom, unitSpecsForBuilds } from "@/db/floor/reads";
 import { verdictsForBuilds } from "./reads";
 import { assertLotFitsBuild, correctDraws, drawForBuild } from "@/db/inventory/commands";
@@ -331,7 +332,7 @@ export async function proposePrinterPlan(db: Database, opts: { build_ids?: strin
   const { verdicts, printers, shop } = await verdictsForBuilds(db, drafts);
   const blocked = await printerBlockedFrom(db, now);
   const t0 = performance.now();
-  const result = planFloor({
+  const { result, onThread } = await runSearch("floor", {
     now: now.getTime(),
     staffed: staffedHoursFor(shop.staffed_hours, shop.time_zone),
     budget_ms: opts.budget_ms,
@@ -341,7 +342,7 @@ export async function proposePrinterPlan(db: Database, opts: { build_ids?: strin
       due: b.due_at ? new Date(b.due_at).getTime() : null,
       minutes: Object.fromEntries((verdicts.get(b.id)?.verdicts ?? []).filter((v) => v.ok && v.est_minutes).map((v) => [v.printer_id, v.est_minutes!])),
     })),
-  });
+  }, opts.budget_ms);
   const planMs = performance.now() - t0;
   const byId = new Map(drafts.map((b) => [b.id, b]));
   const printerName = new Map(printers.map((p) => [p.id, p.name]));
@@ -362,7 +363,7 @@ export async function proposePrinterPlan(db: Database, opts: { build_ids?: strin
   // Flagged, not refused: the technician may receive a lot before the build starts.
   const short = await shortAmongProposed(db, items, now);
   for (const item of items) if (short.has(item.build_id)) item.feedstock_short = short.get(item.build_id)!;
-  const metrics = { ...result.metrics, plan_ms: Math.round(planMs * 10) / 10 };
+  const metrics = { ...result.metrics, plan_ms: Math.round(planMs * 10) / 10, on_thread: onThread };
   const row = await db
     .insertInto("plan_proposals")
     .values({ created_by: actorId, planned_from: now, items: JSON.stringify(items), unplaced: JSON.stringify(unplaced), metrics: JSON.stringify(metrics) })

@@ -7,7 +7,7 @@
 
 import { ComputationError } from "@/lib/errors";
 import { GEOMETRY_EPS } from "@/lib/packing/rectangles";
-import { defaultSearchWork, packTraysReported, type PackSearchReport } from "@/lib/packing/trays";
+import { packTraysReported, searchWorkFor, type PackSearchReport } from "@/lib/packing/trays";
 import type { PackFurnace, PackUnit, TrayLowerBound, TrayRun, Unplaced } from "@/lib/packing/types";
 import { StaffedCalendar, type StaffedHours } from "./staffed-hours";
 
@@ -35,8 +35,8 @@ export interface FurnacePlanInput {
   bookings?: readonly FurnaceBooking[];
   staffed_hours?: StaffedHours | null;
   /**
-   * Time the packer's run-removing search may take, ms. The default work (repeatable for a seed)
-   * is scaled by budget / 1 s, and the budget is also a hard deadline.
+   * Time the packer's run-removing search may take, ms: the search gets the work our machine does
+   * in that time (searchWorkFor, repeatable for a seed), and the budget is also a hard deadline.
    */
   search_budget_ms?: number;
   /** Clock for the deadline (default Date.now). */
@@ -149,11 +149,10 @@ export function planFurnaceRuns(input: FurnacePlanInput): FurnacePlanResult {
     { clearance_mm: input.clearance_mm, furnaces: input.furnaces, units: packUnits },
     budget === null
       ? { clock: input.clock }
-      : // The search runs on the request's thread, so its work stays at a fifth or less of what our
-        // machine could do in the budget up to 100 units (defaultSearchWork per second, not
-        // searchWorkFor): other requests wait behind it. The deadline still caps it on a slow or
-        // busy machine.
-        { search: { work: Math.round(defaultSearchWork(packUnits.length) * (budget / 1000)), deadlineMs: budget }, clock: input.clock },
+      : // About the work our machine does in the budget (searchWorkFor), so a plan is the same for
+        // the same queue wherever the machine keeps up; the deadline caps it where it does not. The
+        // app runs this on a compute thread (db/compute/threads.ts), not on the request's thread.
+        { search: { work: searchWorkFor(packUnits.length, budget), deadlineMs: budget }, clock: input.clock },
   );
   unplaced.push(...packed.unplaced);
   const cal = input.staffed_hours ? new StaffedCalendar(input.staffed_hours, now) : null;

@@ -359,6 +359,8 @@ describe("suggest batches", () => {
     expect(p.metrics.furnace_runs).toBeLessThanOrEqual(3);
     // The search reports why it stopped; at the bound there is nothing left to gain.
     expect(p.metrics.search.budget_ms).toBe(1000);
+    // The app's web server runs the search on a compute thread (db/compute/threads.ts), not on its own.
+    expect(p.timing.on_thread).toBe(true);
     if (p.metrics.furnace_runs === p.metrics.lower_bound) expect(p.metrics.search.stop).toBe("bound");
     expect(p.unplaced).toHaveLength(0);
     const proposedIds = p.furnace.flatMap((r: { units: { id: string }[] }) => r.units.map((u) => u.id));

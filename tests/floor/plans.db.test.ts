@@ -33,6 +33,7 @@ describe("printer-plan proposals", () => {
     expect(p.items).toHaveLength(3);
     expect(p.unplaced).toEqual([]);
     expect(p.metrics.placed).toBe(3);
+    expect(p.metrics.on_thread).toBe(true);
     expect(p.metrics.makespan_min).toBeGreaterThanOrEqual(p.metrics.makespan_lower_bound_min - 1e-6);
     for (const item of p.items) {
       expect(new Date(item.starts_at).getTime()).toBeGreaterThanOrEqual(new Date(p.planned_from).getTime());
