@@ -6,6 +6,7 @@ import { TrayFitTester, dealToTrays, sharingTrayBound, type BoundPiece } from "@
 import { packTraysReported } from "@/lib/packing/trays";
 import type { TrayPackInput } from "@/lib/packing/types";
 import { prng } from "@/bench/generate-instances";
+import { asTrayInstance, binInstance } from "@/bench/bin-packing-classes";
 
 type Highs = { solve: (lp: string, opts?: Record<string, unknown>) => { Status: string } };
 let highs: Highs;
@@ -167,4 +168,43 @@ describe("the sharing bound", () => {
   it("claims nothing beyond its start when given no budget", () => {
     expect(sharingTrayBound(WORKED, 100, 100, 3, { budget: 0 }).bound).toBe(3);
   });
+});
+
+/** The sharing search's tester with every set of five or more pieces tested exactly, by HiGHS. */
+class MilpTester extends TrayFitTester {
+  private readonly exact = new Map<string, boolean>();
+  solves = 0;
+  fitsWith(group: readonly number[], i: number, groupArea: number): boolean {
+    if (!super.fitsWith(group, i, groupArea)) return false;
+    const set = [...group, i].sort((a, b) => a - b);
+    if (set.length <= 4) return true;
+    const key = set.join(",");
+    let ok = this.exact.get(key);
+    if (ok === undefined) {
+      this.solves++;
+      ok = fitsByMilp(set.map((k) => this.pieces[k]), this.W, this.D);
+      this.exact.set(key, ok);
+    }
+    return ok;
+  }
+}
+
+describe("where the bound is short", () => {
+  it("VIII n=20 seed 7: the packer's six bins are optimal though every bound says five", () => {
+    // Class VIII of Martello & Vigo (1998) as bench/bin-packing-classes.ts generates it. Dealing all
+    // twenty pieces to five trays, each tray's set tested exactly, has no solution, so six bins
+    // are needed: the one bin of excess the bench counts here is the bound's, not the packer's.
+    const inst = binInstance("VIII", 20, 7);
+    const packed = packTraysReported(asTrayInstance(inst), { search: { seed: 7 } }).result;
+    expect(packed.lowerBound.largest).toBe(5);
+    expect(packed.runs).toHaveLength(6);
+    const tester = new MilpTester(inst.items, inst.W, inst.H);
+    const all = inst.items.map((_, i) => i);
+    expect(dealToTrays(tester, all, 5, 100_000).answer).toBe("too-few");
+    expect(tester.solves).toBeGreaterThan(0);
+    // The exact tests decide it: the relaxed tester alone lets five trays pass.
+    expect(dealToTrays(new TrayFitTester(inst.items, inst.W, inst.H), all, 5, 100_000).answer).toBe("fits");
+    // And with six trays the exact deal finds room, as the packer did.
+    expect(dealToTrays(new MilpTester(inst.items, inst.W, inst.H), all, 6, 100_000).answer).toBe("fits");
+  }, 120_000);
 });
