@@ -1,12 +1,13 @@
 // The searches behind "Suggest batches" and "Propose plan" run on worker threads, not on the web
-// process's own thread (the web server calls startComputeThreads; db/compute/run.ts sends them). They are synchronous and may take the whole budget a person gives them
-// (up to 30 s); on the request's thread every other request to that process, every page and every
-// live update, would wait behind them.
+// process's own thread (the web server calls startComputeThreads; db/compute/run.ts sends them).
+// They are synchronous and may take the whole budget a person gives them (up to 30 s); on the
+// request's thread every other request to that process, every page and every live update, would
+// wait behind them.
 //
 // A small pool of long-lived threads (one per core beyond the first, at least one, at most two)
 // takes the jobs; a thread runs one job at a time, and a job waits for the thread with the fewest
-// jobs. A thread that does not answer within its job's budget plus a grace period is stopped, its
-// jobs fail with 503, and the next job starts a new thread. The thread runs the TypeScript sources
+// jobs. A thread that does not answer within the budgets of its jobs plus a grace period is
+// stopped, its jobs fail with 503, and the next job starts a new thread. The thread runs the TypeScript sources
 // with tsx's loader (thread-boot.mjs), as the web server and the worker process themselves do
 // (scripts/stack.ts).
 import os from "node:os";
@@ -16,12 +17,15 @@ import { AppError, ComputationError } from "@/lib/errors";
 import { installComputeRunner } from "./run";
 import type { ThreadJobInput, ThreadJobName, ThreadJobResult, ThreadReply, ThreadRequest } from "./thread-jobs";
 
-/** Extra time beyond a job's own budget before its thread counts as stuck. */
-const GRACE_MS = 30_000;
+/** Extra time beyond the jobs' own budgets before a thread counts as stuck (HEARTH_COMPUTE_GRACE_MS, 30 s). */
+function graceMs(): number {
+  const v = Number(process.env.HEARTH_COMPUTE_GRACE_MS);
+  return Number.isFinite(v) && v >= 0 ? v : 30_000;
+}
 /** The budget assumed for a job that sets none (the searches then stop on their work budget). */
 const DEFAULT_BUDGET_MS = 30_000;
 
-type Pending = { resolve: (v: unknown) => void; reject: (e: unknown) => void; timer: NodeJS.Timeout };
+type Pending = { resolve: (v: unknown) => void; reject: (e: unknown) => void; timer: NodeJS.Timeout; budgetMs: number };
 
 function entryPath(): string {
   // HEARTH_ROOT is set by scripts/serve.ts; tests, benchmarks and scripts run from the repository.
@@ -76,12 +80,15 @@ class ComputeThread {
   run(id: number, name: ThreadJobName, input: unknown, budgetMs: number): Promise<unknown> {
     const w = (this.worker ??= this.start());
     w.ref();
+    // The thread takes its jobs in turn, so this one may first wait for those ahead of it.
+    let waitMs = budgetMs + graceMs();
+    for (const p of this.pending.values()) waitMs += p.budgetMs;
     return new Promise((resolve, reject) => {
       const timer = setTimeout(
-        () => this.fail(w, new AppError("unavailable", `The planner did not answer within ${Math.round((budgetMs + GRACE_MS) / 1000)} s; try again with a shorter budget.`)),
-        budgetMs + GRACE_MS,
+        () => this.fail(w, new AppError("unavailable", `The planner did not answer within ${Math.round(waitMs / 1000)} s; try again with a shorter budget.`)),
+        waitMs,
       );
-      this.pending.set(id, { resolve, reject, timer });
+      this.pending.set(id, { resolve, reject, timer, budgetMs });
       w.postMessage({ id, name, input } satisfies ThreadRequest);
     });
   }

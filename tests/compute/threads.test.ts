@@ -91,4 +91,22 @@ describe("compute threads", () => {
     // search. A generous margin for a shared, busy machine.
     expect(worstGap).toBeLessThan(took / 4);
   }, 60_000);
+
+  it("stop a thread that overruns, answer 503, and start a new one for the next job", async () => {
+    const before = process.env.HEARTH_COMPUTE_GRACE_MS;
+    process.env.HEARTH_COMPUTE_GRACE_MS = "100";
+    try {
+      // The search may take 3 s, but the thread is told 100 ms (+100 ms grace): it counts as stuck.
+      const t0 = performance.now();
+      const err = await runOnComputeThread("suggest", suggestInput(binInstance("VII", 100, 10).items, 3_000), 100).catch((e: unknown) => e);
+      expect(isAppError(err) && err.status).toBe(503);
+      expect(performance.now() - t0).toBeLessThan(2_500);
+    } finally {
+      if (before === undefined) delete process.env.HEARTH_COMPUTE_GRACE_MS;
+      else process.env.HEARTH_COMPUTE_GRACE_MS = before;
+    }
+    // The next job gets a fresh thread and its answer.
+    const input = busyFloor(10, 5);
+    expect(await runOnComputeThread("floor", input)).toEqual(planFloor(input));
+  }, 60_000);
 });
