@@ -23,6 +23,15 @@ async function beat(jobRan = false) {
 }
 
 async function main() {
+  // Signals are taken from the first moment: one that comes while the worker is still starting
+  // (a supervisor stopping it early) waits for the start to finish, then stops it gracefully.
+  let pendingSignal: string | null = null;
+  let onSignal = (signal: string) => {
+    pendingSignal ??= signal;
+  };
+  process.on("SIGTERM", () => onSignal("SIGTERM"));
+  process.on("SIGINT", () => onSignal("SIGINT"));
+
   // Failed jobs stay in pgboss.job for a week so that /setup/jobs can show them.
   const boss = new PgBoss({ connectionString: getEnv().DATABASE_URL, max: 5, archiveFailedAfterSeconds: 7 * 24 * 3600 });
   boss.on("error", (err) => console.error("[worker] pg-boss error", err.message));
@@ -59,8 +68,8 @@ async function main() {
     await closeDb();
     process.exit(0);
   };
-  process.on("SIGTERM", () => void stop("SIGTERM"));
-  process.on("SIGINT", () => void stop("SIGINT"));
+  onSignal = (signal) => void stop(signal);
+  if (pendingSignal) onSignal(pendingSignal);
 }
 
 main().catch((err) => {

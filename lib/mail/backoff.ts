@@ -20,6 +20,18 @@ export function backoffFromEnv(env: Record<string, string | undefined> = process
 }
 
 /**
+ * How long a sender holds a claimed message before another may send it: longer than the longest
+ * send (the transport's connection, greeting and idle-socket timeouts, adapters/mail/transport.ts,
+ * plus a queue wait in its pool), so only a sender that died mid-send is overtaken.
+ */
+export const DEFAULT_LEASE_SECONDS = 300;
+
+export function leaseSecondsFromEnv(env: Record<string, string | undefined> = process.env): number {
+  const v = Number(env.HEARTH_MAIL_LEASE_SECONDS);
+  return Number.isFinite(v) && v >= 1 ? v : DEFAULT_LEASE_SECONDS;
+}
+
+/**
  * A relay that is down, slow or refusing connections is temporary: the message waits, however
  * long the outage. Only a relay that answers and rejects this message or its recipient
  * (RFC 5321 §4.2.1: 5yz after MAIL, RCPT or DATA) is a permanent failure.

@@ -298,6 +298,8 @@ export async function startWorker(url: string, capture: Capture, env: Record<str
       HEARTH_WORKER_POLL_SECONDS: "0.5",
       HEARTH_MAIL_BACKOFF_SECONDS: "0.5",
       HEARTH_MAIL_BACKOFF_MAX_SECONDS: "1",
+      // A worker killed mid-send leaves its claimed messages to the next after this long.
+      HEARTH_MAIL_LEASE_SECONDS: "15",
       HEARTH_WORKER_QUIET: "1",
       DB_POOL_MAX: "6",
       ...env,
