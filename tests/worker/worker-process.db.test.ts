@@ -206,20 +206,17 @@ describe("worker processes", { timeout: 240_000 }, () => {
       await sendJob(w.db, boss, { entity: "furnace_run", id: run.id, version: run.version, due_at: run.ends_at.toISOString() });
       const rows = () => w.db.selectFrom("notification_outbox").select(["status", "attempts", "last_error", "next_attempt_at"]).execute();
       // Not a speed test: on a two-core machine running other suites (a fresh clone's npm start)
-      // the first advance can take well over the usual few seconds, so wait as the kill test does,
-      // and say what the rows were if it never comes.
-      let seen = "no rows";
+      // the first advance can take well over the usual few seconds, so wait as the kill test does.
+      // Throwing the rows' state lets waitUntil name it if the wait runs out.
       await waitUntil(
         "five messages tried at least twice",
         async () => {
           const r = await rows();
-          seen = `${r.length} row(s), attempts ${r.map((x) => x.attempts).join(",")}`;
-          return r.length === 5 && r.every((x) => x.attempts >= 2);
+          if (r.length === 5 && r.every((x) => x.attempts >= 2)) return true;
+          throw new Error(`${r.length} row(s), attempts ${r.map((x) => x.attempts).join(",") || "none"}`);
         },
         90_000,
-      ).catch((err: Error) => {
-        throw new Error(`${err.message} (last seen: ${seen})`);
-      });
+      );
       const held = await rows();
       expect(held.every((r) => r.status === "pending" && r.last_error)).toBe(true);
       expect(await capture.messages()).toHaveLength(0);
