@@ -16,7 +16,9 @@ ensure_node_modules() {
   if [ ! -d "$ROOT/node_modules/.bin" ] || [ ! -f "$ROOT/node_modules/.package-lock.json" ] \
      || [ "$ROOT/package-lock.json" -nt "$ROOT/node_modules/.package-lock.json" ]; then
     log "installing dependencies (npm ci)"
-    (cd "$ROOT" && npm ci --no-audit --no-fund)
+    # --include=dev: the build needs its devDependencies (Tailwind's PostCSS plugin, TypeScript),
+    # and npm leaves them out when NODE_ENV=production is in the environment.
+    (cd "$ROOT" && npm ci --include=dev --no-audit --no-fund)
   fi
 }
 

@@ -57,8 +57,9 @@ it("starts from a fresh clone in a 0700 folder and leaves the checkout clean", {
   execFileSync("git", ["clone", "--quiet", "--no-checkout", repo, clone]);
   execFileSync("git", ["-C", clone, "checkout", "--quiet", "--detach", head]);
   execFileSync("cp", ["-al", path.join(repo, "node_modules"), path.join(clone, "node_modules")]);
-  // the lock file is as old as the installed modules, so npm start does not reinstall them
-  const installed = fs.statSync(path.join(repo, "node_modules/.package-lock.json")).mtime;
+  // the lock file is older than the installed modules, so npm start does not reinstall them; a
+  // second older, because utimes takes milliseconds and rounding can land after the install's time
+  const installed = new Date(fs.statSync(path.join(repo, "node_modules/.package-lock.json")).mtimeMs - 1000);
   fs.utimesSync(path.join(clone, "package-lock.json"), installed, installed);
 
   const started = Date.now();
